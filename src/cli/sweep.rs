@@ -1,0 +1,298 @@
+//! `framecost sweep PATH...` — replay every design of each workload at every size and
+//! write a run folder of results.
+//!
+//! Every spec is checked before anything runs. Sizes whose estimated memory does not fit
+//! are refused with the estimate (unless `--force`); points predicted to overrun their time
+//! budget are skipped with the prediction shown. Results are written point by point to
+//! `<run>/points.jsonl`; `summary.json` is written at the end. Exit 0 on success, 2 for bad
+//! input, 3 when a step failed or designs that should agree did not.
+
+use crate::measure::runner::{self, Progress, SweepOptions};
+use crate::plan::Plan;
+use crate::present::terminal::{render, Style};
+use crate::results::writer::RunWriter;
+use crate::results::Record;
+use crate::spec::units::{parse_rows, parse_seconds, parse_share, rows_label};
+use std::path::PathBuf;
+use std::time::Instant;
+
+/// Replay designs on growing tables and measure them.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// Workload files, or folders of them.
+    #[arg(required = true)]
+    pub paths: Vec<PathBuf>,
+    /// Run folder to write (default: reports/<workload>-<date>-<time>).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+    /// Replace the sizes of every workload, e.g. `1k,4k,16k`.
+    #[arg(long, value_name = "LIST", value_delimiter = ',')]
+    pub sizes: Option<Vec<String>>,
+    /// Replace the per-point time budget, e.g. `5s`.
+    #[arg(long, value_name = "DURATION")]
+    pub point_budget: Option<String>,
+    /// Replace the whole-run time budget of each workload, e.g. `2m`.
+    #[arg(long, value_name = "DURATION")]
+    pub run_budget: Option<String>,
+    /// Replace the target precision of medians, e.g. `5%`.
+    #[arg(long, value_name = "SHARE")]
+    pub precision: Option<String>,
+    /// Replace the most samples per point.
+    #[arg(long, value_name = "N")]
+    pub max_samples: Option<u64>,
+    /// Run only these designs (repeatable).
+    #[arg(long = "design", value_name = "NAME")]
+    pub designs: Vec<String>,
+    /// Run sizes even when their estimated memory exceeds what is available.
+    #[arg(long)]
+    pub force: bool,
+    /// Show the plan and its memory estimates, then stop without running.
+    #[arg(long)]
+    pub plan: bool,
+    /// Print only the run folder's path at the end, not the summary.
+    #[arg(long)]
+    pub quiet: bool,
+}
+
+fn fail(msg: impl std::fmt::Display) -> i32 {
+    eprintln!("framecost sweep: {msg}");
+    crate::exit::BAD_INPUT
+}
+
+/// Apply command-line overrides to a plan.
+fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
+    if let Some(list) = &a.sizes {
+        let mut v = Vec::new();
+        for s in list {
+            let n = parse_rows(s).map_err(|e| format!("--sizes: expected {e}"))?;
+            if n == 0 {
+                return Err("--sizes: sizes must be at least 1 row".into());
+            }
+            v.push(n);
+        }
+        v.sort_unstable();
+        v.dedup();
+        plan.sizes = v;
+    }
+    if let Some(s) = &a.point_budget {
+        plan.budget.per_point_s = positive(parse_seconds(s), "--point-budget")?;
+    }
+    if let Some(s) = &a.run_budget {
+        plan.budget.whole_run_s = positive(parse_seconds(s), "--run-budget")?;
+    }
+    if let Some(s) = &a.precision {
+        let p = parse_share(s).map_err(|e| format!("--precision: expected {e}"))?;
+        if !(p > 0.0 && p <= 0.5) {
+            return Err(format!("--precision: expected above 0% and at most 50%, found {s}"));
+        }
+        plan.budget.precision = p;
+    }
+    if let Some(m) = a.max_samples {
+        if m < plan.budget.min_samples.min(6) {
+            return Err(format!("--max-samples: expected at least {}", plan.budget.min_samples.min(6)));
+        }
+        plan.budget.max_samples = m;
+        plan.budget.min_samples = plan.budget.min_samples.min(m);
+    }
+    if !a.designs.is_empty() {
+        for d in &a.designs {
+            if !plan.designs.iter().any(|x| &x.name == d) {
+                let names: Vec<&str> = plan.designs.iter().map(|x| x.name.as_str()).collect();
+                let hint = crate::spec::suggest::closest(d, names.iter().copied())
+                    .map(|s| format!(" (did you mean `{s}`?)"))
+                    .unwrap_or_default();
+                return Err(format!("--design: `{}` has no design `{d}`{hint}; it has {}", plan.name, names.join(", ")));
+            }
+        }
+        plan.designs.retain(|x| a.designs.contains(&x.name));
+    }
+    Ok(())
+}
+
+fn positive(v: Result<f64, String>, flag: &str) -> Result<f64, String> {
+    match v {
+        Ok(x) if x > 0.0 && x.is_finite() => Ok(x),
+        Ok(x) => Err(format!("{flag}: expected a duration above zero, found {x} s")),
+        Err(e) => Err(format!("{flag}: expected {e}")),
+    }
+}
+
+/// A progress bar on stderr, only when stderr is a terminal.
+struct Bar(Option<indicatif::ProgressBar>);
+
+impl Bar {
+    fn new(total: u64) -> Bar {
+        use std::io::IsTerminal;
+        if !std::io::stderr().is_terminal() {
+            return Bar(None);
+        }
+        let pb = indicatif::ProgressBar::with_draw_target(Some(total), indicatif::ProgressDrawTarget::stderr());
+        if let Ok(st) = indicatif::ProgressStyle::with_template("{bar:24} {pos}/{len} points · {msg}") {
+            pb.set_style(st);
+        }
+        Bar(Some(pb))
+    }
+}
+
+impl Progress for Bar {
+    fn point(&self, workload: &str, rows: u64, design: &str, samples: usize) {
+        if let Some(pb) = &self.0 {
+            pb.set_message(format!("{workload} · {} rows · {design} · {samples} samples", rows_label(rows)));
+        }
+    }
+    fn point_done(&self) {
+        if let Some(pb) = &self.0 {
+            pb.inc(1);
+        }
+    }
+}
+
+pub fn run(a: Args) -> i32 {
+    let files = match super::expand_paths(&a.paths) {
+        Ok(f) => f,
+        Err(e) => return fail(e),
+    };
+    // Check everything before running anything.
+    let mut plans = Vec::new();
+    let mut bad = false;
+    for f in &files {
+        match crate::spec::load(f) {
+            Ok(p) => plans.push(p),
+            Err(e) => {
+                eprintln!("{e}");
+                bad = true;
+            }
+        }
+    }
+    if bad {
+        return fail("fix the workload files above (nothing was run)");
+    }
+    for p in plans.iter_mut() {
+        if let Err(e) = adjust(p, &a) {
+            return fail(e);
+        }
+    }
+
+    // Memory plan: the largest size of each workload against what is free now.
+    let avail = crate::measure::machine::available_memory();
+    let opts = SweepOptions { force: a.force, ..SweepOptions::default() };
+    let mut refused = Vec::new();
+    for p in &plans {
+        let largest = *p.sizes.last().unwrap_or(&0);
+        let est = crate::measure::memory::estimate(p, largest, &[]);
+        if a.plan {
+            println!("{} ({} designs):", p.name, p.designs.len());
+            for &n in &p.sizes {
+                let e = crate::measure::memory::estimate(p, n, &[]);
+                println!("  {:>8} rows  needs {}", rows_label(n), e.describe());
+            }
+            println!(
+                "  budgets: {} per point, {} whole run, precision ±{:.1}%, {}–{} samples",
+                crate::present::units::time_ns(p.budget.per_point_s * 1e9),
+                crate::present::units::time_ns(p.budget.whole_run_s * 1e9),
+                p.budget.precision * 100.0,
+                p.budget.min_samples,
+                p.budget.max_samples
+            );
+        }
+        if est.total() > avail as f64 * opts.memory_share {
+            refused.push(format!(
+                "{} at {} rows needs {}; {} available",
+                p.name,
+                rows_label(largest),
+                est.describe(),
+                crate::present::units::bytes(avail as f64)
+            ));
+        }
+    }
+    if a.plan {
+        println!("available memory now: {}", crate::present::units::bytes(avail as f64));
+        for r in &refused {
+            println!("would refuse: {r}{}", if a.force { " (but --force is set)" } else { "" });
+        }
+        return crate::exit::OK;
+    }
+    for r in &refused {
+        eprintln!(
+            "framecost sweep: {r}; {}",
+            if a.force { "running anyway (--force)" } else { "sizes that do not fit will be refused (--force runs them anyway)" }
+        );
+    }
+
+    // The run folder.
+    let dir = match &a.out {
+        Some(d) => d.clone(),
+        None => {
+            let label = if plans.len() == 1 { plans[0].name.clone() } else { "sweep".to_string() };
+            let stamp = chrono::Local::now().format("%Y%m%d-%H%M%S");
+            let mut d = PathBuf::from("reports").join(format!("{label}-{stamp}"));
+            let mut k = 2;
+            while d.exists() {
+                d = PathBuf::from("reports").join(format!("{label}-{stamp}-{k}"));
+                k += 1;
+            }
+            d
+        }
+    };
+    if dir.join("points.jsonl").exists() {
+        return fail(format!("{} already holds a run; choose another --out", dir.display()));
+    }
+    let mut out = match RunWriter::create(&dir) {
+        Ok(w) => w,
+        Err(e) => return fail(e),
+    };
+
+    let started = Instant::now();
+    let clock = crate::measure::clock::calibrate();
+    let header = runner::run_header(std::env::args().collect(), clock, a.force);
+    if let Err(e) = out.write(Record::Run(header)) {
+        return fail(e);
+    }
+    eprintln!("framecost: writing {}", dir.display());
+    let total: u64 = plans.iter().map(|p| (p.sizes.len() * p.designs.len()) as u64).sum();
+    let bar = Bar::new(total);
+    let mut failures = 0;
+    let mut mismatches = 0;
+    for p in &plans {
+        let _ = out.side_file(&format!("spec-{}.yaml", p.name), &p.spec_text);
+        match runner::sweep(p, &opts, &clock, &mut out, &bar) {
+            Ok(o) => {
+                failures += o.failures;
+                mismatches += o.mismatches;
+            }
+            Err(e) => {
+                if let Some(pb) = &bar.0 {
+                    pb.finish_and_clear();
+                }
+                eprintln!("framecost sweep: {e}");
+                return crate::exit::RUN_FAILED;
+            }
+        }
+    }
+    if let Some(pb) = &bar.0 {
+        pb.finish_and_clear();
+    }
+    if let Err(e) = out.write(Record::End(runner::end_record(started, mismatches))) {
+        return fail(e);
+    }
+    let summary_path = match out.finish() {
+        Ok(p) => p,
+        Err(e) => return fail(e),
+    };
+    if !a.quiet {
+        print!("{}", render(&out.results, Style::detect()));
+        if plans.len() > 1 {
+            let s = crate::results::summary::Summary::from_results(&out.results);
+            println!();
+            for l in crate::present::terminal::one_liners(&s) {
+                println!("{l}");
+            }
+        }
+    }
+    println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());
+    if failures > 0 || mismatches > 0 {
+        eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");
+        return crate::exit::RUN_FAILED;
+    }
+    crate::exit::OK
+}

@@ -1,0 +1,27 @@
+//! framecost: replay several designs of one table job on synthetic tables of growing size,
+//! measure time and allocations side by side, and record how each cost grows.
+//!
+//! Data flows one way: [`spec`] (YAML, checked) → [`plan`] (resolved) → [`table`] (seeded
+//! synthetic DataFrame) → [`measure`] (timed, interleaved samples; allocation counts) →
+//! [`results`] (JSON lines on disk, written as they come) → [`present`] (terminal). Later
+//! stages read saved results only.
+
+pub mod cli;
+pub mod measure;
+pub mod patterns;
+pub mod plan;
+pub mod present;
+pub mod results;
+pub mod spec;
+pub mod table;
+
+/// Exit codes shared by every command.
+pub mod exit {
+    pub const OK: i32 = 0;
+    /// The gate found a regression.
+    pub const REGRESSION: i32 = 1;
+    /// Bad input or usage.
+    pub const BAD_INPUT: i32 = 2;
+    /// A run failed (a step failed, or designs that should agree did not).
+    pub const RUN_FAILED: i32 = 3;
+}

@@ -1,0 +1,108 @@
+//! A counting global allocator: exact, deterministic evidence of how much memory a step
+//! asks for.
+//!
+//! It wraps the system allocator and keeps four atomic counters: bytes allocated, number of
+//! allocations, bytes live now, and the peak of live bytes since the last [`Window::open`].
+//! Counts cover every thread (polars works on a thread pool). A newcomer must know: the
+//! counters are process-wide, so nothing else may allocate while a sample is timed — the
+//! runner draws progress only between samples.
+
+use std::alloc::{GlobalAlloc, Layout, System};
+use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
+
+pub struct CountingAlloc;
+
+static ALLOCATED: AtomicU64 = AtomicU64::new(0);
+static COUNT: AtomicU64 = AtomicU64::new(0);
+static LIVE: AtomicU64 = AtomicU64::new(0);
+static PEAK: AtomicU64 = AtomicU64::new(0);
+
+#[inline(always)]
+fn grow(size: u64) {
+    ALLOCATED.fetch_add(size, Relaxed);
+    COUNT.fetch_add(1, Relaxed);
+    let live = LIVE.fetch_add(size, Relaxed) + size;
+    PEAK.fetch_max(live, Relaxed);
+}
+
+#[inline(always)]
+fn shrink(size: u64) {
+    LIVE.fetch_sub(size, Relaxed);
+}
+
+unsafe impl GlobalAlloc for CountingAlloc {
+    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
+        let p = unsafe { System.alloc(layout) };
+        if !p.is_null() {
+            grow(layout.size() as u64);
+        }
+        p
+    }
+    unsafe fn alloc_zeroed(&self, layout: Layout) -> *mut u8 {
+        let p = unsafe { System.alloc_zeroed(layout) };
+        if !p.is_null() {
+            grow(layout.size() as u64);
+        }
+        p
+    }
+    unsafe fn dealloc(&self, ptr: *mut u8, layout: Layout) {
+        unsafe { System.dealloc(ptr, layout) };
+        shrink(layout.size() as u64);
+    }
+    unsafe fn realloc(&self, ptr: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
+        let p = unsafe { System.realloc(ptr, layout, new_size) };
+        if !p.is_null() {
+            // A reallocation is counted as a new allocation of the new size and a free of
+            // the old: that is what it costs when the block has to move.
+            shrink(layout.size() as u64);
+            grow(new_size as u64);
+        }
+        p
+    }
+}
+
+#[global_allocator]
+static GLOBAL: CountingAlloc = CountingAlloc;
+
+/// What happened inside one measurement window.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
+pub struct AllocStats {
+    /// Bytes requested (reallocations count their new size).
+    pub bytes: u64,
+    /// Number of allocations (and reallocations).
+    pub count: u64,
+    /// Highest live bytes above the level at the window's start.
+    pub peak_live: u64,
+}
+
+/// An open measurement window.
+pub struct Window {
+    bytes0: u64,
+    count0: u64,
+    live0: u64,
+}
+
+impl Window {
+    /// Start counting: resets the peak to the current live level.
+    #[inline]
+    pub fn open() -> Window {
+        let live0 = LIVE.load(Relaxed);
+        PEAK.store(live0, Relaxed);
+        Window { bytes0: ALLOCATED.load(Relaxed), count0: COUNT.load(Relaxed), live0 }
+    }
+
+    /// Stop counting and read the window.
+    #[inline]
+    pub fn close(self) -> AllocStats {
+        AllocStats {
+            bytes: ALLOCATED.load(Relaxed) - self.bytes0,
+            count: COUNT.load(Relaxed) - self.count0,
+            peak_live: PEAK.load(Relaxed).saturating_sub(self.live0),
+        }
+    }
+}
+
+/// Bytes live in the whole process right now.
+pub fn live_bytes() -> u64 {
+    LIVE.load(Relaxed)
+}

@@ -1,0 +1,100 @@
+//! Machine facts: a fingerprint of the computer a run was made on, the memory it has free,
+//! and a yardstick — a fixed reference kernel timed in the same run.
+//!
+//! The yardstick lets later comparisons across runs and machines be judged: if the
+//! yardstick got 30% slower, a 30% slower design says more about the machine than about
+//! the design.
+
+use serde::{Deserialize, Serialize};
+use std::time::Instant;
+use sysinfo::{CpuRefreshKind, System};
+
+/// Who ran what, where.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct MachineFingerprint {
+    pub cpu_model: String,
+    pub logical_cores: usize,
+    pub physical_cores: Option<usize>,
+    pub memory_total_bytes: u64,
+    pub os: String,
+    pub kernel: String,
+    pub arch: String,
+    pub framecost_version: String,
+    pub polars_version: String,
+    /// Threads polars may use (POLARS_MAX_THREADS, or the logical cores).
+    pub polars_threads: usize,
+}
+
+impl MachineFingerprint {
+    pub fn collect() -> MachineFingerprint {
+        let mut sys = System::new();
+        sys.refresh_cpu_list(CpuRefreshKind::nothing());
+        sys.refresh_memory();
+        let cpu_model = sys.cpus().first().map(|c| c.brand().trim().to_string()).unwrap_or_default();
+        MachineFingerprint {
+            cpu_model: if cpu_model.is_empty() { "unknown".into() } else { cpu_model },
+            logical_cores: std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1),
+            physical_cores: System::physical_core_count(),
+            memory_total_bytes: sys.total_memory(),
+            os: format!("{} {}", System::name().unwrap_or_default(), System::os_version().unwrap_or_default())
+                .trim()
+                .to_string(),
+            kernel: System::kernel_version().unwrap_or_default(),
+            arch: System::cpu_arch(),
+            framecost_version: env!("CARGO_PKG_VERSION").to_string(),
+            polars_version: polars::VERSION.to_string(),
+            polars_threads: std::env::var("POLARS_MAX_THREADS")
+                .ok()
+                .and_then(|v| v.parse().ok())
+                .unwrap_or_else(|| std::thread::available_parallelism().map(|n| n.get()).unwrap_or(1)),
+        }
+    }
+
+    /// Fields that make two machines different for comparison purposes.
+    pub fn same_machine(&self, other: &MachineFingerprint) -> bool {
+        self.cpu_model == other.cpu_model
+            && self.logical_cores == other.logical_cores
+            && self.memory_total_bytes == other.memory_total_bytes
+            && self.polars_version == other.polars_version
+    }
+}
+
+/// Memory the OS says is available now (bytes).
+pub fn available_memory() -> u64 {
+    let mut sys = System::new();
+    sys.refresh_memory();
+    sys.available_memory()
+}
+
+/// The yardstick's result.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Yardstick {
+    /// What was timed.
+    pub kernel: String,
+    /// Median of the rounds (ns).
+    pub median_ns: f64,
+    /// Every round (ns).
+    pub rounds_ns: Vec<f64>,
+}
+
+/// A fixed kernel: sum 4 Mi words and sort 1 Mi words of fixed pseudo-random data, single
+/// threaded. About 100 ms on a laptop core; the same work on every machine and version.
+pub fn yardstick() -> Yardstick {
+    let st = crate::table::rng::Stream::new(0x5eed, "yardstick", 0);
+    let data: Vec<u64> = (0..(1u64 << 22)).map(|i| st.at(i)).collect();
+    let mut rounds = Vec::new();
+    for _ in 0..7 {
+        let t0 = Instant::now();
+        let s = data.iter().fold(0u64, |a, &b| a.wrapping_add(b));
+        std::hint::black_box(s);
+        let mut v = data[..1 << 20].to_vec();
+        v.sort_unstable();
+        std::hint::black_box(&v);
+        rounds.push(t0.elapsed().as_nanos() as f64);
+    }
+    Yardstick {
+        kernel: "sum 4Mi u64 + sort 1Mi u64 (single thread, fixed data)".into(),
+        median_ns: crate::measure::stats::median(&rounds),
+        rounds_ns: rounds,
+    }
+}

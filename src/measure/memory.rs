@@ -1,0 +1,72 @@
+//! Memory estimates made before a size runs, so a sweep refuses what will not fit instead
+//! of taking the machine down.
+//!
+//! Before anything is measured, a size needs the table, the records made from it (for
+//! `feed: records`), and each design's working memory as its steps' memory factor times the
+//! table. Once a design has been measured at two or more sizes, its peak live bytes are
+//! extrapolated along their own log-log slope instead.
+
+use crate::measure::stats::loglog_slope;
+use crate::plan::Plan;
+use crate::spec::model::Feed;
+
+/// Bytes a record's value takes: the value itself (an `AnyValue`, 32 bytes here) plus the
+/// record's share of its vector.
+pub const RECORD_VALUE_BYTES: f64 = 40.0;
+
+/// Estimated memory for one size.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Estimate {
+    pub table: f64,
+    pub records: f64,
+    pub working: f64,
+}
+
+impl Estimate {
+    pub fn total(&self) -> f64 {
+        self.table + self.records + self.working
+    }
+    pub fn describe(&self) -> String {
+        format!(
+            "about {} (table {}, records {}, largest design's working memory {})",
+            crate::present::units::bytes(self.total()),
+            crate::present::units::bytes(self.table),
+            crate::present::units::bytes(self.records),
+            crate::present::units::bytes(self.working)
+        )
+    }
+}
+
+/// Estimate memory at `rows`, given measured peaks `(rows, peak_live_bytes)` per design.
+pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
+    let table = plan.table_bytes(rows);
+    let records = if plan.designs.iter().any(|d| d.feed == Feed::Records) {
+        rows as f64 * plan.columns.len() as f64 * RECORD_VALUE_BYTES
+    } else {
+        0.0
+    };
+    let working = plan
+        .designs
+        .iter()
+        .enumerate()
+        .map(|(i, d)| {
+            let peaks = measured_peaks.get(i).map(Vec::as_slice).unwrap_or(&[]);
+            extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table)
+        })
+        .fold(0.0, f64::max);
+    Estimate { table, records, working }
+}
+
+/// Peak at `rows` along the log-log slope of the last three measured peaks.
+pub fn extrapolate(peaks: &[(u64, f64)], rows: u64) -> Option<f64> {
+    let pts: Vec<(u64, f64)> = peaks.iter().copied().filter(|p| p.1 > 0.0).collect();
+    if pts.len() < 2 {
+        return None;
+    }
+    let tail = &pts[pts.len().saturating_sub(3)..];
+    let x: Vec<f64> = tail.iter().map(|p| p.0 as f64).collect();
+    let y: Vec<f64> = tail.iter().map(|p| p.1).collect();
+    let slope = loglog_slope(&x, &y)?.clamp(0.0, 4.0);
+    let (n0, p0) = tail[tail.len() - 1];
+    Some(p0 * (rows as f64 / n0 as f64).powf(slope))
+}

@@ -1,0 +1,9 @@
+//! Measurement: the clock, the allocation counter, order statistics, machine facts, and
+//! the runner that sweeps designs over sizes.
+
+pub mod alloc;
+pub mod clock;
+pub mod machine;
+pub mod memory;
+pub mod runner;
+pub mod stats;

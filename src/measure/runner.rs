@@ -1,0 +1,613 @@
+//! The runner: replays every design of a plan at every size and writes what it measured.
+//!
+//! At each size: estimate memory and refuse what will not fit; build the table (untimed);
+//! make each design's feed (untimed); skip designs predicted to overrun their budget; run
+//! each remaining design once to learn its speed and choose a batch (so the clock's cost is
+//! under 1% of a sample); warm up; then take samples round-robin — A B C A B C … — so drift
+//! of the machine hits every design alike, until each design's median is precise enough or a
+//! cap or budget ends it. Inputs are made before the clock starts and outputs are dropped
+//! after it stops. A newcomer must know: nothing may allocate inside the timed region but
+//! the design itself, because the allocation counter is process-wide.
+
+use super::alloc::{AllocStats, Window};
+use super::clock::{process_cpu_ns, ClockInfo};
+use super::machine::available_memory;
+use super::memory;
+use super::stats::{median_ci_sorted, median_sorted, ratio_ci};
+use crate::patterns::{OutputFacts, Records, Value};
+use crate::plan::{DesignPlan, Plan};
+use crate::results::writer::{RunWriter, WriteError};
+use crate::results::*;
+use crate::spec::model::Feed;
+use hdrhistogram::Histogram;
+use polars::prelude::DataFrame;
+use std::sync::Arc;
+use std::time::Instant;
+
+/// Settings of a sweep that are not in the spec.
+#[derive(Debug, Clone)]
+pub struct SweepOptions {
+    /// Run sizes even when their estimated memory does not fit.
+    pub force: bool,
+    /// Share of the available memory one size may use.
+    pub memory_share: f64,
+    /// Runs (warm-up plus samples) a point must be predicted to afford; fewer and it is skipped.
+    pub runs_needed: f64,
+    /// Seed for the bootstrap of ratios.
+    pub seed: u64,
+}
+
+impl Default for SweepOptions {
+    fn default() -> Self {
+        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c }
+    }
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum RunError {
+    #[error(transparent)]
+    Write(#[from] WriteError),
+    #[error("could not build the synthetic table of `{workload}` at {rows} rows: {message}")]
+    Table { workload: String, rows: u64, message: String },
+}
+
+/// What a workload's sweep ended with.
+#[derive(Debug, Clone, Default)]
+pub struct Outcome {
+    pub failures: usize,
+    pub mismatches: usize,
+    pub measured: usize,
+    pub skipped: usize,
+}
+
+/// Receives progress between samples (never inside the timed region).
+pub trait Progress {
+    fn point(&self, workload: &str, rows: u64, design: &str, samples: usize);
+    fn point_done(&self);
+}
+
+/// A progress sink that shows nothing.
+pub struct Quiet;
+impl Progress for Quiet {
+    fn point(&self, _: &str, _: u64, _: &str, _: usize) {}
+    fn point_done(&self) {}
+}
+
+#[derive(Default)]
+struct DesignState {
+    /// (rows, median ns) of measured sizes.
+    history: Vec<(u64, f64)>,
+    /// (rows, peak live bytes) of measured sizes.
+    peaks: Vec<(u64, f64)>,
+    blocked: Option<SkipInfo>,
+}
+
+struct Active<'a> {
+    index: usize,
+    design: &'a DesignPlan,
+    feed: Value,
+    private: bool,
+    batch: u64,
+    warmup_runs: u64,
+    samples: Vec<f64>,
+    cpu: Vec<f64>,
+    allocs: Vec<AllocStats>,
+    spent_s: f64,
+    output: Option<OutputFacts>,
+    stop: Option<StopReason>,
+    error: Option<String>,
+}
+
+/// Run one design's steps on one input.
+fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
+    let mut v = input;
+    for s in &design.steps {
+        v = s.runner.run(v).map_err(|e| e.to_string())?;
+    }
+    Ok(v)
+}
+
+/// The input for one run: shared when steps only read it, a private deep copy otherwise.
+fn make_input(feed: &Value, private: bool) -> Value {
+    match (feed, private) {
+        (Value::Frame(df), true) => Value::Frame(crate::table::deep_copy(df)),
+        (v, _) => v.clone(),
+    }
+}
+
+/// Time `batch` runs as one sample. Inputs are built before the clock starts and the
+/// outputs dropped after it stops.
+fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
+    let mut inputs: Vec<Value> = (0..a.batch).map(|_| make_input(&a.feed, a.private)).collect();
+    let mut outputs: Vec<Result<Value, String>> = Vec::with_capacity(a.batch as usize);
+    let cpu0 = process_cpu_ns();
+    let w = Window::open();
+    let t0 = Instant::now();
+    for input in inputs.drain(..) {
+        outputs.push(run_design(a.design, input));
+    }
+    let elapsed = t0.elapsed().as_nanos() as f64;
+    let alloc = w.close();
+    let cpu = process_cpu_ns().saturating_sub(cpu0) as f64;
+    drop(inputs);
+    let mut first = None;
+    for o in outputs {
+        let v = o?;
+        if first.is_none() {
+            first = Some(v);
+        }
+    }
+    let b = a.batch as f64;
+    let per_run = AllocStats {
+        bytes: (alloc.bytes as f64 / b).round() as u64,
+        count: (alloc.count as f64 / b).round() as u64,
+        peak_live: alloc.peak_live,
+    };
+    Ok((elapsed / b, cpu / b, per_run, first))
+}
+
+/// Predicted median time of one run at `rows` from the measured sizes: the log-log slope of
+/// the last three (at least 1, so growth is never assumed to be below linear).
+pub fn predict_ns(history: &[(u64, f64)], rows: u64) -> Option<f64> {
+    let (n0, t0) = *history.last()?;
+    let slope = if history.len() >= 2 {
+        let tail = &history[history.len().saturating_sub(3)..];
+        let x: Vec<f64> = tail.iter().map(|p| p.0 as f64).collect();
+        let y: Vec<f64> = tail.iter().map(|p| p.1).collect();
+        super::stats::loglog_slope(&x, &y).unwrap_or(1.0).clamp(1.0, 4.0)
+    } else {
+        1.0
+    };
+    Some(t0 * (rows as f64 / n0 as f64).powf(slope))
+}
+
+fn now_text() -> String {
+    chrono::Local::now().to_rfc3339_opts(chrono::SecondsFormat::Secs, false)
+}
+
+/// Sweep one plan, writing every record as it is made.
+pub fn sweep(
+    plan: &Plan,
+    opts: &SweepOptions,
+    clock: &ClockInfo,
+    out: &mut RunWriter,
+    progress: &dyn Progress,
+) -> Result<Outcome, RunError> {
+    let b = plan.budget;
+    out.write(Record::Workload(WorkloadHeader {
+        workload: plan.name.clone(),
+        file: plan.file.clone(),
+        spec_hash: plan.spec_hash.clone(),
+        seed: plan.seed,
+        about: plan.about.clone(),
+        target: plan.target,
+        sizes: plan.sizes.clone(),
+        budget: b,
+        columns: plan.columns.clone(),
+        designs: plan
+            .designs
+            .iter()
+            .map(|d| DesignHeader {
+                name: d.name.clone(),
+                about: d.about.clone(),
+                recipe: d.recipe(),
+                steps: d.steps.iter().map(|s| s.def.name.to_string()).collect(),
+                feed: match d.feed {
+                    Feed::Table => "table".into(),
+                    Feed::Records => "records".into(),
+                },
+                expect_time: d.expect_time.map(str::to_string),
+                expect_bytes: d.expect_bytes.map(str::to_string),
+            })
+            .collect(),
+        outputs_differ: plan.outputs_differ.clone(),
+        spec_text: plan.spec_text.clone(),
+    }))?;
+
+    let started = Instant::now();
+    let mut outcome = Outcome::default();
+    let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
+    let min_sample_ns = clock.min_sample_ns();
+
+    for &rows in &plan.sizes {
+        let skip_point = |out: &mut RunWriter, design: &str, info: SkipInfo| {
+            out.write(Record::Point(PointRecord {
+                workload: plan.name.clone(),
+                design: design.to_string(),
+                rows,
+                measured: None,
+                skipped: Some(info),
+            }))
+        };
+
+        // Memory: refuse a size that will not fit.
+        let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
+        let est = memory::estimate(plan, rows, &peaks);
+        let avail = available_memory();
+        if est.total() > avail as f64 * opts.memory_share && !opts.force {
+            for d in &plan.designs {
+                skip_point(
+                    out,
+                    &d.name,
+                    SkipInfo {
+                        reason: SkipReason::Memory,
+                        predicted_ns: None,
+                        predicted_bytes: Some(est.total()),
+                        detail: format!(
+                            "needs {}; {} available, {:.0}% of it may be used (--force to run anyway)",
+                            est.describe(),
+                            crate::present::units::bytes(avail as f64),
+                            opts.memory_share * 100.0
+                        ),
+                    },
+                )?;
+                outcome.skipped += 1;
+                progress.point_done();
+            }
+            continue;
+        }
+
+        // Which designs run at this size.
+        let elapsed_run = started.elapsed().as_secs_f64();
+        let mut runnable = Vec::new();
+        for (i, d) in plan.designs.iter().enumerate() {
+            let st = &states[i];
+            if let Some(block) = &st.blocked {
+                let mut info = block.clone();
+                info.predicted_ns = predict_ns(&st.history, rows).or(info.predicted_ns);
+                skip_point(out, &d.name, info)?;
+                outcome.skipped += 1;
+                progress.point_done();
+                continue;
+            }
+            if let Some(pred) = predict_ns(&st.history, rows) {
+                let cost_s = pred * opts.runs_needed / 1e9;
+                let info = if cost_s > b.per_point_s {
+                    Some(SkipInfo {
+                        reason: SkipReason::PredictedOverBudget,
+                        predicted_ns: Some(pred),
+                        predicted_bytes: None,
+                        detail: format!(
+                            "one run predicted at {}; {} runs need {} > {} point budget",
+                            crate::present::units::time_ns(pred),
+                            opts.runs_needed,
+                            crate::present::units::time_ns(cost_s * 1e9),
+                            crate::present::units::time_ns(b.per_point_s * 1e9)
+                        ),
+                    })
+                } else if elapsed_run + cost_s > b.whole_run_s {
+                    Some(SkipInfo {
+                        reason: SkipReason::RunBudget,
+                        predicted_ns: Some(pred),
+                        predicted_bytes: None,
+                        detail: format!(
+                            "{} runs at {} would pass the {} run budget ({} used)",
+                            opts.runs_needed,
+                            crate::present::units::time_ns(pred),
+                            crate::present::units::time_ns(b.whole_run_s * 1e9),
+                            crate::present::units::time_ns(elapsed_run * 1e9)
+                        ),
+                    })
+                } else {
+                    None
+                };
+                if let Some(info) = info {
+                    skip_point(out, &d.name, info)?;
+                    outcome.skipped += 1;
+                    progress.point_done();
+                    continue;
+                }
+            }
+            runnable.push(i);
+        }
+        if runnable.is_empty() {
+            continue;
+        }
+
+        // The table and the feeds (untimed).
+        let w = Window::open();
+        let t0 = Instant::now();
+        let df: DataFrame = crate::table::generate(&plan.columns, plan.seed, rows).map_err(|e| RunError::Table {
+            workload: plan.name.clone(),
+            rows,
+            message: e.to_string(),
+        })?;
+        let generate_ns = t0.elapsed().as_nanos() as f64;
+        let gen_alloc = w.close();
+        out.write(Record::Table(TableRecord {
+            workload: plan.name.clone(),
+            rows,
+            fingerprint: crate::table::fingerprint(&df),
+            generate_ns,
+            generate_alloc_bytes: gen_alloc.bytes,
+            table_bytes_estimate: est.table,
+            memory_estimate_bytes: est.total(),
+            available_memory_bytes: avail,
+        }))?;
+        let records = if runnable.iter().any(|&i| plan.designs[i].feed == Feed::Records) {
+            Some(Arc::new(Records::from_frame(&df).map_err(|e| RunError::Table {
+                workload: plan.name.clone(),
+                rows,
+                message: e.to_string(),
+            })?))
+        } else {
+            None
+        };
+
+        let mut active: Vec<Active> = runnable
+            .iter()
+            .map(|&i| {
+                let d = &plan.designs[i];
+                let feed = match (d.feed, &records) {
+                    (Feed::Records, Some(r)) => Value::Records(r.clone()),
+                    _ => Value::Frame(df.clone()),
+                };
+                Active {
+                    index: i,
+                    design: d,
+                    feed,
+                    private: d.steps.first().is_some_and(|s| s.def.private_input),
+                    batch: 1,
+                    warmup_runs: 0,
+                    samples: Vec::new(),
+                    cpu: Vec::new(),
+                    allocs: Vec::new(),
+                    spent_s: 0.0,
+                    output: None,
+                    stop: None,
+                    error: None,
+                }
+            })
+            .collect();
+
+        // First run of each design: learn its speed, choose the batch, record its output.
+        for a in active.iter_mut() {
+            progress.point(&plan.name, rows, &a.design.name, 0);
+            let t = Instant::now();
+            match sample(a) {
+                Ok((ns, cpu, alloc, out_v)) => {
+                    a.output = out_v.as_ref().map(OutputFacts::of);
+                    a.warmup_runs = 1;
+                    if ns / 1e9 >= b.per_point_s {
+                        // Too slow to sample further: keep this single run as the only sample.
+                        a.samples.push(ns);
+                        a.cpu.push(cpu);
+                        a.allocs.push(alloc);
+                        a.warmup_runs = 0;
+                        a.stop = Some(StopReason::PointBudget);
+                    } else {
+                        a.batch = ((min_sample_ns / ns.max(1.0)).ceil() as u64).clamp(1, 100_000);
+                    }
+                }
+                Err(e) => a.error = Some(e),
+            }
+            a.spent_s += t.elapsed().as_secs_f64();
+        }
+        // Further warm-up, in whole batches, while it stays cheap.
+        for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
+            for _ in 1..b.warmup {
+                if a.spent_s > b.per_point_s * 0.2 {
+                    break;
+                }
+                let t = Instant::now();
+                if let Err(e) = sample(a) {
+                    a.error = Some(e);
+                    break;
+                }
+                a.warmup_runs += a.batch;
+                a.spent_s += t.elapsed().as_secs_f64();
+            }
+        }
+
+        // Interleaved sampling.
+        loop {
+            let mut any = false;
+            for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
+                any = true;
+                let t = Instant::now();
+                match sample(a) {
+                    Ok((ns, cpu, alloc, _)) => {
+                        a.samples.push(ns);
+                        a.cpu.push(cpu);
+                        a.allocs.push(alloc);
+                    }
+                    Err(e) => {
+                        a.error = Some(e);
+                        continue;
+                    }
+                }
+                a.spent_s += t.elapsed().as_secs_f64();
+                a.stop = decide(a, &b, started.elapsed().as_secs_f64());
+                progress.point(&plan.name, rows, &a.design.name, a.samples.len());
+            }
+            if !any {
+                break;
+            }
+        }
+
+        // Points.
+        let mut measured: Vec<(String, Vec<f64>, f64, Option<OutputFacts>)> = Vec::new();
+        for a in &active {
+            let st = &mut states[a.index];
+            progress.point_done();
+            if let Some(err) = &a.error {
+                let info = SkipInfo {
+                    reason: SkipReason::Failed,
+                    predicted_ns: None,
+                    predicted_bytes: None,
+                    detail: err.clone(),
+                };
+                st.blocked = Some(SkipInfo { detail: format!("failed at {rows} rows: {err}"), ..info.clone() });
+                skip_point(out, &a.design.name, info)?;
+                outcome.failures += 1;
+                continue;
+            }
+            let m = summarize(a);
+            st.history.push((rows, m.median_ns));
+            st.peaks.push((rows, m.alloc.peak_live as f64));
+            if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
+                st.blocked = Some(SkipInfo {
+                    reason: SkipReason::SmallerSizeOverBudget,
+                    predicted_ns: None,
+                    predicted_bytes: None,
+                    detail: format!(
+                        "at {} rows one run already took {} of the {} point budget",
+                        crate::spec::units::rows_label(rows),
+                        crate::present::units::time_ns(m.median_ns),
+                        crate::present::units::time_ns(b.per_point_s * 1e9)
+                    ),
+                });
+            }
+            measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
+            out.write(Record::Point(PointRecord {
+                workload: plan.name.clone(),
+                design: a.design.name.clone(),
+                rows,
+                measured: Some(m),
+                skipped: None,
+            }))?;
+            outcome.measured += 1;
+        }
+
+        // Side by side.
+        let cmp = compare(plan, rows, &measured, opts.seed);
+        if cmp.equivalence.status == EquivalenceStatus::Mismatch {
+            outcome.mismatches += 1;
+        }
+        out.write(Record::Comparison(cmp))?;
+    }
+    Ok(outcome)
+}
+
+/// Why sampling of `a` should stop now, if it should.
+fn decide(a: &Active, b: &crate::plan::Budget, run_elapsed_s: f64) -> Option<StopReason> {
+    let n = a.samples.len() as u64;
+    if n >= b.min_samples {
+        let mut s = a.samples.clone();
+        s.sort_by(f64::total_cmp);
+        let med = median_sorted(&s);
+        if let Some((lo, hi)) = median_ci_sorted(&s, 0.95) {
+            if med > 0.0 && (med - lo).max(hi - med) / med <= b.precision {
+                return Some(StopReason::Precise);
+            }
+        }
+    }
+    if n >= b.max_samples {
+        return Some(StopReason::SampleCap);
+    }
+    if a.spent_s >= b.per_point_s {
+        return Some(StopReason::PointBudget);
+    }
+    if run_elapsed_s >= b.whole_run_s {
+        return Some(StopReason::RunBudget);
+    }
+    None
+}
+
+fn summarize(a: &Active) -> Measured {
+    let mut s = a.samples.clone();
+    s.sort_by(f64::total_cmp);
+    let med = median_sorted(&s);
+    let ci = median_ci_sorted(&s, 0.95);
+    let mut hist = Histogram::<u64>::new(3).expect("3 significant digits is a valid histogram");
+    for &x in &a.samples {
+        hist.saturating_record(x.round().max(1.0) as u64);
+    }
+    let mut by_bytes = a.allocs.clone();
+    by_bytes.sort_by_key(|x| x.bytes);
+    let mid = by_bytes.get(by_bytes.len() / 2).copied().unwrap_or_default();
+    let peak = a.allocs.iter().map(|x| x.peak_live).max().unwrap_or(0);
+    Measured {
+        stop: a.stop.unwrap_or(StopReason::SampleCap),
+        batch: a.batch,
+        warmup_runs: a.warmup_runs,
+        samples_ns: a.samples.clone(),
+        median_ns: med,
+        ci_low_ns: ci.map(|c| c.0),
+        ci_high_ns: ci.map(|c| c.1),
+        ci_rel_half_width: ci.map(|(lo, hi)| (med - lo).max(hi - med) / med),
+        mean_ns: s.iter().sum::<f64>() / s.len().max(1) as f64,
+        p50_ns: hist.value_at_quantile(0.50) as f64,
+        p90_ns: hist.value_at_quantile(0.90) as f64,
+        p99_ns: hist.value_at_quantile(0.99) as f64,
+        max_ns: hist.max() as f64,
+        cpu_ns: crate::measure::stats::median(&a.cpu),
+        alloc: AllocStats { bytes: mid.bytes, count: mid.count, peak_live: peak },
+        alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
+        output: a.output.clone(),
+        spent_s: a.spent_s,
+    }
+}
+
+fn compare(plan: &Plan, rows: u64, measured: &[(String, Vec<f64>, f64, Option<OutputFacts>)], seed: u64) -> ComparisonRecord {
+    let fastest = measured.iter().min_by(|a, b| a.2.total_cmp(&b.2));
+    let ratios = match fastest {
+        Some(f) => measured
+            .iter()
+            .map(|(name, samples, med, _)| {
+                let ci = if name == &f.0 { Some((1.0, 1.0)) } else { ratio_ci(samples, &f.1, 1000, 0.95, seed ^ rows) };
+                Ratio { design: name.clone(), ratio: med / f.2, low: ci.map(|c| c.0), high: ci.map(|c| c.1) }
+            })
+            .collect(),
+        None => vec![],
+    };
+    let mut groups: Vec<(String, Vec<String>)> = Vec::new();
+    for (name, _, _, facts) in measured {
+        let key = facts.as_ref().map(|f| f.fingerprint.clone()).unwrap_or_else(|| "none".into());
+        match groups.iter_mut().find(|g| g.0 == key) {
+            Some(g) => g.1.push(name.clone()),
+            None => groups.push((key, vec![name.clone()])),
+        }
+    }
+    let (status, note) = if measured.len() < 2 {
+        (EquivalenceStatus::NotChecked, "fewer than two designs measured at this size".to_string())
+    } else if groups.len() == 1 {
+        (EquivalenceStatus::Same, format!("all {} designs produced identical contents", measured.len()))
+    } else {
+        let detail: Vec<String> = groups
+            .iter()
+            .map(|(fp, names)| {
+                let rows = measured
+                    .iter()
+                    .find(|m| &m.0 == &names[0])
+                    .and_then(|m| m.3.as_ref())
+                    .map(|f| format!("{} rows × {} columns", f.rows, f.dtypes.len()))
+                    .unwrap_or_else(|| "no output".into());
+                format!("[{}] {rows}, contents {fp}", names.join(", "))
+            })
+            .collect();
+        let detail = detail.join(" vs ");
+        match &plan.outputs_differ {
+            Some(why) => (EquivalenceStatus::DifferAsDeclared, format!("outputs differ as declared ({why}): {detail}")),
+            None => (EquivalenceStatus::Mismatch, format!("designs disagree: {detail}")),
+        }
+    };
+    ComparisonRecord {
+        workload: plan.name.clone(),
+        rows,
+        fastest: fastest.map(|f| f.0.clone()),
+        ratios,
+        equivalence: Equivalence { status, groups: groups.into_iter().map(|g| g.1).collect(), note },
+    }
+}
+
+/// Start a run: the header record with machine, clock and yardstick.
+pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool) -> RunHeader {
+    let started = now_text();
+    RunHeader {
+        schema: SCHEMA.to_string(),
+        run_id: chrono::Local::now().format("%Y%m%d-%H%M%S").to_string(),
+        started_at: started,
+        command,
+        machine: super::machine::MachineFingerprint::collect(),
+        clock,
+        yardstick: super::machine::yardstick(),
+        available_memory_bytes: available_memory(),
+        forced,
+    }
+}
+
+/// The closing record.
+pub fn end_record(started: Instant, mismatches: usize) -> EndRecord {
+    EndRecord { finished_at: now_text(), elapsed_s: started.elapsed().as_secs_f64(), mismatches: mismatches as u64 }
+}

@@ -1,0 +1,268 @@
+//! The step vocabulary: what a design is made of, and the registry that knows every step.
+//!
+//! A step is one piece of table work (append rows, build a table, join, …). Each family of
+//! access patterns lives in its own file here and exports a `STEPS` list of [`StepDef`]s:
+//! the step's YAML name, its parameters (with defaults and docs), a one-line summary for
+//! `catalog`, its cost-model note (what it does to memory and how its cost should grow), and
+//! a constructor. One definition feeds the spec checker, the catalog, the runner and the
+//! explanations. A newcomer must know: adding a family means one new file and one line in
+//! [`FAMILIES`]; nothing else in the crate names individual steps.
+
+pub mod row_growth;
+
+use polars::prelude::*;
+use std::collections::BTreeMap;
+use std::sync::Arc;
+
+/// Every family of steps. Register a new family here (one line).
+pub const FAMILIES: &[(&str, &[StepDef])] = &[("row growth", row_growth::STEPS)];
+
+/// What flows between steps.
+#[derive(Clone)]
+pub enum Value {
+    /// A polars table.
+    Frame(DataFrame),
+    /// Rows as plain values (made outside the timed region by `feed: records`).
+    Records(Arc<Records>),
+}
+
+/// The kind of a [`Value`], for checking that a design's steps fit together.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ValueKind {
+    Frame,
+    Records,
+}
+
+impl ValueKind {
+    pub fn label(self) -> &'static str {
+        match self {
+            ValueKind::Frame => "a table",
+            ValueKind::Records => "records",
+        }
+    }
+}
+
+impl Value {
+    pub fn kind(&self) -> ValueKind {
+        match self {
+            Value::Frame(_) => ValueKind::Frame,
+            Value::Records(_) => ValueKind::Records,
+        }
+    }
+}
+
+/// A table's rows as owned values, with the schema to rebuild them. Categorical columns
+/// become text here (a record holds plain values, not dictionary codes).
+pub struct Records {
+    pub schema: Schema,
+    pub rows: Vec<polars::frame::row::Row<'static>>,
+}
+
+impl Records {
+    /// Turn a table into records, column by column (untimed set-up).
+    pub fn from_frame(df: &DataFrame) -> PolarsResult<Records> {
+        let height = df.height();
+        let mut rows: Vec<Vec<AnyValue<'static>>> =
+            (0..height).map(|_| Vec::with_capacity(df.width())).collect();
+        let mut schema = Schema::with_capacity(df.width());
+        for col in df.columns() {
+            let s = col.as_materialized_series();
+            let s = if matches!(s.dtype(), DataType::Categorical(..) | DataType::Enum(..)) {
+                s.cast(&DataType::String)?
+            } else {
+                s.clone()
+            };
+            schema.insert(s.name().clone(), s.dtype().clone());
+            for (row, v) in rows.iter_mut().zip(s.iter()) {
+                row.push(v.into_static());
+            }
+        }
+        Ok(Records { schema, rows: rows.into_iter().map(polars::frame::row::Row::new).collect() })
+    }
+
+    pub fn len(&self) -> usize {
+        self.rows.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.rows.is_empty()
+    }
+}
+
+/// Errors a step can raise while running.
+#[derive(Debug, thiserror::Error)]
+pub enum StepError {
+    #[error("step `{step}` needs {wanted} as input but got {got}")]
+    WrongInput { step: &'static str, wanted: &'static str, got: &'static str },
+    #[error("step `{step}`: {message}")]
+    Value { step: &'static str, message: String },
+    #[error("step `{step}` failed in polars: {source}")]
+    Polars {
+        step: &'static str,
+        #[source]
+        source: PolarsError,
+    },
+}
+
+/// One runnable step with its parameters resolved.
+pub trait Step: Send + Sync {
+    /// Run the step. This is the timed region: do no set-up here that a real pipeline
+    /// would not also do.
+    fn run(&self, input: Value) -> Result<Value, StepError>;
+}
+
+/// The type of a step parameter, used to check specs and to document steps.
+#[derive(Debug, Clone, Copy)]
+pub enum ParamKind {
+    /// A whole number at least `min`.
+    Count { min: u64 },
+    /// One of a fixed set of words.
+    Choice(&'static [&'static str]),
+    /// A number between `min` and `max`.
+    Number { min: f64, max: f64 },
+    /// true or false.
+    Flag,
+}
+
+impl ParamKind {
+    pub fn describe(&self) -> String {
+        match self {
+            ParamKind::Count { min } => format!("a whole number ≥ {min}"),
+            ParamKind::Choice(c) => format!("one of {}", c.join(", ")),
+            ParamKind::Number { min, max } => format!("a number from {min} to {max}"),
+            ParamKind::Flag => "true or false".to_string(),
+        }
+    }
+}
+
+/// One parameter of a step.
+#[derive(Debug, Clone, Copy)]
+pub struct ParamDef {
+    pub name: &'static str,
+    pub kind: ParamKind,
+    /// Default, written as it would be in YAML.
+    pub default: &'static str,
+    pub doc: &'static str,
+}
+
+/// A parameter value after checking.
+#[derive(Debug, Clone, PartialEq)]
+pub enum ParamValue {
+    Count(u64),
+    Choice(String),
+    Number(f64),
+    Flag(bool),
+}
+
+impl std::fmt::Display for ParamValue {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            ParamValue::Count(v) => write!(f, "{v}"),
+            ParamValue::Choice(v) => write!(f, "{v}"),
+            ParamValue::Number(v) => write!(f, "{v}"),
+            ParamValue::Flag(v) => write!(f, "{v}"),
+        }
+    }
+}
+
+/// A step's parameters, every one present (defaults filled in).
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct Params(pub BTreeMap<String, ParamValue>);
+
+impl Params {
+    pub fn count(&self, name: &str) -> u64 {
+        match self.0.get(name) {
+            Some(ParamValue::Count(v)) => *v,
+            _ => 0,
+        }
+    }
+    pub fn choice(&self, name: &str) -> &str {
+        match self.0.get(name) {
+            Some(ParamValue::Choice(v)) => v,
+            _ => "",
+        }
+    }
+    pub fn number(&self, name: &str) -> f64 {
+        match self.0.get(name) {
+            Some(ParamValue::Number(v)) => *v,
+            _ => 0.0,
+        }
+    }
+    pub fn flag(&self, name: &str) -> bool {
+        matches!(self.0.get(name), Some(ParamValue::Flag(true)))
+    }
+    /// `name{a=1, b=x}`, for labels and results.
+    pub fn describe(&self, step: &str) -> String {
+        if self.0.is_empty() {
+            return step.to_string();
+        }
+        let inner: Vec<String> = self.0.iter().map(|(k, v)| format!("{k}={v}")).collect();
+        format!("{step}{{{}}}", inner.join(", "))
+    }
+}
+
+/// Everything framecost knows about one step.
+pub struct StepDef {
+    /// The YAML name.
+    pub name: &'static str,
+    /// One line for `catalog`.
+    pub summary: &'static str,
+    /// What it does to memory and how its cost should grow with the rows.
+    pub cost_note: &'static str,
+    pub params: &'static [ParamDef],
+    /// What it takes and what it gives.
+    pub takes: ValueKind,
+    pub gives: ValueKind,
+    /// Rough peak working memory as a multiple of the input table's bytes, used to refuse
+    /// sizes that would not fit before anything has been measured.
+    pub memory_factor: f64,
+    /// The step modifies or consumes its input table, so each run gets a private deep copy
+    /// made outside the timed region.
+    pub private_input: bool,
+    pub build: fn(&Params) -> Box<dyn Step>,
+}
+
+/// Every registered step, in family order.
+pub fn all_steps() -> impl Iterator<Item = (&'static str, &'static StepDef)> {
+    FAMILIES.iter().flat_map(|(fam, steps)| steps.iter().map(move |s| (*fam, s)))
+}
+
+/// Look a step up by its YAML name.
+pub fn find_step(name: &str) -> Option<&'static StepDef> {
+    all_steps().map(|(_, s)| s).find(|s| s.name == name)
+}
+
+/// The output's shape and contents, recorded for every point so designs that should agree
+/// can be checked to agree.
+#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
+pub struct OutputFacts {
+    pub rows: u64,
+    /// Largest number of chunks over the columns (1 = contiguous storage).
+    pub chunks: u64,
+    pub dtypes: Vec<(String, String)>,
+    /// Hash of the contents in row order, independent of how storage is chunked.
+    pub fingerprint: String,
+}
+
+impl OutputFacts {
+    pub fn of(v: &Value) -> OutputFacts {
+        match v {
+            Value::Frame(df) => OutputFacts {
+                rows: df.height() as u64,
+                chunks: df.columns().iter().map(|c| c.n_chunks()).max().unwrap_or(0) as u64,
+                dtypes: df.columns().iter().map(|c| (c.name().to_string(), c.dtype().to_string())).collect(),
+                fingerprint: crate::table::fingerprint(df),
+            },
+            Value::Records(r) => OutputFacts {
+                rows: r.len() as u64,
+                chunks: 0,
+                dtypes: r.schema.iter().map(|(n, d)| (n.to_string(), d.to_string())).collect(),
+                fingerprint: "records".to_string(),
+            },
+        }
+    }
+}
+
+pub(crate) fn polars_err(step: &'static str) -> impl FnOnce(PolarsError) -> StepError {
+    move |source| StepError::Polars { step, source }
+}

@@ -1,0 +1,4 @@
+//! Presentation: everything people read. Works from saved results only.
+
+pub mod terminal;
+pub mod units;

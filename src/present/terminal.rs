@@ -1,0 +1,257 @@
+//! The terminal summary of a run: per workload, a time table (each design at each size,
+//! with its ratio to the fastest and a mark for what ended sampling), an allocation table,
+//! the growth exponents beside the expectations, skipped points with their predictions, and
+//! the equivalence verdict. Built from [`RunResults`] alone, so `recap` shows exactly what
+//! `sweep` showed.
+
+use super::units::{bytes, ratio, time_ns};
+use crate::results::reader::{RunResults, WorkloadResults};
+use crate::results::summary::{exponent, Summary};
+use crate::results::{EquivalenceStatus, StopReason};
+use crate::spec::units::rows_label;
+use comfy_table::{presets, CellAlignment, ContentArrangement, Table};
+use std::fmt::Write;
+
+/// Styling switches.
+#[derive(Debug, Clone, Copy)]
+pub struct Style {
+    pub color: bool,
+}
+
+impl Style {
+    /// Colour only on a terminal and when NO_COLOR is not set.
+    pub fn detect() -> Style {
+        use std::io::IsTerminal;
+        Style { color: std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none() }
+    }
+    fn bold(&self, s: &str) -> String {
+        if self.color {
+            format!("\x1b[1m{s}\x1b[0m")
+        } else {
+            s.to_string()
+        }
+    }
+    fn alarm(&self, s: &str) -> String {
+        if self.color {
+            format!("\x1b[1;31m{s}\x1b[0m")
+        } else {
+            s.to_string()
+        }
+    }
+}
+
+fn grid() -> Table {
+    let mut t = Table::new();
+    t.load_preset(presets::NOTHING).set_content_arrangement(ContentArrangement::Disabled);
+    t
+}
+
+/// The whole run as text.
+pub fn render(r: &RunResults, style: Style) -> String {
+    let mut s = String::new();
+    if let Some(h) = &r.run {
+        let _ = writeln!(
+            s,
+            "{} · {} · {} cores · polars {} · yardstick {}",
+            style.bold("framecost run"),
+            h.run_id,
+            h.machine.logical_cores,
+            h.machine.polars_version,
+            time_ns(h.yardstick.median_ns)
+        );
+    }
+    for w in &r.workloads {
+        s.push('\n');
+        s.push_str(&render_workload(w, style));
+    }
+    if r.damaged_lines > 0 {
+        let _ = writeln!(s, "\n{} damaged line(s) in the results file were left out", r.damaged_lines);
+    }
+    if !r.complete() {
+        let _ = writeln!(s, "\nthis run did not finish: what is shown is what was measured before it stopped");
+    }
+    s
+}
+
+/// One workload's block.
+pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
+    let mut s = String::new();
+    let h = &w.header;
+    let _ = writeln!(s, "{} {}", style.bold("▌"), style.bold(&h.workload));
+    if !h.about.is_empty() {
+        let first = h.about.split(". ").next().unwrap_or("");
+        let _ = writeln!(s, "  {}", first.trim_end_matches('.'));
+    }
+    let sizes: Vec<u64> = h.sizes.clone();
+
+    // Time table.
+    let mut t = grid();
+    let mut head = vec!["time per run".to_string()];
+    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    t.set_header(head);
+    let mut any_marks = false;
+    for d in &h.designs {
+        let mut row = vec![d.name.clone()];
+        for &n in &sizes {
+            let cell = match w.point(&d.name, n) {
+                Some(p) => match (&p.measured, &p.skipped) {
+                    (Some(m), _) => {
+                        let r = w
+                            .comparison(n)
+                            .and_then(|c| c.ratios.iter().find(|r| r.design == d.name))
+                            .map(|r| r.ratio);
+                        let mark = m.stop.mark();
+                        if !mark.is_empty() {
+                            any_marks = true;
+                        }
+                        let rt = match r {
+                            Some(x) if (x - 1.0).abs() < 1e-12 => "best".to_string(),
+                            Some(x) => ratio(x),
+                            None => String::new(),
+                        };
+                        format!("{} {rt}{}", time_ns(m.median_ns), if mark.is_empty() { String::new() } else { format!(" {mark}") })
+                    }
+                    (None, Some(sk)) => match sk.predicted_ns {
+                        Some(p) => format!("skip ~{}", time_ns(p)),
+                        None => "skip".to_string(),
+                    },
+                    _ => "—".into(),
+                },
+                None => "".into(),
+            };
+            row.push(cell);
+        }
+        t.add_row(row);
+    }
+    for c in t.column_iter_mut().skip(1) {
+        c.set_cell_alignment(CellAlignment::Right);
+    }
+    for line in t.to_string().lines() {
+        let _ = writeln!(s, "  {}", line.trim_end());
+    }
+
+    // Allocation table.
+    let mut a = grid();
+    let mut head = vec!["allocated per run".to_string()];
+    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    a.set_header(head);
+    for d in &h.designs {
+        let mut row = vec![d.name.clone()];
+        for &n in &sizes {
+            row.push(match w.point(&d.name, n).and_then(|p| p.measured.as_ref()) {
+                Some(m) => {
+                    let chunks = m.output.as_ref().map(|o| o.chunks).unwrap_or(0);
+                    if chunks > 1 {
+                        format!("{} ({} chunks)", bytes(m.alloc.bytes as f64), chunks)
+                    } else {
+                        bytes(m.alloc.bytes as f64)
+                    }
+                }
+                None => String::new(),
+            });
+        }
+        a.add_row(row);
+    }
+    for c in a.column_iter_mut().skip(1) {
+        c.set_cell_alignment(CellAlignment::Right);
+    }
+    s.push('\n');
+    for line in a.to_string().lines() {
+        let _ = writeln!(s, "  {}", line.trim_end());
+    }
+
+    // Growth exponents beside the expectations.
+    s.push('\n');
+    let _ = writeln!(s, "  growth (log-log slope over measured sizes; 1 ≈ n, 2 ≈ n²):");
+    for d in &h.designs {
+        let pts = w.design_points(&d.name);
+        let time: Vec<(u64, f64)> = pts.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m.median_ns))).collect();
+        let mem: Vec<(u64, f64)> = pts
+            .iter()
+            .filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m.alloc.bytes as f64)))
+            .filter(|p| p.1 > 0.0)
+            .collect();
+        let fmt = |e: Option<f64>| e.map(|v| format!("{v:.2}")).unwrap_or_else(|| "n/a (under 3 sizes)".into());
+        let mut line = format!("    {:<24} time {}  bytes {}", d.name, fmt(exponent(&time)), fmt(exponent(&mem)));
+        let mut exp = Vec::new();
+        if let Some(e) = &d.expect_time {
+            exp.push(format!("time {e}"));
+        }
+        if let Some(e) = &d.expect_bytes {
+            exp.push(format!("bytes {e}"));
+        }
+        if !exp.is_empty() {
+            let _ = write!(line, "   expected: {}", exp.join(", "));
+        }
+        let _ = writeln!(s, "{}", line.trim_end());
+    }
+
+    // Skips.
+    let skips: Vec<String> = w
+        .points
+        .iter()
+        .filter_map(|p| {
+            p.skipped.as_ref().map(|sk| format!("    {} at {} rows: {} — {}", p.design, rows_label(p.rows), sk.reason.label(), sk.detail))
+        })
+        .collect();
+    if !skips.is_empty() {
+        let _ = writeln!(s, "\n  skipped:");
+        for l in skips {
+            let _ = writeln!(s, "{l}");
+        }
+    }
+
+    if any_marks {
+        let _ = writeln!(
+            s,
+            "\n  sampling ended by: c {}, b {}, r {}; unmarked: {} (95% interval of the median within ±{:.0}%)",
+            StopReason::SampleCap.label(),
+            StopReason::PointBudget.label(),
+            StopReason::RunBudget.label(),
+            StopReason::Precise.label(),
+            h.budget.precision * 100.0
+        );
+    }
+
+    // Equivalence.
+    let mismatches: Vec<_> = w.comparisons.iter().filter(|c| c.equivalence.status == EquivalenceStatus::Mismatch).collect();
+    let checked = w.comparisons.iter().filter(|c| c.equivalence.status != EquivalenceStatus::NotChecked).count();
+    s.push('\n');
+    if !mismatches.is_empty() {
+        for c in mismatches {
+            let _ = writeln!(s, "  {} at {} rows: {}", style.alarm("OUTPUTS DIFFER"), rows_label(c.rows), c.equivalence.note);
+        }
+    } else if w.comparisons.iter().any(|c| c.equivalence.status == EquivalenceStatus::DifferAsDeclared) {
+        let _ = writeln!(s, "  outputs: differ between designs, as the workload declares ({})", h.outputs_differ.clone().unwrap_or_default());
+    } else if checked > 0 {
+        let _ = writeln!(s, "  outputs: identical contents from every design at all {checked} compared size(s)");
+    } else {
+        let _ = writeln!(s, "  outputs: not compared (fewer than two designs measured at any size)");
+    }
+    s
+}
+
+/// One line per workload for the end of a long sweep.
+pub fn one_liners(summary: &Summary) -> Vec<String> {
+    summary
+        .workloads
+        .iter()
+        .map(|w| {
+            let largest = w
+                .sizes
+                .iter()
+                .rev()
+                .find(|&&n| w.designs.iter().filter(|d| d.points.iter().any(|p| p.rows == n && p.median_ns.is_some())).count() >= 2);
+            let best = largest.and_then(|&n| {
+                w.designs
+                    .iter()
+                    .filter_map(|d| d.points.iter().find(|p| p.rows == n).and_then(|p| p.median_ns).map(|m| (d.design.clone(), m)))
+                    .min_by(|a, b| a.1.total_cmp(&b.1))
+            });
+            match (largest, best) {
+                (Some(n), Some((d, m))) => format!("{}: fastest at {} rows is {} ({})", w.workload, rows_label(*n), d, time_ns(m)),
+                _ => format!("{}: no size with two designs measured", w.workload),
+            }
+        })
+        .collect()
+}

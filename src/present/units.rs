@@ -1,0 +1,79 @@
+//! Human units for times, bytes and row counts: ns, µs, ms, s; B, KiB, MiB, GiB.
+
+/// `812 ns`, `4.20 µs`, `13.1 ms`, `2.05 s`, `3.4 min`.
+pub fn time_ns(ns: f64) -> String {
+    if !ns.is_finite() {
+        return "—".into();
+    }
+    let (v, u) = if ns < 1e3 {
+        (ns, "ns")
+    } else if ns < 1e6 {
+        (ns / 1e3, "µs")
+    } else if ns < 1e9 {
+        (ns / 1e6, "ms")
+    } else if ns < 120e9 {
+        (ns / 1e9, "s")
+    } else {
+        (ns / 60e9, "min")
+    };
+    format!("{} {u}", three_digits(v))
+}
+
+/// `512 B`, `3.00 KiB`, `41.2 MiB`, `1.50 GiB`.
+pub fn bytes(b: f64) -> String {
+    if !b.is_finite() {
+        return "—".into();
+    }
+    const K: f64 = 1024.0;
+    let (v, u) = if b < K {
+        (b, "B")
+    } else if b < K * K {
+        (b / K, "KiB")
+    } else if b < K * K * K {
+        (b / (K * K), "MiB")
+    } else if b < K * K * K * K {
+        (b / (K * K * K), "GiB")
+    } else {
+        (b / (K * K * K * K), "TiB")
+    };
+    if u == "B" {
+        format!("{} B", b.round())
+    } else {
+        format!("{} {u}", three_digits(v))
+    }
+}
+
+fn three_digits(v: f64) -> String {
+    if v >= 100.0 {
+        format!("{v:.0}")
+    } else if v >= 10.0 {
+        format!("{v:.1}")
+    } else {
+        format!("{v:.2}")
+    }
+}
+
+/// `×1.00`, `×12.3`, `×410`.
+pub fn ratio(r: f64) -> String {
+    if !r.is_finite() {
+        return "—".into();
+    }
+    format!("×{}", three_digits(r))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn units_scale() {
+        assert_eq!(time_ns(812.0), "812 ns");
+        assert_eq!(time_ns(4200.0), "4.20 µs");
+        assert_eq!(time_ns(13.1e6), "13.1 ms");
+        assert_eq!(time_ns(2.05e9), "2.05 s");
+        assert_eq!(bytes(512.0), "512 B");
+        assert_eq!(bytes(3.0 * 1024.0), "3.00 KiB");
+        assert_eq!(bytes(1.5 * 1024.0 * 1024.0 * 1024.0), "1.50 GiB");
+        assert_eq!(ratio(12.34), "×12.3");
+    }
+}

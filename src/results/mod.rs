@@ -1,0 +1,263 @@
+//! The on-disk results format, version 1 (`framecost.results/1`), documented in
+//! `docs/results.md`.
+//!
+//! A run folder holds `points.jsonl` — one JSON object per line, each tagged by its
+//! `record` field, appended and flushed as soon as it exists so an interrupted run keeps
+//! everything measured so far — and `summary.json`, written atomically at the end. Readers
+//! (`explain`, `report`, notebooks) need only this module's types. A newcomer must know:
+//! add fields with `#[serde(default)]` so older files still read; anything else is a new
+//! schema version.
+
+pub mod reader;
+pub mod summary;
+pub mod writer;
+
+use crate::measure::alloc::AllocStats;
+use crate::measure::clock::ClockInfo;
+use crate::measure::machine::{MachineFingerprint, Yardstick};
+use crate::patterns::OutputFacts;
+use crate::plan::{Budget, ColumnPlan};
+use serde::{Deserialize, Serialize};
+
+/// Schema name and version written into every run.
+pub const SCHEMA: &str = "framecost.results/1";
+
+/// One line of `points.jsonl`.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+#[serde(tag = "record", rename_all = "snake_case")]
+pub enum Record {
+    Run(RunHeader),
+    Workload(WorkloadHeader),
+    Table(TableRecord),
+    Point(PointRecord),
+    Comparison(ComparisonRecord),
+    End(EndRecord),
+}
+
+/// First line: the run, the machine, the clock and the yardstick.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct RunHeader {
+    pub schema: String,
+    pub run_id: String,
+    pub started_at: String,
+    /// The command line that made this run (to reproduce it).
+    pub command: Vec<String>,
+    pub machine: MachineFingerprint,
+    pub clock: ClockInfo,
+    pub yardstick: Yardstick,
+    pub available_memory_bytes: u64,
+    /// Whether size refusals for memory were overridden.
+    pub forced: bool,
+}
+
+/// A workload about to be swept.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct WorkloadHeader {
+    pub workload: String,
+    pub file: String,
+    pub spec_hash: String,
+    pub seed: u64,
+    pub about: String,
+    pub target: Option<u64>,
+    pub sizes: Vec<u64>,
+    pub budget: Budget,
+    pub columns: Vec<ColumnPlan>,
+    pub designs: Vec<DesignHeader>,
+    pub outputs_differ: Option<String>,
+    /// The workload file as it was when the run started.
+    pub spec_text: String,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct DesignHeader {
+    pub name: String,
+    pub about: Option<String>,
+    /// Steps with parameters, `a{x=1} → b`.
+    pub recipe: String,
+    /// Step names, for looking up cost-model notes.
+    pub steps: Vec<String>,
+    pub feed: String,
+    pub expect_time: Option<String>,
+    pub expect_bytes: Option<String>,
+}
+
+/// The synthetic table made for one size.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct TableRecord {
+    pub workload: String,
+    pub rows: u64,
+    pub fingerprint: String,
+    pub generate_ns: f64,
+    /// Bytes allocated while generating it.
+    pub generate_alloc_bytes: u64,
+    /// Estimated in-memory size of the table.
+    pub table_bytes_estimate: f64,
+    /// Estimated peak memory of this size, and what was available when it started.
+    pub memory_estimate_bytes: f64,
+    pub available_memory_bytes: u64,
+}
+
+/// Why sampling of a point ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum StopReason {
+    /// The median's confidence interval reached the target precision.
+    Precise,
+    /// The most samples allowed were taken.
+    SampleCap,
+    /// The point's time budget ran out.
+    PointBudget,
+    /// The whole run's time budget ran out.
+    RunBudget,
+}
+
+impl StopReason {
+    pub fn label(self) -> &'static str {
+        match self {
+            StopReason::Precise => "precise",
+            StopReason::SampleCap => "sample cap",
+            StopReason::PointBudget => "point budget",
+            StopReason::RunBudget => "run budget",
+        }
+    }
+    pub fn mark(self) -> &'static str {
+        match self {
+            StopReason::Precise => "",
+            StopReason::SampleCap => "c",
+            StopReason::PointBudget => "b",
+            StopReason::RunBudget => "r",
+        }
+    }
+}
+
+/// Why a point was not measured.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum SkipReason {
+    /// Predicted from smaller sizes to overrun the point's budget.
+    PredictedOverBudget,
+    /// Predicted to overrun what is left of the run's budget.
+    RunBudget,
+    /// A smaller size of this design already used up its budget.
+    SmallerSizeOverBudget,
+    /// The size's estimated memory does not fit in what is available.
+    Memory,
+    /// A step failed at this or a smaller size.
+    Failed,
+}
+
+impl SkipReason {
+    pub fn label(self) -> &'static str {
+        match self {
+            SkipReason::PredictedOverBudget => "predicted over point budget",
+            SkipReason::RunBudget => "predicted over run budget",
+            SkipReason::SmallerSizeOverBudget => "smaller size over budget",
+            SkipReason::Memory => "would not fit in memory",
+            SkipReason::Failed => "failed",
+        }
+    }
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct SkipInfo {
+    pub reason: SkipReason,
+    /// Predicted median time of one run (ns), when there was a prediction.
+    pub predicted_ns: Option<f64>,
+    /// Estimated peak memory (bytes), for memory refusals.
+    pub predicted_bytes: Option<f64>,
+    pub detail: String,
+}
+
+/// One design at one size.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct PointRecord {
+    pub workload: String,
+    pub design: String,
+    pub rows: u64,
+    /// Set when the point was measured.
+    pub measured: Option<Measured>,
+    /// Set when it was not.
+    pub skipped: Option<SkipInfo>,
+}
+
+/// Everything measured at one point. Times are per run of the design (ns); a sample of a
+/// very fast design times `batch` runs and is divided by it.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Measured {
+    pub stop: StopReason,
+    pub batch: u64,
+    pub warmup_runs: u64,
+    /// Every sample, in the order taken (ns per run).
+    pub samples_ns: Vec<f64>,
+    pub median_ns: f64,
+    /// 95% distribution-free interval of the median (absent below 6 samples).
+    pub ci_low_ns: Option<f64>,
+    pub ci_high_ns: Option<f64>,
+    /// Largest distance from the median to an interval end, over the median.
+    pub ci_rel_half_width: Option<f64>,
+    pub mean_ns: f64,
+    /// Percentiles from the sample histogram (hdrhistogram, 3 significant digits).
+    pub p50_ns: f64,
+    pub p90_ns: f64,
+    pub p99_ns: f64,
+    pub max_ns: f64,
+    /// Median CPU time of the whole process per run (ns); above wall time means parallel work.
+    pub cpu_ns: f64,
+    /// Allocations per run inside the timed region (median over samples).
+    pub alloc: AllocStats,
+    /// True when every sample allocated the same bytes per run.
+    pub alloc_exact: bool,
+    /// What the design produced (from its first run).
+    pub output: Option<OutputFacts>,
+    /// Wall time spent on this point, warm-up included (s).
+    pub spent_s: f64,
+}
+
+/// Designs side by side at one size.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct ComparisonRecord {
+    pub workload: String,
+    pub rows: u64,
+    pub fastest: Option<String>,
+    pub ratios: Vec<Ratio>,
+    pub equivalence: Equivalence,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Ratio {
+    pub design: String,
+    /// Median over the fastest design's median.
+    pub ratio: f64,
+    /// 95% bootstrap interval of that ratio.
+    pub low: Option<f64>,
+    pub high: Option<f64>,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum EquivalenceStatus {
+    /// Every measured design produced the same contents.
+    Same,
+    /// Contents differ, and the spec did not say they may.
+    Mismatch,
+    /// Contents differ, as the spec says they may.
+    DifferAsDeclared,
+    /// Fewer than two designs were measured at this size.
+    NotChecked,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Equivalence {
+    pub status: EquivalenceStatus,
+    /// Designs grouped by identical output fingerprint.
+    pub groups: Vec<Vec<String>>,
+    pub note: String,
+}
+
+/// Last line of a complete run.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct EndRecord {
+    pub finished_at: String,
+    pub elapsed_s: f64,
+    pub mismatches: u64,
+}

@@ -1,0 +1,115 @@
+//! Reads a run folder back. Tolerates a damaged last line (a run killed mid-write):
+//! complete lines are kept and the damage is counted, not hidden.
+
+use super::*;
+use std::path::Path;
+
+/// Everything in one run, grouped by workload.
+#[derive(Debug, Clone, Default)]
+pub struct RunResults {
+    pub run: Option<RunHeader>,
+    pub workloads: Vec<WorkloadResults>,
+    pub end: Option<EndRecord>,
+    /// Lines that could not be read (a cut-off last line after a crash, for instance).
+    pub damaged_lines: usize,
+}
+
+#[derive(Debug, Clone)]
+pub struct WorkloadResults {
+    pub header: WorkloadHeader,
+    pub tables: Vec<TableRecord>,
+    pub points: Vec<PointRecord>,
+    pub comparisons: Vec<ComparisonRecord>,
+}
+
+impl WorkloadResults {
+    /// The points of one design, in size order.
+    pub fn design_points(&self, design: &str) -> Vec<&PointRecord> {
+        let mut v: Vec<&PointRecord> = self.points.iter().filter(|p| p.design == design).collect();
+        v.sort_by_key(|p| p.rows);
+        v
+    }
+    pub fn point(&self, design: &str, rows: u64) -> Option<&PointRecord> {
+        self.points.iter().find(|p| p.design == design && p.rows == rows)
+    }
+    pub fn comparison(&self, rows: u64) -> Option<&ComparisonRecord> {
+        self.comparisons.iter().find(|c| c.rows == rows)
+    }
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum ReadError {
+    #[error("cannot read {path}: {source}")]
+    Io {
+        path: String,
+        #[source]
+        source: std::io::Error,
+    },
+    #[error("{path} is not a framecost run: {why}")]
+    NotARun { path: String, why: String },
+}
+
+impl RunResults {
+    /// Add one record (used by the writer as it goes, and by the reader).
+    pub fn push(&mut self, rec: Record) {
+        match rec {
+            Record::Run(h) => self.run = Some(h),
+            Record::Workload(h) => {
+                self.workloads.push(WorkloadResults { header: h, tables: vec![], points: vec![], comparisons: vec![] })
+            }
+            Record::Table(t) => {
+                if let Some(w) = self.workload_mut(&t.workload) {
+                    w.tables.push(t)
+                }
+            }
+            Record::Point(p) => {
+                if let Some(w) = self.workload_mut(&p.workload) {
+                    w.points.push(p)
+                }
+            }
+            Record::Comparison(c) => {
+                if let Some(w) = self.workload_mut(&c.workload) {
+                    w.comparisons.push(c)
+                }
+            }
+            Record::End(e) => self.end = Some(e),
+        }
+    }
+
+    fn workload_mut(&mut self, name: &str) -> Option<&mut WorkloadResults> {
+        self.workloads.iter_mut().rev().find(|w| w.header.workload == name)
+    }
+
+    /// Read `points.jsonl` from a run folder (or the file itself).
+    pub fn read(path: &Path) -> Result<RunResults, ReadError> {
+        let file = if path.is_dir() { path.join("points.jsonl") } else { path.to_path_buf() };
+        let text = std::fs::read_to_string(&file)
+            .map_err(|source| ReadError::Io { path: file.display().to_string(), source })?;
+        let mut out = RunResults::default();
+        for line in text.lines() {
+            if line.trim().is_empty() {
+                continue;
+            }
+            match serde_json::from_str::<Record>(line) {
+                Ok(rec) => out.push(rec),
+                Err(_) => out.damaged_lines += 1,
+            }
+        }
+        match &out.run {
+            None => Err(ReadError::NotARun {
+                path: file.display().to_string(),
+                why: "no run header (first line)".into(),
+            }),
+            Some(h) if h.schema != SCHEMA => Err(ReadError::NotARun {
+                path: file.display().to_string(),
+                why: format!("schema `{}`, this framecost reads `{SCHEMA}`", h.schema),
+            }),
+            Some(_) => Ok(out),
+        }
+    }
+
+    /// True when the run ended normally.
+    pub fn complete(&self) -> bool {
+        self.end.is_some()
+    }
+}

@@ -1,0 +1,302 @@
+//! The workload file as the user wrote it: serde types, nothing resolved yet.
+//!
+//! A newcomer must know: every struct denies unknown keys, so a typo is an error with a
+//! position (and a did-you-mean added by `spec::load`); steps are kept as raw YAML here and
+//! checked against the step registry by `validate`, so each step family owns its parameters.
+
+use super::units::{RowCount, Seconds, Share};
+use serde::{Deserialize, Serialize};
+
+/// The newest workload format this build reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// A whole workload file.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct WorkloadSpec {
+    /// Format version of the file (1).
+    #[serde(default = "default_format")]
+    pub framecost: u32,
+    /// Short name, used in run folders and reports: letters, digits, `-` and `_`.
+    pub name: String,
+    /// One paragraph: what job this is and what it teaches.
+    #[serde(default)]
+    pub about: String,
+    /// Seed of the synthetic table (the same seed gives the same table, bit for bit).
+    #[serde(default = "default_seed")]
+    pub seed: u64,
+    /// The synthetic table every design starts from.
+    pub table: TableSpec,
+    /// The sizes (rows) to replay every design at.
+    pub sizes: SizeLadder,
+    /// The size that matters: predictions are made for it.
+    #[serde(default)]
+    pub target: Option<RowCount>,
+    /// Time, precision and memory limits of the sweep.
+    #[serde(default)]
+    pub budget: BudgetSpec,
+    /// Two or more ways of doing the same job.
+    pub designs: Vec<DesignSpec>,
+    /// When set, the designs are known to give different outputs, and this says why
+    /// (for example a lossy cast). Without it, differing outputs are a loud failure.
+    #[serde(default)]
+    pub outputs_differ: Option<String>,
+}
+
+fn default_format() -> u32 {
+    FORMAT_VERSION
+}
+fn default_seed() -> u64 {
+    1
+}
+
+/// The synthetic table.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct TableSpec {
+    pub columns: Vec<ColumnSpec>,
+}
+
+/// What a column holds.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum ColumnKind {
+    /// 64-bit signed integers.
+    Int,
+    /// 64-bit floats.
+    Float,
+    /// true / false.
+    Bool,
+    /// UTF-8 text drawn from a pool of distinct words.
+    Text,
+    /// Text stored as a categorical column.
+    Category,
+    /// Calendar dates.
+    Date,
+    /// A row identifier: unique integers (0..n) unless `duplicates` is set.
+    Key,
+}
+
+impl ColumnKind {
+    pub fn label(self) -> &'static str {
+        match self {
+            ColumnKind::Int => "int",
+            ColumnKind::Float => "float",
+            ColumnKind::Bool => "bool",
+            ColumnKind::Text => "text",
+            ColumnKind::Category => "category",
+            ColumnKind::Date => "date",
+            ColumnKind::Key => "key",
+        }
+    }
+}
+
+/// The order of a column's values down the rows.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Order {
+    #[default]
+    Random,
+    Sorted,
+    Reverse,
+    /// Runs of equal values (`run` rows each, default 64).
+    Clustered,
+}
+
+/// One bound of a value range: a number, or a date as `YYYY-MM-DD`.
+#[derive(Debug, Clone, PartialEq, Deserialize, Serialize)]
+#[serde(untagged)]
+pub enum Bound {
+    Int(i64),
+    Float(f64),
+    Text(String),
+}
+
+/// One column of the synthetic table.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct ColumnSpec {
+    pub name: String,
+    pub kind: ColumnKind,
+    /// Share of rows that are null (0 to 1).
+    #[serde(default)]
+    pub nulls: Option<Share>,
+    /// Number of distinct values to draw from.
+    #[serde(default)]
+    pub distinct: Option<u64>,
+    /// Smallest and largest value: numbers, or dates `YYYY-MM-DD`.
+    #[serde(default)]
+    pub range: Option<Vec<Bound>>,
+    #[serde(default)]
+    pub order: Order,
+    /// Run length for `order: clustered`.
+    #[serde(default)]
+    pub run: Option<u64>,
+    /// Zipf exponent over the distinct values (0 = uniform).
+    #[serde(default)]
+    pub skew: Option<f64>,
+    /// For `key` columns: share of rows that repeat an earlier row's key.
+    #[serde(default)]
+    pub duplicates: Option<Share>,
+    /// For text: shortest and longest word, in characters.
+    #[serde(default)]
+    pub length: Option<Vec<u64>>,
+    /// For bool: share of `true` among non-null rows.
+    #[serde(default)]
+    pub true_share: Option<Share>,
+}
+
+/// The size ladder: a list of row counts, or a geometric ladder.
+#[derive(Debug, Clone, Serialize)]
+pub enum SizeLadder {
+    List(Vec<RowCount>),
+    Ladder(LadderSpec),
+}
+
+/// `{from: 1k, to: 256k, factor: 2}`: from, from·factor, … up to and including `to`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct LadderSpec {
+    pub from: RowCount,
+    pub to: RowCount,
+    #[serde(default = "default_factor")]
+    pub factor: f64,
+}
+fn default_factor() -> f64 {
+    2.0
+}
+
+impl<'de> Deserialize<'de> for SizeLadder {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        use serde::de::{self, MapAccess, SeqAccess, Visitor};
+        struct V;
+        impl<'de> Visitor<'de> for V {
+            type Value = SizeLadder;
+            fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+                f.write_str("a list of row counts like [1k, 2k, 4k] or a ladder like {from: 1k, to: 64k, factor: 2}")
+            }
+            fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<SizeLadder, A::Error> {
+                let mut out = Vec::new();
+                while let Some(v) = seq.next_element::<RowCount>()? {
+                    out.push(v);
+                }
+                Ok(SizeLadder::List(out))
+            }
+            fn visit_map<A: MapAccess<'de>>(self, map: A) -> Result<SizeLadder, A::Error> {
+                LadderSpec::deserialize(de::value::MapAccessDeserializer::new(map)).map(SizeLadder::Ladder)
+            }
+        }
+        d.deserialize_any(V)
+    }
+}
+
+/// Limits of the sweep. Every field has a default.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct BudgetSpec {
+    /// Longest time to spend sampling one design at one size.
+    #[serde(default = "d_point")]
+    pub per_point: Seconds,
+    /// Longest time for the whole workload; points predicted to overrun it are skipped.
+    #[serde(default = "d_run")]
+    pub whole_run: Seconds,
+    /// Stop sampling when the median's 95% confidence interval is this tight (half-width / median).
+    #[serde(default = "d_precision")]
+    pub precision: Share,
+    /// Fewest samples per point (6 is the least for a 95% interval of the median).
+    #[serde(default = "d_min")]
+    pub min_samples: u64,
+    /// Most samples per point.
+    #[serde(default = "d_max")]
+    pub max_samples: u64,
+    /// Untimed runs before sampling starts.
+    #[serde(default = "d_warmup")]
+    pub warmup: u64,
+}
+fn d_point() -> Seconds {
+    Seconds(10.0)
+}
+fn d_run() -> Seconds {
+    Seconds(600.0)
+}
+fn d_precision() -> Share {
+    Share(0.03)
+}
+fn d_min() -> u64 {
+    6
+}
+fn d_max() -> u64 {
+    200
+}
+fn d_warmup() -> u64 {
+    1
+}
+impl Default for BudgetSpec {
+    fn default() -> Self {
+        BudgetSpec {
+            per_point: d_point(),
+            whole_run: d_run(),
+            precision: d_precision(),
+            min_samples: d_min(),
+            max_samples: d_max(),
+            warmup: d_warmup(),
+        }
+    }
+}
+
+/// What the timed steps of a design receive.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Feed {
+    /// The synthetic table itself (shared, read-only; steps that modify their input get a
+    /// private copy made outside the timed region).
+    #[default]
+    Table,
+    /// The table's rows as a list of records (plain values), made outside the timed region.
+    Records,
+}
+
+/// One design: a named list of steps.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct DesignSpec {
+    pub name: String,
+    #[serde(default)]
+    pub about: Option<String>,
+    #[serde(default)]
+    pub feed: Feed,
+    /// Each item is `step_name` or `{step_name: {param: value, ...}}`.
+    pub steps: Vec<serde_yaml::Value>,
+    /// What the trade expects of this design, for teaching.
+    #[serde(default)]
+    pub expect: Option<ExpectSpec>,
+}
+
+/// Teaching expectations: the growth class of time and of allocated bytes.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct ExpectSpec {
+    #[serde(default)]
+    pub time: Option<String>,
+    #[serde(default)]
+    pub bytes: Option<String>,
+}
+
+/// Growth classes a spec may name, with the spellings accepted for each.
+pub const GROWTH_LABELS: &[(&str, &[&str])] = &[
+    ("constant", &["constant", "1", "o(1)"]),
+    ("log n", &["log n", "log", "logarithmic"]),
+    ("n", &["n", "linear"]),
+    ("n log n", &["n log n", "nlogn", "linearithmic"]),
+    ("n²", &["n²", "n^2", "quadratic"]),
+    ("n³", &["n³", "n^3", "cubic"]),
+];
+
+/// The canonical growth label for a spelling, if it is one we know.
+pub fn canonical_growth(label: &str) -> Option<&'static str> {
+    let l = label.trim().to_lowercase();
+    GROWTH_LABELS
+        .iter()
+        .find(|(_, spellings)| spellings.contains(&l.as_str()))
+        .map(|(c, _)| *c)
+}

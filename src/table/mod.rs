@@ -1,0 +1,378 @@
+//! Synthetic tables: a plan's column list → a polars DataFrame of n rows, deterministic.
+//!
+//! Every cell is computed from (seed, column name, row) by [`rng::Stream`], so the same
+//! plan and seed give the same table bit for bit, and a column is unaffected by its
+//! neighbours. Orders other than `random` are made after drawing (sorting, runs). A
+//! newcomer must know: [`fingerprint`] hashes contents in row order independent of chunking,
+//! which is what lets differently-built outputs be compared.
+
+pub mod rng;
+
+use crate::plan::{ColumnPlan, RangePlan};
+use crate::spec::model::{ColumnKind, Order};
+use polars::prelude::*;
+use polars_arrow::bitmap::{Bitmap, MutableBitmap};
+use rng::{Alias, Stream};
+use xxhash_rust::xxh3::Xxh3;
+
+const VALUES: u64 = 1;
+const NULLS: u64 = 2;
+const SHUFFLE: u64 = 3;
+const DUPES: u64 = 4;
+const WORDS: u64 = 5;
+/// A large prime used to scatter pool ranks over a value range (a bijection mod d when d is
+/// not a multiple of it).
+const SCATTER: u64 = 2_654_435_761;
+
+/// Build the synthetic table of `rows` rows.
+pub fn generate(columns: &[ColumnPlan], seed: u64, rows: u64) -> PolarsResult<DataFrame> {
+    let cols: Vec<Column> = columns.iter().map(|c| column(c, seed, rows)).collect::<PolarsResult<_>>()?;
+    DataFrame::new(rows as usize, cols)
+}
+
+/// Which rows are null (None when the column has none).
+fn validity(c: &ColumnPlan, seed: u64, rows: u64) -> Option<Bitmap> {
+    if c.nulls <= 0.0 {
+        return None;
+    }
+    let st = Stream::new(seed, &c.name, NULLS);
+    let cut = (c.nulls * u64::MAX as f64) as u64;
+    let bm: MutableBitmap = (0..rows).map(|i| st.at(i) >= cut).collect();
+    Some(bm.into())
+}
+
+/// Draws pool ranks 0..d for every row: uniform or Zipf, then put in the column's order.
+fn ranks(c: &ColumnPlan, seed: u64, rows: u64, d: u64) -> Vec<u64> {
+    let st = Stream::new(seed, &c.name, VALUES);
+    let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
+    let draw = |i: u64| match &alias {
+        Some(a) => a.draw(st.at(i)),
+        None => st.below(i, d),
+    };
+    ordered(c, rows, draw)
+}
+
+/// Produce `rows` values from a per-row drawing function, in the column's order.
+fn ordered<T: Copy + PartialOrd>(c: &ColumnPlan, rows: u64, draw: impl Fn(u64) -> T) -> Vec<T> {
+    match c.order {
+        Order::Random => (0..rows).map(draw).collect(),
+        Order::Clustered => (0..rows).map(|i| draw(i / c.run)).collect(),
+        Order::Sorted | Order::Reverse => {
+            let mut v: Vec<T> = (0..rows).map(draw).collect();
+            v.sort_unstable_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
+            if c.order == Order::Reverse {
+                v.reverse();
+            }
+            v
+        }
+    }
+}
+
+/// The k-th of d distinct integers spread over [lo, hi] (scattered so that frequent ranks
+/// under skew are not all at the low end).
+fn pooled_int(k: u64, d: u64, lo: i64, hi: i64) -> i64 {
+    let span = (hi as i128 - lo as i128) as u128;
+    if d <= 1 {
+        return lo;
+    }
+    let pos = if d % SCATTER == 0 { k } else { (k as u128 * SCATTER as u128 % d as u128) as u64 };
+    (lo as i128 + (pos as u128 * span / (d as u128 - 1)) as i128) as i64
+}
+
+fn int_values(c: &ColumnPlan, seed: u64, rows: u64, lo: i64, hi: i64) -> Vec<i64> {
+    match c.distinct {
+        Some(d) => {
+            let span = (hi as i128 - lo as i128 + 1) as u128;
+            let d = d.min(span.min(u64::MAX as u128) as u64);
+            if c.order == Order::Random || c.order == Order::Clustered {
+                ranks(c, seed, rows, d).into_iter().map(|k| pooled_int(k, d, lo, hi)).collect()
+            } else {
+                let st = Stream::new(seed, &c.name, VALUES);
+                let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
+                ordered(c, rows, |i| {
+                    let k = match &alias {
+                        Some(a) => a.draw(st.at(i)),
+                        None => st.below(i, d),
+                    };
+                    pooled_int(k, d, lo, hi)
+                })
+            }
+        }
+        None => {
+            let st = Stream::new(seed, &c.name, VALUES);
+            let span = (hi as i128 - lo as i128 + 1) as u128;
+            if span > u64::MAX as u128 {
+                ordered(c, rows, |i| st.at(i) as i64)
+            } else {
+                let span = span as u64;
+                ordered(c, rows, |i| (lo as i128 + st.below(i, span) as i128) as i64)
+            }
+        }
+    }
+}
+
+fn float_values(c: &ColumnPlan, seed: u64, rows: u64, lo: f64, hi: f64) -> Vec<f64> {
+    let st = Stream::new(seed, &c.name, VALUES);
+    match c.distinct {
+        Some(d) => {
+            let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
+            ordered(c, rows, |i| {
+                let k = match &alias {
+                    Some(a) => a.draw(st.at(i)),
+                    None => st.below(i, d),
+                };
+                if d <= 1 {
+                    lo
+                } else {
+                    let pos = if d % SCATTER == 0 { k } else { (k as u128 * SCATTER as u128 % d as u128) as u64 };
+                    lo + (hi - lo) * pos as f64 / (d - 1) as f64
+                }
+            })
+        }
+        None => ordered(c, rows, |i| lo + (hi - lo) * st.unit(i)),
+    }
+}
+
+/// Unique keys 0..rows in the column's order, then a share replaced by earlier rows' keys.
+fn key_values(c: &ColumnPlan, seed: u64, rows: u64) -> Vec<i64> {
+    let mut v: Vec<i64> = (0..rows as i64).collect();
+    let st = Stream::new(seed, &c.name, SHUFFLE);
+    match c.order {
+        Order::Sorted => {}
+        Order::Reverse => v.reverse(),
+        Order::Random => {
+            // Fisher–Yates, driven by the row-indexed stream.
+            for i in (1..v.len()).rev() {
+                let j = st.below(i as u64, i as u64 + 1) as usize;
+                v.swap(i, j);
+            }
+        }
+        Order::Clustered => {
+            // Sorted runs of `run` keys, the runs themselves in shuffled order.
+            let run = c.run.max(1) as usize;
+            let blocks = v.len().div_ceil(run);
+            let mut order: Vec<usize> = (0..blocks).collect();
+            for i in (1..order.len()).rev() {
+                let j = st.below(i as u64, i as u64 + 1) as usize;
+                order.swap(i, j);
+            }
+            let src = v.clone();
+            v.clear();
+            for b in order {
+                v.extend_from_slice(&src[b * run..((b + 1) * run).min(src.len())]);
+            }
+        }
+    }
+    if c.duplicates > 0.0 {
+        let du = Stream::new(seed, &c.name, DUPES);
+        let cut = (c.duplicates * u64::MAX as f64) as u64;
+        for i in 1..v.len() {
+            if du.at(i as u64) < cut {
+                let j = du.below(i as u64 ^ 0x5555_5555, i as u64) as usize;
+                v[i] = v[j];
+            }
+        }
+        match c.order {
+            Order::Sorted => v.sort_unstable(),
+            Order::Reverse => v.sort_unstable_by(|a, b| b.cmp(a)),
+            _ => {}
+        }
+    }
+    v
+}
+
+/// The k-th word of a pool of `d`: a fixed-width base-26 code of k (so words are distinct
+/// and sort in rank order) followed by filler letters up to the word's own length.
+fn word(seed: u64, name: &str, k: u64, d: u64, len: (u32, u32)) -> String {
+    let mut digits = 1u32;
+    while 26u128.pow(digits) < d as u128 {
+        digits += 1;
+    }
+    let st = Stream::new(seed, name, WORDS);
+    let want = (len.0 + st.below(k, (len.1 - len.0 + 1) as u64) as u32).max(digits);
+    let mut out = String::with_capacity(want as usize);
+    let mut code = Vec::with_capacity(digits as usize);
+    let mut x = k;
+    for _ in 0..digits {
+        code.push(b'a' + (x % 26) as u8);
+        x /= 26;
+    }
+    code.reverse();
+    out.push_str(std::str::from_utf8(&code).unwrap_or("a"));
+    const FILL: &[u8] = b"aeioulnrstmkp";
+    for j in digits..want {
+        let w = st.at(k.wrapping_mul(131).wrapping_add(j as u64 + 1));
+        out.push(FILL[(w % FILL.len() as u64) as usize] as char);
+    }
+    out
+}
+
+fn column(c: &ColumnPlan, seed: u64, rows: u64) -> PolarsResult<Column> {
+    let name: PlSmallStr = c.name.as_str().into();
+    let valid = validity(c, seed, rows);
+    let s: Series = match c.kind {
+        ColumnKind::Int => {
+            let (lo, hi) = match c.range {
+                RangePlan::Int(a, b) => (a, b),
+                _ => (0, 1_000_000),
+            };
+            Int64Chunked::from_vec_validity(name, int_values(c, seed, rows, lo, hi), valid).into_series()
+        }
+        ColumnKind::Key => Int64Chunked::from_vec_validity(name, key_values(c, seed, rows), valid).into_series(),
+        ColumnKind::Float => {
+            let (lo, hi) = match c.range {
+                RangePlan::Float(a, b) => (a, b),
+                _ => (0.0, 1.0),
+            };
+            Float64Chunked::from_vec_validity(name, float_values(c, seed, rows, lo, hi), valid).into_series()
+        }
+        ColumnKind::Date => {
+            let (lo, hi) = match c.range {
+                RangePlan::Date(a, b) => (a as i64, b as i64),
+                _ => (18262, 21914),
+            };
+            let v: Vec<i32> = int_values(c, seed, rows, lo, hi).into_iter().map(|x| x as i32).collect();
+            Int32Chunked::from_vec_validity(name, v, valid).into_date().into_series()
+        }
+        ColumnKind::Bool => {
+            let st = Stream::new(seed, &c.name, VALUES);
+            let cut = (c.true_share * u64::MAX as f64) as u64;
+            let v: Vec<bool> = ordered(c, rows, |i| st.at(i) < cut);
+            let ca = BooleanChunked::from_slice(name, &v);
+            match valid {
+                Some(bm) => ca.with_validity(Some(bm)),
+                None => ca,
+            }
+            .into_series()
+        }
+        ColumnKind::Text | ColumnKind::Category => {
+            let d = c.distinct.unwrap_or(100).max(1);
+            let pool: Vec<String> = (0..d.min(rows.max(1))).map(|k| word(seed, &c.name, k, d, c.length)).collect();
+            // Ranks beyond the pool built (only when d > rows) are folded into it.
+            let p = pool.len() as u64;
+            let r = ranks(c, seed, rows, d);
+            let ca: StringChunked = match &valid {
+                Some(bm) => r
+                    .iter()
+                    .zip(bm.iter())
+                    .map(|(&k, ok)| ok.then(|| pool[(k % p) as usize].as_str()))
+                    .collect(),
+                None => r.iter().map(|&k| Some(pool[(k % p) as usize].as_str())).collect(),
+            };
+            let s = ca.with_name(name).into_series();
+            if c.kind == ColumnKind::Category {
+                s.cast(&DataType::from_categories(Categories::global()))?
+            } else {
+                s
+            }
+        }
+    };
+    Ok(s.into_column())
+}
+
+/// A copy of a table that shares no buffers with it (for steps that modify their input).
+pub fn deep_copy(df: &DataFrame) -> DataFrame {
+    let idx: Vec<IdxSize> = (0..df.height() as IdxSize).collect();
+    let cols: Vec<Column> = df
+        .columns()
+        .iter()
+        .map(|c| match c.as_materialized_series().take_slice(&idx) {
+            Ok(s) => s.into_column(),
+            Err(_) => c.clone(),
+        })
+        .collect();
+    DataFrame::new(df.height(), cols).unwrap_or_else(|_| df.clone())
+}
+
+/// A hash of a table's contents in row order: column names, dtypes, values and nulls.
+/// Independent of chunking; categorical columns are hashed by their text.
+pub fn fingerprint(df: &DataFrame) -> String {
+    let mut h = Xxh3::new();
+    h.update(&(df.height() as u64).to_le_bytes());
+    for col in df.columns() {
+        h.update(col.name().as_bytes());
+        h.update(&[0xff]);
+        h.update(col.dtype().to_string().as_bytes());
+        h.update(&[0xfe]);
+        hash_series(&mut h, col.as_materialized_series());
+    }
+    format!("{:016x}", h.digest())
+}
+
+fn hash_series(h: &mut Xxh3, s: &Series) {
+    // Whether values carry a null tag is decided once for the whole column, so the hash
+    // does not depend on how the column is split into chunks.
+    let tagged = s.null_count() > 0;
+    macro_rules! prim {
+        ($ca:expr) => {{
+            for arr in $ca.downcast_iter() {
+                if !tagged {
+                    for v in arr.values().iter() {
+                        h.update(&v.to_le_bytes());
+                    }
+                } else {
+                    for v in arr.iter() {
+                        match v {
+                            Some(x) => {
+                                h.update(&[1]);
+                                h.update(&x.to_le_bytes());
+                            }
+                            None => h.update(&[0]),
+                        }
+                    }
+                }
+            }
+        }};
+    }
+    match s.dtype() {
+        DataType::Categorical(..) | DataType::Enum(..) => match s.cast(&DataType::String) {
+            Ok(t) => hash_series(h, &t),
+            Err(_) => h.update(b"?"),
+        },
+        DataType::String => {
+            if let Ok(ca) = s.str() {
+                for v in ca.iter() {
+                    match v {
+                        Some(x) => {
+                            h.update(&(x.len() as u64 + 1).to_le_bytes());
+                            h.update(x.as_bytes());
+                        }
+                        None => h.update(&0u64.to_le_bytes()),
+                    }
+                }
+            }
+        }
+        DataType::Boolean => {
+            if let Ok(ca) = s.bool() {
+                for v in ca.iter() {
+                    h.update(&[match v {
+                        None => 0,
+                        Some(false) => 1,
+                        Some(true) => 2,
+                    }]);
+                }
+            }
+        }
+        dt if dt.is_primitive_numeric() || dt.is_temporal() => {
+            let phys = s.to_physical_repr();
+            match phys.dtype() {
+                DataType::Int64 => prim!(phys.i64().expect("checked dtype")),
+                DataType::Int32 => prim!(phys.i32().expect("checked dtype")),
+                DataType::UInt32 => prim!(phys.u32().expect("checked dtype")),
+                DataType::UInt64 => prim!(phys.u64().expect("checked dtype")),
+                DataType::Float64 => prim!(phys.f64().expect("checked dtype")),
+                DataType::Float32 => prim!(phys.f32().expect("checked dtype")),
+                _ => hash_any(h, &phys),
+            }
+        }
+        _ => hash_any(h, s),
+    }
+}
+
+fn hash_any(h: &mut Xxh3, s: &Series) {
+    for v in s.iter() {
+        let t = v.to_string();
+        h.update(&(t.len() as u64).to_le_bytes());
+        h.update(t.as_bytes());
+    }
+}
