@@ -99,7 +99,7 @@ struct Active<'a> {
 }
 
 /// Run one design's steps on one input.
-fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
+pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
     let mut v = input;
     for s in &design.steps {
         v = s.runner.run(v).map_err(|e| e.to_string())?;
@@ -451,10 +451,12 @@ pub fn sweep(
                     predicted_ns: None,
                     predicted_bytes: None,
                     detail: format!(
-                        "at {} rows one run already took {} of the {} point budget",
+                        "at {} rows the {} point budget allowed only {} of {} samples (one run {})",
                         crate::spec::units::rows_label(rows),
-                        crate::present::units::time_ns(m.median_ns),
-                        crate::present::units::time_ns(b.per_point_s * 1e9)
+                        crate::present::units::time_ns(b.per_point_s * 1e9),
+                        m.samples_ns.len(),
+                        b.min_samples,
+                        crate::present::units::time_ns(m.median_ns)
                     ),
                 });
             }

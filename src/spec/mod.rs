@@ -71,6 +71,16 @@ pub fn load(path: &Path) -> Result<Plan, SpecErrors> {
 
 /// Check and resolve a workload given as text (`file` is used in messages).
 pub fn load_str(file: &str, text: &str) -> Result<Plan, SpecErrors> {
+    let blank = text.lines().all(|l| l.trim().is_empty() || l.trim_start().starts_with('#'));
+    if blank {
+        return Err(SpecErrors(vec![SpecIssue {
+            file: file.to_string(),
+            line: 1,
+            column: 1,
+            message: "the file is empty: expected a workload (a mapping with name, table, sizes and designs)".into(),
+            hint: None,
+        }]));
+    }
     let spec: model::WorkloadSpec = serde_yaml::from_str(text).map_err(|e| SpecErrors(vec![from_serde(file, &e)]))?;
     let loc = locate::Locator::new(text);
     validate::check(file, text, &spec, &loc).map_err(SpecErrors)
@@ -84,9 +94,11 @@ fn from_serde(file: &str, e: &serde_yaml::Error) -> SpecIssue {
     if let Some(i) = message.find(" at line ") {
         message.truncate(i);
     }
+    const WORKLOAD: &str = "a workload (a mapping with name, table, sizes and designs)";
     if message.starts_with("EOF while parsing") {
-        message = "the file is empty: expected a workload (a mapping with name, table, sizes and designs)".into();
+        message = format!("the file is empty: expected {WORKLOAD}");
     }
+    message = message.replace("struct WorkloadSpec", WORKLOAD).replace("expected u64", "expected a whole number of 0 or more");
     let hint = unknown_name_hint(&message);
     SpecIssue { file: file.to_string(), line, column, message, hint }
 }

@@ -32,7 +32,7 @@ pub fn parse_rows(text: &str) -> Result<u64, String> {
         return Err(format!("a row count of zero or more, found `{text}`"));
     }
     if rows.fract() != 0.0 {
-        return Err(format!("a whole number of rows, found `{text}` = {rows}"));
+        return Err(format!("a whole number of rows, found `{text}`"));
     }
     if rows > 1e15 {
         return Err(format!("a row count below 10^15, found `{text}`"));

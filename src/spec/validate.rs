@@ -54,6 +54,14 @@ impl Checker<'_> {
     }
 }
 
+fn article(word: &str) -> &'static str {
+    if word.starts_with(['a', 'e', 'i', 'o', 'u']) {
+        "an"
+    } else {
+        "a"
+    }
+}
+
 fn parse_date(s: &str) -> Option<i32> {
     let d = chrono::NaiveDate::parse_from_str(s.trim(), "%Y-%m-%d").ok()?;
     let epoch = chrono::NaiveDate::from_ymd_opt(1970, 1, 1)?;
@@ -137,7 +145,7 @@ fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<Col
                 let names: Vec<&str> = ok.iter().map(|k| k.label()).collect();
                 c.at_key(
                     &p.key(key),
-                    format!("`{key}` does not apply to a {} column (it applies to {})", kind.label(), names.join(", ")),
+                    format!("`{key}` does not apply to {} {} column (it applies to {})", article(kind.label()), kind.label(), names.join(", ")),
                     None,
                 );
             }
@@ -380,9 +388,14 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
             Feed::Table => ValueKind::Frame,
             Feed::Records => ValueKind::Records,
         };
+        let mut broken = false;
         for (j, raw) in d.steps.iter().enumerate() {
             let sp = p.key("steps").index(j);
-            let Some(step) = check_step(c, raw, &sp) else { continue };
+            let Some(step) = check_step(c, raw, &sp) else {
+                // The chain cannot be judged past a step we could not read.
+                broken = true;
+                break;
+            };
             if step.def.takes != flowing {
                 let fix = if j == 0 && step.def.takes == ValueKind::Records {
                     Some("set `feed: records` on this design".to_string())
@@ -398,7 +411,7 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
             flowing = step.def.gives;
             steps.push(step);
         }
-        if !d.steps.is_empty() && flowing != ValueKind::Frame {
+        if !broken && !d.steps.is_empty() && flowing != ValueKind::Frame {
             c.at(&p.key("steps"), format!("the last step must give a table (so designs can be compared), but it gives {}", flowing.label()), None);
         }
         let mut growth = |key: &str, v: &Option<String>| -> Option<&'static str> {

@@ -11,7 +11,8 @@ pub mod rng;
 use crate::plan::{ColumnPlan, RangePlan};
 use crate::spec::model::{ColumnKind, Order};
 use polars::prelude::*;
-use polars_arrow::bitmap::{Bitmap, MutableBitmap};
+use polars_arrow::bitmap::Bitmap;
+use rayon::prelude::*;
 use rng::{Alias, Stream};
 use xxhash_rust::xxh3::Xxh3;
 
@@ -26,7 +27,9 @@ const SCATTER: u64 = 2_654_435_761;
 
 /// Build the synthetic table of `rows` rows.
 pub fn generate(columns: &[ColumnPlan], seed: u64, rows: u64) -> PolarsResult<DataFrame> {
-    let cols: Vec<Column> = columns.iter().map(|c| column(c, seed, rows)).collect::<PolarsResult<_>>()?;
+    // Columns are independent (no shared generator state), so they are built in parallel,
+    // and long columns are themselves drawn in parallel chunks.
+    let cols: Vec<Column> = columns.par_iter().map(|c| column(c, seed, rows)).collect::<PolarsResult<_>>()?;
     DataFrame::new(rows as usize, cols)
 }
 
@@ -37,8 +40,22 @@ fn validity(c: &ColumnPlan, seed: u64, rows: u64) -> Option<Bitmap> {
     }
     let st = Stream::new(seed, &c.name, NULLS);
     let cut = (c.nulls * u64::MAX as f64) as u64;
-    let bm: MutableBitmap = (0..rows).map(|i| st.at(i) >= cut).collect();
-    Some(bm.into())
+    let bytes: Vec<u8> = (0..rows.div_ceil(8) as usize)
+        .into_par_iter()
+        .with_min_len(1 << 12)
+        .map(|b| {
+            let b = b as u64;
+            let mut byte = 0u8;
+            for bit in 0..8u64 {
+                let i = b * 8 + bit;
+                if i < rows && st.at(i) >= cut {
+                    byte |= 1 << bit;
+                }
+            }
+            byte
+        })
+        .collect();
+    Some(Bitmap::from_u8_vec(bytes, rows as usize))
 }
 
 /// Draws pool ranks 0..d for every row: uniform or Zipf, then put in the column's order.
@@ -53,13 +70,13 @@ fn ranks(c: &ColumnPlan, seed: u64, rows: u64, d: u64) -> Vec<u64> {
 }
 
 /// Produce `rows` values from a per-row drawing function, in the column's order.
-fn ordered<T: Copy + PartialOrd>(c: &ColumnPlan, rows: u64, draw: impl Fn(u64) -> T) -> Vec<T> {
+fn ordered<T: Copy + PartialOrd + Send>(c: &ColumnPlan, rows: u64, draw: impl Fn(u64) -> T + Sync) -> Vec<T> {
     match c.order {
-        Order::Random => (0..rows).map(draw).collect(),
-        Order::Clustered => (0..rows).map(|i| draw(i / c.run)).collect(),
+        Order::Random => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| draw(i as u64)).collect(),
+        Order::Clustered => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| draw(i as u64 / c.run)).collect(),
         Order::Sorted | Order::Reverse => {
-            let mut v: Vec<T> = (0..rows).map(draw).collect();
-            v.sort_unstable_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
+            let mut v: Vec<T> = (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| draw(i as u64)).collect();
+            v.par_sort_unstable_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
             if c.order == Order::Reverse {
                 v.reverse();
             }

@@ -1,0 +1,137 @@
+//! `framecost sweep` end to end: the run folder, its records, skips instead of hangs,
+//! memory refusals with the estimate, and a results file that survives a kill.
+
+use assert_cmd::Command;
+use framecost::results::reader::RunResults;
+use framecost::results::{EquivalenceStatus, SkipReason};
+use std::time::{Duration, Instant};
+
+fn sweep(args: &[&str]) -> std::process::Output {
+    Command::cargo_bin("framecost").expect("binary").arg("sweep").args(args).output().expect("runs")
+}
+
+#[test]
+fn tiny_sweep_writes_a_complete_run_and_skips_the_quadratic_tail() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out_dir = dir.path().join("run");
+    let out = sweep(&["tests/data/tiny.yaml", "--out", out_dir.to_str().expect("utf8")]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "stdout:\n{stdout}\nstderr:\n{stderr}");
+    assert!(out_dir.join("summary.json").exists());
+    assert!(out_dir.join("spec-tiny-ledger.yaml").exists());
+
+    let r = RunResults::read(&out_dir).expect("readable");
+    assert!(r.complete());
+    assert_eq!(r.damaged_lines, 0);
+    let run = r.run.as_ref().expect("header");
+    assert!(run.clock.read_cost_ns > 0.0 && run.yardstick.median_ns > 0.0);
+    assert_eq!(run.machine.polars_version, polars::VERSION);
+    let w = &r.workloads[0];
+    // Every design has a record at every size: measured or skipped, nothing silently missing.
+    assert_eq!(w.points.len(), w.header.sizes.len() * w.header.designs.len());
+    for p in &w.points {
+        assert!(p.measured.is_some() != p.skipped.is_some(), "{p:?}");
+        if let Some(m) = &p.measured {
+            assert!(!m.samples_ns.is_empty());
+            assert!(m.p50_ns <= m.p90_ns && m.p90_ns <= m.p99_ns && m.p99_ns <= m.max_ns);
+            assert!(m.alloc.bytes > 0);
+            assert_eq!(m.output.as_ref().expect("facts").rows, p.rows);
+        }
+    }
+    // The quadratic design runs out of budget and its largest sizes are skipped with a
+    // prediction rather than run.
+    let tail = w.point("one-at-a-time", 128_000).expect("point");
+    let skip = tail.skipped.as_ref().expect("the largest size of the quadratic design is skipped");
+    assert!(matches!(skip.reason, SkipReason::PredictedOverBudget | SkipReason::SmallerSizeOverBudget | SkipReason::RunBudget));
+    assert!(skip.predicted_ns.is_some_and(|p| p > 0.3e9), "{skip:?}");
+    // The linear design is measured at the largest size.
+    assert!(w.point("build-once", 128_000).and_then(|p| p.measured.as_ref()).is_some());
+    // Designs agree wherever both ran.
+    assert!(w.comparisons.iter().all(|c| c.equivalence.status != EquivalenceStatus::Mismatch));
+    assert!(w.comparisons.iter().any(|c| c.equivalence.status == EquivalenceStatus::Same));
+    // The terminal summary names both designs and the skip.
+    assert!(stdout.contains("one-at-a-time") && stdout.contains("build-once") && stdout.contains("skip ~"));
+    // recap prints the same summary from the saved results.
+    let recap = Command::cargo_bin("framecost").expect("binary").arg("recap").arg(&out_dir).output().expect("runs");
+    assert!(recap.status.success());
+    let rtext = String::from_utf8_lossy(&recap.stdout);
+    let table_of = |s: &str| s.lines().filter(|l| l.contains("one-at-a-time")).map(str::to_string).collect::<Vec<_>>();
+    assert_eq!(table_of(&rtext), table_of(&stdout));
+}
+
+#[test]
+fn sizes_that_do_not_fit_are_refused_with_the_estimate() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out_dir = dir.path().join("run");
+    // Ten billion rows cannot fit in this machine's memory (or any we test on).
+    let out = sweep(&["tests/data/tiny.yaml", "--sizes", "1k,10G", "--out", out_dir.to_str().expect("utf8")]);
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert!(stderr.contains("will be refused"), "{stderr}");
+    let r = RunResults::read(&out_dir).expect("readable");
+    let w = &r.workloads[0];
+    for d in ["one-at-a-time", "build-once"] {
+        let p = w.point(d, 10_000_000_000).expect("point");
+        let s = p.skipped.as_ref().expect("refused");
+        assert_eq!(s.reason, SkipReason::Memory);
+        assert!(s.predicted_bytes.is_some_and(|b| b > 1e11));
+        assert!(s.detail.contains("available") && s.detail.contains("GiB"), "{}", s.detail);
+        assert!(w.point(d, 1000).and_then(|p| p.measured.as_ref()).is_some());
+    }
+    // --plan shows the estimate and runs nothing.
+    let plan = sweep(&["tests/data/tiny.yaml", "--sizes", "1k,10G", "--plan"]);
+    let text = String::from_utf8_lossy(&plan.stdout);
+    assert!(plan.status.success());
+    assert!(text.contains("10G rows") && text.contains("would refuse"), "{text}");
+}
+
+#[test]
+fn results_survive_a_kill_in_the_middle() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out_dir = dir.path().join("run");
+    let bin = assert_cmd::cargo::cargo_bin("framecost");
+    let mut child = std::process::Command::new(bin)
+        .args(["sweep", "tests/data/tiny.yaml", "--point-budget", "2s", "--out"])
+        .arg(&out_dir)
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .expect("spawn");
+    let points = out_dir.join("points.jsonl");
+    let start = Instant::now();
+    // Wait until a few points are on disk, then kill without warning.
+    loop {
+        let n = std::fs::read_to_string(&points).map(|t| t.matches("\"record\":\"point\"").count()).unwrap_or(0);
+        if n >= 3 {
+            break;
+        }
+        assert!(start.elapsed() < Duration::from_secs(300), "no points written");
+        if let Ok(Some(status)) = child.try_wait() {
+            panic!("sweep ended before it could be killed: {status}");
+        }
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    child.kill().expect("kill");
+    let _ = child.wait();
+    let r = RunResults::read(&out_dir).expect("the partial run still reads");
+    assert!(!r.complete(), "no end record after a kill");
+    assert!(r.damaged_lines <= 1);
+    let w = &r.workloads[0];
+    let measured = w.points.iter().filter(|p| p.measured.is_some()).count();
+    assert!(measured >= 3, "kept {measured} points");
+    assert!(!out_dir.join("summary.json").exists(), "the summary is only written at the end");
+    let recap = Command::cargo_bin("framecost").expect("binary").arg("recap").arg(&out_dir).output().expect("runs");
+    assert!(recap.status.success());
+    assert!(String::from_utf8_lossy(&recap.stdout).contains("did not finish"));
+}
+
+#[test]
+fn bad_command_lines_exit_2() {
+    assert_eq!(sweep(&["no/such/file.yaml"]).status.code(), Some(2));
+    assert_eq!(sweep(&["tests/data/broken/05-nulls-above-one.yaml"]).status.code(), Some(2));
+    assert_eq!(sweep(&["tests/data/tiny.yaml", "--point-budget", "-1s", "--plan"]).status.code(), Some(2));
+    let out = sweep(&["tests/data/tiny.yaml", "--design", "build-onse", "--plan"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("did you mean `build-once`?"));
+}
