@@ -43,6 +43,9 @@ pub struct DesignPlan {
     pub name: String,
     pub about: Option<String>,
     pub feed: Feed,
+    /// Untimed, once per size, before sampling.
+    pub setup: Vec<StepPlan>,
+    /// Timed.
     pub steps: Vec<StepPlan>,
     /// Canonical growth labels the trade expects ("n", "n²", …).
     pub expect_time: Option<&'static str>,
@@ -52,11 +55,17 @@ pub struct DesignPlan {
 impl DesignPlan {
     /// `append_rows{batch=1, consolidate=each} → …`
     pub fn recipe(&self) -> String {
-        self.steps.iter().map(|s| s.label.clone()).collect::<Vec<_>>().join(" → ")
+        let timed = self.steps.iter().map(|s| s.label.clone()).collect::<Vec<_>>().join(" → ");
+        if self.setup.is_empty() {
+            timed
+        } else {
+            let setup = self.setup.iter().map(|s| s.label.clone()).collect::<Vec<_>>().join(" → ");
+            format!("(untimed: {setup}) → {timed}")
+        }
     }
     /// The largest memory factor of its steps.
     pub fn memory_factor(&self) -> f64 {
-        self.steps.iter().map(|s| s.def.memory_factor).fold(1.0, f64::max)
+        self.setup.iter().chain(&self.steps).map(|s| s.def.memory_factor).fold(1.0, f64::max)
     }
 }
 

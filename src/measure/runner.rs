@@ -191,7 +191,7 @@ pub fn sweep(
                 name: d.name.clone(),
                 about: d.about.clone(),
                 recipe: d.recipe(),
-                steps: d.steps.iter().map(|s| s.def.name.to_string()).collect(),
+                steps: d.setup.iter().chain(&d.steps).map(|s| s.def.name.to_string()).collect(),
                 feed: match d.feed {
                     Feed::Table => "table".into(),
                     Feed::Records => "records".into(),
@@ -338,10 +338,22 @@ pub fn sweep(
             .iter()
             .map(|&i| {
                 let d = &plan.designs[i];
-                let feed = match (d.feed, &records) {
+                let raw = match (d.feed, &records) {
                     (Feed::Records, Some(r)) => Value::Records(r.clone()),
                     _ => Value::Frame(df.clone()),
                 };
+                // Untimed set-up steps, once per size.
+                let mut error = None;
+                let mut feed = raw;
+                for s in &d.setup {
+                    match s.runner.run(feed.clone()) {
+                        Ok(v) => feed = v,
+                        Err(e) => {
+                            error = Some(format!("set-up step {}: {e}", s.label));
+                            break;
+                        }
+                    }
+                }
                 Active {
                     index: i,
                     design: d,
@@ -355,13 +367,13 @@ pub fn sweep(
                     spent_s: 0.0,
                     output: None,
                     stop: None,
-                    error: None,
+                    error,
                 }
             })
             .collect();
 
         // First run of each design: learn its speed, choose the batch, record its output.
-        for a in active.iter_mut() {
+        for a in active.iter_mut().filter(|a| a.error.is_none()) {
             progress.point(&plan.name, rows, &a.design.name, 0);
             let t = Instant::now();
             match sample(a) {

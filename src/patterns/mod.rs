@@ -24,6 +24,9 @@ pub enum Value {
     Frame(DataFrame),
     /// Rows as plain values (made outside the timed region by `feed: records`).
     Records(Arc<Records>),
+    /// Anything else a family passes between its own steps (an index, a list of tables,
+    /// files on disk), named so designs can be checked to fit together.
+    Custom(&'static str, Arc<dyn std::any::Any + Send + Sync>),
 }
 
 /// The kind of a [`Value`], for checking that a design's steps fit together.
@@ -31,6 +34,8 @@ pub enum Value {
 pub enum ValueKind {
     Frame,
     Records,
+    /// A family's own value, by name.
+    Custom(&'static str),
 }
 
 impl ValueKind {
@@ -38,6 +43,7 @@ impl ValueKind {
         match self {
             ValueKind::Frame => "a table",
             ValueKind::Records => "records",
+            ValueKind::Custom(name) => name,
         }
     }
 }
@@ -47,6 +53,25 @@ impl Value {
         match self {
             Value::Frame(_) => ValueKind::Frame,
             Value::Records(_) => ValueKind::Records,
+            Value::Custom(name, _) => ValueKind::Custom(name),
+        }
+    }
+
+    /// The table inside, or a typed error naming the step.
+    pub fn into_frame(self, step: &'static str) -> Result<DataFrame, StepError> {
+        match self {
+            Value::Frame(df) => Ok(df),
+            other => Err(StepError::WrongInput { step, wanted: "a table", got: other.kind().label() }),
+        }
+    }
+
+    /// A family's own value of type `T`, or a typed error naming the step.
+    pub fn into_custom<T: Send + Sync + 'static>(self, step: &'static str, name: &'static str) -> Result<Arc<T>, StepError> {
+        match self {
+            Value::Custom(n, v) if n == name => {
+                v.downcast::<T>().map_err(|_| StepError::WrongInput { step, wanted: name, got: "a value of another type" })
+            }
+            other => Err(StepError::WrongInput { step, wanted: name, got: other.kind().label() }),
         }
     }
 }
@@ -258,6 +283,12 @@ impl OutputFacts {
                 chunks: 0,
                 dtypes: r.schema.iter().map(|(n, d)| (n.to_string(), d.to_string())).collect(),
                 fingerprint: "records".to_string(),
+            },
+            Value::Custom(name, _) => OutputFacts {
+                rows: 0,
+                chunks: 0,
+                dtypes: vec![],
+                fingerprint: format!("custom:{name}"),
             },
         }
     }

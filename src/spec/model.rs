@@ -265,7 +265,11 @@ pub struct DesignSpec {
     pub about: Option<String>,
     #[serde(default)]
     pub feed: Feed,
-    /// Each item is `step_name` or `{step_name: {param: value, ...}}`.
+    /// Untimed steps run once per size before sampling (building an index, say); their
+    /// output is what the timed steps receive. Same form as `steps`.
+    #[serde(default)]
+    pub setup: Vec<serde_yaml::Value>,
+    /// The timed steps. Each item is `step_name` or `{step_name: {param: value, ...}}`.
     pub steps: Vec<serde_yaml::Value>,
     /// What the trade expects of this design, for teaching.
     #[serde(default)]

@@ -383,34 +383,41 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
         if d.steps.is_empty() {
             c.at(&p.key("steps"), "expected at least one step", None);
         }
-        let mut steps = Vec::new();
         let mut flowing = match d.feed {
             Feed::Table => ValueKind::Frame,
             Feed::Records => ValueKind::Records,
         };
         let mut broken = false;
-        for (j, raw) in d.steps.iter().enumerate() {
-            let sp = p.key("steps").index(j);
-            let Some(step) = check_step(c, raw, &sp) else {
-                // The chain cannot be judged past a step we could not read.
-                broken = true;
-                break;
-            };
-            if step.def.takes != flowing {
-                let fix = if j == 0 && step.def.takes == ValueKind::Records {
-                    Some("set `feed: records` on this design".to_string())
-                } else {
-                    None
+        let mut lists: [Vec<StepPlan>; 2] = [Vec::new(), Vec::new()];
+        for (li, (key, raws)) in [("setup", &d.setup), ("steps", &d.steps)].into_iter().enumerate() {
+            for (j, raw) in raws.iter().enumerate() {
+                if broken {
+                    break;
+                }
+                let sp = p.key(key).index(j);
+                let Some(step) = check_step(c, raw, &sp) else {
+                    // The chain cannot be judged past a step we could not read.
+                    broken = true;
+                    break;
                 };
-                c.at(
-                    &sp,
-                    format!("step `{}` needs {} but receives {}", step.def.name, step.def.takes.label(), flowing.label()),
-                    fix,
-                );
+                if step.def.takes != flowing {
+                    let first = li == 0 && j == 0 || (li == 1 && j == 0 && d.setup.is_empty());
+                    let fix = if first && step.def.takes == ValueKind::Records {
+                        Some("set `feed: records` on this design".to_string())
+                    } else {
+                        None
+                    };
+                    c.at(
+                        &sp,
+                        format!("step `{}` needs {} but receives {}", step.def.name, step.def.takes.label(), flowing.label()),
+                        fix,
+                    );
+                }
+                flowing = step.def.gives;
+                lists[li].push(step);
             }
-            flowing = step.def.gives;
-            steps.push(step);
         }
+        let [setup, steps] = lists;
         if !broken && !d.steps.is_empty() && flowing != ValueKind::Frame {
             c.at(&p.key("steps"), format!("the last step must give a table (so designs can be compared), but it gives {}", flowing.label()), None);
         }
@@ -433,6 +440,7 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
             name: d.name.clone(),
             about: d.about.clone(),
             feed: d.feed,
+            setup,
             steps,
             expect_time,
             expect_bytes,
