@@ -7,6 +7,7 @@
 //! stages read saved results only.
 
 pub mod cli;
+pub mod fit;
 pub mod measure;
 pub mod patterns;
 pub mod plan;

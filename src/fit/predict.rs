@@ -1,0 +1,252 @@
+//! Predicting cost at sizes that were not measured, and finding the size
+//! where two designs swap places.
+//!
+//! The one thing a newcomer must know: **intervals are relative**. The growth
+//! fit assumes each measurement is `true cost × (1 + ε)` with `ε` of constant
+//! SD `σ` (the fit's relative residual SD). A new measurement at size `n`
+//! therefore varies by `σ·ŷ(n)`, and the fitted curve itself by
+//! `σ·√(x₀ᵀ(XᵀWX)⁻¹x₀)`. The 95 % prediction interval is
+//!
+//! ```text
+//! ŷ ± t(0.975, dof) · σ · √(x₀ᵀ (XᵀWX)⁻¹ x₀ + ŷ²),   x₀ = [1, f(n)]
+//! ```
+//!
+//! with `t` the Student-t quantile on the fit's residual degrees of freedom.
+//! The lower end is clamped at 0 (a cost cannot be negative). Far outside the
+//! measured sizes the interval only reflects noise *given the class is
+//! right*; a wrong class is not in it — hence [`Prediction::warn_far`].
+//!
+//! ## Crossover method
+//!
+//! [`crossover`] looks for the first size where `g(n) = ln ĉ_A(n) − ln ĉ_B(n)`
+//! changes sign strictly. It evaluates `g` on a log-spaced grid from `lo_n` to
+//! `search_max_n` ([`GRID_PER_DECADE`] points per decade, grid points where a
+//! fitted cost is not positive are skipped), then bisects the first bracketing
+//! pair in `ln n` to full precision. The uncertainty range `[n_lo, n_hi]` is
+//! the stretch of sizes around the crossing where the two 95 % prediction
+//! bands overlap: walking the grid down (up) from the crossing to the first
+//! size where the bands separate, then bisecting that edge. If the bands
+//! still overlap at the end of the search range, the edge is that end of the
+//! range. Only the first crossing is reported.
+
+use super::dist::student_t_quantile;
+use super::growth::GrowthFit;
+use super::FitError;
+
+/// Grid density of the crossover search, points per decade of `n`.
+pub const GRID_PER_DECADE: usize = 50;
+
+/// A predicted cost with its 95 % prediction interval.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Prediction {
+    /// Fitted cost ŷ(n): the median of a new measurement under symmetric noise.
+    pub median: f64,
+    /// Lower end of the 95 % prediction interval (≥ 0).
+    pub lo: f64,
+    /// Upper end of the 95 % prediction interval.
+    pub hi: f64,
+    /// `log10(n / measured_max_n)`, or 0 inside the measured range.
+    pub extrapolation_decades: f64,
+    /// True when `n` is more than one decade past the largest measured size.
+    pub warn_far: bool,
+}
+
+/// Cost of `fit`'s chosen class at size `n`, with a 95 % prediction interval
+/// (see module doc). `measured_max_n` is the largest size measured (usually
+/// `fit.max_n`).
+pub fn predict(fit: &GrowthFit, n: f64, measured_max_n: f64) -> Result<Prediction, FitError> {
+    if !n.is_finite() || !measured_max_n.is_finite() {
+        return Err(FitError::NonFinite {
+            what: "size",
+            index: 0,
+        });
+    }
+    if n <= 0.0 {
+        return Err(FitError::NonPositive {
+            what: "size",
+            index: 0,
+            value: n,
+        });
+    }
+    if measured_max_n <= 0.0 {
+        return Err(FitError::NonPositive {
+            what: "measured_max_n",
+            index: 0,
+            value: measured_max_n,
+        });
+    }
+    let x0 = fit.best.design_row(n);
+    let median = fit.lsq.fitted(&x0);
+    let spread = fit.lsq.quad_form(&x0).max(0.0) + median * median;
+    let t = student_t_quantile(0.975, fit.lsq.dof as f64)?;
+    let half = t * fit.lsq.residual_sd * spread.sqrt();
+    if !(median.is_finite() && half.is_finite()) {
+        return Err(FitError::Numerical {
+            detail: format!("prediction at n = {n} overflows"),
+        });
+    }
+    let extrapolation_decades = (n / measured_max_n).log10().max(0.0);
+    Ok(Prediction {
+        median,
+        lo: (median - half).max(0.0),
+        hi: median + half,
+        extrapolation_decades,
+        warn_far: extrapolation_decades > 1.0,
+    })
+}
+
+/// Which of the two designs passed to [`crossover`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum Which {
+    A,
+    B,
+}
+
+/// Where design A's fitted cost and design B's cross.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Crossover {
+    /// The size where the fitted costs are equal.
+    pub n: f64,
+    /// Smallest size, around `n`, where the 95 % prediction bands overlap.
+    pub n_lo: f64,
+    /// Largest size, around `n`, where the 95 % prediction bands overlap.
+    pub n_hi: f64,
+    /// Whether `n` lies within the measured sizes `[lo_n, hi_n]`.
+    pub inside_measured: bool,
+    /// The design that is cheaper just below `n`.
+    pub faster_below: Which,
+}
+
+/// The first size in `[lo_n, search_max_n]` where the fitted costs of `a`
+/// and `b` cross (method in the module doc). `[lo_n, hi_n]` is the measured
+/// range. `Ok(None)` when they do not cross in the search range.
+pub fn crossover(
+    a: &GrowthFit,
+    b: &GrowthFit,
+    lo_n: f64,
+    hi_n: f64,
+    search_max_n: f64,
+) -> Result<Option<Crossover>, FitError> {
+    for (i, v) in [lo_n, hi_n, search_max_n].iter().enumerate() {
+        if !v.is_finite() {
+            return Err(FitError::NonFinite {
+                what: "crossover range",
+                index: i,
+            });
+        }
+        if *v <= 0.0 {
+            return Err(FitError::NonPositive {
+                what: "crossover range",
+                index: i,
+                value: *v,
+            });
+        }
+    }
+    if !(lo_n <= hi_n && hi_n <= search_max_n) {
+        return Err(FitError::BadArgument {
+            what: "crossover range",
+            detail: format!("need lo_n ≤ hi_n ≤ search_max_n, got {lo_n}, {hi_n}, {search_max_n}"),
+        });
+    }
+    let g = |n: f64| -> Option<f64> {
+        let (ca, cb) = (a.cost_at(n), b.cost_at(n));
+        (ca > 0.0 && cb > 0.0 && ca.is_finite() && cb.is_finite()).then(|| ca.ln() - cb.ln())
+    };
+    let (u_lo, u_hi) = (lo_n.ln(), search_max_n.ln());
+    let decades = (search_max_n / lo_n).log10();
+    let steps = ((decades * GRID_PER_DECADE as f64).ceil() as usize).max(1);
+    let grid: Vec<f64> = (0..=steps)
+        .map(|i| (u_lo + (u_hi - u_lo) * i as f64 / steps as f64).exp())
+        .collect();
+
+    // First pair of valid grid points where g has strictly opposite signs
+    // (grid points with g exactly 0 are stepped over, so identical curves
+    // never "cross").
+    let mut bracket = None;
+    let mut prev: Option<(usize, f64)> = None;
+    for (i, &n) in grid.iter().enumerate() {
+        let Some(gi) = g(n) else { continue };
+        if gi == 0.0 {
+            continue;
+        }
+        if let Some((j, gj)) = prev {
+            if gj.signum() != gi.signum() {
+                bracket = Some((j, i, gj));
+                break;
+            }
+        }
+        prev = Some((i, gi));
+    }
+    let Some((j, i, g_low)) = bracket else {
+        return Ok(None);
+    };
+
+    // Bisection in ln n, keeping g's lower-end sign at `lo`.
+    let (mut lo, mut hi) = (grid[j].ln(), grid[i].ln());
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if mid <= lo || mid >= hi {
+            break;
+        }
+        match g(mid.exp()) {
+            Some(gm) if gm != 0.0 && gm.signum() == g_low.signum() => lo = mid,
+            Some(_) => hi = mid,
+            // A fitted cost stops being positive inside the bracket; keep
+            // what we have rather than guess.
+            None => break,
+        }
+    }
+    let n_cross = (0.5 * (lo + hi)).exp();
+    // g < 0 below the crossing means A's cost is lower there.
+    let faster_below = if g_low < 0.0 { Which::A } else { Which::B };
+
+    // Band overlap around the crossing.
+    let overlaps = |n: f64| -> Result<bool, FitError> {
+        let pa = predict(a, n, a.max_n)?;
+        let pb = predict(b, n, b.max_n)?;
+        Ok(pa.lo <= pb.hi && pb.lo <= pa.hi)
+    };
+    let edge = |inside: f64, outside: f64| -> Result<f64, FitError> {
+        let (mut u_in, mut u_out) = (inside.ln(), outside.ln());
+        for _ in 0..100 {
+            let mid = 0.5 * (u_in + u_out);
+            if mid == u_in || mid == u_out {
+                break;
+            }
+            if overlaps(mid.exp())? {
+                u_in = mid;
+            } else {
+                u_out = mid;
+            }
+        }
+        Ok(u_in.exp())
+    };
+    let mut n_lo = lo_n;
+    let mut inside = n_cross;
+    for &n in grid.iter().rev().filter(|&&n| n < n_cross) {
+        if overlaps(n)? {
+            inside = n;
+        } else {
+            n_lo = edge(inside, n)?;
+            break;
+        }
+    }
+    let mut n_hi = search_max_n;
+    let mut inside = n_cross;
+    for &n in grid.iter().filter(|&&n| n > n_cross) {
+        if overlaps(n)? {
+            inside = n;
+        } else {
+            n_hi = edge(inside, n)?;
+            break;
+        }
+    }
+
+    Ok(Some(Crossover {
+        n: n_cross,
+        n_lo: n_lo.min(n_cross),
+        n_hi: n_hi.max(n_cross),
+        inside_measured: (lo_n..=hi_n).contains(&n_cross),
+        faster_below,
+    }))
+}
