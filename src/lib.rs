@@ -6,7 +6,9 @@
 //! [`results`] (JSON lines on disk, written as they come) → [`present`] (terminal). Later
 //! stages read saved results only.
 
+pub mod analyse;
 pub mod cli;
+pub mod explain;
 pub mod fit;
 pub mod measure;
 pub mod patterns;

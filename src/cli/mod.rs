@@ -1,6 +1,7 @@
 //! The command line: one file per command, each with its help text and one entry point.
 
 pub mod catalog;
+pub mod explain;
 pub mod lint;
 pub mod recap;
 pub mod sweep;
@@ -20,6 +21,7 @@ pub enum Command {
     Sweep(sweep::Args),
     Lint(lint::Args),
     Catalog(catalog::Args),
+    Explain(explain::Args),
     Recap(recap::Args),
 }
 
@@ -37,6 +39,7 @@ pub fn main() -> i32 {
         Command::Sweep(a) => sweep::run(a),
         Command::Lint(a) => lint::run(a),
         Command::Catalog(a) => catalog::run(a),
+        Command::Explain(a) => explain::run(a),
         Command::Recap(a) => recap::run(a),
     }
 }

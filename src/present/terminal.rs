@@ -6,7 +6,7 @@
 
 use super::units::{bytes, ratio, time_ns};
 use crate::results::reader::{RunResults, WorkloadResults};
-use crate::results::summary::{exponent, Summary};
+use crate::results::summary::Summary;
 use crate::results::{EquivalenceStatus, StopReason};
 use crate::spec::units::rows_label;
 use comfy_table::{presets, CellAlignment, ContentArrangement, Table};
@@ -160,19 +160,23 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
         let _ = writeln!(s, "  {}", line.trim_end());
     }
 
-    // Growth exponents beside the expectations.
+    // Growth: fitted classes beside the expectations, then the findings.
+    let analysis = crate::analyse::analyse_workload(w, &crate::analyse::AnalyseOptions::default());
     s.push('\n');
-    let _ = writeln!(s, "  growth (log-log slope over measured sizes; 1 ≈ n, 2 ≈ n²):");
-    for d in &h.designs {
-        let pts = w.design_points(&d.name);
-        let time: Vec<(u64, f64)> = pts.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m.median_ns))).collect();
-        let mem: Vec<(u64, f64)> = pts
-            .iter()
-            .filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m.alloc.bytes as f64)))
-            .filter(|p| p.1 > 0.0)
-            .collect();
-        let fmt = |e: Option<f64>| e.map(|v| format!("{v:.2}")).unwrap_or_else(|| "n/a (under 3 sizes)".into());
-        let mut line = format!("    {:<24} time {}  bytes {}", d.name, fmt(exponent(&time)), fmt(exponent(&mem)));
+    let _ = writeln!(s, "  how cost grows (class by AICc over every sample; exponent = log-log slope, 95% bootstrap interval):");
+    for (d, da) in h.designs.iter().zip(&analysis.designs) {
+        let time = match (&da.time, &da.time_exponent) {
+            (Some(t), Some(e)) => format!("time {} (exp {:.2} [{:.2}–{:.2}])", t.class, e.slope, e.low, e.high),
+            (Some(t), None) => format!("time {}", t.class),
+            (None, Some(e)) => format!("time exp {:.2}", e.slope),
+            (None, None) => "time n/a (too few sizes)".into(),
+        };
+        let mem = match (&da.bytes, da.bytes_exponent) {
+            (Some(b), _) => format!("bytes {}", b.class),
+            (None, Some(e)) => format!("bytes exp {e:.2}"),
+            (None, None) => "bytes n/a".into(),
+        };
+        let mut line = format!("    {:<24} {time}  {mem}", d.name);
         let mut exp = Vec::new();
         if let Some(e) = &d.expect_time {
             exp.push(format!("time {e}"));
@@ -183,8 +187,14 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
         if !exp.is_empty() {
             let _ = write!(line, "   expected: {}", exp.join(", "));
         }
+        if let Some(p) = &da.prediction {
+            let _ = write!(line, "   at {}: ~{}", rows_label(p.rows), time_ns(p.median));
+        }
         let _ = writeln!(s, "{}", line.trim_end());
     }
+    let explanation = crate::explain::explain(w, &analysis);
+    s.push('\n');
+    s.push_str(&crate::explain::render_without(&explanation, false, &["growth", "mismatch"]));
 
     // Skips.
     let skips: Vec<String> = w

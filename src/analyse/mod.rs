@@ -1,0 +1,296 @@
+//! Analysis of saved results: for each design, how its time, allocated bytes and peak
+//! memory grow (a growth class chosen by AICc, the runner-up and how decisively it lost,
+//! the empirical exponent with a bootstrap interval, doubling ratios), its predicted cost
+//! at the size that matters, and where designs overtake one another.
+//!
+//! Works from [`RunResults`] alone. A newcomer must know: time is fitted on each size's
+//! quartiles (three points per size), bytes and peaks on one value per size (they are exact counts), so bytes
+//! need five measured sizes for a class and fall back to the exponent alone below that.
+
+use crate::fit::growth::{doubling_ratios, exponent_with_ci, fit_growth, GrowthClass, GrowthFit};
+use crate::fit::predict::{crossover, predict, Which};
+use crate::results::reader::{RunResults, WorkloadResults};
+use serde::{Deserialize, Serialize};
+
+/// Settings of an analysis.
+#[derive(Debug, Clone, Default)]
+pub struct AnalyseOptions {
+    /// Predict here instead of the workload's target.
+    pub at: Option<u64>,
+    /// Fit only sizes up to this many rows (to check predictions against larger sizes).
+    pub fit_up_to: Option<u64>,
+    /// Fit growth classes on only the largest this-many measured sizes (the regime that
+    /// decides behaviour at scale); None: every size.
+    pub top_sizes: Option<usize>,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct Analysis {
+    pub workloads: Vec<WorkloadAnalysis>,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct WorkloadAnalysis {
+    pub workload: String,
+    /// Where predictions are made (rows), if anywhere.
+    pub predict_at: Option<u64>,
+    pub designs: Vec<DesignAnalysis>,
+    pub crossovers: Vec<CrossoverOut>,
+}
+
+/// One metric's growth.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct GrowthOut {
+    /// "constant", "log n", "n", "n log n", "n²", "n³".
+    pub class: String,
+    pub a: f64,
+    pub b: f64,
+    pub runner_up: Option<String>,
+    /// AICc of the runner-up minus the best (larger: more decisive).
+    pub delta_aicc: f64,
+    /// Akaike weight of the chosen class.
+    pub evidence_weight: f64,
+    pub sizes: usize,
+    /// Relative residual spread of the fit.
+    pub residual_sd: f64,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct ExponentOut {
+    pub slope: f64,
+    pub low: f64,
+    pub high: f64,
+    pub sizes_used: usize,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct PredictionOut {
+    pub rows: u64,
+    pub median: f64,
+    pub low: f64,
+    pub high: f64,
+    /// Decades past the largest fitted size.
+    pub extrapolation_decades: f64,
+    pub far: bool,
+}
+
+/// A prediction checked against a size that was measured but not fitted.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct HoldoutCheck {
+    pub rows: u64,
+    pub predicted_ns: f64,
+    pub low_ns: f64,
+    pub high_ns: f64,
+    pub measured_ns: f64,
+    /// (predicted − measured) / measured.
+    pub error: f64,
+    pub inside_interval: bool,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct DesignAnalysis {
+    pub design: String,
+    pub measured_sizes: Vec<u64>,
+    pub time: Option<GrowthOut>,
+    pub time_exponent: Option<ExponentOut>,
+    /// (from rows, to rows, ratio normalised to a doubling).
+    pub doubling: Vec<(u64, u64, f64)>,
+    pub bytes: Option<GrowthOut>,
+    pub bytes_exponent: Option<f64>,
+    pub peak: Option<GrowthOut>,
+    pub peak_exponent: Option<f64>,
+    pub prediction: Option<PredictionOut>,
+    pub bytes_prediction: Option<PredictionOut>,
+    pub holdout: Vec<HoldoutCheck>,
+    /// Why a fit is missing, when it is.
+    pub notes: Vec<String>,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct CrossoverOut {
+    /// Cheaper below the crossing.
+    pub faster_below: String,
+    /// Cheaper above it.
+    pub faster_above: String,
+    pub rows: f64,
+    pub rows_low: f64,
+    pub rows_high: f64,
+    pub inside_measured: bool,
+}
+
+fn out(f: &GrowthFit) -> GrowthOut {
+    GrowthOut {
+        class: f.best.label().to_string(),
+        a: f.a,
+        b: f.b,
+        runner_up: f.runner_up.map(|c| c.label().to_string()),
+        delta_aicc: f.delta_aicc,
+        evidence_weight: f.evidence_weight,
+        sizes: f.n_sizes,
+        residual_sd: f.residual_sd(),
+    }
+}
+
+/// A class label back to the class.
+pub fn class_of(label: &str) -> Option<GrowthClass> {
+    GrowthClass::from_label(label)
+}
+
+/// Analyse every workload of a run.
+pub fn analyse(r: &RunResults, opts: &AnalyseOptions) -> Analysis {
+    Analysis { workloads: r.workloads.iter().map(|w| analyse_workload(w, opts)).collect() }
+}
+
+/// Per design: the fit of its time (every sample), kept for crossovers.
+struct Fitted {
+    name: String,
+    time: Option<GrowthFit>,
+    lo: f64,
+    hi: f64,
+}
+
+pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadAnalysis {
+    let predict_at = opts.at.or(w.header.target);
+    let limit = opts.fit_up_to.unwrap_or(u64::MAX);
+    let mut designs = Vec::new();
+    let mut fitted = Vec::new();
+    for d in &w.header.designs {
+        let pts: Vec<_> = w.design_points(&d.name).into_iter().filter(|p| p.measured.is_some()).collect();
+        let mut used: Vec<_> = pts.iter().filter(|p| p.rows <= limit).collect();
+        if let Some(k) = opts.top_sizes {
+            let drop = used.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
+            used.drain(..drop);
+        }
+        let mut notes = Vec::new();
+        let (mut xs, mut ys) = (Vec::new(), Vec::new());
+        // Each size enters the time fit as its three quartiles: every size weighs the same
+        // however many samples it took, and the classifier works in the regime its
+        // known-answer suite checks (three points per size). Fitting hundreds of raw samples
+        // would give AICc the power to prefer n log n over n for curvature of a few
+        // percent (caches), which is not what "how does it grow" asks.
+        for p in &used {
+            if let Some(m) = &p.measured {
+                let mut v: Vec<f64> = m.samples_ns.iter().copied().filter(|x| *x > 0.0).collect();
+                v.sort_by(f64::total_cmp);
+                for q in [0.25, 0.5, 0.75] {
+                    if let Ok(x) = crate::fit::sample::quantile(&v, q) {
+                        xs.push(p.rows as f64);
+                        ys.push(x);
+                    }
+                }
+            }
+        }
+        let time = match fit_growth(&xs, &ys) {
+            Ok(f) => Some(f),
+            Err(e) => {
+                notes.push(format!("time: no growth class ({e})"));
+                None
+            }
+        };
+        let per_size: Vec<(f64, Vec<f64>)> = used
+            .iter()
+            .filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m.samples_ns.iter().copied().filter(|v| *v > 0.0).collect::<Vec<_>>())))
+            .filter(|(_, s)| !s.is_empty())
+            .collect();
+        let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
+        let time_exponent = exponent_with_ci(&per_size, 4, 1000, seed)
+            .ok()
+            .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used });
+        let medians: Vec<(f64, f64)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m.median_ns))).collect();
+        let doubling = if medians.len() >= 2 {
+            let (x, y): (Vec<f64>, Vec<f64>) = medians.iter().copied().unzip();
+            doubling_ratios(&x, &y)
+                .map(|r| r.into_iter().enumerate().map(|(i, v)| (x[i] as u64, x[i + 1] as u64, v)).collect())
+                .unwrap_or_default()
+        } else {
+            vec![]
+        };
+        let metric = |get: &dyn Fn(&crate::results::Measured) -> f64| -> (Option<GrowthFit>, Option<f64>) {
+            let v: Vec<(f64, f64)> =
+                used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
+            let (x, y): (Vec<f64>, Vec<f64>) = v.iter().copied().unzip();
+            let slope = crate::fit::growth::loglog_slope(&x, &y).ok();
+            (fit_growth(&x, &y).ok(), slope)
+        };
+        let (bytes_fit, bytes_exponent) = metric(&|m| m.alloc.bytes as f64);
+        let (peak_fit, peak_exponent) = metric(&|m| m.alloc.peak_live as f64);
+        if bytes_fit.is_none() && bytes_exponent.is_some() {
+            notes.push("bytes: fewer than 5 measured sizes, exponent only".into());
+        }
+        let max_fitted = used.iter().map(|p| p.rows).max().unwrap_or(0) as f64;
+        let min_fitted = used.iter().map(|p| p.rows).min().unwrap_or(0) as f64;
+        let pred = |f: &Option<GrowthFit>, rows: u64| {
+            f.as_ref().and_then(|f| predict(f, rows as f64, max_fitted).ok()).map(|p| PredictionOut {
+                rows,
+                median: p.median,
+                low: p.lo,
+                high: p.hi,
+                extrapolation_decades: p.extrapolation_decades,
+                far: p.warn_far,
+            })
+        };
+        let prediction = predict_at.and_then(|n| pred(&time, n));
+        let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));
+        let holdout = pts
+            .iter()
+            .filter(|p| p.rows > limit)
+            .filter_map(|p| {
+                let m = p.measured.as_ref()?;
+                let pr = pred(&time, p.rows)?;
+                Some(HoldoutCheck {
+                    rows: p.rows,
+                    predicted_ns: pr.median,
+                    low_ns: pr.low,
+                    high_ns: pr.high,
+                    measured_ns: m.median_ns,
+                    error: (pr.median - m.median_ns) / m.median_ns,
+                    inside_interval: pr.low <= m.median_ns && m.median_ns <= pr.high,
+                })
+            })
+            .collect();
+        designs.push(DesignAnalysis {
+            design: d.name.clone(),
+            measured_sizes: pts.iter().map(|p| p.rows).collect(),
+            time: time.as_ref().map(out),
+            time_exponent,
+            doubling,
+            bytes: bytes_fit.as_ref().map(out),
+            bytes_exponent,
+            peak: peak_fit.as_ref().map(out),
+            peak_exponent,
+            prediction,
+            bytes_prediction,
+            holdout,
+            notes,
+        });
+        fitted.push(Fitted { name: d.name.clone(), time, lo: min_fitted, hi: max_fitted });
+    }
+    let mut crossovers = Vec::new();
+    for i in 0..fitted.len() {
+        for j in i + 1..fitted.len() {
+            let (a, b) = (&fitted[i], &fitted[j]);
+            let (Some(fa), Some(fb)) = (&a.time, &b.time) else { continue };
+            let lo = a.lo.max(b.lo);
+            let hi = a.hi.min(b.hi);
+            if !(lo > 0.0 && hi >= lo) {
+                continue;
+            }
+            let far = (predict_at.unwrap_or(0) as f64).max(hi * 1000.0);
+            if let Ok(Some(c)) = crossover(fa, fb, lo, hi, far) {
+                let (below, above) = match c.faster_below {
+                    Which::A => (&a.name, &b.name),
+                    Which::B => (&b.name, &a.name),
+                };
+                crossovers.push(CrossoverOut {
+                    faster_below: below.clone(),
+                    faster_above: above.clone(),
+                    rows: c.n,
+                    rows_low: c.n_lo,
+                    rows_high: c.n_hi,
+                    inside_measured: c.inside_measured,
+                });
+            }
+        }
+    }
+    WorkloadAnalysis { workload: w.header.workload.clone(), predict_at, designs, crossovers }
+}

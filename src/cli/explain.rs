@@ -1,0 +1,119 @@
+//! `framecost explain RUN` — findings for a saved run: per design how time, allocated bytes
+//! and peak memory grow, the prediction at the size that matters, where designs overtake
+//! one another, what the evidence says about the cause, and a verdict. From saved results
+//! alone; `--json` for machines.
+
+use crate::analyse::{analyse, AnalyseOptions};
+use crate::spec::units::{parse_rows, rows_label};
+use std::path::PathBuf;
+
+/// Explain a saved run: growth, predictions, crossovers, causes and a verdict.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// A run folder (or its points.jsonl).
+    pub run: PathBuf,
+    /// Predict at this many rows instead of each workload's target, e.g. `10M`.
+    #[arg(long, value_name = "ROWS")]
+    pub at: Option<String>,
+    /// Fit only sizes up to this many rows and check the predictions against the larger
+    /// sizes that were measured.
+    #[arg(long, value_name = "ROWS")]
+    pub fit_up_to: Option<String>,
+    /// Fit growth classes on only the largest N measured sizes.
+    #[arg(long, value_name = "N")]
+    pub top_sizes: Option<usize>,
+    /// Also print every step's cost-model note.
+    #[arg(long)]
+    pub long: bool,
+    /// Print the analysis and findings as JSON.
+    #[arg(long)]
+    pub json: bool,
+}
+
+pub fn run(a: Args) -> i32 {
+    let r = match crate::results::reader::RunResults::read(&a.run) {
+        Ok(r) => r,
+        Err(e) => {
+            eprintln!("framecost explain: {e}");
+            return crate::exit::BAD_INPUT;
+        }
+    };
+    let parse = |v: &Option<String>, flag: &str| -> Result<Option<u64>, String> {
+        match v {
+            None => Ok(None),
+            Some(t) => parse_rows(t).map(Some).map_err(|e| format!("{flag}: expected {e}")),
+        }
+    };
+    let opts = match (parse(&a.at, "--at"), parse(&a.fit_up_to, "--fit-up-to")) {
+        (Ok(at), Ok(fit_up_to)) => AnalyseOptions { at, fit_up_to, top_sizes: a.top_sizes },
+        (Err(e), _) | (_, Err(e)) => {
+            eprintln!("framecost explain: {e}");
+            return crate::exit::BAD_INPUT;
+        }
+    };
+    let analysis = analyse(&r, &opts);
+    let explanations: Vec<_> =
+        r.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
+    if a.json {
+        let doc = serde_json::json!({ "analysis": analysis, "explanations": explanations });
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+        return crate::exit::OK;
+    }
+    for ((w, wa), e) in r.workloads.iter().zip(&analysis.workloads).zip(&explanations) {
+        println!("▌ {}", w.header.workload);
+        for d in &wa.designs {
+            let t = d.time.as_ref().map(|t| {
+                format!(
+                    "time {} (runner-up {}, ΔAICc {:.1}, weight {:.2})",
+                    t.class,
+                    t.runner_up.clone().unwrap_or_else(|| "none".into()),
+                    t.delta_aicc,
+                    t.evidence_weight
+                )
+            });
+            let b = d.bytes.as_ref().map(|b| format!("bytes {}", b.class)).or(d.bytes_exponent.map(|e| format!("bytes exp {e:.2}")));
+            let p = d.peak.as_ref().map(|b| format!("peak {}", b.class)).or(d.peak_exponent.map(|e| format!("peak exp {e:.2}")));
+            let parts: Vec<String> = [t, b, p].into_iter().flatten().collect();
+            println!("  {:<24} {}", d.design, parts.join(" · "));
+            if let Some(pr) = &d.prediction {
+                println!(
+                    "  {:<24} predicted at {} rows: {} [{}–{}]{}",
+                    "",
+                    rows_label(pr.rows),
+                    crate::present::units::time_ns(pr.median),
+                    crate::present::units::time_ns(pr.low),
+                    crate::present::units::time_ns(pr.high),
+                    if pr.far { " (far past the measured sizes)" } else { "" }
+                );
+            }
+            for h in &d.holdout {
+                println!(
+                    "  {:<24} check at {} rows: predicted {}, measured {} ({:+.1}%{})",
+                    "",
+                    rows_label(h.rows),
+                    crate::present::units::time_ns(h.predicted_ns),
+                    crate::present::units::time_ns(h.measured_ns),
+                    h.error * 100.0,
+                    if h.inside_interval { ", inside the interval" } else { ", outside the interval" }
+                );
+            }
+            for n in &d.notes {
+                println!("  {:<24} ({n})", "");
+            }
+        }
+        for c in &wa.crossovers {
+            println!(
+                "  crossover: `{}` is cheaper below about {} rows [{}–{}], `{}` above{}",
+                c.faster_below,
+                rows_label(c.rows.round() as u64),
+                rows_label(c.rows_low.round() as u64),
+                rows_label(c.rows_high.round() as u64),
+                c.faster_above,
+                if c.inside_measured { " (inside the measured sizes)" } else { " (predicted beyond them)" }
+            );
+        }
+        print!("{}", crate::explain::render(e, a.long));
+        println!();
+    }
+    crate::exit::OK
+}

@@ -1,0 +1,65 @@
+//! `framecost explain` on a real sweep of the tiny row-growth workload. Assertions use the
+//! deterministic evidence (allocated bytes) and differences of two orders of magnitude in
+//! time, never a close timing call: the growth class of bytes must follow the
+//! dynamic-table analysis (Cormen et al., *Introduction to Algorithms*, "Dynamic tables":
+//! copy-everything insertion is Θ(n²), build-once Θ(n)), the explanation must name the
+//! repeated copying with its bytes-per-row figure, and the verdict must point to build-once.
+
+use assert_cmd::Command;
+
+#[test]
+fn explain_names_repeated_copying_and_recommends_build_once() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let run = dir.path().join("run");
+    let out = Command::cargo_bin("framecost")
+        .expect("binary")
+        .args(["sweep", "tests/data/tiny.yaml", "--quiet", "--out"])
+        .arg(&run)
+        .output()
+        .expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+
+    let out = Command::cargo_bin("framecost").expect("binary").arg("explain").arg(&run).arg("--json").output().expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let designs = doc["analysis"]["workloads"][0]["designs"].as_array().expect("designs");
+    let by = |name: &str| designs.iter().find(|d| d["design"] == name).expect("design");
+    assert_eq!(by("one-at-a-time")["bytes"]["class"], "n²", "{}", by("one-at-a-time"));
+    assert_eq!(by("build-once")["bytes"]["class"], "n", "{}", by("build-once"));
+    let e = &doc["explanations"][0];
+    assert_eq!(e["verdict"]["design"], "build-once");
+    let copying = e["findings"]
+        .as_array()
+        .expect("findings")
+        .iter()
+        .find(|f| f["design"] == "one-at-a-time" && f["kind"] == "copying")
+        .expect("a copying finding for one-at-a-time");
+    let text = format!("{} {} {}", copying["measured"], copying["implies"], copying["action"]);
+    assert!(text.contains("repeated copying of the growing table"), "{text}");
+    assert!(text.contains("per row"), "{text}");
+    assert!(text.contains("`build-once`"), "{text}");
+    // No copying finding for the design that copies each value once.
+    assert!(!e["findings"].as_array().expect("findings").iter().any(|f| f["design"] == "build-once" && f["kind"] == "copying"));
+
+    // Held-out check: fit up to 4k rows and compare with the larger sizes measured.
+    let out = Command::cargo_bin("framecost")
+        .expect("binary")
+        .arg("explain")
+        .arg(&run)
+        .args(["--fit-up-to", "4k", "--json"])
+        .output()
+        .expect("runs");
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let b = doc["analysis"]["workloads"][0]["designs"].as_array().expect("designs").iter().find(|d| d["design"] == "build-once").cloned().expect("d");
+    let checks = b["holdout"].as_array().expect("holdout");
+    assert!(!checks.is_empty(), "{b}");
+    for c in checks {
+        assert!(c["rows"].as_u64().expect("rows") > 4000);
+        assert!(c["predicted_ns"].as_f64().expect("p") > 0.0);
+    }
+
+    // Text output carries the same verdict.
+    let out = Command::cargo_bin("framecost").expect("binary").arg("explain").arg(&run).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("verdict: use `build-once`"), "{text}");
+}
