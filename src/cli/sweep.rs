@@ -279,6 +279,14 @@ pub fn run(a: Args) -> i32 {
         Ok(p) => p,
         Err(e) => return fail(e),
     };
+    // The analysis and findings, for notebooks (`framecost explain` recomputes them).
+    let analysis = crate::analyse::analyse(&out.results, &crate::analyse::AnalyseOptions::default());
+    let explanations: Vec<_> =
+        out.results.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
+    let doc = serde_json::json!({ "schema": crate::results::SCHEMA, "analysis": analysis, "explanations": explanations });
+    if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
+        return fail(e);
+    }
     if !a.quiet {
         print!("{}", render(&out.results, Style::detect()));
         if plans.len() > 1 {
