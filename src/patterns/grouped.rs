@@ -40,9 +40,9 @@ column (a permutation of 0..n) every group gets about `rows_per_group` rows.",
     StepDef {
         name: "group_totals",
         summary: "per group: count, sum and largest of a value column, by native aggregation, a per-group user function or a loop over partitions",
-        cost_note: "native hashes the keys once and aggregates in bulk: linear in rows, a few allocations \
-whatever the number of groups. per_group_fn gathers a small table for every group and calls the user \
-function on it: the same linear pass plus several allocations and a function call per group, so the \
+        cost_note: "native hashes the keys once and aggregates in bulk: linear in rows, about one \
+allocation per group (its list of row positions) and the rest in bulk. per_group_fn gathers a small table for every group and calls the user \
+function on it: the same linear pass plus dozens of allocations and a function call per group, so the \
 extra cost grows with the number of groups. partitions first copies the table into one table per \
 group (all held at once: about one more copy of the table) and then loops the same function. Common \
 practice: a user function called once per group is much slower than a native aggregate.",
