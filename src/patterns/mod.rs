@@ -8,14 +8,26 @@
 //! explanations. A newcomer must know: adding a family means one new file and one line in
 //! [`FAMILIES`]; nothing else in the crate names individual steps.
 
+pub mod cell_reads;
+pub mod column_growth;
+pub mod grouped;
+pub mod key_lookups;
 pub mod row_growth;
+pub mod row_wise;
 
 use polars::prelude::*;
 use std::collections::BTreeMap;
 use std::sync::Arc;
 
 /// Every family of steps. Register a new family here (one line).
-pub const FAMILIES: &[(&str, &[StepDef])] = &[("row growth", row_growth::STEPS)];
+pub const FAMILIES: &[(&str, &[StepDef])] = &[
+    ("row growth", row_growth::STEPS),
+    ("column growth", column_growth::STEPS),
+    ("single-cell reads", cell_reads::STEPS),
+    ("key lookups", key_lookups::STEPS),
+    ("grouped work", grouped::STEPS),
+    ("row-wise work", row_wise::STEPS),
+];
 
 /// What flows between steps.
 #[derive(Clone)]

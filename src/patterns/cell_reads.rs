@@ -1,0 +1,226 @@
+//! Single-cell reads: many values read one by one, by row position.
+//!
+//! The job: read `reads` cells of one numeric column at scattered row positions and add
+//! them up (a spot check of crate weights, say). The designs differ in what each read goes
+//! through: the table API (a dynamically typed `AnyValue` per cell, or a whole row per
+//! read), the typed column (one typed lookup per cell, or one contiguous slice for all
+//! reads), or a plain vector copied out of the table first. A newcomer must know: every
+//! design ends with the same one-row table (`cells_read`, `sum`), and the positions depend
+//! only on the row count, so outputs compare exactly; the cost of a run is set by `reads`,
+//! not by the rows, except where a whole column is copied.
+
+use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use polars::prelude::*;
+use std::sync::Arc;
+
+const VIA: &[&str] = &["table_cell", "table_row", "typed_get", "slice"];
+
+/// The name of the family's own value: a column copied into a plain vector.
+pub const PLAIN_VECTOR: &str = "plain vector";
+
+const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the numeric column to read" };
+const READS: ParamDef = ParamDef { name: "reads", kind: ParamKind::Count { min: 1 }, default: "10000", doc: "cells read per run" };
+
+/// The steps of this family.
+pub const STEPS: &[StepDef] = &[
+    StepDef {
+        name: "read_cells",
+        summary: "read `reads` cells of a column one at a time, through the table API, the typed column or one contiguous slice",
+        cost_note: "Cost is per read, so it follows `reads`, not the rows (beyond cache misses on a \
+bigger column). via: table_cell goes through the table for every cell (column lookup, chunk search, \
+an AnyValue to unpack); table_row builds a whole row (one allocation per read, one value per column); \
+typed_get does one typed lookup per cell; slice consolidates the column once (a copy only if it has \
+several chunks) and then indexes plain memory. Common practice: table-API element access costs at \
+least 10× more per element than indexing a plain array.",
+        params: &[COLUMN, READS, ParamDef { name: "via", kind: ParamKind::Choice(VIA), default: "table_cell", doc: "what each read goes through" }],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Frame,
+        memory_factor: 1.5,
+        private_input: false,
+        build: |p| {
+            Box::new(ReadCells {
+                column: p.count("column") as usize,
+                reads: p.count("reads") as usize,
+                via: match p.choice("via") {
+                    "table_row" => Via::TableRow,
+                    "typed_get" => Via::TypedGet,
+                    "slice" => Via::Slice,
+                    _ => Via::TableCell,
+                },
+            })
+        },
+    },
+    StepDef {
+        name: "copy_to_vector",
+        summary: "copy one numeric column out of the table into a plain vector of optional floats",
+        cost_note: "One pass over the column and one new buffer of n optional values (16 bytes each): \
+linear in rows in time and bytes, whatever the number of reads that follow.",
+        params: &[COLUMN],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Custom(PLAIN_VECTOR),
+        memory_factor: 3.0,
+        private_input: false,
+        build: |p| Box::new(CopyToVector { column: p.count("column") as usize }),
+    },
+    StepDef {
+        name: "read_vector_cells",
+        summary: "read `reads` cells of a plain vector by position",
+        cost_note: "Plain indexing: no allocation, constant cost per read; grows with `reads`, not rows.",
+        params: &[READS],
+        takes: ValueKind::Custom(PLAIN_VECTOR),
+        gives: ValueKind::Frame,
+        memory_factor: 1.0,
+        private_input: false,
+        build: |p| Box::new(ReadVector { reads: p.count("reads") as usize }),
+    },
+];
+
+/// The k-th row position read in a table of `n` rows: scattered, the same for every design.
+pub fn position(k: usize, n: usize) -> usize {
+    ((k as u64).wrapping_mul(2_654_435_761).wrapping_add(12_345) % n.max(1) as u64) as usize
+}
+
+/// The output every design ends with.
+fn result(step: &'static str, read: i64, sum: f64) -> Result<Value, StepError> {
+    let cols = vec![Column::new("cells_read".into(), [read]), Column::new("sum".into(), [sum])];
+    Ok(Value::Frame(DataFrame::new(1, cols).map_err(polars_err(step))?))
+}
+
+fn numeric_column<'a>(df: &'a DataFrame, pos: usize, step: &'static str) -> Result<&'a Column, StepError> {
+    let c = df
+        .columns()
+        .get(pos)
+        .ok_or_else(|| StepError::Value { step, message: format!("no column at position {pos} (the table has {})", df.width()) })?;
+    if !c.dtype().is_primitive_numeric() {
+        return Err(StepError::Value { step, message: format!("column `{}` is {}, not numeric", c.name(), c.dtype()) });
+    }
+    Ok(c)
+}
+
+/// Values of a numeric column as 64-bit floats (shared when it already is one).
+fn as_f64(c: &Column, step: &'static str) -> Result<Float64Chunked, StepError> {
+    let s = c.as_materialized_series().cast(&DataType::Float64).map_err(polars_err(step))?;
+    Ok(s.f64().map_err(polars_err(step))?.clone())
+}
+
+fn no_rows(step: &'static str) -> StepError {
+    StepError::Value { step, message: "the table has no rows to read".into() }
+}
+
+#[derive(Clone, Copy)]
+enum Via {
+    TableCell,
+    TableRow,
+    TypedGet,
+    Slice,
+}
+
+struct ReadCells {
+    column: usize,
+    reads: usize,
+    via: Via,
+}
+
+impl Step for ReadCells {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "read_cells";
+        let df = input.into_frame(NAME)?;
+        numeric_column(&df, self.column, NAME)?;
+        let n = df.height();
+        if n == 0 {
+            return Err(no_rows(NAME));
+        }
+        let (mut read, mut sum) = (0i64, 0.0f64);
+        let mut add = |v: Option<f64>| {
+            if let Some(v) = v {
+                read += 1;
+                sum += v;
+            }
+        };
+        match self.via {
+            Via::TableCell => {
+                for k in 0..self.reads {
+                    // Through the table every time, as a loop over `df[col][i]` would.
+                    let c = df.select_at_idx(self.column).ok_or_else(|| no_rows(NAME))?;
+                    let av = c.get(position(k, n)).map_err(polars_err(NAME))?;
+                    add(av.extract::<f64>());
+                }
+            }
+            Via::TableRow => {
+                for k in 0..self.reads {
+                    let row = df.get_row(position(k, n)).map_err(polars_err(NAME))?;
+                    add(row.0.get(self.column).and_then(|av| av.extract::<f64>()));
+                }
+            }
+            Via::TypedGet => {
+                let ca = as_f64(&df.columns()[self.column], NAME)?;
+                for k in 0..self.reads {
+                    add(ca.get(position(k, n)));
+                }
+            }
+            Via::Slice => {
+                let ca = as_f64(&df.columns()[self.column], NAME)?;
+                let ca = ca.rechunk();
+                let arr = ca.downcast_iter().next().ok_or_else(|| no_rows(NAME))?;
+                let values = arr.values().as_slice();
+                match arr.validity() {
+                    None => {
+                        for k in 0..self.reads {
+                            add(values.get(position(k, n)).copied());
+                        }
+                    }
+                    Some(valid) => {
+                        for k in 0..self.reads {
+                            let i = position(k, n);
+                            add(if i < valid.len() && valid.get_bit(i) { values.get(i).copied() } else { None });
+                        }
+                    }
+                }
+            }
+        }
+        result(NAME, read, sum)
+    }
+}
+
+/// A column copied into plain memory.
+pub struct PlainVector {
+    pub values: Vec<Option<f64>>,
+}
+
+struct CopyToVector {
+    column: usize,
+}
+
+impl Step for CopyToVector {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "copy_to_vector";
+        let df = input.into_frame(NAME)?;
+        let c = numeric_column(&df, self.column, NAME)?;
+        let ca = as_f64(c, NAME)?;
+        let values: Vec<Option<f64>> = ca.iter().collect();
+        Ok(Value::Custom(PLAIN_VECTOR, Arc::new(PlainVector { values })))
+    }
+}
+
+struct ReadVector {
+    reads: usize,
+}
+
+impl Step for ReadVector {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "read_vector_cells";
+        let v = input.into_custom::<PlainVector>(NAME, PLAIN_VECTOR)?;
+        let n = v.values.len();
+        if n == 0 {
+            return Err(no_rows(NAME));
+        }
+        let (mut read, mut sum) = (0i64, 0.0f64);
+        for k in 0..self.reads {
+            if let Some(Some(x)) = v.values.get(position(k, n)) {
+                read += 1;
+                sum += x;
+            }
+        }
+        result(NAME, read, sum)
+    }
+}

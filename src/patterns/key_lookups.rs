@@ -1,0 +1,526 @@
+//! Key lookups: finding the rows whose key equals each of a list of wanted keys.
+//!
+//! The job: `probes` wanted keys (crate tags looked up at the packing shed, say) are taken
+//! from scattered rows of the table itself, with every eighth one a key that is not there;
+//! every design returns, for each probe, every matching row: `probe`, `row` (position in
+//! the table) and the value column, ordered by probe then row. The designs differ in how a
+//! key is found: binary search on a column flagged sorted, a scan of the whole column per
+//! probe, a hash index (built in the timed run or once in `setup:`), or one join against a
+//! table of wanted keys. Two-level keys (`first`, `second`) are found through an index on
+//! the whole pair (exact) or on the first level only (prefix) and then filtered. A newcomer
+//! must know: an index is the family's own value (`key index`, `pair index`), so a design
+//! can build it untimed in `setup:` and time only the probes; building it in `steps:` times
+//! both, and the difference is the cost of the index.
+
+use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use polars::prelude::*;
+use polars::series::IsSorted;
+use std::sync::Arc;
+
+/// The family's own values.
+pub const KEY_INDEX: &str = "key index";
+pub const PAIR_INDEX: &str = "pair index";
+
+const KEY: ParamDef = ParamDef { name: "key", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the integer key column" };
+const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::Count { min: 0 }, default: "1", doc: "position of the column returned with each match" };
+const PROBES: ParamDef = ParamDef { name: "probes", kind: ParamKind::Count { min: 1 }, default: "1000", doc: "wanted keys per run" };
+const FIRST: ParamDef = ParamDef { name: "first", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the first-level integer key column" };
+const SECOND: ParamDef = ParamDef { name: "second", kind: ParamKind::Count { min: 0 }, default: "1", doc: "position of the second-level integer key column" };
+const LEVELS: &[&str] = &["full", "prefix"];
+
+/// The steps of this family.
+pub const STEPS: &[StepDef] = &[
+    StepDef {
+        name: "mark_sorted",
+        summary: "check that a column is sorted ascending (no nulls) and set its sorted flag",
+        cost_note: "One pass to verify the order, no copy of the values (the flag lives in the column's \
+metadata): linear in rows. Meant for `setup:`, so `lookup_sorted` can trust the flag.",
+        params: &[ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the column" }],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Frame,
+        memory_factor: 1.0,
+        private_input: false,
+        build: |p| Box::new(MarkSorted { column: p.count("column") as usize }),
+    },
+    StepDef {
+        name: "lookup_sorted",
+        summary: "binary-search each wanted key in a key column flagged sorted",
+        cost_note: "Two binary searches per probe (first and last match): O(log n) each, no allocation \
+beyond the output, so the whole run grows like probes·log n (about constant in rows). Refuses a \
+column that is not flagged sorted; a fragmented column is consolidated first (one linear copy).",
+        params: &[KEY, VALUE, PROBES],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Frame,
+        memory_factor: 1.5,
+        private_input: false,
+        build: |p| Box::new(Lookup { key: p.count("key") as usize, value: p.count("value") as usize, probes: p.count("probes") as usize, sorted: true }),
+    },
+    StepDef {
+        name: "lookup_scan",
+        summary: "scan the whole key column once per wanted key, keeping every matching row",
+        cost_note: "Every probe reads all n keys: probes·n comparisons, linear in rows for a fixed number \
+of probes (and quadratic if the probes grow with the table). No allocation beyond the output.",
+        params: &[KEY, VALUE, PROBES],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Frame,
+        memory_factor: 1.5,
+        private_input: false,
+        build: |p| Box::new(Lookup { key: p.count("key") as usize, value: p.count("value") as usize, probes: p.count("probes") as usize, sorted: false }),
+    },
+    StepDef {
+        name: "build_key_index",
+        summary: "build a hash map from each key to the rows that hold it",
+        cost_note: "One pass over the keys; the map holds one entry per distinct key plus a small row list \
+each (one allocation per distinct key): linear in rows in time and bytes, several times the key \
+column's size in memory.",
+        params: &[KEY, VALUE],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Custom(KEY_INDEX),
+        memory_factor: 6.0,
+        private_input: false,
+        build: |p| Box::new(BuildKeyIndex { key: p.count("key") as usize, value: p.count("value") as usize }),
+    },
+    StepDef {
+        name: "probe_key_index",
+        summary: "look each wanted key up in a hash index",
+        cost_note: "One hash probe per wanted key, O(1) expected: the run grows with probes, about constant \
+in rows (cache misses aside). No allocation beyond the output.",
+        params: &[PROBES],
+        takes: ValueKind::Custom(KEY_INDEX),
+        gives: ValueKind::Frame,
+        memory_factor: 1.0,
+        private_input: false,
+        build: |p| Box::new(ProbeKeyIndex { probes: p.count("probes") as usize }),
+    },
+    StepDef {
+        name: "join_wanted_keys",
+        summary: "inner-join a table of wanted keys against the table (with a row number) and sort by probe",
+        cost_note: "Numbers the rows (one new column of n), hashes the smaller side and streams the other: \
+linear in rows in time and bytes, with the row-number column and the hash table as extra memory. \
+Pays the whole build on every run, like a hash index built in the timed region.",
+        params: &[KEY, VALUE, PROBES],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Frame,
+        memory_factor: 4.0,
+        private_input: false,
+        build: |p| Box::new(JoinWanted { key: p.count("key") as usize, value: p.count("value") as usize, probes: p.count("probes") as usize }),
+    },
+    StepDef {
+        name: "lookup_pairs_scan",
+        summary: "scan both columns of a two-level key once per wanted pair",
+        cost_note: "probes·n comparisons of the first level (and of the second where the first matches): \
+linear in rows for a fixed number of probes, no allocation beyond the output.",
+        params: &[FIRST, SECOND, PROBES],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Frame,
+        memory_factor: 1.5,
+        private_input: false,
+        build: |p| Box::new(PairsScan { first: p.count("first") as usize, second: p.count("second") as usize, probes: p.count("probes") as usize }),
+    },
+    StepDef {
+        name: "build_pair_index",
+        summary: "build a hash index on a two-level key: on the whole pair (full) or on the first level only (prefix)",
+        cost_note: "One pass over the keys, linear in rows. full: one entry per distinct pair, probes hit \
+exactly. prefix: one entry per distinct first level (fewer, longer row lists), so each probe must \
+then filter its first-level rows by the second level: cheaper to build, dearer to probe when first \
+levels are shared by many rows.",
+        params: &[FIRST, SECOND, ParamDef { name: "level", kind: ParamKind::Choice(LEVELS), default: "full", doc: "index the whole pair or only the first level" }],
+        takes: ValueKind::Frame,
+        gives: ValueKind::Custom(PAIR_INDEX),
+        memory_factor: 6.0,
+        private_input: false,
+        build: |p| Box::new(BuildPairIndex { first: p.count("first") as usize, second: p.count("second") as usize, prefix: p.choice("level") == "prefix" }),
+    },
+    StepDef {
+        name: "probe_pair_index",
+        summary: "look each wanted pair up in a pair index (filtering by the second level for a prefix index)",
+        cost_note: "One hash probe per wanted pair; with a prefix index, plus a pass over the rows sharing \
+the first level. About constant in rows for a full index; grows with rows per first level for a \
+prefix index.",
+        params: &[PROBES],
+        takes: ValueKind::Custom(PAIR_INDEX),
+        gives: ValueKind::Frame,
+        memory_factor: 1.0,
+        private_input: false,
+        build: |p| Box::new(ProbePairIndex { probes: p.count("probes") as usize }),
+    },
+];
+
+/// The k-th probed row position in a table of `n` rows (scattered, the same for every design).
+fn position(k: usize, n: usize) -> usize {
+    ((k as u64).wrapping_mul(2_654_435_761).wrapping_add(977) % n.max(1) as u64) as usize
+}
+
+/// Every eighth probe asks for a key that is not in the table.
+fn is_miss(k: usize) -> bool {
+    k % 8 == 7
+}
+
+fn miss_key(k: usize) -> i64 {
+    i64::MIN + k as i64
+}
+
+fn column_at<'a>(df: &'a DataFrame, pos: usize, step: &'static str) -> Result<&'a Column, StepError> {
+    df.columns()
+        .get(pos)
+        .ok_or_else(|| StepError::Value { step, message: format!("no column at position {pos} (the table has {})", df.width()) })
+}
+
+/// An integer column as contiguous 64-bit integers (a copy only when it must be cast or
+/// consolidated).
+fn int_keys(c: &Column, step: &'static str) -> Result<Int64Chunked, StepError> {
+    if !c.dtype().is_integer() {
+        return Err(StepError::Value { step, message: format!("key column `{}` is {}, not an integer column", c.name(), c.dtype()) });
+    }
+    let s = c.as_materialized_series().cast(&DataType::Int64).map_err(polars_err(step))?;
+    Ok(s.i64().map_err(polars_err(step))?.rechunk().into_owned())
+}
+
+/// The contiguous values and validity of a one-chunk array.
+fn parts(ca: &Int64Chunked) -> (&[i64], Option<&polars_arrow::bitmap::Bitmap>) {
+    match ca.downcast_iter().next() {
+        Some(arr) => (arr.values().as_slice(), arr.validity()),
+        None => (&[], None),
+    }
+}
+
+fn valid_at(v: Option<&polars_arrow::bitmap::Bitmap>, i: usize) -> bool {
+    v.is_none_or(|b| b.get_bit(i))
+}
+
+/// The wanted keys: the key at a scattered row, or a missing key.
+fn wanted(keys: &Int64Chunked, probes: usize) -> Vec<Option<i64>> {
+    let n = keys.len();
+    let (vals, valid) = parts(keys);
+    (0..probes)
+        .map(|k| {
+            if is_miss(k) {
+                return Some(miss_key(k));
+            }
+            let i = position(k, n);
+            (i < vals.len() && valid_at(valid, i)).then(|| vals[i])
+        })
+        .collect()
+}
+
+/// `probe`, `row` and (when given) the value column at those rows.
+fn matches(step: &'static str, probe: Vec<i64>, rows: Vec<IdxSize>, values: Option<&Column>) -> Result<Value, StepError> {
+    let h = probe.len();
+    let row: Vec<i64> = rows.iter().map(|&r| r as i64).collect();
+    let mut cols = vec![Column::new("probe".into(), probe), Column::new("row".into(), row)];
+    if let Some(v) = values {
+        if v.name().as_str() == "probe" || v.name().as_str() == "row" {
+            return Err(StepError::Value { step, message: format!("the value column may not be called `{}`", v.name()) });
+        }
+        let idx = IdxCa::from_vec("".into(), rows);
+        cols.push(v.take(&idx).map_err(polars_err(step))?);
+    }
+    Ok(Value::Frame(DataFrame::new(h, cols).map_err(polars_err(step))?))
+}
+
+fn no_rows(step: &'static str) -> StepError {
+    StepError::Value { step, message: "the table has no rows to look keys up in".into() }
+}
+
+struct MarkSorted {
+    column: usize,
+}
+
+impl Step for MarkSorted {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "mark_sorted";
+        let mut df = input.into_frame(NAME)?;
+        let c = column_at(&df, self.column, NAME)?;
+        if c.null_count() > 0 {
+            return Err(StepError::Value { step: NAME, message: format!("column `{}` has nulls; a sorted key must not", c.name()) });
+        }
+        let s = c.as_materialized_series();
+        let ok = s.is_sorted(SortOptions::default()).map_err(polars_err(NAME))?;
+        if !ok {
+            return Err(StepError::Value { step: NAME, message: format!("column `{}` is not sorted ascending", c.name()) });
+        }
+        let mut c = c.clone();
+        c.set_sorted_flag(IsSorted::Ascending);
+        df.replace_column(self.column, c).map_err(polars_err(NAME))?;
+        Ok(Value::Frame(df))
+    }
+}
+
+struct Lookup {
+    key: usize,
+    value: usize,
+    probes: usize,
+    sorted: bool,
+}
+
+impl Step for Lookup {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        let name: &'static str = if self.sorted { "lookup_sorted" } else { "lookup_scan" };
+        let df = input.into_frame(name)?;
+        let kc = column_at(&df, self.key, name)?;
+        let vc = column_at(&df, self.value, name)?;
+        if df.height() == 0 {
+            return Err(no_rows(name));
+        }
+        if self.sorted && kc.is_sorted_flag() != IsSorted::Ascending {
+            return Err(StepError::Value {
+                step: name,
+                message: format!("column `{}` is not flagged sorted ascending (add `mark_sorted` to the design's setup)", kc.name()),
+            });
+        }
+        if self.sorted && kc.null_count() > 0 {
+            return Err(StepError::Value { step: name, message: format!("column `{}` has nulls; binary search needs a key without", kc.name()) });
+        }
+        let keys = int_keys(kc, name)?;
+        let want = wanted(&keys, self.probes);
+        let (vals, valid) = parts(&keys);
+        let (mut probe, mut rows) = (Vec::new(), Vec::new());
+        for (k, w) in want.iter().enumerate() {
+            let Some(w) = *w else { continue };
+            if self.sorted {
+                // The flag promises ascending order without nulls (mark_sorted checked it).
+                let lo = vals.partition_point(|&x| x < w);
+                let hi = lo + vals[lo..].partition_point(|&x| x <= w);
+                for r in lo..hi {
+                    probe.push(k as i64);
+                    rows.push(r as IdxSize);
+                }
+            } else {
+                for (r, &x) in vals.iter().enumerate() {
+                    if x == w && valid_at(valid, r) {
+                        probe.push(k as i64);
+                        rows.push(r as IdxSize);
+                    }
+                }
+            }
+        }
+        matches(name, probe, rows, Some(vc))
+    }
+}
+
+/// A hash index from key to rows, with the columns its probes need.
+pub struct KeyIndex {
+    pub keys: Int64Chunked,
+    pub values: Column,
+    pub map: PlHashMap<i64, Vec<IdxSize>>,
+}
+
+struct BuildKeyIndex {
+    key: usize,
+    value: usize,
+}
+
+impl Step for BuildKeyIndex {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "build_key_index";
+        let df = input.into_frame(NAME)?;
+        let keys = int_keys(column_at(&df, self.key, NAME)?, NAME)?;
+        let values = column_at(&df, self.value, NAME)?.clone();
+        let mut map: PlHashMap<i64, Vec<IdxSize>> = PlHashMap::default();
+        let (vals, valid) = parts(&keys);
+        for (r, &x) in vals.iter().enumerate() {
+            if valid_at(valid, r) {
+                map.entry(x).or_default().push(r as IdxSize);
+            }
+        }
+        Ok(Value::Custom(KEY_INDEX, Arc::new(KeyIndex { keys, values, map })))
+    }
+}
+
+struct ProbeKeyIndex {
+    probes: usize,
+}
+
+impl Step for ProbeKeyIndex {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "probe_key_index";
+        let ix = input.into_custom::<KeyIndex>(NAME, KEY_INDEX)?;
+        if ix.keys.is_empty() {
+            return Err(no_rows(NAME));
+        }
+        let (mut probe, mut rows) = (Vec::new(), Vec::new());
+        for (k, w) in wanted(&ix.keys, self.probes).into_iter().enumerate() {
+            if let Some(found) = w.and_then(|w| ix.map.get(&w)) {
+                for &r in found {
+                    probe.push(k as i64);
+                    rows.push(r);
+                }
+            }
+        }
+        matches(NAME, probe, rows, Some(&ix.values))
+    }
+}
+
+struct JoinWanted {
+    key: usize,
+    value: usize,
+    probes: usize,
+}
+
+impl Step for JoinWanted {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "join_wanted_keys";
+        let df = input.into_frame(NAME)?;
+        let n = df.height();
+        if n == 0 {
+            return Err(no_rows(NAME));
+        }
+        let keys = int_keys(column_at(&df, self.key, NAME)?, NAME)?;
+        let vc = column_at(&df, self.value, NAME)?.clone();
+        let vname = vc.name().clone();
+        if vname.as_str() == "probe" || vname.as_str() == "row" {
+            return Err(StepError::Value { step: NAME, message: format!("the value column may not be called `{vname}`") });
+        }
+        let want = wanted(&keys, self.probes);
+        let m = want.len();
+        let wanted_df = DataFrame::new(
+            m,
+            vec![Column::new("probe".into(), (0..m as i64).collect::<Vec<_>>()), Column::new("__wanted".into(), want)],
+        )
+        .map_err(polars_err(NAME))?;
+        let table = DataFrame::new(n, vec![keys.with_name("__key".into()).into_series().into_column(), vc])
+            .map_err(polars_err(NAME))?
+            .with_row_index("__row".into(), None)
+            .map_err(polars_err(NAME))?;
+        let out = wanted_df
+            .lazy()
+            .join(table.lazy(), [col("__wanted")], [col("__key")], JoinArgs::new(JoinType::Inner))
+            .sort(["probe", "__row"], SortMultipleOptions::default())
+            .select([col("probe"), col("__row").cast(DataType::Int64).alias("row"), col(vname.clone())])
+            .collect()
+            .map_err(polars_err(NAME))?;
+        Ok(Value::Frame(out))
+    }
+}
+
+fn wanted_pairs(a: &Int64Chunked, b: &Int64Chunked, probes: usize) -> Vec<Option<(i64, i64)>> {
+    let n = a.len();
+    let (av, avalid) = parts(a);
+    let (bv, bvalid) = parts(b);
+    (0..probes)
+        .map(|k| {
+            let i = position(k, n);
+            if i >= av.len() || i >= bv.len() || !valid_at(avalid, i) || !valid_at(bvalid, i) {
+                return None;
+            }
+            // A miss shares its first level with a real row, so a prefix index finds
+            // candidates and must reject them on the second level.
+            Some((av[i], if is_miss(k) { miss_key(k) } else { bv[i] }))
+        })
+        .collect()
+}
+
+fn pair_columns(df: &DataFrame, first: usize, second: usize, step: &'static str) -> Result<(Int64Chunked, Int64Chunked), StepError> {
+    if df.height() == 0 {
+        return Err(no_rows(step));
+    }
+    Ok((int_keys(column_at(df, first, step)?, step)?, int_keys(column_at(df, second, step)?, step)?))
+}
+
+struct PairsScan {
+    first: usize,
+    second: usize,
+    probes: usize,
+}
+
+impl Step for PairsScan {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "lookup_pairs_scan";
+        let df = input.into_frame(NAME)?;
+        let (a, b) = pair_columns(&df, self.first, self.second, NAME)?;
+        let (av, avalid) = parts(&a);
+        let (bv, bvalid) = parts(&b);
+        let (mut probe, mut rows) = (Vec::new(), Vec::new());
+        for (k, w) in wanted_pairs(&a, &b, self.probes).into_iter().enumerate() {
+            let Some((x, y)) = w else { continue };
+            for r in 0..av.len() {
+                if av[r] == x && bv[r] == y && valid_at(avalid, r) && valid_at(bvalid, r) {
+                    probe.push(k as i64);
+                    rows.push(r as IdxSize);
+                }
+            }
+        }
+        matches(NAME, probe, rows, None)
+    }
+}
+
+enum PairMap {
+    Full(PlHashMap<(i64, i64), Vec<IdxSize>>),
+    Prefix(PlHashMap<i64, Vec<IdxSize>>),
+}
+
+/// A hash index on a two-level key.
+pub struct PairIndex {
+    first: Int64Chunked,
+    second: Int64Chunked,
+    map: PairMap,
+}
+
+struct BuildPairIndex {
+    first: usize,
+    second: usize,
+    prefix: bool,
+}
+
+impl Step for BuildPairIndex {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "build_pair_index";
+        let df = input.into_frame(NAME)?;
+        let (a, b) = pair_columns(&df, self.first, self.second, NAME)?;
+        let map = {
+            let (av, avalid) = parts(&a);
+            let (bv, bvalid) = parts(&b);
+            let ok = |r: usize| valid_at(avalid, r) && valid_at(bvalid, r);
+            if self.prefix {
+                let mut m: PlHashMap<i64, Vec<IdxSize>> = PlHashMap::default();
+                for r in (0..av.len()).filter(|&r| ok(r)) {
+                    m.entry(av[r]).or_default().push(r as IdxSize);
+                }
+                PairMap::Prefix(m)
+            } else {
+                let mut m: PlHashMap<(i64, i64), Vec<IdxSize>> = PlHashMap::default();
+                for r in (0..av.len()).filter(|&r| ok(r)) {
+                    m.entry((av[r], bv[r])).or_default().push(r as IdxSize);
+                }
+                PairMap::Full(m)
+            }
+        };
+        Ok(Value::Custom(PAIR_INDEX, Arc::new(PairIndex { first: a, second: b, map })))
+    }
+}
+
+struct ProbePairIndex {
+    probes: usize,
+}
+
+impl Step for ProbePairIndex {
+    fn run(&self, input: Value) -> Result<Value, StepError> {
+        const NAME: &str = "probe_pair_index";
+        let ix = input.into_custom::<PairIndex>(NAME, PAIR_INDEX)?;
+        let (bv, _) = parts(&ix.second);
+        let (mut probe, mut rows) = (Vec::new(), Vec::new());
+        for (k, w) in wanted_pairs(&ix.first, &ix.second, self.probes).into_iter().enumerate() {
+            let Some((x, y)) = w else { continue };
+            match &ix.map {
+                PairMap::Full(m) => {
+                    if let Some(found) = m.get(&(x, y)) {
+                        for &r in found {
+                            probe.push(k as i64);
+                            rows.push(r);
+                        }
+                    }
+                }
+                PairMap::Prefix(m) => {
+                    if let Some(found) = m.get(&x) {
+                        // Rows in the index already have a valid second level.
+                        for &r in found.iter().filter(|&&r| bv.get(r as usize) == Some(&y)) {
+                            probe.push(k as i64);
+                            rows.push(r);
+                        }
+                    }
+                }
+            }
+        }
+        matches(NAME, probe, rows, None)
+    }
+}
