@@ -17,6 +17,7 @@ pub mod present;
 pub mod results;
 pub mod spec;
 pub mod table;
+pub mod track;
 
 /// Exit codes shared by every command.
 pub mod exit {

@@ -24,6 +24,8 @@ pub struct Plan {
     pub budget: Budget,
     pub designs: Vec<DesignPlan>,
     pub outputs_differ: Option<String>,
+    /// The workload's regression threshold for the gate (a share).
+    pub gate_threshold: Option<f64>,
 }
 
 /// Limits of a sweep, resolved.

@@ -136,6 +136,38 @@ pub fn class_of(label: &str) -> Option<GrowthClass> {
     GrowthClass::from_label(label)
 }
 
+/// Fit how time grows over measured points `(rows, measured)`: the growth class on each
+/// size's quartiles, and the log-log exponent of medians over the top four sizes with a 95%
+/// bootstrap interval (deterministic from `seed`).
+///
+/// Each size enters the class fit as its three quartiles: every size weighs the same
+/// however many samples it took, and the classifier works in the regime its known-answer
+/// suite checks (three points per size). Fitting hundreds of raw samples would give AICc the
+/// power to prefer n log n over n for curvature of a few percent (caches), which is not what
+/// "how does it grow" asks.
+pub fn fit_time(measured: &[(u64, &crate::results::Measured)], seed: u64) -> (Result<GrowthFit, crate::fit::FitError>, Option<ExponentOut>) {
+    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    for (rows, m) in measured {
+        let mut v: Vec<f64> = m.samples_ns.iter().copied().filter(|x| *x > 0.0).collect();
+        v.sort_by(f64::total_cmp);
+        for q in [0.25, 0.5, 0.75] {
+            if let Ok(x) = crate::fit::sample::quantile(&v, q) {
+                xs.push(*rows as f64);
+                ys.push(x);
+            }
+        }
+    }
+    let per_size: Vec<(f64, Vec<f64>)> = measured
+        .iter()
+        .map(|(rows, m)| (*rows as f64, m.samples_ns.iter().copied().filter(|v| *v > 0.0).collect::<Vec<_>>()))
+        .filter(|(_, s)| !s.is_empty())
+        .collect();
+    let exponent = exponent_with_ci(&per_size, 4, 1000, seed)
+        .ok()
+        .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used });
+    (fit_growth(&xs, &ys), exponent)
+}
+
 /// Analyse every workload of a run.
 pub fn analyse(r: &RunResults, opts: &AnalyseOptions) -> Analysis {
     Analysis { workloads: r.workloads.iter().map(|w| analyse_workload(w, opts)).collect() }
@@ -162,40 +194,16 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
             used.drain(..drop);
         }
         let mut notes = Vec::new();
-        let (mut xs, mut ys) = (Vec::new(), Vec::new());
-        // Each size enters the time fit as its three quartiles: every size weighs the same
-        // however many samples it took, and the classifier works in the regime its
-        // known-answer suite checks (three points per size). Fitting hundreds of raw samples
-        // would give AICc the power to prefer n log n over n for curvature of a few
-        // percent (caches), which is not what "how does it grow" asks.
-        for p in &used {
-            if let Some(m) = &p.measured {
-                let mut v: Vec<f64> = m.samples_ns.iter().copied().filter(|x| *x > 0.0).collect();
-                v.sort_by(f64::total_cmp);
-                for q in [0.25, 0.5, 0.75] {
-                    if let Ok(x) = crate::fit::sample::quantile(&v, q) {
-                        xs.push(p.rows as f64);
-                        ys.push(x);
-                    }
-                }
-            }
-        }
-        let time = match fit_growth(&xs, &ys) {
+        let measured: Vec<(u64, &crate::results::Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
+        let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
+        let (time, time_exponent) = fit_time(&measured, seed);
+        let time = match time {
             Ok(f) => Some(f),
             Err(e) => {
                 notes.push(format!("time: no growth class ({e})"));
                 None
             }
         };
-        let per_size: Vec<(f64, Vec<f64>)> = used
-            .iter()
-            .filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m.samples_ns.iter().copied().filter(|v| *v > 0.0).collect::<Vec<_>>())))
-            .filter(|(_, s)| !s.is_empty())
-            .collect();
-        let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
-        let time_exponent = exponent_with_ci(&per_size, 4, 1000, seed)
-            .ok()
-            .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used });
         let medians: Vec<(f64, f64)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m.median_ns))).collect();
         let doubling = if medians.len() >= 2 {
             let (x, y): (Vec<f64>, Vec<f64>) = medians.iter().copied().unzip();

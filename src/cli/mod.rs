@@ -1,9 +1,13 @@
 //! The command line: one file per command, each with its help text and one entry point.
 
+pub mod baseline;
 pub mod catalog;
 pub mod explain;
+pub mod gate;
+pub mod history;
 pub mod lint;
 pub mod recap;
+pub mod report;
 pub mod sweep;
 
 use clap::{Parser, Subcommand};
@@ -22,7 +26,11 @@ pub enum Command {
     Lint(lint::Args),
     Catalog(catalog::Args),
     Explain(explain::Args),
+    Gate(gate::Args),
+    Baseline(baseline::Args),
+    History(history::Args),
     Recap(recap::Args),
+    Report(report::Args),
 }
 
 /// Run the command line; returns the process exit code.
@@ -40,7 +48,11 @@ pub fn main() -> i32 {
         Command::Lint(a) => lint::run(a),
         Command::Catalog(a) => catalog::run(a),
         Command::Explain(a) => explain::run(a),
+        Command::Gate(a) => gate::run(a),
+        Command::Baseline(a) => baseline::run(a),
+        Command::History(a) => history::run(a),
         Command::Recap(a) => recap::run(a),
+        Command::Report(a) => report::run(a),
     }
 }
 

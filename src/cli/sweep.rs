@@ -287,6 +287,10 @@ pub fn run(a: Args) -> i32 {
     if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
         return fail(e);
     }
+    let report = crate::present::report::write(&dir, &out.results, &crate::analyse::AnalyseOptions::default());
+    if let Err(e) = &report {
+        eprintln!("framecost sweep: the pictures and reports could not be drawn: {e}");
+    }
     if !a.quiet {
         print!("{}", render(&out.results, Style::detect()));
         if plans.len() > 1 {
@@ -298,6 +302,9 @@ pub fn run(a: Args) -> i32 {
         }
     }
     println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());
+    if let Ok(w) = &report {
+        println!("report:  {} ({} pictures)", w.html.display(), w.pictures.len());
+    }
     if failures > 0 || mismatches > 0 {
         eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");
         return crate::exit::RUN_FAILED;

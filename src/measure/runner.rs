@@ -201,6 +201,7 @@ pub fn sweep(
             })
             .collect(),
         outputs_differ: plan.outputs_differ.clone(),
+        gate_threshold: plan.gate_threshold,
         spec_text: plan.spec_text.clone(),
     }))?;
 

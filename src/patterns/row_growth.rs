@@ -56,13 +56,20 @@ it.",
         name: "build_from_records",
         summary: "push every record's values into one typed buffer per column and build the table once",
         cost_note: "Each value is copied once into a growing typed buffer (capacity doubling, so amortized \
-O(1) per value) and the table is built in one go: linear in time and bytes, one chunk per column.",
-        params: &[],
+O(1) per value) and the table is built in one go: linear in time and bytes, one chunk per column. \
+extra_passes > 0 repeats the build that many times and keeps the last: a deliberate, documented \
+slowdown for checking that a regression gate catches it.",
+        params: &[ParamDef {
+            name: "extra_passes",
+            kind: ParamKind::Count { min: 0 },
+            default: "0",
+            doc: "test knob: build the table this many extra times (slows the design by that factor + 1)",
+        }],
         takes: ValueKind::Records,
         gives: ValueKind::Frame,
         memory_factor: 3.0,
         private_input: false,
-        build: |_| Box::new(BuildFromRecords),
+        build: |p| Box::new(BuildFromRecords { extra_passes: p.count("extra_passes") }),
     },
 ];
 
@@ -133,12 +140,25 @@ impl Step for ExtendRows {
     }
 }
 
-struct BuildFromRecords;
+struct BuildFromRecords {
+    extra_passes: u64,
+}
 
 impl Step for BuildFromRecords {
     fn run(&self, input: Value) -> Result<Value, StepError> {
         const NAME: &str = "build_from_records";
         let recs = records(NAME, input)?;
+        for _ in 0..self.extra_passes {
+            std::hint::black_box(build(&recs)?);
+        }
+        build(&recs).map(Value::Frame)
+    }
+}
+
+/// One typed buffer per column, filled row by row, then one table.
+fn build(recs: &Records) -> Result<DataFrame, StepError> {
+    const NAME: &str = "build_from_records";
+    {
         let mut buffers: Vec<AnyValueBuffer> =
             recs.schema.iter().map(|(_, dt)| AnyValueBuffer::new(dt, 0)).collect();
         for row in &recs.rows {
@@ -155,7 +175,6 @@ impl Step for BuildFromRecords {
         for (b, (name, _)) in buffers.into_iter().zip(recs.schema.iter()) {
             columns.push(b.into_series().map_err(polars_err(NAME))?.with_name(name.clone()).into_column());
         }
-        let df = DataFrame::new(recs.len(), columns).map_err(polars_err(NAME))?;
-        Ok(Value::Frame(df))
+        DataFrame::new(recs.len(), columns).map_err(polars_err(NAME))
     }
 }

@@ -53,6 +53,39 @@ fn three_digits(v: f64) -> String {
     }
 }
 
+/// A row count on an axis: 500, 1k, 2.5M (any positive number).
+pub fn rows_label_f(n: f64) -> String {
+    if !n.is_finite() || n <= 0.0 {
+        return String::new();
+    }
+    let (v, u) = if n >= 1e9 {
+        (n / 1e9, "G")
+    } else if n >= 1e6 {
+        (n / 1e6, "M")
+    } else if n >= 1e3 {
+        (n / 1e3, "k")
+    } else {
+        (n, "")
+    };
+    format!("{}{u}", short(v))
+}
+
+/// A number in at most three significant digits without trailing zeros: 2, 2.5, 12, 120.
+pub fn short(v: f64) -> String {
+    let s = if v >= 100.0 {
+        format!("{v:.0}")
+    } else if v >= 10.0 {
+        format!("{v:.1}")
+    } else {
+        format!("{v:.2}")
+    };
+    if s.contains('.') {
+        s.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        s
+    }
+}
+
 /// `×1.00`, `×12.3`, `×410`.
 pub fn ratio(r: f64) -> String {
     if !r.is_finite() {

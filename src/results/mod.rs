@@ -64,6 +64,9 @@ pub struct WorkloadHeader {
     pub columns: Vec<ColumnPlan>,
     pub designs: Vec<DesignHeader>,
     pub outputs_differ: Option<String>,
+    /// The workload's own regression threshold for `framecost gate` (a share), if set.
+    #[serde(default)]
+    pub gate_threshold: Option<f64>,
     /// The workload file as it was when the run started.
     pub spec_text: String,
 }

@@ -41,6 +41,18 @@ pub struct WorkloadSpec {
     /// (for example a lossy cast). Without it, differing outputs are a loud failure.
     #[serde(default)]
     pub outputs_differ: Option<String>,
+    /// Settings for comparing runs of this workload with `framecost gate`.
+    #[serde(default)]
+    pub gate: Option<GateSpec>,
+}
+
+/// How `framecost gate` judges this workload.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct GateSpec {
+    /// How much slower a median may get before it counts as a regression (default 10%).
+    #[serde(default)]
+    pub threshold: Option<Share>,
 }
 
 fn default_format() -> u32 {

@@ -107,6 +107,12 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         }
     }
 
+    let gate_threshold = spec.gate.as_ref().and_then(|g| g.threshold).map(|t| t.0);
+    if let Some(t) = gate_threshold {
+        if !(t > 0.0 && t <= 10.0) {
+            c.at(&root.key("gate").key("threshold"), format!("expected a threshold above 0% and at most 1000%, found {t}"), None);
+        }
+    }
     if !c.issues.is_empty() {
         return Err(c.issues);
     }
@@ -123,6 +129,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         budget,
         designs,
         outputs_differ: spec.outputs_differ.clone(),
+        gate_threshold,
     })
 }
 

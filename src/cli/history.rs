@@ -1,0 +1,91 @@
+//! `framecost history DIR` — every run found in DIR (folders holding `points.jsonl`, saved
+//! baselines included), in the order they were made: per workload a picture of each design's
+//! cost at each size across the runs, with the places where the gate between consecutive
+//! runs found a change marked, and the same changes listed.
+
+use crate::results::reader::RunResults;
+use crate::spec::units::rows_label;
+use crate::track::gate::{compare, Call, GateOptions};
+use std::path::PathBuf;
+
+/// Draw each workload's cost across many runs and mark where it changed.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// A folder of run folders (for example `reports/`).
+    pub dir: PathBuf,
+    /// Where to write the pictures (default: DIR/history).
+    #[arg(long, value_name = "DIR")]
+    pub out: Option<PathBuf>,
+}
+
+pub fn run(a: Args) -> i32 {
+    let Ok(entries) = std::fs::read_dir(&a.dir) else {
+        eprintln!("framecost history: cannot list {}", a.dir.display());
+        return crate::exit::BAD_INPUT;
+    };
+    let mut runs: Vec<RunResults> = entries
+        .filter_map(|e| e.ok())
+        .map(|e| e.path())
+        .filter(|p| p.join("points.jsonl").exists())
+        .filter_map(|p| RunResults::read(&p).ok())
+        .filter(|r| r.complete())
+        .collect();
+    runs.sort_by(|x, y| {
+        let k = |r: &RunResults| r.run.as_ref().map(|h| (h.started_at.clone(), h.run_id.clone())).unwrap_or_default();
+        k(x).cmp(&k(y))
+    });
+    if runs.len() < 2 {
+        eprintln!("framecost history: {} holds {} complete run(s); two or more are needed", a.dir.display(), runs.len());
+        return crate::exit::BAD_INPUT;
+    }
+    let out = a.out.clone().unwrap_or_else(|| a.dir.join("history"));
+    // Changes between consecutive runs: (index of the later run, design, rows, worse?).
+    let mut changes: Vec<(String, usize, String, u64, bool)> = Vec::new();
+    for i in 1..runs.len() {
+        let g = compare(&runs[i - 1], &runs[i], &GateOptions::default());
+        for w in &g.workloads {
+            for p in &w.points {
+                if matches!(p.call, Call::Regression | Call::Improvement) {
+                    changes.push((w.workload.clone(), i, p.design.clone(), p.rows, p.call == Call::Regression));
+                }
+            }
+        }
+    }
+    let mut names: Vec<String> = Vec::new();
+    for r in &runs {
+        for w in &r.workloads {
+            if !names.contains(&w.header.workload) {
+                names.push(w.header.workload.clone());
+            }
+        }
+    }
+    for name in &names {
+        let series: Vec<(String, &crate::results::reader::WorkloadResults)> = runs
+            .iter()
+            .filter_map(|r| {
+                let id = r.run.as_ref().map(|h| h.run_id.clone()).unwrap_or_default();
+                r.workloads.iter().find(|w| &w.header.workload == name).map(|w| (id, w))
+            })
+            .collect();
+        let marks: Vec<(usize, String, u64, bool)> = changes
+            .iter()
+            .filter(|c| &c.0 == name)
+            .filter_map(|c| {
+                // Index within this workload's series.
+                let id = runs[c.1].run.as_ref().map(|h| h.run_id.clone())?;
+                series.iter().position(|s| s.0 == id).map(|k| (k, c.2.clone(), c.3, c.4))
+            })
+            .collect();
+        match crate::present::plot::draw_history(&out, name, &series, &marks) {
+            Ok(p) => println!("{name}: {} runs → {}", series.len(), p.display()),
+            Err(e) => {
+                eprintln!("framecost history: {name}: {e}");
+                return crate::exit::RUN_FAILED;
+            }
+        }
+        for (k, d, n, worse) in &marks {
+            println!("  run {}: {d} at {} rows {}", series[*k].0, rows_label(*n), if *worse { "got slower" } else { "got faster" });
+        }
+    }
+    crate::exit::OK
+}

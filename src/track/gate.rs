@@ -1,0 +1,305 @@
+//! The regression gate: compare a baseline run with a new run of the same workloads, size by
+//! size and class by class.
+//!
+//! A point (design × size) is a **regression** only when both hold: the ratio of medians
+//! new/base exceeds the threshold (default 10%, or the workload's `gate.threshold`), and a
+//! two-sided Mann–Whitney test on the samples is significant (α = 0.05). Improvements are
+//! judged alike. A design has a **growth regression** when its time exponent over the sizes
+//! both runs measured rose by 0.1 or more with the two bootstrap intervals apart, or its
+//! allocated-bytes exponent (exact counts) rose by 0.15 or more — even if no single size
+//! crossed the threshold. Points missing from either run are reported, not ignored. When the
+//! machines differ, ratios are also divided by the ratio of the runs' yardsticks, and the
+//! normalised ratio is the one judged. A newcomer must know: this works from saved results
+//! alone and never reruns anything.
+
+use super::stats::{hodges_lehmann_ratio_ci, mann_whitney, Method};
+use crate::analyse::fit_time;
+use crate::results::reader::{RunResults, WorkloadResults};
+use crate::results::Measured;
+use serde::{Deserialize, Serialize};
+
+/// Settings of a gate.
+#[derive(Debug, Clone)]
+pub struct GateOptions {
+    /// Replace every workload's threshold (a share: 0.1 = 10%).
+    pub threshold: Option<f64>,
+    /// Significance level of the rank test.
+    pub alpha: f64,
+}
+
+impl Default for GateOptions {
+    fn default() -> Self {
+        GateOptions { threshold: None, alpha: 0.05 }
+    }
+}
+
+/// The default share a median may grow before it counts.
+pub const DEFAULT_THRESHOLD: f64 = 0.10;
+/// Exponent rise that counts as a growth regression (time, with separated intervals).
+pub const TIME_EXPONENT_RISE: f64 = 0.10;
+/// Exponent rise that counts as a growth regression of allocated bytes (exact counts).
+pub const BYTES_EXPONENT_RISE: f64 = 0.15;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Call {
+    Regression,
+    Improvement,
+    /// Within the threshold, or a difference the test does not support.
+    Same,
+    /// Beyond the threshold, but too few samples (or too much noise) to be significant.
+    Unclear,
+}
+
+impl Call {
+    pub fn mark(self) -> &'static str {
+        match self {
+            Call::Regression => "▲",
+            Call::Improvement => "▼",
+            Call::Same => "·",
+            Call::Unclear => "?",
+        }
+    }
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct PointGate {
+    pub design: String,
+    pub rows: u64,
+    pub base_median_ns: f64,
+    pub new_median_ns: f64,
+    /// new / base, raw.
+    pub ratio: f64,
+    /// Hodges–Lehmann interval of the ratio (95%), when the samples allow one.
+    pub ratio_low: Option<f64>,
+    pub ratio_high: Option<f64>,
+    /// Divided by the yardstick ratio (present when the machines differ).
+    pub normalised_ratio: Option<f64>,
+    pub p_value: Option<f64>,
+    pub call: Call,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct GrowthGate {
+    pub design: String,
+    /// "time" or "bytes".
+    pub metric: String,
+    pub base_class: Option<String>,
+    pub new_class: Option<String>,
+    pub base_exponent: Option<f64>,
+    pub new_exponent: Option<f64>,
+    /// Bootstrap intervals (time only).
+    pub base_interval: Option<(f64, f64)>,
+    pub new_interval: Option<(f64, f64)>,
+    pub sizes: Vec<u64>,
+    pub call: Call,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct MissingPoint {
+    pub design: String,
+    pub rows: u64,
+    /// "measured", "skipped: <reason>" or "absent".
+    pub baseline: String,
+    pub new: String,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct WorkloadGate {
+    pub workload: String,
+    pub threshold: f64,
+    pub points: Vec<PointGate>,
+    pub growth: Vec<GrowthGate>,
+    pub missing: Vec<MissingPoint>,
+    /// Designs in one run only.
+    pub unmatched_designs: Vec<String>,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct GateReport {
+    pub baseline_run: String,
+    pub new_run: String,
+    pub machines_differ: bool,
+    /// new yardstick / baseline yardstick.
+    pub yardstick_ratio: Option<f64>,
+    pub workloads: Vec<WorkloadGate>,
+    /// Workloads in one run only.
+    pub unmatched_workloads: Vec<String>,
+    pub regressions: usize,
+    pub growth_regressions: usize,
+    pub improvements: usize,
+    pub missing: usize,
+}
+
+impl GateReport {
+    /// True when anything got worse.
+    pub fn failed(&self) -> bool {
+        self.regressions > 0 || self.growth_regressions > 0
+    }
+}
+
+fn status(w: &WorkloadResults, design: &str, rows: u64) -> String {
+    match w.point(design, rows) {
+        Some(p) if p.measured.is_some() => "measured".into(),
+        Some(p) => format!("skipped: {}", p.skipped.as_ref().map(|s| s.reason.label()).unwrap_or("?")),
+        None => "absent".into(),
+    }
+}
+
+fn judge(ratio: f64, p: Option<f64>, threshold: f64, alpha: f64) -> Call {
+    let significant = p.is_some_and(|p| p < alpha);
+    if ratio > 1.0 + threshold {
+        if significant { Call::Regression } else { Call::Unclear }
+    } else if ratio < 1.0 / (1.0 + threshold) {
+        if significant { Call::Improvement } else { Call::Unclear }
+    } else {
+        Call::Same
+    }
+}
+
+/// Compare two runs.
+pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateReport {
+    let (bh, nh) = (base.run.as_ref(), new.run.as_ref());
+    let machines_differ = match (bh, nh) {
+        (Some(b), Some(n)) => !b.machine.same_machine(&n.machine),
+        _ => false,
+    };
+    let yardstick_ratio = match (bh, nh) {
+        (Some(b), Some(n)) if b.yardstick.median_ns > 0.0 => Some(n.yardstick.median_ns / b.yardstick.median_ns),
+        _ => None,
+    };
+    let mut report = GateReport {
+        baseline_run: bh.map(|h| h.run_id.clone()).unwrap_or_default(),
+        new_run: nh.map(|h| h.run_id.clone()).unwrap_or_default(),
+        machines_differ,
+        yardstick_ratio,
+        workloads: vec![],
+        unmatched_workloads: vec![],
+        regressions: 0,
+        growth_regressions: 0,
+        improvements: 0,
+        missing: 0,
+    };
+    for bw in &base.workloads {
+        let Some(nw) = new.workloads.iter().find(|w| w.header.workload == bw.header.workload) else {
+            report.unmatched_workloads.push(format!("{} (baseline only)", bw.header.workload));
+            continue;
+        };
+        let threshold = opts.threshold.or(nw.header.gate_threshold).unwrap_or(DEFAULT_THRESHOLD);
+        let mut wg = WorkloadGate {
+            workload: bw.header.workload.clone(),
+            threshold,
+            points: vec![],
+            growth: vec![],
+            missing: vec![],
+            unmatched_designs: vec![],
+        };
+        for d in &bw.header.designs {
+            if !nw.header.designs.iter().any(|x| x.name == d.name) {
+                wg.unmatched_designs.push(format!("{} (baseline only)", d.name));
+                continue;
+            }
+            let mut sizes: Vec<u64> = bw.header.sizes.iter().chain(&nw.header.sizes).copied().collect();
+            sizes.sort_unstable();
+            sizes.dedup();
+            let mut common: Vec<(u64, &Measured, &Measured)> = Vec::new();
+            for n in sizes {
+                let b = bw.point(&d.name, n).and_then(|p| p.measured.as_ref());
+                let m = nw.point(&d.name, n).and_then(|p| p.measured.as_ref());
+                match (b, m) {
+                    (Some(b), Some(m)) => common.push((n, b, m)),
+                    _ => wg.missing.push(MissingPoint { design: d.name.clone(), rows: n, baseline: status(bw, &d.name, n), new: status(nw, &d.name, n) }),
+                }
+            }
+            for &(n, b, m) in &common {
+                let ratio = m.median_ns / b.median_ns;
+                let ci = hodges_lehmann_ratio_ci(&b.samples_ns, &m.samples_ns, 0.95).ok();
+                let p = mann_whitney(&m.samples_ns, &b.samples_ns, Method::Auto).ok().map(|t| t.p_two_sided);
+                let normalised = if machines_differ { yardstick_ratio.map(|y| ratio / y) } else { None };
+                let call = judge(normalised.unwrap_or(ratio), p, threshold, opts.alpha);
+                wg.points.push(PointGate {
+                    design: d.name.clone(),
+                    rows: n,
+                    base_median_ns: b.median_ns,
+                    new_median_ns: m.median_ns,
+                    ratio,
+                    ratio_low: ci.map(|c| c.0),
+                    ratio_high: ci.map(|c| c.2),
+                    normalised_ratio: normalised,
+                    p_value: p,
+                    call,
+                });
+            }
+            // Growth over the sizes both runs measured.
+            let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
+            let bpts: Vec<(u64, &Measured)> = common.iter().map(|c| (c.0, c.1)).collect();
+            let npts: Vec<(u64, &Measured)> = common.iter().map(|c| (c.0, c.2)).collect();
+            let (bfit, bexp) = fit_time(&bpts, seed);
+            let (nfit, nexp) = fit_time(&npts, seed);
+            let sizes: Vec<u64> = common.iter().map(|c| c.0).collect();
+            if let (Some(be), Some(ne)) = (&bexp, &nexp) {
+                let rank = |f: &Result<crate::fit::growth::GrowthFit, _>| f.as_ref().ok().map(|g| g.best.label().to_string());
+                let worse = ne.slope - be.slope >= TIME_EXPONENT_RISE && ne.low > be.high;
+                let better = be.slope - ne.slope >= TIME_EXPONENT_RISE && be.low > ne.high;
+                wg.growth.push(GrowthGate {
+                    design: d.name.clone(),
+                    metric: "time".into(),
+                    base_class: rank(&bfit),
+                    new_class: rank(&nfit),
+                    base_exponent: Some(be.slope),
+                    new_exponent: Some(ne.slope),
+                    base_interval: Some((be.low, be.high)),
+                    new_interval: Some((ne.low, ne.high)),
+                    sizes: sizes.clone(),
+                    call: if worse { Call::Regression } else if better { Call::Improvement } else { Call::Same },
+                });
+            }
+            let slope = |pts: &[(u64, &Measured)]| {
+                let v: Vec<(f64, f64)> = pts.iter().map(|(n, m)| (*n as f64, m.alloc.bytes as f64)).filter(|p| p.1 > 0.0).collect();
+                let (x, y): (Vec<f64>, Vec<f64>) = v.into_iter().unzip();
+                if x.len() >= 3 { crate::fit::growth::loglog_slope(&x, &y).ok() } else { None }
+            };
+            if let (Some(bs), Some(ns)) = (slope(&bpts), slope(&npts)) {
+                let bytes_class = |pts: &[(u64, &Measured)]| {
+                    let v: Vec<(f64, f64)> = pts.iter().map(|(n, m)| (*n as f64, m.alloc.bytes as f64)).filter(|p| p.1 > 0.0).collect();
+                    let (x, y): (Vec<f64>, Vec<f64>) = v.into_iter().unzip();
+                    crate::fit::growth::fit_growth(&x, &y).ok().map(|f| f.best.label().to_string())
+                };
+                wg.growth.push(GrowthGate {
+                    design: d.name.clone(),
+                    metric: "bytes".into(),
+                    base_class: bytes_class(&bpts),
+                    new_class: bytes_class(&npts),
+                    base_exponent: Some(bs),
+                    new_exponent: Some(ns),
+                    base_interval: None,
+                    new_interval: None,
+                    sizes,
+                    call: if ns - bs >= BYTES_EXPONENT_RISE {
+                        Call::Regression
+                    } else if bs - ns >= BYTES_EXPONENT_RISE {
+                        Call::Improvement
+                    } else {
+                        Call::Same
+                    },
+                });
+            }
+        }
+        for d in &nw.header.designs {
+            if !bw.header.designs.iter().any(|x| x.name == d.name) {
+                wg.unmatched_designs.push(format!("{} (new run only)", d.name));
+            }
+        }
+        report.regressions += wg.points.iter().filter(|p| p.call == Call::Regression).count();
+        report.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement).count();
+        report.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
+        report.missing += wg.missing.len();
+        report.workloads.push(wg);
+    }
+    for nw in &new.workloads {
+        if !base.workloads.iter().any(|w| w.header.workload == nw.header.workload) {
+            report.unmatched_workloads.push(format!("{} (new run only)", nw.header.workload));
+        }
+    }
+    report
+}

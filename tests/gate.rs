@@ -1,0 +1,282 @@
+//! The regression gate on deterministic inputs: synthetic runs whose samples are drawn from
+//! known distributions (seeded log-normal noise), with an injected 20% slowdown at the
+//! largest sizes, an injected change of growth class, machine drift that the yardstick
+//! explains, missing points, and many seeds of no change at all to measure the false-alarm
+//! rate against the test's nominal level (α = 0.05). Then the CLI on runs written to disk:
+//! exit codes, JSON, named baselines and the history picture.
+
+use assert_cmd::Command;
+use framecost::measure::alloc::AllocStats;
+use framecost::measure::clock::ClockInfo;
+use framecost::measure::machine::{MachineFingerprint, Yardstick};
+use framecost::plan::Budget;
+use framecost::results::reader::RunResults;
+use framecost::results::*;
+use framecost::table::rng::Stream;
+use framecost::track::gate::{compare, Call, GateOptions};
+
+const SIZES: [u64; 8] = [1_000, 2_000, 4_000, 8_000, 16_000, 32_000, 64_000, 128_000];
+
+fn machine(cpu: &str) -> MachineFingerprint {
+    MachineFingerprint {
+        cpu_model: cpu.into(),
+        logical_cores: 2,
+        physical_cores: Some(2),
+        memory_total_bytes: 24 << 30,
+        os: "test".into(),
+        kernel: "test".into(),
+        arch: "x86_64".into(),
+        framecost_version: "0".into(),
+        polars_version: "0".into(),
+        polars_threads: 2,
+    }
+}
+
+/// Log-normal noise: exp(σ·z) with z standard normal (Box–Muller on the seeded stream).
+fn noisy(st: &Stream, i: u64, sigma: f64) -> f64 {
+    let u1 = st.unit(2 * i).max(1e-12);
+    let u2 = st.unit(2 * i + 1);
+    let z = (-2.0 * u1.ln()).sqrt() * (2.0 * std::f64::consts::PI * u2).cos();
+    (sigma * z).exp()
+}
+
+/// A run with one workload and one design whose median time at n is `cost(n)`.
+fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, bytes: &dyn Fn(u64) -> f64, skip: &[u64]) -> RunResults {
+    let mut r = RunResults::default();
+    r.push(Record::Run(RunHeader {
+        schema: SCHEMA.into(),
+        run_id: id.into(),
+        started_at: format!("2026-12-01T{id}"),
+        command: vec![],
+        machine: machine(cpu),
+        clock: ClockInfo { reported_resolution_ns: 1.0, observed_step_ns: 20.0, read_cost_ns: 20.0 },
+        yardstick: Yardstick { kernel: "test".into(), median_ns: yard, rounds_ns: vec![yard] },
+        available_memory_bytes: 1 << 34,
+        forced: false,
+    }));
+    r.push(Record::Workload(WorkloadHeader {
+        workload: "ledger".into(),
+        file: "x".into(),
+        spec_hash: "0".into(),
+        seed: 1,
+        about: String::new(),
+        target: None,
+        sizes: SIZES.to_vec(),
+        budget: Budget { per_point_s: 1.0, whole_run_s: 10.0, precision: 0.03, min_samples: 6, max_samples: 20, warmup: 1 },
+        columns: vec![],
+        designs: vec![DesignHeader {
+            name: "build".into(),
+            about: None,
+            recipe: "x".into(),
+            steps: vec![],
+            feed: "records".into(),
+            expect_time: None,
+            expect_bytes: None,
+        }],
+        outputs_differ: None,
+        gate_threshold: None,
+        spec_text: String::new(),
+    }));
+    let st = Stream::new(seed, id, 0);
+    for (k, &n) in SIZES.iter().enumerate() {
+        if skip.contains(&n) {
+            r.push(Record::Point(PointRecord {
+                workload: "ledger".into(),
+                design: "build".into(),
+                rows: n,
+                measured: None,
+                skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, detail: String::new() }),
+            }));
+            continue;
+        }
+        let samples: Vec<f64> = (0..20).map(|i| cost(n) * noisy(&st, (k * 100 + i) as u64, 0.03)).collect();
+        let mut s = samples.clone();
+        s.sort_by(f64::total_cmp);
+        let med = (s[9] + s[10]) / 2.0;
+        r.push(Record::Point(PointRecord {
+            workload: "ledger".into(),
+            design: "build".into(),
+            rows: n,
+            measured: Some(Measured {
+                stop: StopReason::SampleCap,
+                batch: 1,
+                warmup_runs: 1,
+                samples_ns: samples,
+                median_ns: med,
+                ci_low_ns: Some(s[5]),
+                ci_high_ns: Some(s[14]),
+                ci_rel_half_width: None,
+                mean_ns: med,
+                p50_ns: med,
+                p90_ns: s[17],
+                p99_ns: s[19],
+                max_ns: s[19],
+                cpu_ns: med,
+                alloc: AllocStats { bytes: bytes(n) as u64, count: 10, peak_live: bytes(n) as u64 },
+                alloc_exact: true,
+                output: None,
+                spent_s: 0.1,
+            }),
+            skipped: None,
+        }));
+    }
+    r.push(Record::End(EndRecord { finished_at: "end".into(), elapsed_s: 1.0, mismatches: 0 }));
+    r
+}
+
+fn linear(n: u64) -> f64 {
+    50_000.0 + 100.0 * n as f64
+}
+fn lin_bytes(n: u64) -> f64 {
+    64.0 * n as f64
+}
+
+#[test]
+fn an_injected_slowdown_at_the_largest_sizes_is_flagged_there_only() {
+    let base = run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let slow = |n: u64| if n >= 64_000 { 1.2 * linear(n) } else { linear(n) };
+    let new = run("b", 2, "cpu", 1e8, &slow, &lin_bytes, &[]);
+    let g = compare(&base, &new, &GateOptions::default());
+    let w = &g.workloads[0];
+    for p in &w.points {
+        let want = if p.rows >= 64_000 { Call::Regression } else { Call::Same };
+        assert_eq!(p.call, want, "at {} rows: ratio {:.3}, p {:?}", p.rows, p.ratio, p.p_value);
+        if p.rows >= 64_000 {
+            let (lo, hi) = (p.ratio_low.expect("interval"), p.ratio_high.expect("interval"));
+            assert!(lo < 1.2 && 1.2 < hi, "the interval [{lo}, {hi}] holds the injected 1.2");
+        }
+    }
+    assert_eq!(g.regressions, 2);
+    assert!(g.failed());
+}
+
+#[test]
+fn an_injected_change_of_growth_class_is_a_growth_regression() {
+    let base = run("a", 3, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    // Equal at 1k rows, quadratic beyond: the kind of change a copy-per-append bug makes.
+    let quad = |n: u64| linear(1_000) * (n as f64 / 1_000.0).powi(2);
+    let quad_bytes = |n: u64| lin_bytes(1_000) * (n as f64 / 1_000.0).powi(2);
+    let new = run("b", 4, "cpu", 1e8, &quad, &quad_bytes, &[]);
+    let g = compare(&base, &new, &GateOptions::default());
+    let growth = &g.workloads[0].growth;
+    let time = growth.iter().find(|x| x.metric == "time").expect("time");
+    let bytes = growth.iter().find(|x| x.metric == "bytes").expect("bytes");
+    assert_eq!(time.call, Call::Regression, "{time:?}");
+    assert_eq!(bytes.call, Call::Regression, "{bytes:?}");
+    assert_eq!(time.new_class.as_deref(), Some("n²"));
+    assert_eq!(time.base_class.as_deref(), Some("n"));
+    assert!(g.growth_regressions >= 2 && g.failed());
+}
+
+#[test]
+fn no_change_stays_within_the_nominal_false_alarm_rate() {
+    // 200 pairs of runs from the same distribution, 8 sizes each: 1600 point tests.
+    let mut alarms_default = 0;
+    let mut alarms_rank_only = 0;
+    let mut growth_alarms = 0;
+    let tests = 200 * SIZES.len();
+    for seed in 0..200u64 {
+        let base = run("a", 1000 + seed, "cpu", 1e8, &linear, &lin_bytes, &[]);
+        let new = run("b", 5000 + seed, "cpu", 1e8, &linear, &lin_bytes, &[]);
+        let g = compare(&base, &new, &GateOptions::default());
+        alarms_default += g.regressions;
+        growth_alarms += g.growth_regressions;
+        // With a near-zero threshold the gate is the rank test alone: two-sided α = 0.05,
+        // so regressions (one side) should be at most about 2.5%, and alarms of either side
+        // at most 5% (plus three standard errors of a binomial proportion).
+        let g0 = compare(&base, &new, &GateOptions { threshold: Some(1e-9), alpha: 0.05 });
+        alarms_rank_only += g0.workloads[0].points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)).count();
+    }
+    let rate = alarms_rank_only as f64 / tests as f64;
+    let bound = 0.05 + 3.0 * (0.05f64 * 0.95 / tests as f64).sqrt();
+    eprintln!("false alarms: default gate {alarms_default}/{tests}, rank test alone {rate:.4} (bound {bound:.4}), growth {growth_alarms}/200");
+    assert!(rate <= bound, "rank-test false-alarm rate {rate} above {bound}");
+    assert_eq!(alarms_default, 0, "3% noise never crosses a 10% threshold with significance");
+    assert!(growth_alarms <= 10, "growth false alarms {growth_alarms} of 200 runs");
+}
+
+#[test]
+fn machine_drift_is_normalised_by_the_yardstick_and_missing_points_are_reported() {
+    let base = run("a", 7, "old cpu", 1e8, &linear, &lin_bytes, &[]);
+    // A machine 30% slower at everything, the yardstick included.
+    let slower = |n: u64| 1.3 * linear(n);
+    let new = run("b", 8, "new cpu", 1.3e8, &slower, &lin_bytes, &[128_000]);
+    let g = compare(&base, &new, &GateOptions::default());
+    assert!(g.machines_differ);
+    assert!((g.yardstick_ratio.expect("ratio") - 1.3).abs() < 1e-12);
+    let w = &g.workloads[0];
+    for p in &w.points {
+        assert!(p.ratio > 1.2, "raw ratio shows the slower machine");
+        let nr = p.normalised_ratio.expect("normalised");
+        assert!((nr - 1.0).abs() < 0.06, "normalised ratio {nr}");
+        assert_ne!(p.call, Call::Regression);
+    }
+    assert_eq!(w.missing.len(), 1);
+    assert_eq!(w.missing[0].rows, 128_000);
+    assert!(w.missing[0].new.starts_with("skipped"));
+    assert!(!g.failed());
+}
+
+fn write_run(dir: &std::path::Path, r: &RunResults) {
+    std::fs::create_dir_all(dir).expect("dir");
+    let mut text = String::new();
+    let push = |rec: Record, text: &mut String| {
+        text.push_str(&serde_json::to_string(&rec).expect("json"));
+        text.push('\n');
+    };
+    push(Record::Run(r.run.clone().expect("header")), &mut text);
+    for w in &r.workloads {
+        push(Record::Workload(w.header.clone()), &mut text);
+        for p in &w.points {
+            push(Record::Point(p.clone()), &mut text);
+        }
+    }
+    push(Record::End(r.end.clone().expect("end")), &mut text);
+    std::fs::write(dir.join("points.jsonl"), text).expect("write");
+    std::fs::write(dir.join("summary.json"), "{}").expect("write");
+}
+
+#[test]
+fn gate_cli_exit_codes_json_baselines_and_history() {
+    let tmp = tempfile::tempdir().expect("tempdir");
+    let base = run("120000", 11, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let slow = |n: u64| if n >= 64_000 { 1.2 * linear(n) } else { linear(n) };
+    let new = run("130000", 12, "cpu", 1e8, &slow, &lin_bytes, &[]);
+    let same = run("140000", 13, "cpu", 1e8, &slow, &lin_bytes, &[]);
+    let runs = tmp.path().join("runs");
+    write_run(&runs.join("r1"), &base);
+    write_run(&runs.join("r2"), &new);
+    write_run(&runs.join("r3"), &same);
+    let fc = || Command::cargo_bin("framecost").expect("binary");
+
+    let out = fc().arg("gate").arg(runs.join("r1")).arg(runs.join("r2")).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(1), "{text}");
+    assert!(text.contains("regression build at 64k rows") && text.contains("RESULT: worse"), "{text}");
+    let out = fc().arg("gate").arg(runs.join("r2")).arg(runs.join("r3")).output().expect("runs");
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stdout));
+    let out = fc().arg("gate").arg(runs.join("r1")).arg(runs.join("r2")).arg("--json").output().expect("runs");
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    assert_eq!(doc["regressions"], 2);
+    assert_eq!(fc().arg("gate").arg(runs.join("r1")).arg(tmp.path().join("nothing")).output().expect("runs").status.code(), Some(2));
+    assert_eq!(fc().args(["gate", "x", "y", "--threshold", "-3%"]).output().expect("runs").status.code(), Some(2));
+
+    // Named baselines.
+    let store = tmp.path().join("store");
+    let out = fc().args(["baseline", "save"]).arg(runs.join("r1")).arg("main").arg("--store").arg(&store).output().expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let out = fc().args(["baseline", "list", "--store"]).arg(&store).output().expect("runs");
+    assert!(String::from_utf8_lossy(&out.stdout).contains("main"));
+    let out = fc().args(["gate", "main"]).arg(runs.join("r2")).arg("--store").arg(&store).output().expect("runs");
+    assert_eq!(out.status.code(), Some(1));
+
+    // History: a picture per workload, the change marked and listed.
+    let out = fc().arg("history").arg(&runs).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(text.contains("build at 64k rows got slower"), "{text}");
+    let png = image::open(runs.join("history").join("ledger-history.png")).expect("png").to_rgb8();
+    assert_eq!(png.dimensions(), (1000, 720));
+    let svg = std::fs::read_to_string(runs.join("history").join("ledger-history.svg")).expect("svg");
+    roxmltree::Document::parse(&svg).expect("svg parses");
+}
