@@ -8,14 +8,28 @@
 //! explanations. A newcomer must know: adding a family means one new file and one line in
 //! [`FAMILIES`]; nothing else in the crate names individual steps.
 
+pub mod cross_column;
+pub mod joins_sorting;
 pub mod row_growth;
+pub mod storage;
+pub mod subsets;
+pub mod tiny_containers;
+pub mod type_drift;
 
 use polars::prelude::*;
 use std::collections::BTreeMap;
 use std::sync::Arc;
 
 /// Every family of steps. Register a new family here (one line).
-pub const FAMILIES: &[(&str, &[StepDef])] = &[("row growth", row_growth::STEPS)];
+pub const FAMILIES: &[(&str, &[StepDef])] = &[
+    ("row growth", row_growth::STEPS),
+    ("type drift", type_drift::STEPS),
+    ("cross-column reductions", cross_column::STEPS),
+    ("tiny containers", tiny_containers::STEPS),
+    ("storage", storage::STEPS),
+    ("subsets", subsets::STEPS),
+    ("joins and sorting", joins_sorting::STEPS),
+];
 
 /// What flows between steps.
 #[derive(Clone)]
