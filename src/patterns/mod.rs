@@ -10,10 +10,16 @@
 
 pub mod cell_reads;
 pub mod column_growth;
+pub mod cross_column;
 pub mod grouped;
+pub mod joins_sorting;
 pub mod key_lookups;
 pub mod row_growth;
 pub mod row_wise;
+pub mod storage;
+pub mod subsets;
+pub mod tiny_containers;
+pub mod type_drift;
 
 use polars::prelude::*;
 use std::collections::BTreeMap;
@@ -27,6 +33,12 @@ pub const FAMILIES: &[(&str, &[StepDef])] = &[
     ("key lookups", key_lookups::STEPS),
     ("grouped work", grouped::STEPS),
     ("row-wise work", row_wise::STEPS),
+    ("type drift", type_drift::STEPS),
+    ("cross-column reductions", cross_column::STEPS),
+    ("tiny containers", tiny_containers::STEPS),
+    ("storage", storage::STEPS),
+    ("subsets", subsets::STEPS),
+    ("joins and sorting", joins_sorting::STEPS),
 ];
 
 /// What flows between steps.
