@@ -279,22 +279,25 @@ pub fn run(a: Args) -> i32 {
         Ok(p) => p,
         Err(e) => return fail(e),
     };
+    // Everything after the measurements is drawn from the results as read back from disk,
+    // exactly as `explain`, `report` and `recap` will read them later, so they agree.
+    let saved = crate::results::reader::RunResults::read(&dir).unwrap_or_else(|_| out.results.clone());
     // The analysis and findings, for notebooks (`framecost explain` recomputes them).
-    let analysis = crate::analyse::analyse(&out.results, &crate::analyse::AnalyseOptions::default());
+    let analysis = crate::analyse::analyse(&saved, &crate::analyse::AnalyseOptions::default());
     let explanations: Vec<_> =
-        out.results.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
+        saved.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
     let doc = serde_json::json!({ "schema": crate::results::SCHEMA, "analysis": analysis, "explanations": explanations });
     if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
         return fail(e);
     }
-    let report = crate::present::report::write(&dir, &out.results, &crate::analyse::AnalyseOptions::default());
+    let report = crate::present::report::write(&dir, &saved, &crate::analyse::AnalyseOptions::default());
     if let Err(e) = &report {
         eprintln!("framecost sweep: the pictures and reports could not be drawn: {e}");
     }
     if !a.quiet {
-        print!("{}", render(&out.results, Style::detect()));
+        print!("{}", render(&saved, Style::detect()));
         if plans.len() > 1 {
-            let s = crate::results::summary::Summary::from_results(&out.results);
+            let s = crate::results::summary::Summary::from_results(&saved);
             println!();
             for l in crate::present::terminal::one_liners(&s) {
                 println!("{l}");

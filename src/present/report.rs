@@ -127,7 +127,7 @@ pub fn csv(r: &RunResults) -> String {
                 (None, Some(sk)) => {
                     let mut v = vec![q(&w.header.workload), q(&p.design), p.rows.to_string(), "skipped".into()];
                     v.extend(std::iter::repeat_n(String::new(), 17));
-                    v.push(format!("{:?}", sk.reason).to_lowercase());
+                    v.push(serde_json::to_value(sk.reason).ok().and_then(|x| x.as_str().map(str::to_string)).unwrap_or_default());
                     v.push(o(sk.predicted_ns));
                     v
                 }
