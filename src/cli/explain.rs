@@ -105,9 +105,9 @@ pub fn run(a: Args) -> i32 {
             println!(
                 "  crossover: `{}` is cheaper below about {} rows [{}–{}], `{}` above{}",
                 c.faster_below,
-                rows_label(c.rows.round() as u64),
-                rows_label(c.rows_low.round() as u64),
-                rows_label(c.rows_high.round() as u64),
+                crate::present::units::rows_label_f(c.rows),
+                crate::present::units::rows_label_f(c.rows_low),
+                crate::present::units::rows_label_f(c.rows_high),
                 c.faster_above,
                 if c.inside_measured { " (inside the measured sizes)" } else { " (predicted beyond them)" }
             );

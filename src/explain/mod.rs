@@ -9,7 +9,7 @@
 
 use crate::analyse::{class_of, DesignAnalysis, WorkloadAnalysis};
 use crate::fit::growth::GrowthClass;
-use crate::present::units::{bytes, ratio, time_ns};
+use crate::present::units::{bytes, ratio, rows_label_f, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, Measured};
 use crate::spec::model::ColumnKind;
@@ -305,7 +305,13 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         let next = v.get(1);
         let class = best.time.as_ref().map(|t| t.class.clone()).unwrap_or_default();
         let vs = next
-            .map(|n| format!(", {} less than `{}` (predicted {})", ratio(n.1 / med), n.0.design, time_ns(n.1)))
+            .map(|n| {
+                if n.1 / med < 1.1 {
+                    format!(", about the same as `{}` (predicted {}: either will do)", n.0.design, time_ns(n.1))
+                } else {
+                    format!(", {} less than `{}` (predicted {})", ratio(n.1 / med), n.0.design, time_ns(n.1))
+                }
+            })
             .unwrap_or_default();
         (best.design.clone(), format!(
             "use `{}`: at {} rows it is predicted to take {} [{}–{}] per run{vs}; its time grows as {class}",
@@ -332,14 +338,28 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
             }
         }
     };
+    // Say so when the measured winner at the largest compared size is another design.
+    let measured_note = if use_prediction {
+        w.comparisons
+            .iter()
+            .filter(|c| c.ratios.len() >= 2)
+            .max_by_key(|c| c.rows)
+            .and_then(|c| c.fastest.clone().map(|f| (c.rows, f)))
+            .filter(|(_, f)| f != &best_name)
+            .map(|(n, f)| format!(" (measured: `{f}` was fastest at {} rows, the largest size compared)", rows_label(n)))
+            .unwrap_or_default()
+    } else {
+        String::new()
+    };
+    let text = format!("{text}{measured_note}");
     // From what size: a crossover where the best is cheaper only above it.
     let from = a.crossovers.iter().filter(|c| c.faster_above == best_name).max_by(|x, y| x.rows.total_cmp(&y.rows));
     let tail = match from {
         Some(c) => format!(
             "; below about {} rows [{}–{}] `{}` is cheaper",
-            rows_label(c.rows.round() as u64),
-            rows_label(c.rows_low.round() as u64),
-            rows_label(c.rows_high.round() as u64),
+            rows_label_f(c.rows),
+            rows_label_f(c.rows_low),
+            rows_label_f(c.rows_high),
             c.faster_below
         ),
         None => String::new(),

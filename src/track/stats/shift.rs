@@ -88,37 +88,7 @@ pub fn bootstrap_ratio_ci(
     Ok((quantile_type7(&ratios, tail), quantile_type7(&ratios, 1.0 - tail)))
 }
 
-/// SplitMix64 (Steele, Lea & Flood 2014; constants as in Vigna's public
-/// domain `splitmix64.c`): a tiny, fast, well-mixed 64-bit generator. Not
-/// cryptographic. Same seed, same stream, on every platform.
-#[derive(Debug, Clone)]
-pub struct SplitMix64 {
-    state: u64,
-}
-
-impl SplitMix64 {
-    pub fn new(seed: u64) -> Self {
-        SplitMix64 { state: seed }
-    }
-
-    pub fn next_u64(&mut self) -> u64 {
-        self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.state;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-
-    /// Uniform in [0, 1), 53 random bits.
-    pub fn next_f64(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 * (1.0 / (1u64 << 53) as f64)
-    }
-
-    /// Uniform integer in [0, n) by multiply-shift (bias ≤ n/2⁶⁴); 0 if n = 0.
-    pub fn below(&mut self, n: usize) -> usize {
-        ((self.next_u64() as u128 * n as u128) >> 64) as usize
-    }
-}
+pub use crate::fit::rng::SplitMix64;
 
 fn resample(src: &[f64], dst: &mut [f64], rng: &mut SplitMix64) {
     for d in dst.iter_mut() {
@@ -169,10 +139,7 @@ fn median_sorted(s: &[f64]) -> f64 {
 
 /// Hyndman & Fan type 7 quantile of a sorted, non-empty slice, p in [0, 1].
 fn quantile_type7(s: &[f64], p: f64) -> f64 {
-    let h = (s.len() - 1) as f64 * p;
-    let lo = h.floor() as usize;
-    let hi = (lo + 1).min(s.len() - 1);
-    s[lo] + (h - lo as f64) * (s[hi] - s[lo])
+    crate::fit::sample::quantile_sorted(s, p)
 }
 
 #[cfg(test)]
