@@ -280,3 +280,18 @@ fn gate_cli_exit_codes_json_baselines_and_history() {
     let svg = std::fs::read_to_string(runs.join("history").join("ledger-history.svg")).expect("svg");
     roxmltree::Document::parse(&svg).expect("svg parses");
 }
+
+#[test]
+fn a_slowdown_at_one_size_only_is_reported_but_not_confirmed() {
+    // 30% slower at 16k rows alone: the kind of jump run-to-run noise gives one point.
+    let base = run("a", 21, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let bump = |n: u64| if n == 16_000 { 1.3 * linear(n) } else { linear(n) };
+    let new = run("b", 22, "cpu", 1e8, &bump, &lin_bytes, &[]);
+    let g = compare(&base, &new, &GateOptions::default());
+    let p = g.workloads[0].points.iter().find(|p| p.rows == 16_000).expect("point");
+    assert_eq!(p.call, Call::Regression);
+    assert!(!p.confirmed);
+    assert_eq!(g.regressions, 0);
+    assert_eq!(g.unconfirmed_regressions, 1);
+    assert!(!g.failed());
+}

@@ -84,6 +84,9 @@ pub fn render(r: &GateReport) -> String {
     use std::fmt::Write;
     let mut s = String::new();
     let _ = writeln!(s, "gate: baseline {} → new {}", r.baseline_run, r.new_run);
+    if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.normalised_by.as_deref() == Some("drift probe")) {
+        let _ = writeln!(s, "  ratios are corrected by the drift probe timed beside the designs at each size (raw ratios in brackets)");
+    }
     if r.machines_differ {
         let _ = writeln!(
             s,
@@ -113,10 +116,15 @@ pub fn render(r: &GateReport) -> String {
                 row.push(match w.points.iter().find(|p| &p.design == d && p.rows == n) {
                     Some(p) => {
                         let shown = match p.normalised_ratio {
-                            Some(nr) => format!("×{:.2} (raw ×{:.2})", nr, p.ratio),
+                            Some(nr) => format!("×{:.2} (raw {:.2})", nr, p.ratio),
                             None => format!("×{:.2}", p.ratio),
                         };
-                        format!("{shown} {}", p.call.mark())
+                        let mark = match (p.call, p.confirmed) {
+                            (Call::Regression, false) => "△",
+                            (Call::Improvement, false) => "▽",
+                            (c, _) => c.mark(),
+                        };
+                        format!("{shown} {mark}")
                     }
                     None => String::new(),
                 });
@@ -132,8 +140,9 @@ pub fn render(r: &GateReport) -> String {
         for p in w.points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
             let _ = writeln!(
                 s,
-                "  {} {} at {} rows: {} → {} (×{:.3}{}, p = {})",
+                "  {}{} {} at {} rows: {} → {} (×{:.3}{}, p = {})",
                 if p.call == Call::Regression { "regression" } else { "improvement" },
+                if p.confirmed { "" } else { " at this size only (not confirmed)" },
                 p.design,
                 rows_label(p.rows),
                 time_ns(p.base_median_ns),
@@ -179,9 +188,10 @@ pub fn render(r: &GateReport) -> String {
     }
     let _ = writeln!(
         s,
-        "\n{} · ▲ regression, ▼ improvement, · within the threshold, ? beyond it but not significant\n{} regression(s), {} growth regression(s), {} improvement(s), {} point(s) not compared",
+        "\n{} · ▲ regression, ▼ improvement (△ ▽ at one size only, not confirmed), · within the threshold, ? beyond it but not significant\n{} confirmed regression(s), {} unconfirmed, {} growth regression(s), {} improvement(s), {} point(s) not compared",
         if r.failed() { "RESULT: worse" } else { "RESULT: no regression" },
         r.regressions,
+        r.unconfirmed_regressions,
         r.growth_regressions,
         r.improvements,
         r.missing

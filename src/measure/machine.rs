@@ -77,6 +77,37 @@ pub struct Yardstick {
     pub rounds_ns: Vec<f64>,
 }
 
+/// The drift probe: a small fixed kernel (sum 64 Ki words, sort 16 Ki words of fixed data,
+/// single thread, about 0.1–0.5 ms) timed once per sampling round, beside the designs, so
+/// each size records how fast the machine itself was while that size was measured.
+pub struct DriftProbe {
+    data: Vec<u64>,
+}
+
+impl DriftProbe {
+    pub fn new() -> DriftProbe {
+        let st = crate::table::rng::Stream::new(0x5eed, "drift-probe", 0);
+        DriftProbe { data: (0..(1u64 << 16)).map(|i| st.at(i)).collect() }
+    }
+
+    /// Time one run of the kernel (ns).
+    pub fn time(&self) -> f64 {
+        let mut v = self.data[..1 << 14].to_vec();
+        let t0 = Instant::now();
+        let s = self.data.iter().fold(0u64, |a, &b| a.wrapping_add(b));
+        std::hint::black_box(s);
+        v.sort_unstable();
+        std::hint::black_box(&v);
+        t0.elapsed().as_nanos() as f64
+    }
+}
+
+impl Default for DriftProbe {
+    fn default() -> Self {
+        DriftProbe::new()
+    }
+}
+
 /// A fixed kernel: sum 4 Mi words and sort 1 Mi words of fixed pseudo-random data, single
 /// threaded. About 100 ms on a laptop core; the same work on every machine and version.
 pub fn yardstick() -> Yardstick {

@@ -207,6 +207,8 @@ pub fn sweep(
 
     let started = Instant::now();
     let mut outcome = Outcome::default();
+    let probe = super::machine::DriftProbe::new();
+    warmup_lap(plan);
     let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
     let min_sample_ns = clock.min_sample_ns();
 
@@ -412,9 +414,13 @@ pub fn sweep(
             }
         }
 
-        // Interleaved sampling.
+        // Interleaved sampling, with the drift probe timed once per round.
+        let mut probe_ns: Vec<f64> = Vec::new();
         loop {
             let mut any = false;
+            if active.iter().any(|a| a.error.is_none() && a.stop.is_none()) {
+                probe_ns.push(probe.time());
+            }
             for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
                 any = true;
                 let t = Instant::now();
@@ -485,13 +491,38 @@ pub fn sweep(
         }
 
         // Side by side.
-        let cmp = compare(plan, rows, &measured, opts.seed);
+        let mut cmp = compare(plan, rows, &measured, opts.seed);
+        if !probe_ns.is_empty() {
+            cmp.probe_ns = Some(crate::measure::stats::median(&probe_ns));
+        }
         if cmp.equivalence.status == EquivalenceStatus::Mismatch {
             outcome.mismatches += 1;
         }
         out.write(Record::Comparison(cmp))?;
     }
     Ok(outcome)
+}
+
+/// Run every design once on a small table before anything is timed, so the first measured
+/// size does not pay for the process's cold start (thread pool, lazily built tables, fresh
+/// heap pages). Failures here are ignored: the real run reports them.
+fn warmup_lap(plan: &Plan) {
+    let rows = plan.sizes.first().copied().unwrap_or(1).min(1000);
+    let Ok(df) = crate::table::generate(&plan.columns, plan.seed, rows) else { return };
+    let records = Records::from_frame(&df).ok().map(Arc::new);
+    for d in &plan.designs {
+        let mut v = match (d.feed, &records) {
+            (Feed::Records, Some(r)) => Value::Records(r.clone()),
+            _ => Value::Frame(df.clone()),
+        };
+        for s in &d.setup {
+            match s.runner.run(v.clone()) {
+                Ok(x) => v = x,
+                Err(_) => break,
+            }
+        }
+        let _ = run_design(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)));
+    }
 }
 
 /// Why sampling of `a` should stop now, if it should.
@@ -603,6 +634,7 @@ fn compare(plan: &Plan, rows: u64, measured: &[(String, Vec<f64>, f64, Option<Ou
         fastest: fastest.map(|f| f.0.clone()),
         ratios,
         equivalence: Equivalence { status, groups: groups.into_iter().map(|g| g.1).collect(), note },
+        probe_ns: None,
     }
 }
 

@@ -224,6 +224,10 @@ pub struct ComparisonRecord {
     pub fastest: Option<String>,
     pub ratios: Vec<Ratio>,
     pub equivalence: Equivalence,
+    /// Median time of the drift probe (a fixed kernel timed once per sampling round at
+    /// this size): how fast the machine itself was while this size was measured.
+    #[serde(default)]
+    pub probe_ns: Option<f64>,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]

@@ -4,12 +4,21 @@
 //! A point (design × size) is a **regression** only when both hold: the ratio of medians
 //! new/base exceeds the threshold (default 10%, or the workload's `gate.threshold`), and a
 //! two-sided Mann–Whitney test on the samples is significant (α = 0.05). Improvements are
-//! judged alike. A design has a **growth regression** when its time exponent over the sizes
+//! judged alike. A regression fails the gate when it is **confirmed**: seen at a
+//! neighbouring size of the same design too (or the design was compared at one size only).
+//! Samples within one run share that run's conditions, so a single point can differ between
+//! two runs by more than its own samples suggest; a change in the code shows at more than
+//! one size. Unconfirmed regressions are reported, not hidden. A design has a **growth regression** when its time exponent over the sizes
 //! both runs measured rose by 0.1 or more with the two bootstrap intervals apart, or its
 //! allocated-bytes exponent (exact counts) rose by 0.15 or more — even if no single size
-//! crossed the threshold. Points missing from either run are reported, not ignored. When the
-//! machines differ, ratios are also divided by the ratio of the runs' yardsticks, and the
-//! normalised ratio is the one judged. A newcomer must know: this works from saved results
+//! crossed the threshold. Points missing from either run are reported, not ignored.
+//!
+//! Machine speed: each size of a run also times a fixed drift probe in the same rounds as
+//! the designs, so a ratio can be divided by how much faster or slower the machine itself
+//! was at that size (a busy neighbour, a slower machine, another polars build affects the
+//! designs and the probe alike; a slower design does not move the probe). That corrected
+//! ratio is the one judged, and both are shown. Runs without probes fall back to dividing
+//! by the ratio of the runs' yardsticks when the machines differ. A newcomer must know: this works from saved results
 //! alone and never reruns anything.
 
 use super::stats::{hodges_lehmann_ratio_ci, mann_whitney, Method};
@@ -73,10 +82,19 @@ pub struct PointGate {
     /// Hodges–Lehmann interval of the ratio (95%), when the samples allow one.
     pub ratio_low: Option<f64>,
     pub ratio_high: Option<f64>,
-    /// Divided by the yardstick ratio (present when the machines differ).
+    /// The ratio corrected for the machine's own speed: divided by the drift probe's ratio at
+    /// this size (both runs timed the probe in the same rounds as the designs), or, without
+    /// probes, by the yardstick ratio when the machines differ. This is the ratio judged.
     pub normalised_ratio: Option<f64>,
+    /// What the ratio was divided by: "drift probe" or "yardstick".
+    #[serde(default)]
+    pub normalised_by: Option<String>,
     pub p_value: Option<f64>,
     pub call: Call,
+    /// A regression or improvement seen at a neighbouring size of the same design too (or
+    /// the design was compared at one size only). Only confirmed changes fail the gate.
+    #[serde(default)]
+    pub confirmed: bool,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -125,7 +143,11 @@ pub struct GateReport {
     pub workloads: Vec<WorkloadGate>,
     /// Workloads in one run only.
     pub unmatched_workloads: Vec<String>,
+    /// Confirmed point regressions.
     pub regressions: usize,
+    /// Point regressions seen at one size only (reported, not failing).
+    #[serde(default)]
+    pub unconfirmed_regressions: usize,
     pub growth_regressions: usize,
     pub improvements: usize,
     pub missing: usize,
@@ -176,6 +198,7 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         workloads: vec![],
         unmatched_workloads: vec![],
         regressions: 0,
+        unconfirmed_regressions: 0,
         growth_regressions: 0,
         improvements: 0,
         missing: 0,
@@ -214,8 +237,19 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
             for &(n, b, m) in &common {
                 let ratio = m.median_ns / b.median_ns;
                 let ci = hodges_lehmann_ratio_ci(&b.samples_ns, &m.samples_ns, 0.95).ok();
-                let p = mann_whitney(&m.samples_ns, &b.samples_ns, Method::Auto).ok().map(|t| t.p_two_sided);
-                let normalised = if machines_differ { yardstick_ratio.map(|y| ratio / y) } else { None };
+                let probe = match (bw.comparison(n).and_then(|c| c.probe_ns), nw.comparison(n).and_then(|c| c.probe_ns)) {
+                    (Some(pb), Some(pn)) if pb > 0.0 && pn > 0.0 => Some(pn / pb),
+                    _ => None,
+                };
+                let (normalised, by) = match (probe, machines_differ, yardstick_ratio) {
+                    (Some(pr), _, _) => (Some(ratio / pr), Some("drift probe".to_string())),
+                    (None, true, Some(y)) => (Some(ratio / y), Some("yardstick".to_string())),
+                    _ => (None, None),
+                };
+                // The rank test compares the samples after the same correction.
+                let scale = normalised.map(|x| x / ratio).unwrap_or(1.0);
+                let adjusted: Vec<f64> = m.samples_ns.iter().map(|v| v * scale).collect();
+                let p = mann_whitney(&adjusted, &b.samples_ns, Method::Auto).ok().map(|t| t.p_two_sided);
                 let call = judge(normalised.unwrap_or(ratio), p, threshold, opts.alpha);
                 wg.points.push(PointGate {
                     design: d.name.clone(),
@@ -223,12 +257,24 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
                     base_median_ns: b.median_ns,
                     new_median_ns: m.median_ns,
                     ratio,
-                    ratio_low: ci.map(|c| c.0),
-                    ratio_high: ci.map(|c| c.2),
+                    ratio_low: ci.map(|c| c.0 * scale),
+                    ratio_high: ci.map(|c| c.2 * scale),
                     normalised_ratio: normalised,
+                    normalised_by: by,
                     p_value: p,
                     call,
+                    confirmed: false,
                 });
+            }
+            // Confirmation: the same call at a neighbouring compared size of this design. A
+            // change in the code shows at more than one size; run-to-run noise of one point
+            // rarely repeats at the next (two independent tests).
+            let first = wg.points.len() - common.len();
+            let calls: Vec<Call> = wg.points[first..].iter().map(|p| p.call).collect();
+            for (k, p) in wg.points[first..].iter_mut().enumerate() {
+                let next_to = |j: Option<usize>| j.and_then(|j| calls.get(j)).is_some_and(|c| *c == p.call);
+                p.confirmed = matches!(p.call, Call::Regression | Call::Improvement)
+                    && (calls.len() == 1 || next_to(k.checked_sub(1)) || next_to(Some(k + 1)));
             }
             // Growth over the sizes both runs measured.
             let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
@@ -290,8 +336,9 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
                 wg.unmatched_designs.push(format!("{} (new run only)", d.name));
             }
         }
-        report.regressions += wg.points.iter().filter(|p| p.call == Call::Regression).count();
-        report.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement).count();
+        report.regressions += wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).count();
+        report.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
+        report.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
         report.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
         report.missing += wg.missing.len();
         report.workloads.push(wg);
