@@ -3,7 +3,7 @@
 //! The one thing to know: quantiles here are Hyndman & Fan (1996) type 7 —
 //! `h = (n−1)·p`, linear between the order statistics either side — the
 //! same definition as Python's `statistics.quantiles(..., method='inclusive')`
-//! and the default of R and NumPy, so numbers can be cross-checked there.
+//! and the default of R, so numbers can be cross-checked there.
 
 use super::FitError;
 
