@@ -163,7 +163,7 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
     // Growth: fitted classes beside the expectations, then the findings.
     let analysis = crate::analyse::analyse_workload(w, &crate::analyse::AnalyseOptions::default());
     s.push('\n');
-    let _ = writeln!(s, "  how cost grows (class by AICc over every sample; exponent = log-log slope, 95% bootstrap interval):");
+    let _ = writeln!(s, "  how cost grows (class chosen by AICc over each size's quartiles; exponent = log-log slope of medians, 95% bootstrap interval):");
     for (d, da) in h.designs.iter().zip(&analysis.designs) {
         let time = match (&da.time, &da.time_exponent) {
             (Some(t), Some(e)) => format!("time {} (exp {:.2} [{:.2}–{:.2}])", t.class, e.slope, e.low, e.high),
