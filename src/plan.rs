@@ -65,6 +65,10 @@ impl DesignPlan {
             format!("(untimed: {setup}) → {timed}")
         }
     }
+    /// The largest disk factor of its steps (0 when nothing is written).
+    pub fn disk_factor(&self) -> f64 {
+        self.setup.iter().chain(&self.steps).map(|s| s.def.disk_factor).fold(0.0, f64::max)
+    }
     /// The largest memory factor of its steps.
     pub fn memory_factor(&self) -> f64 {
         self.setup.iter().chain(&self.steps).map(|s| s.def.memory_factor).fold(1.0, f64::max)

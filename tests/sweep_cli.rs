@@ -135,3 +135,20 @@ fn bad_command_lines_exit_2() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("did you mean `build-once`?"));
 }
+
+#[test]
+fn steps_that_write_files_get_a_disk_estimate_checked_against_free_space() {
+    // The storage family declares a disk factor: --plan shows what a size would write and
+    // the temp folder's free space, and a size far beyond any disk is refused up front.
+    let plan = sweep(&["workloads/storage.yaml", "--sizes", "1k,20G", "--plan"]);
+    let text = String::from_utf8_lossy(&plan.stdout);
+    assert!(plan.status.success(), "{}", String::from_utf8_lossy(&plan.stderr));
+    assert!(text.contains("writes about") && text.contains("in the temp folder"), "{text}");
+    assert!(text.contains("free disk in"), "{text}");
+    assert!(text.contains("would refuse") && text.contains("free on disk"), "{text}");
+    let free = framecost::measure::memory::available_disk(&std::env::temp_dir()).expect("statvfs answers for the temp folder");
+    assert!(free > 0);
+    // A workload that writes nothing has no disk estimate.
+    let p = framecost::spec::load(std::path::Path::new("tests/data/tiny.yaml")).expect("spec");
+    assert_eq!(framecost::measure::memory::estimate(&p, 1_000_000, &[]).disk, 0.0);
+}

@@ -184,7 +184,11 @@ pub fn run(a: Args) -> i32 {
             println!("{} ({} designs):", p.name, p.designs.len());
             for &n in &p.sizes {
                 let e = crate::measure::memory::estimate(p, n, &[]);
-                println!("  {:>8} rows  needs {}", rows_label(n), e.describe());
+                if e.disk > 0.0 {
+                    println!("  {:>8} rows  needs {}; writes {}", rows_label(n), e.describe(), e.describe_disk());
+                } else {
+                    println!("  {:>8} rows  needs {}", rows_label(n), e.describe());
+                }
             }
             println!(
                 "  budgets: {} per point, {} whole run, precision ±{:.1}%, {}–{} samples",
@@ -194,6 +198,17 @@ pub fn run(a: Args) -> i32 {
                 p.budget.min_samples,
                 p.budget.max_samples
             );
+        }
+        if let Some(free) = crate::measure::memory::available_disk(&std::env::temp_dir()) {
+            if est.disk > free as f64 * opts.memory_share {
+                refused.push(format!(
+                    "{} at {} rows writes {}; {} free on disk",
+                    p.name,
+                    rows_label(largest),
+                    est.describe_disk(),
+                    crate::present::units::bytes(free as f64)
+                ));
+            }
         }
         if est.total() > avail as f64 * opts.memory_share {
             refused.push(format!(
@@ -207,6 +222,9 @@ pub fn run(a: Args) -> i32 {
     }
     if a.plan {
         println!("available memory now: {}", crate::present::units::bytes(avail as f64));
+        if let Some(free) = crate::measure::memory::available_disk(&std::env::temp_dir()) {
+            println!("free disk in {}: {}", std::env::temp_dir().display(), crate::present::units::bytes(free as f64));
+        }
         for r in &refused {
             println!("would refuse: {r}{}", if a.force { " (but --force is set)" } else { "" });
         }

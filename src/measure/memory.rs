@@ -4,7 +4,8 @@
 //! Before anything is measured, a size needs the table, the records made from it (for
 //! `feed: records`), and each design's working memory as its steps' memory factor times the
 //! table. Once a design has been measured at two or more sizes, its peak live bytes are
-//! extrapolated along their own log-log slope instead.
+//! extrapolated along their own log-log slope instead. Steps that write files (the storage
+//! family) also declare a disk factor, checked against the temp folder's free space.
 
 use crate::measure::stats::loglog_slope;
 use crate::plan::Plan;
@@ -20,11 +21,16 @@ pub struct Estimate {
     pub table: f64,
     pub records: f64,
     pub working: f64,
+    /// Bytes the largest-writing design puts in the temp folder.
+    pub disk: f64,
 }
 
 impl Estimate {
     pub fn total(&self) -> f64 {
         self.table + self.records + self.working
+    }
+    pub fn describe_disk(&self) -> String {
+        format!("about {} in the temp folder", crate::present::units::bytes(self.disk))
     }
     pub fn describe(&self) -> String {
         format!(
@@ -54,7 +60,18 @@ pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> E
             extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table)
         })
         .fold(0.0, f64::max);
-    Estimate { table, records, working }
+    let disk = plan.designs.iter().map(|d| d.disk_factor() * table).fold(0.0, f64::max);
+    Estimate { table, records, working, disk }
+}
+
+/// Bytes free for an unprivileged writer in the folder's file system (statvfs), if known.
+pub fn available_disk(dir: &std::path::Path) -> Option<u64> {
+    use std::os::unix::ffi::OsStrExt;
+    let path = std::ffi::CString::new(dir.as_os_str().as_bytes()).ok()?;
+    // SAFETY: statvfs writes into the struct we own; the path is a valid C string.
+    let mut st: libc::statvfs = unsafe { std::mem::zeroed() };
+    let rc = unsafe { libc::statvfs(path.as_ptr(), &mut st) };
+    (rc == 0).then(|| st.f_bavail as u64 * st.f_frsize as u64)
 }
 
 /// Peak at `rows` along the log-log slope of the last three measured peaks.

@@ -250,6 +250,35 @@ pub fn sweep(
             continue;
         }
 
+        // Disk: refuse a size whose files will not fit in the temp folder.
+        if est.disk > 0.0 && !opts.force {
+            if let Some(free) = memory::available_disk(&std::env::temp_dir()) {
+                if est.disk > free as f64 * opts.memory_share {
+                    for d in &plan.designs {
+                        skip_point(
+                            out,
+                            &d.name,
+                            SkipInfo {
+                                reason: SkipReason::Disk,
+                                predicted_ns: None,
+                                predicted_bytes: Some(est.disk),
+                                detail: format!(
+                                    "writes {}; {} free in {}, {:.0}% of it may be used (--force to run anyway)",
+                                    est.describe_disk(),
+                                    crate::present::units::bytes(free as f64),
+                                    std::env::temp_dir().display(),
+                                    opts.memory_share * 100.0
+                                ),
+                            },
+                        )?;
+                        outcome.skipped += 1;
+                        progress.point_done();
+                    }
+                    continue;
+                }
+            }
+        }
+
         // Which designs run at this size.
         let elapsed_run = started.elapsed().as_secs_f64();
         let mut runnable = Vec::new();

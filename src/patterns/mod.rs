@@ -265,6 +265,9 @@ pub struct StepDef {
     /// Rough peak working memory as a multiple of the input table's bytes, used to refuse
     /// sizes that would not fit before anything has been measured.
     pub memory_factor: f64,
+    /// Bytes it writes to disk as a multiple of the input table's bytes (0 for steps that
+    /// write nothing), used to refuse sizes whose files would not fit in the temp folder.
+    pub disk_factor: f64,
     /// The step modifies or consumes its input table, so each run gets a private deep copy
     /// made outside the timed region.
     pub private_input: bool,

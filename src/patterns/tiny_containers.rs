@@ -38,6 +38,7 @@ text column: linear time and bytes (the label's characters). Usually set-up for 
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 2.0,
+        disk_factor: 0.0,
         private_input: false,
         build: |p| Box::new(JoinText { first: p.count("first") as usize, count: p.count("count") as usize, sep: sep(p) }),
     },
@@ -61,6 +62,7 @@ times the size of the parts themselves (bytes and allocation count ∝ rows × c
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 6.0,
+        disk_factor: 0.0,
         private_input: false,
         build: |p| {
             Box::new(SplitPerRow { column: p.count("column") as usize, sep: sep(p), table: p.choice("container") == "table" })
@@ -76,6 +78,7 @@ per part, with a handful of allocations whatever the row count.",
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 3.0,
+        disk_factor: 0.0,
         private_input: false,
         build: |p| Box::new(SplitNative { column: p.count("column") as usize, sep: sep(p) }),
     },

@@ -145,6 +145,8 @@ pub enum SkipReason {
     SmallerSizeOverBudget,
     /// The size's estimated memory does not fit in what is available.
     Memory,
+    /// The files the size would write do not fit in the temp folder's free space.
+    Disk,
     /// A step failed at this or a smaller size.
     Failed,
 }
@@ -156,6 +158,7 @@ impl SkipReason {
             SkipReason::RunBudget => "predicted over run budget",
             SkipReason::SmallerSizeOverBudget => "smaller size over budget",
             SkipReason::Memory => "would not fit in memory",
+            SkipReason::Disk => "would not fit on disk",
             SkipReason::Failed => "failed",
         }
     }
