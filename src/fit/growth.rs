@@ -244,12 +244,8 @@ fn aicc(rss: f64, n: usize, k: usize) -> f64 {
         + 2.0 * kf * (kf + 1.0) / (nf - kf - 1.0)
 }
 
-/// Fit every growth class to `(sizes[i], values[i])` and pick one by AICc.
-///
-/// Sizes may repeat (several samples per size are welcome: they all count).
-/// Sizes and values must be finite and strictly positive; at least
-/// [`MIN_POINTS`] points and [`MIN_SIZES`] distinct sizes are needed.
-pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> {
+/// Sizes and values paired one to one, non-empty, finite and strictly positive.
+fn check_pairs(sizes: &[f64], values: &[f64]) -> Result<(), FitError> {
     if sizes.is_empty() {
         return Err(FitError::Empty);
     }
@@ -262,6 +258,16 @@ pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> 
     }
     check_positive("sizes", sizes)?;
     check_positive("values", values)?;
+    Ok(())
+}
+
+/// Fit every growth class to `(sizes[i], values[i])` and pick one by AICc.
+///
+/// Sizes may repeat (several samples per size are welcome: they all count).
+/// Sizes and values must be finite and strictly positive; at least
+/// [`MIN_POINTS`] points and [`MIN_SIZES`] distinct sizes are needed.
+pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> {
+    check_pairs(sizes, values)?;
     let n_points = sizes.len();
     if n_points < MIN_POINTS {
         return Err(FitError::TooFewPoints {
@@ -387,18 +393,7 @@ pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> 
 /// Ordinary least-squares slope of `ln y` on `ln n`: the apparent power-law
 /// exponent. Describes the data; do not classify with it (see module doc).
 pub fn loglog_slope(sizes: &[f64], values: &[f64]) -> Result<f64, FitError> {
-    if sizes.is_empty() {
-        return Err(FitError::Empty);
-    }
-    if values.len() != sizes.len() {
-        return Err(FitError::LengthMismatch {
-            what: "values",
-            expected: sizes.len(),
-            found: values.len(),
-        });
-    }
-    check_positive("sizes", sizes)?;
-    check_positive("values", values)?;
+    check_pairs(sizes, values)?;
     let u: Vec<f64> = sizes.iter().map(|n| n.ln()).collect();
     let v: Vec<f64> = values.iter().map(|y| y.ln()).collect();
     let m = u.len() as f64;
@@ -418,18 +413,7 @@ pub fn loglog_slope(sizes: &[f64], values: &[f64]) -> Result<f64, FitError> {
 /// at every step; `n·log₂ n` gives `2 + 2/log₂ n` on a doubling ladder.
 /// Sizes must strictly increase.
 pub fn doubling_ratios(sizes: &[f64], values: &[f64]) -> Result<Vec<f64>, FitError> {
-    if sizes.is_empty() {
-        return Err(FitError::Empty);
-    }
-    if values.len() != sizes.len() {
-        return Err(FitError::LengthMismatch {
-            what: "values",
-            expected: sizes.len(),
-            found: values.len(),
-        });
-    }
-    check_positive("sizes", sizes)?;
-    check_positive("values", values)?;
+    check_pairs(sizes, values)?;
     if sizes.len() < 2 {
         return Err(FitError::TooFewPoints {
             found: sizes.len(),

@@ -103,19 +103,14 @@ pub fn ratio_ci(a: &[f64], b: &[f64], resamples: usize, confidence: f64, seed: u
     Some((q(alpha), q(1.0 - alpha)))
 }
 
-/// Least-squares slope of ln(y) on ln(x): the empirical growth exponent.
+/// Least-squares slope of ln(y) on ln(x) over the pairs where both are positive: the
+/// empirical growth exponent (the fitting lives in `fit::growth::loglog_slope`).
 pub fn loglog_slope(x: &[f64], y: &[f64]) -> Option<f64> {
-    let pts: Vec<(f64, f64)> =
-        x.iter().zip(y).filter(|(a, b)| **a > 0.0 && **b > 0.0).map(|(a, b)| (a.ln(), b.ln())).collect();
-    if pts.len() < 2 {
+    let (px, py): (Vec<f64>, Vec<f64>) = x.iter().zip(y).filter(|(a, b)| **a > 0.0 && **b > 0.0).map(|(a, b)| (*a, *b)).unzip();
+    if px.len() < 2 {
         return None;
     }
-    let n = pts.len() as f64;
-    let mx = pts.iter().map(|p| p.0).sum::<f64>() / n;
-    let my = pts.iter().map(|p| p.1).sum::<f64>() / n;
-    let sxx: f64 = pts.iter().map(|p| (p.0 - mx).powi(2)).sum();
-    let sxy: f64 = pts.iter().map(|p| (p.0 - mx) * (p.1 - my)).sum();
-    (sxx > 0.0).then(|| sxy / sxx)
+    crate::fit::growth::loglog_slope(&px, &py).ok().filter(|s| s.is_finite())
 }
 
 #[cfg(test)]

@@ -25,25 +25,19 @@ struct Checker<'a> {
 }
 
 impl Checker<'_> {
+    /// A problem located at the value of `path`.
     fn at(&mut self, path: &YamlPath, message: impl Into<String>, hint: Option<String>) {
-        let p = self.loc.value(path).unwrap_or(super::locate::Pos { line: 1, column: 1 });
-        self.issues.push(SpecIssue {
-            file: self.file.to_string(),
-            line: p.line,
-            column: p.column,
-            message: format!("{}: {}", path, message.into()),
-            hint,
-        });
+        let p = self.loc.value(path);
+        self.push(p, path, message.into(), hint);
     }
+    /// A problem located at the key of `path` (an unknown or misplaced key).
     fn at_key(&mut self, path: &YamlPath, message: impl Into<String>, hint: Option<String>) {
-        let p = self.loc.key(path).unwrap_or(super::locate::Pos { line: 1, column: 1 });
-        self.issues.push(SpecIssue {
-            file: self.file.to_string(),
-            line: p.line,
-            column: p.column,
-            message: format!("{}: {}", path, message.into()),
-            hint,
-        });
+        let p = self.loc.key(path);
+        self.push(p, path, message.into(), hint);
+    }
+    fn push(&mut self, at: Option<super::locate::Pos>, path: &YamlPath, message: String, hint: Option<String>) {
+        let p = at.unwrap_or(super::locate::Pos { line: 1, column: 1 });
+        self.issues.push(SpecIssue { file: self.file.to_string(), line: p.line, column: p.column, message: format!("{path}: {message}"), hint });
     }
     fn share(&mut self, path: &YamlPath, v: f64, what: &str) -> f64 {
         if !(0.0..=1.0).contains(&v) || !v.is_finite() {
