@@ -2,13 +2,14 @@
 //! Norris (lower difficulty), Longley (ill-conditioned, cond ≈ 4.9e9) and
 //! Wampler1 (degree-5 polynomial, exact).
 //!
-//! The data files are read from `../shared/reference-data/` beside the crate
-//! root. A missing file fails the test: a reference check that silently
-//! skips is no check.
+//! The data files live in `tests/data/reference/` (see the README there for
+//! their sources: NIST StRD, public domain, as shipped in the scipy 1.17.1 and
+//! statsmodels 0.15.0 wheels). A missing file fails the test: a reference
+//! check that silently skips is no check.
 
 use framecost::fit::lsq::solve;
 
-const DATA_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/../shared/reference-data");
+const DATA_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/reference");
 
 fn read_reference(name: &str) -> String {
     let path = format!("{DATA_DIR}/{name}");
