@@ -193,8 +193,13 @@ fn fit_reports_coefficients_and_evidence() {
     assert_eq!(fit.best, GrowthClass::Quadratic);
     assert!((fit.b - 2.0).abs() < 1e-9, "b {}", fit.b);
     assert!((fit.a - 3.0).abs() < 1e-3, "a {}", fit.a);
-    assert!(fit.evidence_weight > 0.99 && fit.evidence_weight <= 1.0);
-    assert!(fit.delta_aicc > 10.0);
+    // The n³ class is fitted with its lower-order terms (a + b·n + c·n² + d·n³), so it fits
+    // this curve exactly too, with one useless parameter more: at N = 10 its AICc is 6 units
+    // worse (2 for the parameter, 4 from the small-sample correction), an Akaike weight of
+    // 1/(1 + e^-3) ≈ 0.95 for n².
+    assert!(fit.evidence_weight > 0.9 && fit.evidence_weight <= 1.0, "{}", fit.evidence_weight);
+    assert!(fit.delta_aicc > 5.0, "{}", fit.delta_aicc);
+    assert_eq!(fit.alternative, None);
     assert_eq!(fit.candidates.len(), GrowthClass::ALL.len());
     let best = fit.candidate(GrowthClass::Quadratic).expect("candidate");
     for c in &fit.candidates {

@@ -7,7 +7,8 @@
 //! quartiles (three points per size), bytes and peaks on one value per size (they are exact counts), so bytes
 //! need five measured sizes for a class and fall back to the exponent alone below that.
 
-use crate::fit::growth::{doubling_ratios, exponent_with_ci, fit_growth, GrowthClass, GrowthFit};
+use crate::fit::growth::{curve_at, doubling_ratios, exponent_with_ci, fit_growth, GrowthClass, GrowthFit, Term};
+use crate::fit::FitError;
 use crate::fit::predict::{crossover, predict, Which};
 use crate::results::reader::{RunResults, WorkloadResults};
 use serde::{Deserialize, Serialize};
@@ -41,8 +42,19 @@ pub struct WorkloadAnalysis {
 /// One metric's growth.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct GrowthOut {
-    /// "constant", "log n", "n", "n log n", "n²", "n³".
+    /// "constant", "log n", "n", "n log n", "n²", "n³", or "unclear" when no class agrees
+    /// with the measured slope (then `terms` is empty and `top_slope` says what was seen).
     pub class: String,
+    /// A faster-growing class the data cannot tell apart from `class` ("n or n log n").
+    #[serde(default)]
+    pub alternative: Option<String>,
+    /// The fitted curve: (term label, coefficient), all coefficients ≥ 0.
+    #[serde(default)]
+    pub terms: Vec<(String, f64)>,
+    /// Log-log slope of the per-size medians over the largest sizes (what the class was
+    /// checked against).
+    #[serde(default)]
+    pub top_slope: Option<f64>,
     pub a: f64,
     pub b: f64,
     pub runner_up: Option<String>,
@@ -72,6 +84,15 @@ pub struct PredictionOut {
     /// Decades past the largest fitted size.
     pub extrapolation_decades: f64,
     pub far: bool,
+    /// The interval spans more than ×10: an order of magnitude only.
+    #[serde(default)]
+    pub rough: bool,
+    /// The class predicted with, and the alternative class whose prediction widened the
+    /// interval (when the data cannot tell the two apart).
+    #[serde(default)]
+    pub class: String,
+    #[serde(default)]
+    pub alternative: Option<String>,
 }
 
 /// A prediction checked against a size that was measured but not fitted.
@@ -116,11 +137,66 @@ pub struct CrossoverOut {
     pub rows_low: f64,
     pub rows_high: f64,
     pub inside_measured: bool,
+    /// The crossing's interval ends inside the search range on both sides (the prediction
+    /// bands separate again): a crossover whose interval runs to the end of the search is
+    /// not a finding.
+    #[serde(default)]
+    pub bounded: bool,
+}
+
+impl GrowthOut {
+    /// "n", "n or n log n", or "unclear (slope 0.42)".
+    pub fn label(&self) -> String {
+        match (&self.alternative, self.class.as_str(), self.top_slope) {
+            (_, "unclear", Some(s)) => format!("unclear (slope {s:.2})"),
+            (Some(alt), c, _) => format!("{c} or {alt}"),
+            (None, c, _) => c.to_string(),
+        }
+    }
+
+    /// The fitted cost at `n` (None when unclear or from an old analysis without terms).
+    pub fn cost_at(&self, n: f64) -> Option<f64> {
+        if self.terms.is_empty() {
+            return None;
+        }
+        let terms: Vec<(Term, f64)> = self.terms.iter().filter_map(|(t, c)| Term::from_label(t).map(|t| (t, *c))).collect();
+        Some(curve_at(&terms, n))
+    }
+
+    /// A growth that no class explains.
+    fn unclear(slope: f64, sizes: usize) -> GrowthOut {
+        GrowthOut {
+            class: "unclear".into(),
+            alternative: None,
+            terms: vec![],
+            top_slope: Some(slope),
+            a: 0.0,
+            b: 0.0,
+            runner_up: None,
+            delta_aicc: 0.0,
+            evidence_weight: 0.0,
+            sizes,
+            residual_sd: 0.0,
+        }
+    }
+}
+
+/// A growth fit for the analysis: the class, or "unclear" when no class agrees with the
+/// slope; other fit failures are returned as the note to record.
+fn growth_out(fit: &Result<GrowthFit, FitError>, sizes: usize) -> Result<GrowthOut, String> {
+    match fit {
+        Ok(f) => Ok(out(f)),
+        Err(FitError::NoClassAgrees { slope }) => Ok(GrowthOut::unclear(*slope, sizes)),
+        Err(e) => Err(e.to_string()),
+    }
 }
 
 fn out(f: &GrowthFit) -> GrowthOut {
     GrowthOut {
         class: f.best.label().to_string(),
+        alternative: f.alternative.map(|c| c.label().to_string()),
+        terms: f.terms.iter().map(|(t, c)| (t.label().to_string(), *c)).collect(),
+        top_slope: Some(f.top_slope),
         a: f.a,
         b: f.b,
         runner_up: f.runner_up.map(|c| c.label().to_string()),
@@ -168,6 +244,28 @@ pub fn fit_time(measured: &[(u64, &crate::results::Measured)], seed: u64) -> (Re
     (fit_growth(&xs, &ys), exponent)
 }
 
+/// The prediction of a fit at `rows`: its own class's interval, widened to cover the
+/// alternative class's interval when the data cannot tell the two apart.
+pub fn predict_with_alternative(f: &GrowthFit, rows: u64, max_fitted: f64) -> Option<PredictionOut> {
+    let p = predict(f, rows as f64, max_fitted).ok()?;
+    let alt = f.alternative.and_then(|c| f.as_class(c)).and_then(|g| predict(&g, rows as f64, max_fitted).ok());
+    let (low, high) = match alt {
+        Some(a) => (p.lo.min(a.lo), p.hi.max(a.hi)),
+        None => (p.lo, p.hi),
+    };
+    Some(PredictionOut {
+        rows,
+        median: p.median,
+        low,
+        high,
+        extrapolation_decades: p.extrapolation_decades,
+        far: p.warn_far,
+        rough: high > 10.0 * low,
+        class: f.best.label().to_string(),
+        alternative: alt.and(f.alternative).map(|c| c.label().to_string()),
+    })
+}
+
 /// Analyse every workload of a run.
 pub fn analyse(r: &RunResults, opts: &AnalyseOptions) -> Analysis {
     Analysis { workloads: r.workloads.iter().map(|w| analyse_workload(w, opts)).collect() }
@@ -189,21 +287,33 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
     for d in &w.header.designs {
         let pts: Vec<_> = w.design_points(&d.name).into_iter().filter(|p| p.measured.is_some()).collect();
         let mut used: Vec<_> = pts.iter().filter(|p| p.rows <= limit).collect();
+        let mut notes = Vec::new();
+        // Points measured on a busy machine never decide a class, as long as enough clean
+        // sizes remain to fit one.
+        let busy = used.iter().filter(|p| p.measured.as_ref().is_some_and(|m| m.is_contaminated())).count();
+        if busy > 0 {
+            if used.len() - busy >= crate::fit::growth::MIN_SIZES {
+                used.retain(|p| !p.measured.as_ref().is_some_and(|m| m.is_contaminated()));
+                notes.push(format!("{busy} size(s) measured on a busy machine were left out of the fits"));
+            } else {
+                notes.push(format!("{busy} size(s) were measured on a busy machine and too few clean ones remain: the fits include them"));
+            }
+        }
         if let Some(k) = opts.top_sizes {
             let drop = used.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
             used.drain(..drop);
         }
-        let mut notes = Vec::new();
         let measured: Vec<(u64, &crate::results::Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
         let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
-        let (time, time_exponent) = fit_time(&measured, seed);
-        let time = match time {
-            Ok(f) => Some(f),
+        let (time_fit, time_exponent) = fit_time(&measured, seed);
+        let time_out = match growth_out(&time_fit, measured.len()) {
+            Ok(g) => Some(g),
             Err(e) => {
                 notes.push(format!("time: no growth class ({e})"));
                 None
             }
         };
+        let time = time_fit.ok();
         let medians: Vec<(f64, f64)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m.median_ns))).collect();
         let doubling = if medians.len() >= 2 {
             let (x, y): (Vec<f64>, Vec<f64>) = medians.iter().copied().unzip();
@@ -213,30 +323,23 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         } else {
             vec![]
         };
-        let metric = |get: &dyn Fn(&crate::results::Measured) -> f64| -> (Option<GrowthFit>, Option<f64>) {
+        let metric = |get: &dyn Fn(&crate::results::Measured) -> f64| -> (Result<GrowthFit, FitError>, Option<f64>) {
             let v: Vec<(f64, f64)> =
                 used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
             let (x, y): (Vec<f64>, Vec<f64>) = v.iter().copied().unzip();
             let slope = crate::fit::growth::loglog_slope(&x, &y).ok();
-            (fit_growth(&x, &y).ok(), slope)
+            (fit_growth(&x, &y), slope)
         };
-        let (bytes_fit, bytes_exponent) = metric(&|m| m.alloc.bytes as f64);
-        let (peak_fit, peak_exponent) = metric(&|m| m.alloc.peak_live as f64);
-        if bytes_fit.is_none() && bytes_exponent.is_some() {
+        let (bytes_res, bytes_exponent) = metric(&|m| m.alloc.bytes as f64);
+        let (peak_res, peak_exponent) = metric(&|m| m.alloc.peak_live as f64);
+        let (bytes_out, peak_out) = (growth_out(&bytes_res, measured.len()).ok(), growth_out(&peak_res, measured.len()).ok());
+        let bytes_fit = bytes_res.ok();
+        if bytes_out.is_none() && bytes_exponent.is_some() {
             notes.push("bytes: fewer than 5 measured sizes, exponent only".into());
         }
         let max_fitted = used.iter().map(|p| p.rows).max().unwrap_or(0) as f64;
         let min_fitted = used.iter().map(|p| p.rows).min().unwrap_or(0) as f64;
-        let pred = |f: &Option<GrowthFit>, rows: u64| {
-            f.as_ref().and_then(|f| predict(f, rows as f64, max_fitted).ok()).map(|p| PredictionOut {
-                rows,
-                median: p.median,
-                low: p.lo,
-                high: p.hi,
-                extrapolation_decades: p.extrapolation_decades,
-                far: p.warn_far,
-            })
-        };
+        let pred = |f: &Option<GrowthFit>, rows: u64| predict_with_alternative(f.as_ref()?, rows, max_fitted);
         let prediction = predict_at.and_then(|n| pred(&time, n));
         let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));
         let holdout = pts
@@ -259,12 +362,12 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         designs.push(DesignAnalysis {
             design: d.name.clone(),
             measured_sizes: pts.iter().map(|p| p.rows).collect(),
-            time: time.as_ref().map(out),
+            time: time_out,
             time_exponent,
             doubling,
-            bytes: bytes_fit.as_ref().map(out),
+            bytes: bytes_out,
             bytes_exponent,
-            peak: peak_fit.as_ref().map(out),
+            peak: peak_out,
             peak_exponent,
             prediction,
             bytes_prediction,
@@ -296,6 +399,7 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
                     rows_low: c.n_lo,
                     rows_high: c.n_hi,
                     inside_measured: c.inside_measured,
+                    bounded: c.n_hi < far * 0.999 && c.n_lo > lo * 1.001,
                 });
             }
         }

@@ -65,14 +65,14 @@ pub fn run(a: Args) -> i32 {
             let t = d.time.as_ref().map(|t| {
                 format!(
                     "time {} (runner-up {}, ΔAICc {:.1}, weight {:.2})",
-                    t.class,
+                    t.label(),
                     t.runner_up.clone().unwrap_or_else(|| "none".into()),
                     t.delta_aicc,
                     t.evidence_weight
                 )
             });
-            let b = d.bytes.as_ref().map(|b| format!("bytes {}", b.class)).or(d.bytes_exponent.map(|e| format!("bytes exp {e:.2}")));
-            let p = d.peak.as_ref().map(|b| format!("peak {}", b.class)).or(d.peak_exponent.map(|e| format!("peak exp {e:.2}")));
+            let b = d.bytes.as_ref().map(|b| format!("bytes {}", b.label())).or(d.bytes_exponent.map(|e| format!("bytes exp {e:.2}")));
+            let p = d.peak.as_ref().map(|b| format!("peak {}", b.label())).or(d.peak_exponent.map(|e| format!("peak exp {e:.2}")));
             let parts: Vec<String> = [t, b, p].into_iter().flatten().collect();
             println!("  {:<24} {}", d.design, parts.join(" · "));
             if let Some(pr) = &d.prediction {
@@ -83,7 +83,11 @@ pub fn run(a: Args) -> i32 {
                     crate::present::units::time_ns(pr.median),
                     crate::present::units::time_ns(pr.low),
                     crate::present::units::time_ns(pr.high),
-                    if pr.far { " (far past the measured sizes)" } else { "" }
+                    match (pr.far, pr.rough) {
+                        (_, true) => " (an order of magnitude only: the interval spans more than ×10)",
+                        (true, false) => " (far past the measured sizes)",
+                        _ => "",
+                    }
                 );
             }
             for h in &d.holdout {
@@ -102,12 +106,16 @@ pub fn run(a: Args) -> i32 {
             }
         }
         for c in &wa.crossovers {
+            // An interval that runs to the end of the search is no information: say so.
+            let range = if c.bounded {
+                format!(" [{}–{}]", crate::present::units::rows_label_f(c.rows_low), crate::present::units::rows_label_f(c.rows_high))
+            } else {
+                " (its interval is unbounded: the curves are too close to place it)".to_string()
+            };
             println!(
-                "  crossover: `{}` is cheaper below about {} rows [{}–{}], `{}` above{}",
+                "  crossover of the fitted curves: `{}` is cheaper below about {} rows{range}, `{}` above{}",
                 c.faster_below,
                 crate::present::units::rows_label_f(c.rows),
-                crate::present::units::rows_label_f(c.rows_low),
-                crate::present::units::rows_label_f(c.rows_high),
                 c.faster_above,
                 if c.inside_measured { " (inside the measured sizes)" } else { " (predicted beyond them)" }
             );

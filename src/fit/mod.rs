@@ -8,8 +8,8 @@
 //! - [`sample`]: median and the type-7 sample quantile;
 //! - [`dist`]: Student-t distribution (CDF and quantile) for intervals;
 //! - [`lsq`]: weighted linear least squares by Householder QR;
-//! - [`growth`]: fit `cost = a + b·f(n)` for each growth class and pick one
-//!   by AICc; log-log slopes, doubling ratios and bootstrap exponents;
+//! - [`growth`]: fit each growth class with its lower-order terms (non-negative
+//!   coefficients) and pick one by AICc, checked against the log-log slope; log-log slopes, doubling ratios and bootstrap exponents;
 //! - [`predict`](mod@predict): cost at an unmeasured size with a prediction interval, and
 //!   the size where two designs cross.
 //!
@@ -31,8 +31,8 @@ pub mod sample;
 use std::fmt;
 
 pub use growth::{
-    doubling_ratios, exponent_with_ci, fit_growth, loglog_slope, Candidate, ExponentEstimate,
-    GrowthClass, GrowthFit, Rejection,
+    admissible_slopes, curve_at, doubling_ratios, exponent_with_ci, fit_growth, loglog_slope, Candidate,
+    ExponentEstimate, GrowthClass, GrowthFit, Rejection, Term,
 };
 pub use lsq::{solve, LsqFit};
 pub use predict::{crossover, predict, Crossover, Prediction, Which};
@@ -76,6 +76,9 @@ pub enum FitError {
     /// The inputs were valid but the arithmetic overflowed or lost all
     /// precision (for example values near 1e300).
     Numerical { detail: String },
+    /// Every growth class was fitted, but none agrees with the measured
+    /// log-log slope over the largest sizes: the growth is unclear.
+    NoClassAgrees { slope: f64 },
 }
 
 impl fmt::Display for FitError {
@@ -117,6 +120,10 @@ impl fmt::Display for FitError {
             }
             FitError::BadArgument { what, detail } => write!(f, "{what}: {detail}"),
             FitError::Numerical { detail } => write!(f, "numerical failure: {detail}"),
+            FitError::NoClassAgrees { slope } => write!(
+                f,
+                "unclear: no growth class agrees with the log-log slope {slope:.2} over the largest sizes"
+            ),
         }
     }
 }

@@ -8,11 +8,15 @@
 //! `σ·√(x₀ᵀ(XᵀWX)⁻¹x₀)`. The 95 % prediction interval is
 //!
 //! ```text
-//! ŷ ± t(0.975, dof) · σ · √(x₀ᵀ (XᵀWX)⁻¹ x₀ + ŷ²),   x₀ = [1, f(n)]
+//! ŷ · exp(± t(0.975, dof) · s),   s = σ · √(x₀ᵀ (XᵀWX)⁻¹ x₀ / ŷ² + 1)
 //! ```
 //!
-//! with `t` the Student-t quantile on the fit's residual degrees of freedom.
-//! The lower end is clamped at 0 (a cost cannot be negative). Far outside the
+//! with `x₀` the fitted terms at `n` and `t` the Student-t quantile on the
+//! fit's residual degrees of freedom: the relative half-width `t·s` of the
+//! usual interval, applied on the log scale, so the interval is never cut at
+//! zero and is as wide in ratio above as below (a cost is positive and its
+//! noise multiplicative). An interval whose ends are more than ×10 apart is
+//! marked [`Prediction::rough`]: an order of magnitude only. Far outside the
 //! measured sizes the interval only reflects noise *given the class is
 //! right*; a wrong class is not in it — hence [`Prediction::warn_far`].
 //!
@@ -41,7 +45,7 @@ pub const GRID_PER_DECADE: usize = 50;
 pub struct Prediction {
     /// Fitted cost ŷ(n): the median of a new measurement under symmetric noise.
     pub median: f64,
-    /// Lower end of the 95 % prediction interval (≥ 0).
+    /// Lower end of the 95 % prediction interval (> 0).
     pub lo: f64,
     /// Upper end of the 95 % prediction interval.
     pub hi: f64,
@@ -49,6 +53,8 @@ pub struct Prediction {
     pub extrapolation_decades: f64,
     /// True when `n` is more than one decade past the largest measured size.
     pub warn_far: bool,
+    /// True when `hi / lo > 10`: read the prediction as an order of magnitude.
+    pub rough: bool,
 }
 
 /// Cost of `fit`'s chosen class at size `n`, with a 95 % prediction interval
@@ -75,23 +81,30 @@ pub fn predict(fit: &GrowthFit, n: f64, measured_max_n: f64) -> Result<Predictio
             value: measured_max_n,
         });
     }
-    let x0 = fit.best.design_row(n);
+    let x0 = fit.row(n);
     let median = fit.lsq.fitted(&x0);
-    let spread = fit.lsq.quad_form(&x0).max(0.0) + median * median;
+    if !(median.is_finite() && median > 0.0) {
+        return Err(FitError::Numerical {
+            detail: format!("prediction at n = {n} is not a positive finite cost ({median})"),
+        });
+    }
     let t = student_t_quantile(0.975, fit.lsq.dof as f64)?;
-    let half = t * fit.lsq.residual_sd * spread.sqrt();
-    if !(median.is_finite() && half.is_finite()) {
+    let rel = fit.lsq.residual_sd * (fit.lsq.quad_form(&x0).max(0.0) / (median * median) + 1.0).sqrt();
+    let half = t * rel;
+    if !half.is_finite() {
         return Err(FitError::Numerical {
             detail: format!("prediction at n = {n} overflows"),
         });
     }
+    let (lo, hi) = (median * (-half).exp(), median * half.exp());
     let extrapolation_decades = (n / measured_max_n).log10().max(0.0);
     Ok(Prediction {
         median,
-        lo: (median - half).max(0.0),
-        hi: median + half,
+        lo,
+        hi,
         extrapolation_decades,
         warn_far: extrapolation_decades > 1.0,
+        rough: hi > 10.0 * lo,
     })
 }
 

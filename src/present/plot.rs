@@ -214,12 +214,11 @@ pub fn scaling<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadRes
         // The fitted growth curve over the measured range, then continued (dashed) to the target.
         if let Some(fit) = a.designs.get(i).and_then(|da| da.time.as_ref()) {
             if let (Some(first), Some(last)) = (measured.first(), measured.last()) {
-                let class = crate::analyse::class_of(&fit.class);
-                let f = |n: f64| fit.a + fit.b * class.map(|c| c.shape(n)).unwrap_or(0.0);
+                let f = |n: f64| fit.cost_at(n).unwrap_or(f64::NAN);
                 let curve = |from: f64, to: f64| -> Vec<(i32, i32)> {
                     (0..=60)
                         .map(|k| from * (to / from).powf(k as f64 / 60.0))
-                        .map(|n| (n, f(n).clamp(y0, y1)))
+                        .filter_map(|n| f(n).is_finite().then(|| (n, f(n).clamp(y0, y1))))
                         .map(|(n, y)| to_local(to_px(&chart, n, y)))
                         .collect()
                 };
@@ -251,7 +250,7 @@ pub fn scaling<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadRes
         }
     }
     // Crossovers: a dotted vertical rule with the size.
-    for c in &a.crossovers {
+    for c in a.crossovers.iter().filter(|c| c.bounded || c.inside_measured) {
         if c.rows > x0 && c.rows < x1 {
             let top = to_local(to_px(&chart, c.rows, y1));
             let bottom = to_local(to_px(&chart, c.rows, y0));
