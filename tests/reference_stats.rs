@@ -1,10 +1,8 @@
 //! Measurement statistics checked against Python's standard library (3.11, no install):
 //! the ranks of the median's distribution-free 95% interval against exact binomial sums from
-//! `math.comb`, and hdrhistogram percentiles against `statistics.quantiles` (type 7) within
-//! the bound derived in REFERENCES.md for hdrhistogram 7.x at 3 significant digits.
+//! `math.comb`, and the percentiles the runner stores against `statistics.quantiles` (type 7).
 
 use framecost::measure::stats::median_ci_ranks;
-use hdrhistogram::Histogram;
 use std::process::Command;
 
 fn python(code: &str) -> String {
@@ -35,26 +33,32 @@ fn median_interval_ranks_agree_with_exact_binomial_sums() {
 }
 
 #[test]
-fn hdr_percentiles_agree_with_type7_quantiles_within_the_known_bound() {
-    // Skewed, timing-like data: a deterministic log-normal-ish spread of 1000 values (ns).
+fn stored_percentiles_equal_type7_quantiles() {
+    // The function the runner stores p50/p90/p99/max with (`summarize` calls it).
+    // Skewed, timing-like data: a deterministic spread of 1000 values (ns) at three scales —
+    // microseconds, milliseconds and seconds — so a store that clamps at a small top value
+    // (the old bug: every stored percentile was 2 ns) cannot pass; plus a bimodal set with an
+    // even count, where a nearest-rank p50 would sit far from the median.
     let st = framecost::table::rng::Stream::new(5, "hdr", 0);
-    let data: Vec<u64> = (0..1000).map(|i| (20_000.0 * (1.0 + 3.0 * st.unit(i).powi(3))) as u64).collect();
-    let mut h = Histogram::<u64>::new(3).expect("hist");
-    for &x in &data {
-        h.record(x).expect("record");
+    let mut sets: Vec<Vec<f64>> = [20_000.0, 3.0e7, 2.5e9]
+        .iter()
+        .map(|scale| (0..1000).map(|i| (scale * (1.0 + 3.0 * st.unit(i).powi(3))).round()).collect())
+        .collect();
+    sets.push((0..20).map(|i| if i % 2 == 0 { 400_000.0 + i as f64 } else { 6_600_000.0 + i as f64 }).collect());
+    for data in sets {
+        let got = framecost::measure::stats::tail_percentiles(&data).expect("samples");
+        // Reference [computed]: Python's statistics.quantiles(method='inclusive') is
+        // Hyndman & Fan type 7 (REFERENCES.md, "Python standard library as a reference").
+        let code = format!(
+            "import statistics\nd={data:?}\nq=statistics.quantiles(d, n=100, method='inclusive')\nprint(q[49], q[89], q[98], max(d), statistics.median(d))\n"
+        );
+        let want: Vec<f64> = python(&code).split_whitespace().map(|x| x.parse().expect("float")).collect();
+        for (name, stored, reference) in [("p50", got.p50, want[0]), ("p90", got.p90, want[1]), ("p99", got.p99, want[2]), ("max", got.max, want[3])] {
+            assert!((stored - reference).abs() <= 1e-9 * reference.abs(), "{name}: stored {stored} vs Python {reference}");
+        }
+        assert!((got.p50 - want[4]).abs() <= 1e-9 * want[4], "p50 {} is the median {}", got.p50, want[4]);
     }
-    let code = format!(
-        "import statistics\nd={data:?}\nq=statistics.quantiles(d, n=100, method='inclusive')\nprint(q[49], q[89], q[98])\n"
-    );
-    let q7: Vec<f64> = python(&code).split_whitespace().map(|x| x.parse().expect("float")).collect();
-    let mut sorted = data.clone();
-    sorted.sort_unstable();
-    for (q, want) in [(0.5, q7[0]), (0.9, q7[1]), (0.99, q7[2])] {
-        let got = h.value_at_quantile(q) as f64;
-        let k = ((q * 1000.0f64).ceil() as usize).max(1); // nearest rank, 1-based
-        let bound = (sorted[k] - sorted[k - 2]) as f64 + sorted[k - 1] as f64 / 1024.0;
-        assert!((got - want).abs() <= bound, "q={q}: hdr {got} vs type-7 {want}, bound {bound}");
-    }
+    assert!(framecost::measure::stats::tail_percentiles(&[]).is_none());
 }
 
 #[test]

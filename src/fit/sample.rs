@@ -49,6 +49,31 @@ pub fn median(values: &[f64]) -> Result<f64, FitError> {
     quantile(values, 0.5)
 }
 
+/// p50, p90, p99 and the largest of a point's samples (ns), as stored in `points.jsonl`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TailPercentiles {
+    pub p50: f64,
+    pub p90: f64,
+    pub p99: f64,
+    pub max: f64,
+}
+
+/// The percentiles the runner stores, exact, from every recorded sample: Hyndman & Fan
+/// type 7 (linear between order statistics, as Python's
+/// `statistics.quantiles(method='inclusive')`), so p50 is the median itself. Every sample
+/// is kept, so nothing is gained from a histogram's buckets, and a histogram's nearest-rank
+/// convention would put p50 apart from the median when samples are bimodal. Non-finite
+/// samples are ignored. `None` without samples.
+pub fn tail_percentiles(samples: &[f64]) -> Option<TailPercentiles> {
+    let mut s: Vec<f64> = samples.iter().copied().filter(|x| x.is_finite()).collect();
+    if s.is_empty() {
+        return None;
+    }
+    s.sort_by(f64::total_cmp);
+    let q = |p: f64| quantile_sorted(&s, p);
+    Some(TailPercentiles { p50: q(0.5), p90: q(0.9), p99: q(0.99), max: s[s.len() - 1] })
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

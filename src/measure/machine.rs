@@ -92,13 +92,22 @@ impl DriftProbe {
 
     /// Time one run of the kernel (ns).
     pub fn time(&self) -> f64 {
+        self.time_with_cpu().0
+    }
+
+    /// Time one run of the kernel: (wall ns, this thread's CPU ns). The kernel is
+    /// single-threaded, so CPU below wall means the thread waited for a core.
+    pub fn time_with_cpu(&self) -> (f64, f64) {
         let mut v = self.data[..1 << 14].to_vec();
+        let c0 = super::hygiene::thread_cpu_ns();
         let t0 = Instant::now();
         let s = self.data.iter().fold(0u64, |a, &b| a.wrapping_add(b));
         std::hint::black_box(s);
         v.sort_unstable();
         std::hint::black_box(&v);
-        t0.elapsed().as_nanos() as f64
+        let wall = t0.elapsed().as_nanos() as f64;
+        let cpu = super::hygiene::thread_cpu_ns().saturating_sub(c0) as f64;
+        (wall, cpu)
     }
 }
 

@@ -19,7 +19,6 @@ use crate::plan::{DesignPlan, Plan};
 use crate::results::writer::{RunWriter, WriteError};
 use crate::results::*;
 use crate::spec::model::Feed;
-use hdrhistogram::Histogram;
 use polars::prelude::DataFrame;
 use std::sync::Arc;
 use std::time::Instant;
@@ -93,6 +92,9 @@ struct Active<'a> {
     cpu: Vec<f64>,
     allocs: Vec<AllocStats>,
     spent_s: f64,
+    /// Involuntary context switches of the process and the seconds over which they were
+    /// counted, while this design was sampled.
+    switches: (u64, f64),
     output: Option<OutputFacts>,
     stop: Option<StopReason>,
     error: Option<String>,
@@ -198,6 +200,7 @@ pub fn sweep(
                 },
                 expect_time: d.expect_time.map(str::to_string),
                 expect_bytes: d.expect_bytes.map(str::to_string),
+                expect_dtypes: d.expect_dtypes.iter().map(|(c, t)| (c.clone(), t.to_string())).collect(),
             })
             .collect(),
         outputs_differ: plan.outputs_differ.clone(),
@@ -397,6 +400,7 @@ pub fn sweep(
                     cpu: Vec::new(),
                     allocs: Vec::new(),
                     spent_s: 0.0,
+                    switches: (0, 0.0),
                     output: None,
                     stop: None,
                     error,
@@ -444,16 +448,20 @@ pub fn sweep(
         }
 
         // Interleaved sampling, with the drift probe timed once per round.
-        let mut probe_ns: Vec<f64> = Vec::new();
+        let mut probe_runs: Vec<(f64, f64)> = Vec::new();
         loop {
             let mut any = false;
             if active.iter().any(|a| a.error.is_none() && a.stop.is_none()) {
-                probe_ns.push(probe.time());
+                probe_runs.push(probe.time_with_cpu());
             }
             for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
                 any = true;
                 let t = Instant::now();
-                match sample(a) {
+                let sw0 = super::hygiene::involuntary_switches();
+                let sampled = sample(a);
+                a.switches.0 += super::hygiene::involuntary_switches().saturating_sub(sw0);
+                a.switches.1 += t.elapsed().as_secs_f64();
+                match sampled {
                     Ok((ns, cpu, alloc, _)) => {
                         a.samples.push(ns);
                         a.cpu.push(cpu);
@@ -490,7 +498,7 @@ pub fn sweep(
                 outcome.failures += 1;
                 continue;
             }
-            let m = summarize(a);
+            let m = summarize(a, &probe_runs);
             st.history.push((rows, m.median_ns));
             st.peaks.push((rows, m.alloc.peak_live as f64));
             if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
@@ -521,8 +529,9 @@ pub fn sweep(
 
         // Side by side.
         let mut cmp = compare(plan, rows, &measured, opts.seed);
-        if !probe_ns.is_empty() {
-            cmp.probe_ns = Some(crate::measure::stats::median(&probe_ns));
+        if !probe_runs.is_empty() {
+            let walls: Vec<f64> = probe_runs.iter().map(|p| p.0).collect();
+            cmp.probe_ns = Some(crate::measure::stats::median(&walls));
         }
         if cmp.equivalence.status == EquivalenceStatus::Mismatch {
             outcome.mismatches += 1;
@@ -579,15 +588,17 @@ fn decide(a: &Active, b: &crate::plan::Budget, run_elapsed_s: f64) -> Option<Sto
     None
 }
 
-fn summarize(a: &Active) -> Measured {
+fn summarize(a: &Active, probe_runs: &[(f64, f64)]) -> Measured {
     let mut s = a.samples.clone();
     s.sort_by(f64::total_cmp);
     let med = median_sorted(&s);
     let ci = median_ci_sorted(&s, 0.95);
-    let mut hist = Histogram::<u64>::new(3).expect("3 significant digits is a valid histogram");
-    for &x in &a.samples {
-        hist.saturating_record(x.round().max(1.0) as u64);
-    }
+    let tail = super::stats::tail_percentiles(&a.samples).unwrap_or(super::stats::TailPercentiles {
+        p50: med,
+        p90: med,
+        p99: med,
+        max: med,
+    });
     let mut by_bytes = a.allocs.clone();
     by_bytes.sort_by_key(|x| x.bytes);
     let mid = by_bytes.get(by_bytes.len() / 2).copied().unwrap_or_default();
@@ -602,15 +613,20 @@ fn summarize(a: &Active) -> Measured {
         ci_high_ns: ci.map(|c| c.1),
         ci_rel_half_width: ci.map(|(lo, hi)| (med - lo).max(hi - med) / med),
         mean_ns: s.iter().sum::<f64>() / s.len().max(1) as f64,
-        p50_ns: hist.value_at_quantile(0.50) as f64,
-        p90_ns: hist.value_at_quantile(0.90) as f64,
-        p99_ns: hist.value_at_quantile(0.99) as f64,
-        max_ns: hist.max() as f64,
+        p50_ns: tail.p50,
+        p90_ns: tail.p90,
+        p99_ns: tail.p99,
+        max_ns: tail.max,
         cpu_ns: crate::measure::stats::median(&a.cpu),
         alloc: AllocStats { bytes: mid.bytes, count: mid.count, peak_live: peak },
         alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
         output: a.output.clone(),
         spent_s: a.spent_s,
+        disturbance: Some(super::hygiene::assess(
+            probe_runs,
+            (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1),
+        )),
+        bimodal: super::hygiene::bimodal(&a.samples),
     }
 }
 

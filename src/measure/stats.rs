@@ -21,6 +21,8 @@ pub fn median_sorted(s: &[f64]) -> f64 {
     }
 }
 
+pub use crate::fit::sample::{tail_percentiles, TailPercentiles};
+
 pub fn median(v: &[f64]) -> f64 {
     let mut s = v.to_vec();
     s.sort_by(f64::total_cmp);

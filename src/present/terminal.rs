@@ -60,6 +60,20 @@ pub fn render(r: &RunResults, style: Style) -> String {
             time_ns(h.yardstick.median_ns)
         );
     }
+    // A busy machine is named first: its points are marked and left out of classes and
+    // verdicts, and the reader should know before reading any number.
+    let measured: Vec<&crate::results::Measured> = r.workloads.iter().flat_map(|w| &w.points).filter_map(|p| p.measured.as_ref()).collect();
+    let busy = measured.iter().filter(|m| m.is_contaminated()).count();
+    if busy > 0 {
+        let _ = writeln!(
+            s,
+            "{}",
+            style.alarm(&format!(
+                "the machine was busy: {busy} of {} points were measured while other work competed for the cores; they are marked and left out of growth classes and verdicts",
+                measured.len()
+            ))
+        );
+    }
     for w in &r.workloads {
         s.push('\n');
         s.push_str(&render_workload(w, style));
@@ -166,13 +180,13 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
     let _ = writeln!(s, "  how cost grows (class chosen by AICc over each size's quartiles; exponent = log-log slope of medians, 95% bootstrap interval):");
     for (d, da) in h.designs.iter().zip(&analysis.designs) {
         let time = match (&da.time, &da.time_exponent) {
-            (Some(t), Some(e)) => format!("time {} (exp {:.2} [{:.2}–{:.2}])", t.class, e.slope, e.low, e.high),
-            (Some(t), None) => format!("time {}", t.class),
+            (Some(t), Some(e)) => format!("time {} (exp {:.2} [{:.2}–{:.2}])", t.label(), e.slope, e.low, e.high),
+            (Some(t), None) => format!("time {}", t.label()),
             (None, Some(e)) => format!("time exp {:.2}", e.slope),
             (None, None) => "time n/a (too few sizes)".into(),
         };
         let mem = match (&da.bytes, da.bytes_exponent) {
-            (Some(b), _) => format!("bytes {}", b.class),
+            (Some(b), _) => format!("bytes {}", b.label()),
             (None, Some(e)) => format!("bytes exp {e:.2}"),
             (None, None) => "bytes n/a".into(),
         };

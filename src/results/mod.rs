@@ -1,4 +1,5 @@
-//! The on-disk results format, version 1 (`framecost.results/1`), documented in
+//! The on-disk results format, version 2 (`framecost.results/2`; version 1 still reads),
+//! documented in
 //! `docs/results.md`.
 //!
 //! A run folder holds `points.jsonl` — one JSON object per line, each tagged by its
@@ -20,7 +21,12 @@ use crate::plan::{Budget, ColumnPlan};
 use serde::{Deserialize, Serialize};
 
 /// Schema name and version written into every run.
-pub const SCHEMA: &str = "framecost.results/1";
+pub const SCHEMA: &str = "framecost.results/2";
+
+/// Older versions this build still reads. Version 1 lacks the machine-disturbance fields
+/// (read as absent) and stored wrong percentiles (every one 2 ns): the reader recomputes
+/// them from the samples.
+pub const READABLE_SCHEMAS: &[&str] = &["framecost.results/1"];
 
 /// One line of `points.jsonl`.
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -82,6 +88,9 @@ pub struct DesignHeader {
     pub feed: String,
     pub expect_time: Option<String>,
     pub expect_bytes: Option<String>,
+    /// Dtypes the design is meant to end with: (column, dtype name such as "f64").
+    #[serde(default)]
+    pub expect_dtypes: Vec<(String, String)>,
 }
 
 /// The synthetic table made for one size.
@@ -202,7 +211,8 @@ pub struct Measured {
     /// Largest distance from the median to an interval end, over the median.
     pub ci_rel_half_width: Option<f64>,
     pub mean_ns: f64,
-    /// Percentiles from the sample histogram (hdrhistogram, 3 significant digits).
+    /// Percentiles of the samples, Hyndman & Fan type 7 (p50 is the median). Version 1
+    /// stored 2 here (a clamped histogram); the reader recomputes them for such runs.
     pub p50_ns: f64,
     pub p90_ns: f64,
     pub p99_ns: f64,
@@ -217,6 +227,35 @@ pub struct Measured {
     pub output: Option<OutputFacts>,
     /// Wall time spent on this point, warm-up included (s).
     pub spent_s: f64,
+    /// How the machine behaved while this point's size was sampled (absent in runs made
+    /// before it was recorded).
+    #[serde(default)]
+    pub disturbance: Option<Disturbance>,
+    /// The sorted samples split into two clusters (a gap of ×1.5 with 15% on each side).
+    #[serde(default)]
+    pub bimodal: bool,
+}
+
+impl Measured {
+    /// Measured while the machine was busy: such a point never decides a class or a verdict.
+    pub fn is_contaminated(&self) -> bool {
+        self.disturbance.as_ref().is_some_and(|d| d.busy)
+    }
+}
+
+/// Signals of a busy machine at one size (see `measure::hygiene`).
+#[derive(Debug, Clone, Default, PartialEq, Serialize, Deserialize)]
+pub struct Disturbance {
+    /// CPU time the single-threaded drift probe got over its wall time, over the size's
+    /// rounds (1 = a core to itself).
+    pub probe_cpu_share: Option<f64>,
+    /// Involuntary context switches of the process per second of sampling this design.
+    pub switches_per_s: Option<f64>,
+    /// One-minute load average per core when the size ended.
+    pub load_per_core: Option<f64>,
+    /// True when a signal crossed its limit: "probe-share", "switches" in `reasons`.
+    pub busy: bool,
+    pub reasons: Vec<String>,
 }
 
 /// Designs side by side at one size.

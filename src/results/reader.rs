@@ -100,16 +100,34 @@ impl RunResults {
                 path: file.display().to_string(),
                 why: "no run header (first line)".into(),
             }),
-            Some(h) if h.schema != SCHEMA => Err(ReadError::NotARun {
+            Some(h) if h.schema != SCHEMA && !READABLE_SCHEMAS.contains(&h.schema.as_str()) => Err(ReadError::NotARun {
                 path: file.display().to_string(),
-                why: format!("schema `{}`, this framecost reads `{SCHEMA}`", h.schema),
+                why: format!("schema `{}`, this framecost reads `{SCHEMA}` and {}", h.schema, READABLE_SCHEMAS.join(", ")),
             }),
-            Some(_) => Ok(out),
+            Some(h) => {
+                if h.schema != SCHEMA {
+                    upgrade_percentiles(&mut out);
+                }
+                Ok(out)
+            }
         }
     }
 
     /// True when the run ended normally.
     pub fn complete(&self) -> bool {
         self.end.is_some()
+    }
+}
+
+/// Version 1 stored every percentile as 2 ns: recompute them from the samples it kept.
+fn upgrade_percentiles(r: &mut RunResults) {
+    for w in &mut r.workloads {
+        for p in &mut w.points {
+            if let Some(m) = p.measured.as_mut() {
+                if let Some(t) = crate::fit::sample::tail_percentiles(&m.samples_ns) {
+                    (m.p50_ns, m.p90_ns, m.p99_ns, m.max_ns) = (t.p50, t.p90, t.p99, t.max);
+                }
+            }
+        }
     }
 }
