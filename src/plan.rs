@@ -52,6 +52,8 @@ pub struct DesignPlan {
     /// Canonical growth labels the trade expects ("n", "n²", …).
     pub expect_time: Option<&'static str>,
     pub expect_bytes: Option<&'static str>,
+    /// Dtypes the design is meant to end with, by column ("kilograms" → "f64").
+    pub expect_dtypes: Vec<(String, &'static str)>,
 }
 
 impl DesignPlan {

@@ -1,4 +1,6 @@
-//! `framecost explain` on a real sweep of the tiny row-growth workload. Assertions use the
+//! `framecost explain` on a real sweep of a small row-growth workload
+//! (`tests/data/explain-ledger.yaml`, whose budget cannot skip the sizes the checks need
+//! even on a busy machine). Assertions use the
 //! deterministic evidence (allocated bytes) and differences of two orders of magnitude in
 //! time, never a close timing call: the growth class of bytes must follow the
 //! dynamic-table analysis (Cormen et al., *Introduction to Algorithms*, "Dynamic tables":
@@ -13,7 +15,7 @@ fn explain_names_repeated_copying_and_recommends_build_once() {
     let run = dir.path().join("run");
     let out = Command::cargo_bin("framecost")
         .expect("binary")
-        .args(["sweep", "tests/data/tiny.yaml", "--quiet", "--out"])
+        .args(["sweep", "tests/data/explain-ledger.yaml", "--quiet", "--out"])
         .arg(&run)
         .output()
         .expect("runs");
@@ -28,6 +30,8 @@ fn explain_names_repeated_copying_and_recommends_build_once() {
     assert_eq!(by("build-once")["bytes"]["class"], "n", "{}", by("build-once"));
     let e = &doc["explanations"][0];
     assert_eq!(e["verdict"]["design"], "build-once");
+    // Orders of magnitude apart at 8k rows (n² against n): a measured winner, never a tie.
+    assert_eq!(e["verdict"]["kind"], "winner", "{}", e["verdict"]);
     let copying = e["findings"]
         .as_array()
         .expect("findings")
@@ -41,12 +45,12 @@ fn explain_names_repeated_copying_and_recommends_build_once() {
     // No copying finding for the design that copies each value once.
     assert!(!e["findings"].as_array().expect("findings").iter().any(|f| f["design"] == "build-once" && f["kind"] == "copying"));
 
-    // Held-out check: fit up to 4k rows and compare with the larger sizes measured.
+    // Held-out check: fit up to 2k rows and compare with the larger sizes measured.
     let out = Command::cargo_bin("framecost")
         .expect("binary")
         .arg("explain")
         .arg(&run)
-        .args(["--fit-up-to", "4k", "--json"])
+        .args(["--fit-up-to", "2k", "--json"])
         .output()
         .expect("runs");
     let doc: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
@@ -54,12 +58,12 @@ fn explain_names_repeated_copying_and_recommends_build_once() {
     let checks = b["holdout"].as_array().expect("holdout");
     assert!(!checks.is_empty(), "{b}");
     for c in checks {
-        assert!(c["rows"].as_u64().expect("rows") > 4000);
+        assert!(c["rows"].as_u64().expect("rows") > 2000);
         assert!(c["predicted_ns"].as_f64().expect("p") > 0.0);
     }
 
     // Text output carries the same verdict.
     let out = Command::cargo_bin("framecost").expect("binary").arg("explain").arg(&run).output().expect("runs");
     let text = String::from_utf8_lossy(&out.stdout);
-    assert!(text.contains("verdict: use `build-once`"), "{text}");
+    assert!(text.contains("verdict (winner): use `build-once`"), "{text}");
 }

@@ -53,10 +53,10 @@ fn pictures_and_reports_are_sound_and_reproducible() {
         assert!(!lower.contains(bad), "report.html refers outside itself: {bad}");
     }
     assert_eq!(doc.descendants().filter(|n| n.has_tag_name("svg")).count(), 4, "four inline pictures");
-    assert!(html.contains("Verdict:") && html.contains("use `build-once`"));
+    assert!(html.contains("Verdict (winner):") && html.contains("use `build-once`"), "the verdict leads the section");
     let md = std::fs::read_to_string(run.join("report.md")).expect("md");
     assert!(md.contains("![Time per run as the rows grow](pictures/tiny-ledger-scaling.svg)"));
-    assert!(md.contains("**Verdict:** use `build-once`"));
+    assert!(md.contains("**Verdict (winner):** use `build-once`"));
 
     // CSV: CRLF records, one header, every record with the header's number of fields.
     let csv = std::fs::read_to_string(run.join("points.csv")).expect("csv");

@@ -7,14 +7,17 @@
 //! the tail is measured over enough samples. Each design's step cost-model notes (written
 //! beside the steps' code) are attached so the reader sees the mechanism the trade knows.
 
-use crate::analyse::{class_of, DesignAnalysis, WorkloadAnalysis};
+use crate::analyse::{class_of, WorkloadAnalysis};
 use crate::fit::growth::GrowthClass;
-use crate::present::units::{bytes, ratio, rows_label_f, time_ns};
+use crate::present::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, Measured};
 use crate::spec::model::ColumnKind;
 use crate::spec::units::rows_label;
 use serde::{Deserialize, Serialize};
+
+pub mod verdict;
+pub use verdict::{verdict, VerdictKind};
 
 /// One statement about a design (or the workload), backed by numbers.
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -32,12 +35,18 @@ pub struct Finding {
     pub action: String,
 }
 
-/// Which design to use.
+/// Which design to use (rules in [`verdict`](mod@verdict)).
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Verdict {
+    /// winner, crossover, tie or undecided.
+    pub kind: VerdictKind,
+    /// The design to use; None only for `undecided`.
     pub design: Option<String>,
     /// One sentence: the design, from what size, and why.
     pub text: String,
+    /// The largest compared size the verdict was decided at.
+    #[serde(default)]
+    pub decided_at: Option<u64>,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -96,26 +105,27 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 .unwrap_or_default();
             findings.push(f(
                 "growth",
-                format!("time grows as {} over {} sizes{runner}{exp}", t.class, t.sizes),
+                format!("time grows as {} over {} sizes{runner}{exp}", t.label(), t.sizes),
                 match class_of(&t.class) {
-                    Some(GrowthClass::Quadratic) | Some(GrowthClass::Cubic) => {
-                        "doubling the rows multiplies the time by about 4 (n²) or 8 (n³): fine on a sample, hours on the full data".into()
-                    }
+                    Some(GrowthClass::Quadratic) => "once the n² term dominates, doubling the rows multiplies the time by about 4: fine on a sample, hours on the full data".into(),
+                    Some(GrowthClass::Cubic) => "once the n³ term dominates, doubling the rows multiplies the time by about 8".into(),
                     Some(GrowthClass::Linear) | Some(GrowthClass::Linearithmic) => "the cost scales with the data (roughly proportional)".into(),
-                    _ => "the cost barely depends on the number of rows".into(),
+                    Some(GrowthClass::Constant) | Some(GrowthClass::Log) => "the cost barely depends on the number of rows".into(),
+                    None => "no growth class agrees with the measured slope: measure more sizes, or larger ones, before predicting".into(),
                 },
                 String::new(),
             ));
             if let Some(e) = &dh.expect_time {
                 let (want, got) = (class_of(e), class_of(&t.class));
-                let ok = want == got;
+                // A pair ("n or n log n") meets an expectation of either class.
+                let ok = want.is_some() && (want == got || want == t.alternative.as_deref().and_then(class_of));
                 let near = matches!(
                     (want, got),
                     (Some(GrowthClass::Linear), Some(GrowthClass::Linearithmic)) | (Some(GrowthClass::Linearithmic), Some(GrowthClass::Linear))
                 );
                 findings.push(f(
                     "expectation",
-                    format!("the workload expects time to grow as {e}; measured {}", t.class),
+                    format!("the workload expects time to grow as {e}; measured {}", t.label()),
                     if ok {
                         "the measurement confirms the rule".into()
                     } else if near {
@@ -128,10 +138,11 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             }
         }
         if let (Some(e), Some(b)) = (&dh.expect_bytes, &da.bytes) {
-            let ok = class_of(e) == class_of(&b.class);
+            let want = class_of(e);
+            let ok = want.is_some() && (want == class_of(&b.class) || want == b.alternative.as_deref().and_then(class_of));
             findings.push(f(
                 "expectation",
-                format!("the workload expects allocated bytes to grow as {e}; measured {}", b.class),
+                format!("the workload expects allocated bytes to grow as {e}; measured {}", b.label()),
                 if ok { "the measurement confirms the rule".into() } else { "the measurement does not match the expectation".into() },
                 String::new(),
             ));
@@ -193,7 +204,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                         "the work ran on several cores; on a busier or smaller machine it will be slower".into(),
                         String::new(),
                     ));
-                } else if par <= 0.5 {
+                } else if par <= 0.5 && !m1.is_contaminated() {
                     findings.push(f(
                         "parallel",
                         format!("CPU time is only {par:.2}× wall time at {} rows", rows_label(n1)),
@@ -201,6 +212,26 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                         String::new(),
                     ));
                 }
+            }
+            if m1.bimodal {
+                let mut v = m1.samples_ns.clone();
+                v.sort_by(f64::total_cmp);
+                findings.push(f(
+                    "unstable",
+                    format!(
+                        "its samples at {} rows fall into two clusters (fastest {}, median {}, slowest {})",
+                        rows_label(n1),
+                        time_ns(v[0]),
+                        time_ns(m1.median_ns),
+                        time_ns(v[v.len() - 1])
+                    ),
+                    if m1.is_contaminated() {
+                        "the machine was busy while it was measured: the slow cluster may be other work taking the cores".into()
+                    } else {
+                        "the design switches between a fast and a slow regime (a lazily built structure, a thread pool waking, memory being returned to the system); the median hides it".into()
+                    },
+                    "compare the fastest samples too, and measure again before acting on a small difference".into(),
+                ));
             }
             if m1.samples_ns.len() >= 20 && m1.p50_ns > 0.0 && m1.p99_ns / m1.p50_ns >= 2.0 {
                 findings.push(f(
@@ -210,32 +241,29 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                     String::new(),
                 ));
             }
-            // Dtype drift from the declared schema.
+            // Dtype drift: the output against the dtypes the design declares it is meant to
+            // end with, else against the table's declared column kinds.
             if let Some(o) = &m1.output {
                 let drift: Vec<String> = o
                     .dtypes
                     .iter()
                     .filter_map(|(col, dt)| {
+                        if let Some((_, want)) = dh.expect_dtypes.iter().find(|(c, _)| c == col) {
+                            return (dt != want).then(|| format!("{col}: meant to be {want}, ends {dt}"));
+                        }
                         let declared = w.header.columns.iter().find(|c| &c.name == col)?;
-                        let want = match declared.kind {
-                            ColumnKind::Int | ColumnKind::Key => "i64",
-                            ColumnKind::Float => "f64",
-                            ColumnKind::Bool => "bool",
-                            ColumnKind::Text => "str",
-                            ColumnKind::Category => "cat",
-                            ColumnKind::Date => "date",
-                        };
+                        let want = declared.kind.dtype_label();
                         // Records hold categorical values as text: not a drift of the design.
                         let by_records = declared.kind == ColumnKind::Category && dt == "str" && dh.feed == "records";
-                        (dt != want && !by_records).then(|| format!("{col}: {want} → {dt}"))
+                        (dt != want && !by_records).then(|| format!("{col}: declared {want}, ends {dt}"))
                     })
                     .collect();
                 if !drift.is_empty() {
                     findings.push(f(
                         "dtype",
-                        format!("output dtypes differ from the declared schema: {}", drift.join(", ")),
+                        format!("output dtypes differ from what was intended: {}", drift.join(", ")),
                         "values were cast on the way: wider types cost memory and speed, text loses meaning".into(),
-                        "create the column typed from the start, or cast explicitly where intended".into(),
+                        "create the column typed from the start, or cast explicitly where intended (and say so in `expect: {dtypes: …}`)".into(),
                     ));
                 }
             }
@@ -265,6 +293,9 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
         }
     }
 
+    if let Some(m) = machine_finding(w) {
+        findings.push(m);
+    }
     for c in &w.comparisons {
         if c.equivalence.status == EquivalenceStatus::Mismatch {
             findings.push(Finding {
@@ -291,80 +322,25 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
     Explanation { workload: w.header.workload.clone(), verdict, findings, step_notes }
 }
 
-/// Which design to use, from what size, and why.
-pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
-    // At the target: predicted medians; otherwise the largest size with two or more designs measured.
-    let predicted: Vec<(&DesignAnalysis, f64, f64, f64)> =
-        a.designs.iter().filter_map(|d| d.prediction.as_ref().map(|p| (d, p.median, p.low, p.high))).collect();
-    let use_prediction = a.predict_at.is_some() && predicted.len() >= 2;
-    let (best_name, text) = if use_prediction {
-        let at = a.predict_at.unwrap_or(0);
-        let mut v = predicted.clone();
-        v.sort_by(|x, y| x.1.total_cmp(&y.1));
-        let (best, med, lo, hi) = v[0];
-        let next = v.get(1);
-        let class = best.time.as_ref().map(|t| t.class.clone()).unwrap_or_default();
-        let vs = next
-            .map(|n| {
-                if n.1 / med < 1.1 {
-                    format!(", about the same as `{}` (predicted {}: either will do)", n.0.design, time_ns(n.1))
-                } else {
-                    format!(", {} less than `{}` (predicted {})", ratio(n.1 / med), n.0.design, time_ns(n.1))
-                }
-            })
-            .unwrap_or_default();
-        (best.design.clone(), format!(
-            "use `{}`: at {} rows it is predicted to take {} [{}–{}] per run{vs}; its time grows as {class}",
-            best.design,
-            rows_label(at),
-            time_ns(med),
-            time_ns(lo),
-            time_ns(hi)
-        ))
-    } else {
-        let size = w
-            .comparisons
-            .iter()
-            .filter(|c| c.ratios.len() >= 2)
-            .max_by_key(|c| c.rows);
-        match size.and_then(|c| c.fastest.clone().map(|f| (c, f))) {
-            Some((c, f)) => {
-                let next = c.ratios.iter().filter(|r| r.design != f).min_by(|x, y| x.ratio.total_cmp(&y.ratio));
-                let vs = next.map(|n| format!(", {} faster than `{}`", ratio(n.ratio), n.design)).unwrap_or_default();
-                (f.clone(), format!("use `{f}`: fastest at {} rows, the largest size compared{vs}", rows_label(c.rows)))
-            }
-            None => {
-                return Verdict { design: None, text: "no verdict: fewer than two designs were measured at any size".into() };
-            }
-        }
-    };
-    // Say so when the measured winner at the largest compared size is another design.
-    let measured_note = if use_prediction {
-        w.comparisons
-            .iter()
-            .filter(|c| c.ratios.len() >= 2)
-            .max_by_key(|c| c.rows)
-            .and_then(|c| c.fastest.clone().map(|f| (c.rows, f)))
-            .filter(|(_, f)| f != &best_name)
-            .map(|(n, f)| format!(" (measured: `{f}` was fastest at {} rows, the largest size compared)", rows_label(n)))
-            .unwrap_or_default()
-    } else {
-        String::new()
-    };
-    let text = format!("{text}{measured_note}");
-    // From what size: a crossover where the best is cheaper only above it.
-    let from = a.crossovers.iter().filter(|c| c.faster_above == best_name).max_by(|x, y| x.rows.total_cmp(&y.rows));
-    let tail = match from {
-        Some(c) => format!(
-            "; below about {} rows [{}–{}] `{}` is cheaper",
-            rows_label_f(c.rows),
-            rows_label_f(c.rows_low),
-            rows_label_f(c.rows_high),
-            c.faster_below
-        ),
-        None => String::new(),
-    };
-    Verdict { design: Some(best_name), text: format!("{text}{tail}") }
+/// A workload-level finding when points were measured on a busy machine: the machine is
+/// named as the cause, not the designs.
+fn machine_finding(w: &WorkloadResults) -> Option<Finding> {
+    let measured: Vec<&Measured> = w.points.iter().filter_map(|p| p.measured.as_ref()).collect();
+    let busy: Vec<&Measured> = measured.iter().copied().filter(|m| m.is_contaminated()).collect();
+    if busy.is_empty() {
+        return None;
+    }
+    let shares: Vec<f64> = busy.iter().filter_map(|m| m.disturbance.as_ref()?.probe_cpu_share).collect();
+    let loads: Vec<f64> = busy.iter().filter_map(|m| m.disturbance.as_ref()?.load_per_core).collect();
+    let share = (!shares.is_empty()).then(|| format!("; the single-threaded probe got {:.0}% of a core", 100.0 * crate::measure::stats::median(&shares)));
+    let load = (!loads.is_empty()).then(|| format!("; load {:.1} per core", crate::measure::stats::median(&loads)));
+    Some(Finding {
+        design: None,
+        kind: "machine".into(),
+        measured: format!("{} of {} points were measured while the machine was busy{}{}", busy.len(), measured.len(), share.unwrap_or_default(), load.unwrap_or_default()),
+        implies: "other work competed for the cores: those times say more about the machine than about the designs, so they are left out of growth classes and the verdict".into(),
+        action: "measure again on a quiet machine before acting on small differences".into(),
+    })
 }
 
 /// Plain-text rendering of an explanation.
@@ -377,7 +353,7 @@ pub fn render(e: &Explanation, long: bool) -> String {
 pub fn render_without(e: &Explanation, long: bool, skip: &[&str]) -> String {
     use std::fmt::Write;
     let mut s = String::new();
-    let _ = writeln!(s, "  verdict: {}", e.verdict.text);
+    let _ = writeln!(s, "  verdict ({}): {}", e.verdict.kind.word(), e.verdict.text);
     let mut current: Option<&str> = None;
     for f in e.findings.iter().filter(|f| !skip.contains(&f.kind.as_str())) {
         let who = f.design.as_deref().unwrap_or("all designs");

@@ -163,7 +163,7 @@ fn markdown(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Expl
     }
     for (w, _a, e, pics) in parts {
         let _ = writeln!(s, "## {}\n", w.header.workload);
-        let _ = writeln!(s, "**Verdict:** {}\n", e.verdict.text);
+        let _ = writeln!(s, "**Verdict ({}):** {}\n", e.verdict.kind.word(), e.verdict.text);
         if !w.header.about.is_empty() {
             let _ = writeln!(s, "{}\n", w.header.about);
         }
@@ -223,7 +223,7 @@ fn html(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Explanat
     }
     for (w, _a, e, pics) in parts {
         let _ = writeln!(s, "<h2>{}</h2>", esc(&w.header.workload));
-        let _ = writeln!(s, "<p class=\"verdict\"><strong>Verdict:</strong> {}</p>", esc(&e.verdict.text));
+        let _ = writeln!(s, "<p class=\"verdict\"><strong>Verdict ({}):</strong> {}</p>", e.verdict.kind.word(), esc(&e.verdict.text));
         if !w.header.about.is_empty() {
             let _ = writeln!(s, "<p>{}</p>", esc(&w.header.about));
         }

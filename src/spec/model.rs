@@ -101,6 +101,19 @@ impl ColumnKind {
             ColumnKind::Key => "key",
         }
     }
+
+    /// The short dtype name a column of this kind has in a table ("i64", "f64", "bool",
+    /// "str", "cat", "date"), as recorded in a point's output facts.
+    pub fn dtype_label(self) -> &'static str {
+        match self {
+            ColumnKind::Int | ColumnKind::Key => "i64",
+            ColumnKind::Float => "f64",
+            ColumnKind::Bool => "bool",
+            ColumnKind::Text => "str",
+            ColumnKind::Category => "cat",
+            ColumnKind::Date => "date",
+        }
+    }
 }
 
 /// The order of a column's values down the rows.
@@ -296,6 +309,11 @@ pub struct ExpectSpec {
     pub time: Option<String>,
     #[serde(default)]
     pub bytes: Option<String>,
+    /// The dtypes the design is meant to end with, by column (`kilograms: float`): a
+    /// deliberate cast is then not reported as drift, and a missed one is. Columns not
+    /// listed are compared with the table's declared kinds.
+    #[serde(default)]
+    pub dtypes: std::collections::BTreeMap<String, ColumnKind>,
 }
 
 /// Growth classes a spec may name, with the spellings accepted for each.

@@ -94,7 +94,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         }
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
-    let designs = check_designs(&mut c, &spec.designs, &root.key("designs"));
+    let designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns);
     if let Some(reason) = &spec.outputs_differ {
         if reason.trim().is_empty() {
             c.at(&root.key("outputs_differ"), "expected a sentence saying why the designs' outputs differ", None);
@@ -368,7 +368,7 @@ fn check_budget(c: &mut Checker, b: &BudgetSpec, path: &YamlPath) -> Budget {
     }
 }
 
-fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Vec<DesignPlan> {
+fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan]) -> Vec<DesignPlan> {
     if designs.len() < 2 {
         c.at(path, format!("expected two or more designs to compare, found {}", designs.len()), None);
     }
@@ -437,6 +437,15 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
             Some(e) => (growth("time", &e.time), growth("bytes", &e.bytes)),
             None => (None, None),
         };
+        let mut expect_dtypes = Vec::new();
+        for (col, kind) in d.expect.iter().flat_map(|e| &e.dtypes) {
+            if columns.iter().any(|k| &k.name == col) {
+                expect_dtypes.push((col.clone(), kind.dtype_label()));
+            } else {
+                let hint = closest(col, columns.iter().map(|k| k.name.as_str())).map(|s| format!("did you mean `{s}`?"));
+                c.at(&p.key("expect").key("dtypes").key(col), format!("no column `{col}` in the table"), hint);
+            }
+        }
         out.push(DesignPlan {
             name: d.name.clone(),
             about: d.about.clone(),
@@ -445,6 +454,7 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
             steps,
             expect_time,
             expect_bytes,
+            expect_dtypes,
         });
     }
     out
@@ -532,6 +542,13 @@ fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath) -> Option<StepPlan> {
                 Some(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
                 _ => None,
             },
+            // A share written with a percent sign: `15%` is 0.15.
+            (ParamKind::Number { min, max }, Y::String(t)) if t.trim_end().ends_with('%') => {
+                match crate::spec::units::parse_share(t) {
+                    Ok(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
+                    _ => None,
+                }
+            }
             (ParamKind::Choice(opts), Y::String(s)) => {
                 if opts.contains(&s.as_str()) {
                     Some(ParamValue::Choice(s.clone()))

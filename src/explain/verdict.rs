@@ -1,0 +1,286 @@
+//! The verdict: which design to use, of one of four kinds, never contradicting what was
+//! measured.
+//!
+//! - `winner`: the fastest design at the largest size where the compared designs were all
+//!   measured, by more than the noise ([`TIE_RATIO`] and the ratio's own interval);
+//! - `crossover`: a design that loses at the measured sizes is predicted to win before the
+//!   target — only when its ratio to the measured winner shrank at every one of the last
+//!   [`TREND_SIZES`] compared sizes **and** the fitted curves cross at a size whose
+//!   interval is finite and lies beyond the measured range; the text says both facts;
+//! - `tie`: within the noise at the largest sizes; the design named is the one other
+//!   evidence favours (slower growth, fewer bytes), and the text says so;
+//! - `undecided`: the data cannot tell (no size with two designs, every size measured on a
+//!   busy machine, designs that disagree on their output); the text says what to measure.
+//!
+//! A newcomer must know: the verdict is decided on measured comparisons first; fitted
+//! curves only ever add a crossover that the measured trend already points to. Points
+//! measured while the machine was busy (see `measure::hygiene`) never decide it while a
+//! clean size exists; when every size was busy, only a margin of [`BUSY_MARGIN`] at the two
+//! largest sizes gives a winner (interleaved sampling slows designs alike), else undecided.
+
+use super::Verdict;
+use crate::analyse::{CrossoverOut, DesignAnalysis, WorkloadAnalysis};
+use crate::present::units::{ratio, rows_label_f, time_ns};
+use crate::results::reader::WorkloadResults;
+use crate::results::{ComparisonRecord, EquivalenceStatus};
+use crate::spec::units::rows_label;
+use serde::{Deserialize, Serialize};
+
+/// A runner-up within this ratio of the fastest design is a tie.
+pub const TIE_RATIO: f64 = 1.10;
+/// How many of the last compared sizes a loser's ratio must shrink over for a predicted
+/// crossover to count.
+pub const TREND_SIZES: usize = 3;
+
+/// The four kinds of verdict (the JSON words are fixed: scripts read them).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum VerdictKind {
+    Winner,
+    Crossover,
+    Tie,
+    Undecided,
+}
+
+impl VerdictKind {
+    pub fn word(self) -> &'static str {
+        match self {
+            VerdictKind::Winner => "winner",
+            VerdictKind::Crossover => "crossover",
+            VerdictKind::Tie => "tie",
+            VerdictKind::Undecided => "undecided",
+        }
+    }
+}
+
+fn undecided(text: String) -> Verdict {
+    Verdict { kind: VerdictKind::Undecided, design: None, text, decided_at: None }
+}
+
+/// A comparison counts when two or more designs were measured and none of its points was
+/// marked as measured on a busy machine.
+fn usable<'a>(w: &'a WorkloadResults) -> (Vec<&'a ComparisonRecord>, usize) {
+    let mut all: Vec<&ComparisonRecord> = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).collect();
+    all.sort_by_key(|c| c.rows);
+    let total = all.len();
+    let clean: Vec<&ComparisonRecord> = all
+        .into_iter()
+        .filter(|c| {
+            c.ratios.iter().all(|r| w.point(&r.design, c.rows).and_then(|p| p.measured.as_ref()).is_none_or(|m| !m.is_contaminated()))
+        })
+        .collect();
+    (clean, total)
+}
+
+fn design<'a>(a: &'a WorkloadAnalysis, name: &str) -> Option<&'a DesignAnalysis> {
+    a.designs.iter().find(|d| d.design == name)
+}
+
+/// What the prediction at the target says about a design, as a clause.
+fn at_target(a: &WorkloadAnalysis, name: &str) -> String {
+    let Some(p) = design(a, name).and_then(|d| d.prediction.as_ref()) else { return String::new() };
+    let growth = design(a, name).and_then(|d| d.time.as_ref()).map(|t| format!(", time growing as {}", t.label())).unwrap_or_default();
+    let rough = if p.rough { ", an order of magnitude only" } else { "" };
+    format!("; at {} rows it is predicted at {} [{}–{}] per run{rough}{growth}", rows_label(p.rows), time_ns(p.median), time_ns(p.low), time_ns(p.high))
+}
+
+/// A loser whose ratio to `winner` shrank at each of the last [`TREND_SIZES`] sizes, with
+/// those ratios (oldest first).
+fn shrinking_ratio(cmps: &[&ComparisonRecord], winner: &str, loser: &str) -> Option<Vec<f64>> {
+    let series: Vec<f64> = cmps
+        .iter()
+        .filter_map(|c| {
+            let w = c.ratios.iter().find(|r| r.design == winner)?.ratio;
+            let l = c.ratios.iter().find(|r| r.design == loser)?.ratio;
+            Some(l / w)
+        })
+        .collect();
+    if series.len() < TREND_SIZES {
+        return None;
+    }
+    let tail = series[series.len() - TREND_SIZES..].to_vec();
+    tail.windows(2).all(|p| p[1] < p[0] * 0.97).then_some(tail)
+}
+
+/// A fitted crossover where `loser` becomes cheaper than `winner` beyond the measured
+/// sizes, with a finite interval, before the target (or within ×100 of the largest size
+/// when there is no target).
+fn predicted_overtake<'a>(a: &'a WorkloadAnalysis, winner: &str, loser: &str, largest: u64) -> Option<&'a CrossoverOut> {
+    let limit = a.predict_at.map(|t| t as f64).unwrap_or(largest as f64 * 100.0);
+    a.crossovers.iter().find(|c| {
+        c.faster_below == winner
+            && c.faster_above == loser
+            && !c.inside_measured
+            && c.bounded
+            && c.rows > largest as f64
+            && c.rows_low > largest as f64 * 0.5
+            && c.rows <= limit
+    })
+}
+
+/// Which design to use, from what size, and why (module doc).
+pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
+    if let Some(c) = w.comparisons.iter().find(|c| c.equivalence.status == EquivalenceStatus::Mismatch) {
+        return undecided(format!(
+            "no verdict: the designs do not compute the same result (first seen at {} rows), so their costs are not comparable; fix the design that is wrong or declare `outputs_differ:`",
+            rows_label(c.rows)
+        ));
+    }
+    if w.header.designs.len() == 1 {
+        let name = &w.header.designs[0].name;
+        let growth = design(a, name).and_then(|d| d.time.as_ref()).map(|t| t.label()).unwrap_or_else(|| "not fitted yet".into());
+        return Verdict {
+            kind: VerdictKind::Winner,
+            design: Some(name.clone()),
+            text: format!("one design, tracked on its own: `{name}`'s time grows as {growth}{}", at_target(a, name)),
+            decided_at: None,
+        };
+    }
+    let (cmps, total) = usable(w);
+    let Some(last) = cmps.last().copied() else {
+        if total == 0 {
+            return undecided("no verdict: no size had two designs measured; lower the sizes or raise the point budget".into());
+        }
+        return busy_verdict(w, total);
+    };
+    let mut ranked = last.ratios.clone();
+    ranked.sort_by(|x, y| x.ratio.total_cmp(&y.ratio));
+    let best = ranked[0].design.clone();
+    let runner = &ranked[1];
+    let interval = match (runner.low, runner.high) {
+        (Some(lo), Some(hi)) => format!(" [{}–{}]", ratio(lo), ratio(hi)),
+        _ => String::new(),
+    };
+    let at = rows_label(last.rows);
+    let busy_note = if cmps.len() < total { format!(" ({} sizes measured on a busy machine were left out)", total - cmps.len()) } else { String::new() };
+    let tie = runner.ratio < TIE_RATIO || runner.low.is_some_and(|lo| lo <= 1.02);
+    if tie {
+        let tied: Vec<&str> = ranked
+            .iter()
+            .filter(|r| r.ratio < TIE_RATIO || r.low.is_some_and(|lo| lo <= 1.02))
+            .map(|r| r.design.as_str())
+            .collect();
+        let (pick, why) = tie_break(w, a, &tied, last.rows);
+        return Verdict {
+            kind: VerdictKind::Tie,
+            design: Some(pick.clone()),
+            text: format!(
+                "a tie at {at} rows, the largest size compared: `{best}` and `{}` are within the noise (×{:.2}{interval}); {why}{busy_note}",
+                runner.design, runner.ratio
+            ),
+            decided_at: Some(last.rows),
+        };
+    }
+    // A loser predicted to overtake the winner before the target, with the measured trend.
+    for r in ranked.iter().skip(1) {
+        let Some(trend) = shrinking_ratio(&cmps, &best, &r.design) else { continue };
+        let Some(c) = predicted_overtake(a, &best, &r.design, last.rows) else { continue };
+        let steps: Vec<String> = trend.iter().map(|x| ratio(*x)).collect();
+        return Verdict {
+            kind: VerdictKind::Crossover,
+            design: Some(r.design.clone()),
+            text: format!(
+                "`{best}` is fastest up to {at} rows, but `{}`'s ratio to it fell at each of the last {} sizes ({}) and the fitted costs cross at about {} rows [{}–{}], beyond the measured sizes: use `{}` from there{}{busy_note}",
+                r.design,
+                TREND_SIZES,
+                steps.join(" → "),
+                rows_label_f(c.rows),
+                rows_label_f(c.rows_low),
+                rows_label_f(c.rows_high),
+                r.design,
+                at_target(a, &r.design)
+            ),
+            decided_at: Some(last.rows),
+        };
+    }
+    // Measured winner; mention a crossover inside the measured range, and a fitted crossing
+    // the measured trend does not support.
+    let below = a
+        .crossovers
+        .iter()
+        .filter(|c| c.faster_above == best && c.inside_measured)
+        .max_by(|x, y| x.rows.total_cmp(&y.rows))
+        .map(|c| format!("; below about {} rows `{}` is cheaper", rows_label_f(c.rows), c.faster_below))
+        .unwrap_or_default();
+    let unsupported = a
+        .crossovers
+        .iter()
+        .find(|c| c.faster_below == best && !c.inside_measured && a.predict_at.is_some_and(|t| c.rows <= t as f64))
+        .map(|c| {
+            format!(
+                " (the fitted curves of `{}` cross below the target, at about {} rows, but its measured ratio is not shrinking steadily: measure a larger size before acting on it)",
+                c.faster_above,
+                rows_label_f(c.rows)
+            )
+        })
+        .unwrap_or_default();
+    Verdict {
+        kind: VerdictKind::Winner,
+        design: Some(best.clone()),
+        text: format!(
+            "use `{best}`: fastest at {at} rows, the largest size compared, {} faster than `{}`{interval}{}{below}{unsupported}{busy_note}",
+            ratio(runner.ratio),
+            runner.design,
+            at_target(a, &best)
+        ),
+        decided_at: Some(last.rows),
+    }
+}
+
+/// Margin a design must have at the two largest sizes for a verdict from points measured on
+/// a busy machine: designs are sampled in interleaved rounds, so contention slows them
+/// alike, but it adds noise that can swap designs closer than this.
+pub const BUSY_MARGIN: f64 = 1.5;
+
+/// Every compared size was measured on a busy machine: a winner only when the same design
+/// was fastest by at least [`BUSY_MARGIN`] at the two largest sizes, else undecided.
+fn busy_verdict(w: &WorkloadResults, total: usize) -> Verdict {
+    let mut all: Vec<&ComparisonRecord> = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).collect();
+    all.sort_by_key(|c| c.rows);
+    let clear = |c: &ComparisonRecord| -> Option<(String, f64)> {
+        let mut r = c.ratios.clone();
+        r.sort_by(|x, y| x.ratio.total_cmp(&y.ratio));
+        (r[1].ratio >= BUSY_MARGIN && r[1].low.is_none_or(|lo| lo > 1.0)).then(|| (r[0].design.clone(), r[1].ratio))
+    };
+    let tail: Vec<Option<(String, f64)>> = all.iter().rev().take(2).map(|c| clear(c)).collect();
+    match (tail.first().cloned().flatten(), tail.get(1).cloned().flatten()) {
+        (Some((a, ra)), Some((b, _))) if a == b => {
+            let last = all[all.len() - 1];
+            Verdict {
+                kind: VerdictKind::Winner,
+                design: Some(a.clone()),
+                text: format!(
+                    "use `{a}`: fastest at the two largest sizes compared, ×{ra:.1} ahead at {} rows — every size was measured on a busy machine, but a margin this wide is beyond what contention explains (designs are sampled in interleaved rounds); measure again on a quiet machine for the exact figures",
+                    rows_label(last.rows)
+                ),
+                decided_at: Some(last.rows),
+            }
+        }
+        _ => undecided(format!(
+            "no verdict: all {total} sizes where two designs were measured were measured on a busy machine, and no design led by ×{BUSY_MARGIN} at the two largest; measure again on a quiet one"
+        )),
+    }
+}
+
+/// Among tied designs, the one other evidence favours: slower growth of time, then fewer
+/// allocated bytes at the size compared, then the faster median.
+fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, tied: &[&str], rows: u64) -> (String, String) {
+    let rank = |name: &str| {
+        design(a, name)
+            .and_then(|d| d.time.as_ref())
+            .and_then(|t| crate::analyse::class_of(&t.class))
+            .map(|c| c.rank())
+            .unwrap_or(usize::MAX)
+    };
+    let bytes = |name: &str| w.point(name, rows).and_then(|p| p.measured.as_ref()).map(|m| m.alloc.bytes).unwrap_or(u64::MAX);
+    let first = tied[0];
+    let by_growth = tied.iter().min_by_key(|n| rank(n)).copied().unwrap_or(first);
+    if rank(by_growth) < rank(first) {
+        return (by_growth.to_string(), format!("`{by_growth}` is suggested because its time grows more slowly, which matters more as the data grows"));
+    }
+    let by_bytes = tied.iter().min_by_key(|n| bytes(n)).copied().unwrap_or(first);
+    if bytes(by_bytes) < bytes(first) && bytes(first) != u64::MAX && bytes(by_bytes) * 10 < bytes(first) * 9 {
+        return (by_bytes.to_string(), format!("`{by_bytes}` is suggested because it allocates less ({} vs {} at {} rows)", crate::present::units::bytes(bytes(by_bytes) as f64), crate::present::units::bytes(bytes(first) as f64), rows_label(rows)));
+    }
+    (first.to_string(), format!("either will do; `{first}` had the lower median, and memory or growth did not separate them"))
+}
