@@ -27,6 +27,13 @@ pub struct Args {
     /// Where saved baselines live.
     #[arg(long, default_value = "baselines", value_name = "DIR")]
     pub store: PathBuf,
+    /// Time-exponent rise that counts as a growth regression, e.g. `0.1` (the default); the
+    /// per-size comparisons must agree with it too.
+    #[arg(long, value_name = "EXPONENT", conflicts_with = "no_growth_check")]
+    pub growth_rise: Option<f64>,
+    /// Judge sizes only: no growth check of time exponents (bytes keep theirs).
+    #[arg(long)]
+    pub no_growth_check: bool,
     /// Print the comparison as JSON.
     #[arg(long)]
     pub json: bool,
@@ -63,7 +70,13 @@ pub fn run(a: Args) -> i32 {
         Ok(r) => r,
         Err(e) => return bad(format!("new run: {e}")),
     };
-    let report = compare(&base, &new, &GateOptions { threshold, alpha: a.alpha });
+    let growth_rise = match (a.no_growth_check, a.growth_rise) {
+        (true, _) => None,
+        (false, Some(r)) if !(r > 0.0 && r <= 3.0) => return bad(format!("--growth-rise: expected an exponent above 0 and at most 3, found {r}")),
+        (false, Some(r)) => Some(r),
+        (false, None) => Some(crate::track::gate::TIME_EXPONENT_RISE),
+    };
+    let report = compare(&base, &new, &GateOptions { threshold, alpha: a.alpha, growth_rise });
     if report.workloads.is_empty() {
         return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
     }
@@ -140,16 +153,17 @@ pub fn render(r: &GateReport) -> String {
         for p in w.points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
             let _ = writeln!(
                 s,
-                "  {}{} {} at {} rows: {} → {} (×{:.3}{}, p = {})",
+                "  {}{} {} at {} rows: medians {} → {} (×{:.3}{}){}, p = {}",
                 if p.call == Call::Regression { "regression" } else { "improvement" },
                 if p.confirmed { "" } else { " at this size only (not confirmed)" },
                 p.design,
                 rows_label(p.rows),
                 time_ns(p.base_median_ns),
                 time_ns(p.new_median_ns),
-                p.normalised_ratio.unwrap_or(p.ratio),
-                match (p.ratio_low, p.ratio_high) {
-                    (Some(a), Some(b)) => format!(", 95% interval ×{a:.3}–×{b:.3}"),
+                p.ratio,
+                p.normalised_ratio.map(|n| format!(", ×{n:.3} corrected for the machine")).unwrap_or_default(),
+                match (p.shift, p.ratio_low, p.ratio_high) {
+                    (Some(e), Some(a), Some(b)) => format!("; pairwise estimate ×{e:.3}, 95% interval ×{a:.3}–×{b:.3}"),
                     _ => String::new(),
                 },
                 p.p_value.map(|v| format!("{v:.2e}")).unwrap_or_else(|| "n/a".into())

@@ -59,20 +59,30 @@ it.",
         summary: "push every record's values into one typed buffer per column and build the table once",
         cost_note: "Each value is copied once into a growing typed buffer (capacity doubling, so amortized \
 O(1) per value) and the table is built in one go: linear in time and bytes, one chunk per column. \
-extra_passes > 0 repeats the build that many times and keeps the last: a deliberate, documented \
-slowdown for checking that a regression gate catches it.",
-        params: &[ParamDef {
-            name: "extra_passes",
-            kind: ParamKind::Count { min: 0 },
-            default: "0",
-            doc: "test knob: build the table this many extra times (slows the design by that factor + 1)",
-        }],
+extra_passes > 0 repeats the build that many times and keeps the last, and slowdown: 15% keeps \
+the core busy for 15% of the build's own time after it: deliberate, documented slowdowns for \
+rehearsing that a regression gate catches one (a realistic 10-20% slowdown, or a doubling).",
+        params: &[
+            ParamDef {
+                name: "extra_passes",
+                kind: ParamKind::Count { min: 0 },
+                default: "0",
+                doc: "test knob: build the table this many extra times (slows the design by that factor + 1)",
+            },
+            ParamDef {
+                name: "slowdown",
+                kind: ParamKind::Number { min: 0.0, max: 10.0 },
+                default: "0",
+                doc: "test knob: after building, spin for this share of the build's own time (`15%` or 0.15), \
+a slowdown by that fraction that allocates nothing",
+            },
+        ],
         takes: ValueKind::Records,
         gives: ValueKind::Frame,
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(BuildFromRecords { extra_passes: p.count("extra_passes") }),
+        build: |p| Box::new(BuildFromRecords { extra_passes: p.count("extra_passes"), slowdown: p.number("slowdown") }),
     },
 ];
 
@@ -145,16 +155,26 @@ impl Step for ExtendRows {
 
 struct BuildFromRecords {
     extra_passes: u64,
+    /// Share of the build's own time to spin afterwards (the fractional slowdown knob).
+    slowdown: f64,
 }
 
 impl Step for BuildFromRecords {
     fn run(&self, input: Value) -> Result<Value, StepError> {
         const NAME: &str = "build_from_records";
         let recs = records(NAME, input)?;
+        let t0 = std::time::Instant::now();
         for _ in 0..self.extra_passes {
             std::hint::black_box(build(&recs)?);
         }
-        build(&recs).map(Value::Frame)
+        let out = build(&recs).map(Value::Frame);
+        if self.slowdown > 0.0 {
+            let until = t0.elapsed().mul_f64(1.0 + self.slowdown);
+            while t0.elapsed() < until {
+                std::hint::spin_loop();
+            }
+        }
+        out
     }
 }
 
