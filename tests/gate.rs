@@ -166,8 +166,10 @@ fn an_injected_change_of_growth_class_is_a_growth_regression() {
     let bytes = growth.iter().find(|x| x.metric == "bytes").expect("bytes");
     assert_eq!(time.call, Call::Regression, "{time:?}");
     assert_eq!(bytes.call, Call::Regression, "{bytes:?}");
+    // Classes as labels: the base may be reported as a pair ("n or n log n") on noisy data.
     assert_eq!(time.new_class.as_deref(), Some("n²"));
-    assert_eq!(time.base_class.as_deref(), Some("n"));
+    let base = time.base_class.as_deref().expect("base class");
+    assert!(base == "n" || base == "n or n log n", "{base}");
     assert!(g.growth_regressions >= 2 && g.failed());
 }
 

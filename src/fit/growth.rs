@@ -91,10 +91,13 @@ pub const PARSIMONY_MARGIN: f64 = 4.0;
 /// Fewest points [`fit_growth`] accepts: AICc with `k = 3` needs `N − k − 1 ≥ 1`.
 pub const MIN_POINTS: usize = 5;
 
-/// A faster-growing class within this many AICc units of the chosen one (above
-/// it, or below it by up to the parsimony margin) is reported as the
-/// alternative: the data cannot tell the two apart.
-pub const ALTERNATIVE_MARGIN: f64 = 2.0;
+/// The fastest-growing class whose AICc is within this many units of the best
+/// AICc is reported as the alternative when it grows faster than the chosen
+/// class: the data cannot tell them apart. Wider than the parsimony margin, so
+/// that a class hovering at the edge of the parsimony window is reported in
+/// every run rather than in some (repeated sweeps on a shared 2-core machine
+/// move AICc differences by several units).
+pub const ALTERNATIVE_MARGIN: f64 = 6.0;
 
 /// How many of the largest sizes the slope check uses.
 pub const SLOPE_SIZES: usize = 4;
@@ -138,6 +141,16 @@ impl Term {
     /// Parse a [`label`](Self::label) back.
     pub fn from_label(text: &str) -> Option<Term> {
         [Term::One, Term::Log, Term::N, Term::NLogN, Term::N2, Term::N3].into_iter().find(|t| t.label() == text)
+    }
+}
+
+/// "n", "n or n log n" for neighbouring classes, "n to n²" when a class between
+/// the two is plausible too.
+pub fn pair_label(best: GrowthClass, alternative: Option<GrowthClass>) -> String {
+    match alternative {
+        Some(alt) if alt.rank() == best.rank() + 1 => format!("{} or {}", best.label(), alt.label()),
+        Some(alt) => format!("{} to {}", best.label(), alt.label()),
+        None => best.label().to_string(),
     }
 }
 
@@ -370,12 +383,10 @@ impl GrowthFit {
         Some(f)
     }
 
-    /// "n" or "n or n log n".
+    /// "n", "n or n log n" (neighbours) or "n to n²" (a class between them is
+    /// plausible too).
     pub fn label(&self) -> String {
-        match self.alternative {
-            Some(alt) => format!("{} or {}", self.best.label(), alt.label()),
-            None => self.best.label().to_string(),
-        }
+        pair_label(self.best, self.alternative)
     }
 
     /// The candidate for `class`.
@@ -491,8 +502,8 @@ pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> 
     // A faster class nearly as good: the data cannot tell the two apart.
     let alternative = ranked
         .iter()
-        .filter(|c| c.class.rank() > best.class.rank() && c.aicc < best.aicc + ALTERNATIVE_MARGIN)
-        .min_by(|x, y| x.aicc.total_cmp(&y.aicc))
+        .filter(|c| c.class.rank() > best.class.rank() && c.aicc < min_aicc + ALTERNATIVE_MARGIN)
+        .max_by_key(|c| c.class.rank())
         .map(|c| c.class);
     let total: f64 = ranked
         .iter()
@@ -814,7 +825,7 @@ mod tests {
         let values: Vec<f64> = sizes.iter().map(|n: &f64| 100.0 + 1e5 / n).collect();
         let fit = fit_growth(&sizes, &values).unwrap();
         assert_eq!(fit.best, GrowthClass::Constant);
-        assert_eq!(fit.alternative, None);
+        assert!(matches!(fit.alternative, None | Some(GrowthClass::Log)), "{:?}", fit.alternative);
         assert!(fit.evidence_weight > 0.9, "{fit:?}");
         for c in fit.candidates.iter().filter(|c| c.class.rank() >= GrowthClass::Linear.rank()) {
             assert!(c.rejection.is_some(), "{:?} should be rejected: {:?}", c.class, c);

@@ -2,19 +2,24 @@
 //! measured beside the designs, so a slow point is blamed on the machine and not on the
 //! design.
 //!
-//! Three signals, each cheap and taken between samples (never inside a timed region):
-//! - **the probe's share of a core**: the drift probe is single-threaded; the CPU time its
-//!   thread got over the wall time it took, summed over a size's rounds. On a quiet machine
-//!   it is close to 1; when other processes compete for the cores the thread waits
-//!   runnable and the share falls (measured here: 0.97–1.00 quiet, about 0.6 beside a
-//!   second sweep on 2 cores);
+//! Signals, each cheap and taken between samples (never inside a timed region):
+//! - **the probe's share of a core** (decides): the drift probe is single-threaded; the CPU
+//!   time its thread got over the wall time it took, summed over a size's rounds. On a
+//!   quiet machine it is 1.00 (measured here: every size of three workloads); when other
+//!   processes compete for the cores the thread waits runnable and the share falls
+//!   (measured: about 0.6 beside two compilers on 2 cores);
 //! - **involuntary context switches** of this process per second of sampling
-//!   (`getrusage`): the scheduler took the CPU away from a runnable thread;
+//!   (`getrusage`), recorded as information only: polars' own worker threads preempt one
+//!   another on a small machine (measured here on a quiet machine: up to 200,000 per
+//!   second for grouped work, 0 for single-threaded steps), so a high count says nothing
+//!   about other processes;
+//! - **the load average per core**, recorded as information (it includes this process and
+//!   lags by a minute);
 //! - **bimodal samples**: the sorted samples split at a gap of ×1.5 or more with at least
 //!   15% of them on each side — the design itself or the machine switches between two
 //!   regimes, so the median alone hides half the story.
 //!
-//! A newcomer must know: only the first two mark a point as measured on a busy machine
+//! A newcomer must know: only the probe's share marks a point as measured on a busy machine
 //! (`Disturbance::busy`); such points never decide a growth class or a verdict. Bimodality
 //! is reported as a property of the point, since a design can be bimodal on a quiet machine.
 
@@ -22,8 +27,6 @@ use crate::results::Disturbance;
 
 /// Below this share of a core the probe was kept waiting: the machine was busy.
 pub const PROBE_SHARE_FLOOR: f64 = 0.85;
-/// Above this many involuntary switches per second of sampling the machine was busy.
-pub const SWITCHES_PER_S_CEILING: f64 = 200.0;
 
 /// CPU time of the calling thread (ns), 0 where unavailable.
 pub fn thread_cpu_ns() -> u64 {
@@ -80,9 +83,6 @@ pub fn assess(probe: &[(f64, f64)], switches_per_s: Option<f64>) -> Disturbance 
     if share.is_some_and(|s| s < PROBE_SHARE_FLOOR) {
         reasons.push("probe-share".to_string());
     }
-    if switches_per_s.is_some_and(|s| s > SWITCHES_PER_S_CEILING) {
-        reasons.push("switches".to_string());
-    }
     Disturbance {
         probe_cpu_share: share,
         switches_per_s,
@@ -115,8 +115,9 @@ mod tests {
         assert!(!quiet.busy, "{quiet:?}");
         let busy = assess(&[(100.0, 60.0), (100.0, 55.0)], Some(3.0));
         assert!(busy.busy && busy.reasons == ["probe-share"], "{busy:?}");
-        let switching = assess(&[(100.0, 99.0)], Some(5000.0));
-        assert!(switching.busy && switching.reasons == ["switches"]);
+        // The process's own worker threads preempt one another: not a busy machine.
+        let own_threads = assess(&[(100.0, 99.0)], Some(200_000.0));
+        assert!(!own_threads.busy);
         let thread = thread_cpu_ns();
         assert!(thread > 0);
     }

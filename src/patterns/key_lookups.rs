@@ -155,10 +155,9 @@ prefix index.",
     },
 ];
 
-/// The k-th probed row position in a table of `n` rows (scattered, the same for every design).
-fn position(k: usize, n: usize) -> usize {
-    ((k as u64).wrapping_mul(2_654_435_761).wrapping_add(977) % n.max(1) as u64) as usize
-}
+/// The k-th of `probes` probed row positions: scattered, ascending, the same for every
+/// design (see `cell_reads::position` for why ascending).
+use super::cell_reads::position;
 
 /// Every eighth probe asks for a key that is not in the table.
 fn is_miss(k: usize) -> bool {
@@ -206,7 +205,7 @@ fn wanted(keys: &Int64Chunked, probes: usize) -> Vec<Option<i64>> {
             if is_miss(k) {
                 return Some(miss_key(k));
             }
-            let i = position(k, n);
+            let i = position(k, probes, n);
             (i < vals.len() && valid_at(valid, i)).then(|| vals[i])
         })
         .collect()
@@ -408,7 +407,7 @@ fn wanted_pairs(a: &Int64Chunked, b: &Int64Chunked, probes: usize) -> Vec<Option
     let (bv, bvalid) = parts(b);
     (0..probes)
         .map(|k| {
-            let i = position(k, n);
+            let i = position(k, probes, n);
             if i >= av.len() || i >= bv.len() || !valid_at(avalid, i) || !valid_at(bvalid, i) {
                 return None;
             }

@@ -253,7 +253,7 @@ pub struct Disturbance {
     pub switches_per_s: Option<f64>,
     /// One-minute load average per core when the size ended.
     pub load_per_core: Option<f64>,
-    /// True when a signal crossed its limit: "probe-share", "switches" in `reasons`.
+    /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`).
     pub busy: bool,
     pub reasons: Vec<String>,
 }
