@@ -92,12 +92,16 @@ pub const PARSIMONY_MARGIN: f64 = 4.0;
 pub const MIN_POINTS: usize = 5;
 
 /// The fastest-growing class whose AICc is within this many units of the best
-/// AICc is reported as the alternative when it grows faster than the chosen
-/// class: the data cannot tell them apart. Wider than the parsimony margin, so
-/// that a class hovering at the edge of the parsimony window is reported in
-/// every run rather than in some (repeated sweeps on a shared 2-core machine
-/// move AICc differences by several units).
-pub const ALTERNATIVE_MARGIN: f64 = 6.0;
+/// AICc (the parsimony window) is reported as the alternative when it grows
+/// faster than the chosen class: the data cannot tell them apart.
+pub const ALTERNATIVE_MARGIN: f64 = 4.0;
+
+/// A growing class is accepted only when its leading term carries at least this
+/// share of the fitted cost at the largest size measured: a class nests the
+/// slower ones, so with noise its leading term always takes a little; a term
+/// that carries less than this has not shown in the data (and naming the class
+/// after it would extrapolate noise).
+pub const LEADING_SHARE_MIN: f64 = 0.15;
 
 /// How many of the largest sizes the slope check uses.
 pub const SLOPE_SIZES: usize = 4;
@@ -293,6 +297,9 @@ pub enum Rejection {
     /// The measured log-log slope over the largest sizes is outside what the
     /// class can show ([`admissible_slopes`]).
     SlopeDisagrees { slope: f64 },
+    /// The leading term carries less than [`LEADING_SHARE_MIN`] of the fitted
+    /// cost at the largest size: the class has not shown in the data.
+    LeadingTermNegligible { share: f64 },
 }
 
 /// One fitted candidate class.
@@ -611,7 +618,16 @@ fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weights: &[f64],
     let a = terms.iter().find(|t| t.0 == Term::One).map_or(0.0, |t| t.1);
     let b = if class == GrowthClass::Constant { 0.0 } else { terms.last().map_or(0.0, |t| t.1) };
     let (lo, hi) = admissible_slopes(class);
-    let rejection = (!(lo..=hi).contains(&top_slope)).then_some(Rejection::SlopeDisagrees { slope: top_slope });
+    let max_n = sizes.iter().copied().fold(f64::MIN, f64::max);
+    let total = curve_at(&terms, max_n);
+    let share = terms.last().map_or(0.0, |(t, c)| c * t.at(max_n)) / total;
+    let rejection = if !(lo..=hi).contains(&top_slope) {
+        Some(Rejection::SlopeDisagrees { slope: top_slope })
+    } else if class.rank() > GrowthClass::Linear.rank() && !(share >= LEADING_SHARE_MIN) {
+        Some(Rejection::LeadingTermNegligible { share })
+    } else {
+        None
+    };
     Candidate {
         class,
         terms,
@@ -834,11 +850,11 @@ mod tests {
 
     #[test]
     fn hidden_quadratic_term_is_found_under_a_large_linear_cost() {
-        // c₁·n + c₂·n² with the n² part 10 % of the n part at the largest
-        // size: a single-term a + b·f(n) cannot see it; the n² class fitted
-        // with its lower-order terms does, and extrapolates it.
+        // c₁·n + c₂·n² with the n² part a quarter of the n part at the
+        // largest size: a single-term a + b·f(n) cannot see it; the n² class
+        // fitted with its lower-order terms does, and extrapolates it.
         let sizes: Vec<f64> = (0..8).map(|k| 1000.0 * 2f64.powi(k)).collect();
-        let (c1, c2) = (1.0, 0.1 / 128_000.0);
+        let (c1, c2) = (1.0, 0.25 / 128_000.0);
         let cost = |n: f64| 50.0 + c1 * n + c2 * n * n;
         let ys: Vec<f64> = sizes.iter().map(|&n| cost(n)).collect();
         let fit = fit_growth(&sizes, &ys).unwrap();
