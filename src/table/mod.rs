@@ -7,6 +7,7 @@
 //! which is what lets differently-built outputs be compared.
 
 pub mod rng;
+pub mod write;
 
 use crate::plan::{ColumnPlan, RangePlan};
 use crate::spec::model::{ColumnKind, Order};
