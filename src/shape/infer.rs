@@ -207,6 +207,9 @@ pub fn infer(p: &Profile) -> Inferred {
     if p.nulls > 0 {
         c.nulls = Some(Share(round(p.null_share(), 4).max(1e-4)));
     }
+    if p.dtype.starts_with("datetime") {
+        choices.push(format!("`{}` is modelled by its dates: the spec has no time-of-day kind", p.dtype));
+    }
     if p.nonnull() == 0 {
         choices.push("every value is null: only the null share is modelled".into());
         return Inferred { profile: p.clone(), spec: Ok(c), measured, choices, growth };

@@ -115,7 +115,9 @@ fn code_column(s: &Series) -> Result<(ValueClass, Coded), String> {
         return Ok((ValueClass::Int, ints(&v)));
     }
     match dt {
-        DataType::Date => {
+        DataType::Date | DataType::Datetime(..) => {
+            // Datetimes are measured as their dates: the spec has no time-of-day kind.
+            let s = s.cast(&DataType::Date).map_err(e)?;
             let v: Vec<Option<i64>> = s.to_physical_repr().cast(&DataType::Int64).map_err(e)?.i64().map_err(e)?.iter().collect();
             Ok((ValueClass::Date, ints(&v)))
         }
@@ -237,5 +239,16 @@ mod tests {
         assert_eq!((p.distinct, p.half_distinct, p.half_nonnull), (3, 1, 2));
         assert_eq!((p.min, p.max), (Some(3.0), Some(4.0)));
         assert!(!p.ascending && !p.descending);
+    }
+
+    #[test]
+    fn datetimes_are_measured_by_their_dates() {
+        // 2001-01-01 00:00 and 23:00 are one date (day 11323 since 1970-01-01); 2001-01-02 another.
+        let us: i64 = 1_000_000;
+        let v = [978_307_200 * us, (978_307_200 + 23 * 3600) * us, (978_307_200 + 86_400) * us];
+        let s = Int64Chunked::new("at".into(), &v).into_datetime(TimeUnit::Microseconds, None).into_series();
+        let p = profile(&s).expect("profile");
+        assert_eq!(p.class, ValueClass::Date);
+        assert_eq!((p.distinct, p.min, p.max), (2, Some(11323.0), Some(11324.0)));
     }
 }
