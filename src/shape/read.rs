@@ -10,8 +10,8 @@ use polars::prelude::*;
 use std::fs::File;
 use std::path::Path;
 
-/// Cells read as null in CSV samples unless `--null` is given: the markers R, pandas and
-/// SQL exports write for a missing value (common practice).
+/// Cells read as null in CSV samples unless `--null` is given: the markers statistics
+/// tools and SQL exports commonly write for a missing value (common practice).
 pub const DEFAULT_NULL_MARKERS: &[&str] = &["", "NA", "N/A", "NULL", "null", "NaN", "None"];
 
 /// How to read samples.
