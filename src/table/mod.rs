@@ -8,6 +8,7 @@
 
 pub mod permute;
 pub mod rng;
+mod text;
 pub mod write;
 
 use crate::plan::{ColumnPlan, RangePlan};
@@ -63,19 +64,6 @@ fn bits(rows: u64, set: impl Fn(u64) -> bool + Sync) -> Bitmap {
         })
         .collect();
     Bitmap::from_u8_vec(bytes, rows as usize)
-}
-
-/// A categorical column straight from pool ranks: the pool's words are registered once and
-/// each row gets its word's category id, so no row's text is built or hashed.
-fn category(name: PlSmallStr, pool: &[String], ranks: &[u64], valid: Option<Bitmap>) -> PolarsResult<Series> {
-    let dtype = DataType::from_categories(Categories::global());
-    let DataType::Categorical(_, mapping) = &dtype else { unreachable!("from_categories gives a categorical dtype") };
-    let ids: Vec<u32> = pool.iter().map(|w| mapping.insert_cat(w)).collect::<PolarsResult<_>>()?;
-    let p = ids.len() as u64;
-    let codes: Vec<u32> = ranks.par_iter().with_min_len(1 << 14).map(|&k| ids[(k % p) as usize]).collect();
-    let phys = UInt32Chunked::from_vec_validity(name, codes, valid).into_series();
-    let phys = phys.cast(&DataType::from(dtype.cat_physical()?))?;
-    Series::from_cats_and_dtype(&phys, &dtype, false)
 }
 
 /// Draws pool ranks 0..d for every row: uniform or Zipf, then put in the column's order.
@@ -278,16 +266,11 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64) -> PolarsResult<Column> {
             let d = c.distinct.unwrap_or(100).max(1);
             let pool: Vec<String> = (0..d.min(rows.max(1))).map(|k| word(seed, &c.name, k, d, c.length)).collect();
             // Ranks beyond the pool built (only when d > rows) are folded into it.
-            let p = pool.len() as u64;
             let r = ranks(c, seed, rows, d);
             if c.kind == ColumnKind::Category {
-                category(name, &pool, &r, valid)?
+                text::category(name, &pool, &r, valid)?
             } else {
-                let ca: StringChunked = match &valid {
-                    Some(bm) => r.iter().zip(bm.iter()).map(|(&k, ok)| ok.then(|| pool[(k % p) as usize].as_str())).collect(),
-                    None => r.iter().map(|&k| Some(pool[(k % p) as usize].as_str())).collect(),
-                };
-                ca.with_name(name).into_series()
+                text::text(name, &pool, &r, valid)
             }
         }
     };
