@@ -63,13 +63,8 @@ fn targets(out: &Path, names: &[String]) -> Vec<PathBuf> {
 }
 
 fn write_spec(path: &Path, text: &str) -> Result<(), String> {
-    let name = path.file_name().map(|n| n.to_string_lossy().to_string()).unwrap_or_else(|| "spec.yaml".into());
-    let tmp = path.with_file_name(format!(".{name}.framecost-{}.tmp", std::process::id()));
-    std::fs::write(&tmp, text).map_err(|e| format!("{}: cannot write: {e}", tmp.display()))?;
-    std::fs::rename(&tmp, path).map_err(|e| {
-        let _ = std::fs::remove_file(&tmp);
-        format!("{}: cannot move into place: {e}", path.display())
-    })
+    use std::io::Write;
+    crate::table::write::replace_atomically(path, |f| f.write_all(text.as_bytes()).map_err(|e| format!("{}: cannot write: {e}", path.display()))).map(|_| ())
 }
 
 fn report(outcome: &shape::ShapeOutcome) -> String {

@@ -100,18 +100,13 @@ fn temp_beside(path: &Path) -> PathBuf {
     path.with_file_name(format!(".{name}.framecost-{}.tmp", std::process::id()))
 }
 
-/// Write `df` to `path` in `format`, atomically (temporary name in the same folder, then
-/// rename). Returns the bytes written.
-pub fn write_atomic(df: &mut DataFrame, path: &Path, format: FileFormat) -> Result<u64, String> {
+/// Write a file atomically: `fill` writes a temporary file beside `path`, which is synced
+/// and renamed into place; on any error the temporary file is removed. Returns the bytes.
+pub fn replace_atomically(path: &Path, fill: impl FnOnce(&mut File) -> Result<(), String>) -> Result<u64, String> {
     let tmp = temp_beside(path);
     let result = (|| -> Result<u64, String> {
         let mut file = File::create(&tmp).map_err(|e| format!("{}: cannot create: {e}", tmp.display()))?;
-        match format {
-            FileFormat::Parquet => ParquetWriter::new(&mut file).finish(df).map(|_| ()),
-            FileFormat::Ipc => IpcWriter::new(&mut file).finish(df),
-            FileFormat::Csv => CsvWriter::new(&mut file).include_header(true).finish(df),
-        }
-        .map_err(|e| format!("{}: could not write the {} file: {e}", path.display(), format.label()))?;
+        fill(&mut file)?;
         file.sync_all().map_err(|e| format!("{}: could not flush: {e}", tmp.display()))?;
         let len = file.metadata().map(|m| m.len()).unwrap_or(0);
         std::fs::rename(&tmp, path).map_err(|e| format!("{}: could not move the finished file into place: {e}", path.display()))?;
@@ -121,6 +116,19 @@ pub fn write_atomic(df: &mut DataFrame, path: &Path, format: FileFormat) -> Resu
         let _ = std::fs::remove_file(&tmp);
     }
     result
+}
+
+/// Write `df` to `path` in `format`, atomically (temporary name in the same folder, then
+/// rename). Returns the bytes written.
+pub fn write_atomic(df: &mut DataFrame, path: &Path, format: FileFormat) -> Result<u64, String> {
+    replace_atomically(path, |file| {
+        match format {
+            FileFormat::Parquet => ParquetWriter::new(file).finish(df).map(|_| ()),
+            FileFormat::Ipc => IpcWriter::new(file).finish(df),
+            FileFormat::Csv => CsvWriter::new(file).include_header(true).finish(df),
+        }
+        .map_err(|e| format!("{}: could not write the {} file: {e}", path.display(), format.label()))
+    })
 }
 
 #[cfg(test)]
