@@ -163,3 +163,32 @@ fn a_column_without_a_kind_is_reported_not_dropped() {
     assert!(t["spec"].as_str().expect("spec").contains("NOT MODELLED: `tags`"));
     assert!(Path::new(&path).exists());
 }
+
+#[test]
+fn parquet_and_ipc_samples_give_the_csv_samples_statistics() {
+    use polars::prelude::*;
+    // The penguins CSV read with `NA` as null, written as Parquet and as Arrow IPC: shape
+    // must measure the same statistics from each file.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let mut df = CsvReadOptions::default()
+        .with_has_header(true)
+        .with_parse_options(CsvParseOptions::default().with_null_values(Some(NullValues::AllColumnsSingle("NA".into()))))
+        .try_into_reader_with_file_path(Some(PENGUINS.into()))
+        .expect("reader")
+        .finish()
+        .expect("csv");
+    let pq = dir.path().join("penguins.parquet");
+    let ipc = dir.path().join("penguins.arrow");
+    ParquetWriter::new(std::fs::File::create(&pq).expect("create")).finish(&mut df).expect("parquet");
+    IpcWriter::new(std::fs::File::create(&ipc).expect("create")).finish(&mut df).expect("ipc");
+    let csv = json_of(&framecost(&["shape", PENGUINS, "--json"]));
+    for f in [&pq, &ipc] {
+        let j = json_of(&framecost(&["shape", f.to_str().expect("utf8"), "--json"]));
+        for (name, ..) in FACTS {
+            let (a, b) = (&column(&csv["tables"][0], name)["sample"], &column(&j["tables"][0], name)["sample"]);
+            for k in ["kind", "null_share", "distinct", "percentiles", "top_share"] {
+                assert_eq!(a[k], b[k], "{}: {name}.{k}", f.display());
+            }
+        }
+    }
+}
