@@ -15,6 +15,7 @@ pub mod patterns;
 pub mod plan;
 pub mod present;
 pub mod results;
+pub mod shape;
 pub mod spec;
 pub mod table;
 pub mod track;

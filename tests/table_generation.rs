@@ -133,3 +133,24 @@ fn columns_have_the_properties_asked_for() {
     let t = org.sum().unwrap_or(0) as f64 / n as f64;
     assert!((t - 0.3).abs() < 0.005, "true share {t}");
 }
+
+#[test]
+fn category_columns_hold_the_same_words_as_text_columns() {
+    // Categories are built straight from category ids; their words and nulls must be the
+    // ones the text path draws for the same column (same name, seed and parameters).
+    let spec = |kind: &str| {
+        format!(
+            "name: g\nseed: 5\ntable:\n  columns:\n    - {{name: farm, kind: {kind}, distinct: 40, skew: 0.9, nulls: 5%, length: [3, 8]}}\nsizes: [1k]\ndesigns:\n  - {{name: a, feed: records, steps: [build_from_records]}}\n  - {{name: b, feed: records, steps: [build_from_records]}}\n"
+        )
+    };
+    let cat = framecost::spec::load_str("c.yaml", &spec("category")).expect("spec");
+    let text = framecost::spec::load_str("t.yaml", &spec("text")).expect("spec");
+    let a = generate(&cat.columns, cat.seed, 30_000).expect("table");
+    let b = generate(&text.columns, text.seed, 30_000).expect("table");
+    let a = a.column("farm").expect("col");
+    assert!(matches!(a.dtype(), DataType::Categorical(..)));
+    let a = a.cast(&DataType::String).expect("cast");
+    let b = b.column("farm").expect("col");
+    assert!(a.as_materialized_series().equals_missing(b.as_materialized_series()));
+    assert!(a.null_count() > 0);
+}

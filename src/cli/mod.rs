@@ -8,7 +8,9 @@ pub mod history;
 pub mod lint;
 pub mod recap;
 pub mod report;
+pub mod shape;
 pub mod sweep;
+pub mod table;
 
 use clap::{Parser, Subcommand};
 
@@ -31,6 +33,8 @@ pub enum Command {
     History(history::Args),
     Recap(recap::Args),
     Report(report::Args),
+    Table(table::Args),
+    Shape(shape::Args),
 }
 
 /// Run the command line; returns the process exit code.
@@ -53,6 +57,8 @@ pub fn main() -> i32 {
         Command::History(a) => history::run(a),
         Command::Recap(a) => recap::run(a),
         Command::Report(a) => report::run(a),
+        Command::Table(a) => table::run(a),
+        Command::Shape(a) => shape::run(a),
     }
 }
 

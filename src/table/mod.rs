@@ -6,7 +6,10 @@
 //! newcomer must know: [`fingerprint`] hashes contents in row order independent of chunking,
 //! which is what lets differently-built outputs be compared.
 
+pub mod permute;
 pub mod rng;
+mod text;
+pub mod write;
 
 use crate::plan::{ColumnPlan, RangePlan};
 use crate::spec::model::{ColumnKind, Order};
@@ -40,6 +43,11 @@ fn validity(c: &ColumnPlan, seed: u64, rows: u64) -> Option<Bitmap> {
     }
     let st = Stream::new(seed, &c.name, NULLS);
     let cut = (c.nulls * u64::MAX as f64) as u64;
+    Some(bits(rows, |i| st.at(i) >= cut))
+}
+
+/// A bitmap of `rows` bits, bit i = `set(i)`, built eight rows per byte in parallel.
+fn bits(rows: u64, set: impl Fn(u64) -> bool + Sync) -> Bitmap {
     let bytes: Vec<u8> = (0..rows.div_ceil(8) as usize)
         .into_par_iter()
         .with_min_len(1 << 12)
@@ -48,14 +56,14 @@ fn validity(c: &ColumnPlan, seed: u64, rows: u64) -> Option<Bitmap> {
             let mut byte = 0u8;
             for bit in 0..8u64 {
                 let i = b * 8 + bit;
-                if i < rows && st.at(i) >= cut {
+                if i < rows && set(i) {
                     byte |= 1 << bit;
                 }
             }
             byte
         })
         .collect();
-    Some(Bitmap::from_u8_vec(bytes, rows as usize))
+    Bitmap::from_u8_vec(bytes, rows as usize)
 }
 
 /// Draws pool ranks 0..d for every row: uniform or Zipf, then put in the column's order.
@@ -152,46 +160,34 @@ fn float_values(c: &ColumnPlan, seed: u64, rows: u64, lo: f64, hi: f64) -> Vec<f
 
 /// Unique keys 0..rows in the column's order, then a share replaced by earlier rows' keys.
 fn key_values(c: &ColumnPlan, seed: u64, rows: u64) -> Vec<i64> {
-    let mut v: Vec<i64> = (0..rows as i64).collect();
     let st = Stream::new(seed, &c.name, SHUFFLE);
-    match c.order {
-        Order::Sorted => {}
-        Order::Reverse => v.reverse(),
-        Order::Random => {
-            // Fisher–Yates, driven by the row-indexed stream.
-            for i in (1..v.len()).rev() {
-                let j = st.below(i as u64, i as u64 + 1) as usize;
-                v.swap(i, j);
-            }
-        }
+    let mut v: Vec<i64> = match c.order {
+        Order::Sorted => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| i as i64).collect(),
+        Order::Reverse => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| rows as i64 - 1 - i as i64).collect(),
+        Order::Random => permute::random_order(&st, rows),
         Order::Clustered => {
             // Sorted runs of `run` keys, the runs themselves in shuffled order.
             let run = c.run.max(1) as usize;
-            let blocks = v.len().div_ceil(run);
+            let blocks = (rows as usize).div_ceil(run);
             let mut order: Vec<usize> = (0..blocks).collect();
             for i in (1..order.len()).rev() {
                 let j = st.below(i as u64, i as u64 + 1) as usize;
                 order.swap(i, j);
             }
-            let src = v.clone();
-            v.clear();
+            let mut v = Vec::with_capacity(rows as usize);
             for b in order {
-                v.extend_from_slice(&src[b * run..((b + 1) * run).min(src.len())]);
+                v.extend((b * run) as i64..((b + 1) * run).min(rows as usize) as i64);
             }
+            v
         }
-    }
+    };
     if c.duplicates > 0.0 {
         let du = Stream::new(seed, &c.name, DUPES);
         let cut = (c.duplicates * u64::MAX as f64) as u64;
-        for i in 1..v.len() {
-            if du.at(i as u64) < cut {
-                let j = du.below(i as u64 ^ 0x5555_5555, i as u64) as usize;
-                v[i] = v[j];
-            }
-        }
+        v = permute::with_duplicates(&v, &du, cut);
         match c.order {
-            Order::Sorted => v.sort_unstable(),
-            Order::Reverse => v.sort_unstable_by(|a, b| b.cmp(a)),
+            Order::Sorted => v.par_sort_unstable(),
+            Order::Reverse => v.par_sort_unstable_by(|a, b| b.cmp(a)),
             _ => {}
         }
     }
@@ -254,8 +250,12 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64) -> PolarsResult<Column> {
         ColumnKind::Bool => {
             let st = Stream::new(seed, &c.name, VALUES);
             let cut = (c.true_share * u64::MAX as f64) as u64;
-            let v: Vec<bool> = ordered(c, rows, |i| st.at(i) < cut);
-            let ca = BooleanChunked::from_slice(name, &v);
+            let ca = if c.order == Order::Random {
+                // Straight into bits, eight rows per byte, in parallel.
+                BooleanChunked::from_bitmap(name, bits(rows, |i| st.at(i) < cut))
+            } else {
+                BooleanChunked::from_slice(name, &ordered(c, rows, |i| st.at(i) < cut))
+            };
             match valid {
                 Some(bm) => ca.with_validity(Some(bm)),
                 None => ca,
@@ -266,21 +266,11 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64) -> PolarsResult<Column> {
             let d = c.distinct.unwrap_or(100).max(1);
             let pool: Vec<String> = (0..d.min(rows.max(1))).map(|k| word(seed, &c.name, k, d, c.length)).collect();
             // Ranks beyond the pool built (only when d > rows) are folded into it.
-            let p = pool.len() as u64;
             let r = ranks(c, seed, rows, d);
-            let ca: StringChunked = match &valid {
-                Some(bm) => r
-                    .iter()
-                    .zip(bm.iter())
-                    .map(|(&k, ok)| ok.then(|| pool[(k % p) as usize].as_str()))
-                    .collect(),
-                None => r.iter().map(|&k| Some(pool[(k % p) as usize].as_str())).collect(),
-            };
-            let s = ca.with_name(name).into_series();
             if c.kind == ColumnKind::Category {
-                s.cast(&DataType::from_categories(Categories::global()))?
+                text::category(name, &pool, &r, valid)?
             } else {
-                s
+                text::text(name, &pool, &r, valid)
             }
         }
     };

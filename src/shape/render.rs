@@ -1,0 +1,152 @@
+//! Writing an inferred table as a workload skeleton: YAML whose comments say what was
+//! measured and why each key has its value.
+//!
+//! The text is written by hand (serde would drop the comments), then loaded back through
+//! `spec::load_str` by the caller, so a skeleton that would not lint is never written.
+//! Seam for several tables: today each sample becomes its own workload with one `table:`;
+//! when the spec has `tables:`, [`workload`] takes every table at once and references become
+//! keys instead of comments.
+
+use super::infer::Inferred;
+use super::refs::Reference;
+use crate::spec::model::{Bound, ColumnSpec, Order};
+
+/// A YAML scalar for a name, quoted when plain YAML would misread it.
+pub fn yaml_str(s: &str) -> String {
+    let plain = !s.is_empty()
+        && s.chars().all(|c| c.is_alphanumeric() || c == '_' || c == '-' || c == '.' || c == ' ')
+        && !s.starts_with([' ', '-', '.'])
+        && !s.ends_with(' ')
+        && s.parse::<f64>().is_err()
+        && !matches!(s.to_lowercase().as_str(), "true" | "false" | "yes" | "no" | "null" | "on" | "off" | "y" | "n" | "~");
+    if plain {
+        s.to_string()
+    } else {
+        format!("\"{}\"", s.replace('\\', "\\\\").replace('"', "\\\""))
+    }
+}
+
+fn bound(b: &Bound) -> String {
+    match b {
+        Bound::Int(i) => i.to_string(),
+        Bound::Float(f) => {
+            let t = format!("{f}");
+            if t.contains(['.', 'e', 'E']) || t.contains("inf") || t.contains("NaN") {
+                t
+            } else {
+                format!("{t}.0")
+            }
+        }
+        Bound::Text(t) => t.clone(),
+    }
+}
+
+/// One column as a flow mapping.
+pub fn column_yaml(c: &ColumnSpec) -> String {
+    let mut parts = vec![format!("name: {}", yaml_str(&c.name)), format!("kind: {}", c.kind.label())];
+    if let Some(n) = c.nulls {
+        parts.push(format!("nulls: {}", n.0));
+    }
+    if let Some(d) = c.distinct {
+        parts.push(format!("distinct: {d}"));
+    }
+    if let Some(s) = c.skew {
+        parts.push(format!("skew: {s}"));
+    }
+    if let Some(r) = &c.range {
+        parts.push(format!("range: [{}]", r.iter().map(bound).collect::<Vec<_>>().join(", ")));
+    }
+    if let Some(l) = &c.length {
+        parts.push(format!("length: [{}, {}]", l[0], l[1]));
+    }
+    if let Some(t) = c.true_share {
+        parts.push(format!("true_share: {}", t.0));
+    }
+    if let Some(d) = c.duplicates {
+        parts.push(format!("duplicates: {}", d.0));
+    }
+    let order = match c.order {
+        Order::Random => None,
+        Order::Sorted => Some("sorted"),
+        Order::Reverse => Some("reverse"),
+        Order::Clustered => Some("clustered"),
+    };
+    if let Some(o) = order {
+        parts.push(format!("order: {o}"));
+    }
+    if let Some(r) = c.run {
+        parts.push(format!("run: {r}"));
+    }
+    format!("{{{}}}", parts.join(", "))
+}
+
+/// What the skeleton is made from.
+pub struct TableDoc<'a> {
+    pub name: &'a str,
+    pub file: &'a str,
+    pub rows: usize,
+    pub seed: u64,
+    pub columns: &'a [Inferred],
+    pub references: &'a [Reference],
+    /// Top labels per column, only with `--keep-labels`.
+    pub labels: &'a [(String, Vec<(String, u64)>)],
+}
+
+/// Sizes around the sample's: a quarter, a half, the same, twice and four times.
+fn sizes(rows: usize) -> String {
+    let mut v: Vec<u64> = [rows / 4, rows / 2, rows, rows * 2, rows * 4].iter().map(|&r| r.max(1) as u64).collect();
+    v.dedup();
+    v.iter().map(|&n| crate::spec::units::rows_label(n)).collect::<Vec<_>>().join(", ")
+}
+
+/// The whole workload skeleton for one table.
+pub fn workload(t: &TableDoc) -> String {
+    let mut y = String::new();
+    y += &format!("# Workload skeleton written by `framecost shape` from {} ({} rows).\n", t.file, t.rows);
+    y += "# The table mirrors the sample; the designs below are placeholders: replace them with\n";
+    y += "# the designs you want to compare. Comments say what was measured in the sample.\n";
+    y += &format!("name: {}\n", t.name);
+    y += &format!("about: >\n  A table shaped like {} ({} rows, {} columns).\n", t.file, t.rows, t.columns.len());
+    y += &format!("seed: {}\n", t.seed);
+    y += "table:\n  columns:\n";
+    for c in t.columns {
+        y += &format!("    # {}: {} ({})\n", c.profile.name, c.measured, c.profile.dtype);
+        if let Some((_, labels)) = t.labels.iter().find(|(n, _)| n == &c.profile.name) {
+            let l: Vec<String> = labels.iter().map(|(v, k)| format!("{v} {k}")).collect();
+            y += &format!("    #   most frequent (kept with --keep-labels): {}\n", l.join(", "));
+        }
+        for r in t.references.iter().filter(|r| r.column == c.profile.name) {
+            y += &format!(
+                "    #   refers to {}.{}: {} of its {} distinct values found there ({} values, unique)\n",
+                r.refers_to_table, r.refers_to_column, r.found, r.distinct, r.target_values
+            );
+        }
+        for ch in &c.choices {
+            y += &format!("    #   {ch}\n");
+        }
+        match &c.spec {
+            Ok(spec) => y += &format!("    - {}\n", column_yaml(spec)),
+            Err(reason) => y += &format!("    # NOT MODELLED: `{}`: {reason}\n", c.profile.name),
+        }
+    }
+    y += &format!("sizes: [{}]\n", sizes(t.rows));
+    y += "budget: {per_point: 2s, whole_run: 60s}\n";
+    y += "designs:   # placeholders: two generic designs that work on any table\n";
+    y += "  - name: build-once\n    feed: records\n    steps: [build_from_records]\n";
+    y += "  - name: batches-of-256\n    feed: records\n    steps: [{append_rows: {batch: 256, consolidate: end}}]\n";
+    y
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn names_that_yaml_would_misread_are_quoted() {
+        assert_eq!(yaml_str("bill_length_mm"), "bill_length_mm");
+        assert_eq!(yaml_str("yes"), "\"yes\"");
+        assert_eq!(yaml_str("2024"), "\"2024\"");
+        assert_eq!(yaml_str("a: b"), "\"a: b\"");
+        assert_eq!(yaml_str("say \"hi\""), "\"say \\\"hi\\\"\"");
+    }
+}
