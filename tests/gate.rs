@@ -72,6 +72,8 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
             feed: "records".into(),
             expect_time: None,
             expect_bytes: None,
+            engine: None,
+            query_plans: vec![],
         }],
         outputs_differ: None,
         gate_threshold: None,

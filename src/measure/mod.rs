@@ -3,6 +3,7 @@
 
 pub mod alloc;
 pub mod clock;
+pub mod inputs;
 pub mod machine;
 pub mod memory;
 pub mod runner;

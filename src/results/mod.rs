@@ -82,6 +82,12 @@ pub struct DesignHeader {
     pub feed: String,
     pub expect_time: Option<String>,
     pub expect_bytes: Option<String>,
+    /// The engine its queries ran on (`memory` or `streaming`); absent in older runs.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub engine: Option<String>,
+    /// The optimized plan of each `sql` step, in step order; absent in older runs.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub query_plans: Vec<String>,
 }
 
 /// The synthetic table made for one size.

@@ -8,7 +8,9 @@
 
 pub mod locate;
 pub mod model;
+pub mod queries;
 pub mod suggest;
+pub mod tables;
 pub mod units;
 pub mod validate;
 
