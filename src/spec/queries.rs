@@ -148,17 +148,19 @@ fn map_offset(text: &str, v: Pos, query: &str, offset: usize) -> Pos {
     let lines: Vec<&str> = text.lines().collect();
     let Some(first) = lines.get(v.line.saturating_sub(1)) else { return v };
     let lead = first.chars().nth(v.column.saturating_sub(1)).unwrap_or(' ');
-    if lead == '|' || lead == '>' {
-        // A block scalar: its content lines follow, indented deeper than the key.
-        let key_indent = first.len() - first.trim_start().len();
+    let before = lines.get(v.line.wrapping_sub(2)).map(|l| l.trim_end()).unwrap_or("");
+    let block_above = ["|", "|-", "|+", ">", ">-", ">+"].iter().any(|m| before.ends_with(&format!(" {m}")));
+    if lead == '|' || lead == '>' || block_above {
+        // A block scalar: its content lines (the parser marks the first of them, or the
+        // indicator above them) share one indentation.
+        let (from, mut indent) = if block_above { (v.line - 1, Some(v.column - 1)) } else { (v.line, None) };
         let mut rest = offset;
-        let mut indent = None;
-        for (k, l) in lines.iter().enumerate().skip(v.line) {
+        for (k, l) in lines.iter().enumerate().skip(from) {
             if l.trim().is_empty() {
                 continue;
             }
             let ind = l.len() - l.trim_start().len();
-            if ind <= key_indent {
+            if indent.is_some_and(|i| ind < i) {
                 break;
             }
             let ind = *indent.get_or_insert(ind);
@@ -188,6 +190,8 @@ mod tests {
         let text = "q: \"SELECT a FROM t\"\nr: |\n  SELECT a\n  FROM tt\n";
         assert_eq!(map_offset(text, Pos { line: 1, column: 4 }, "SELECT a FROM t", 7), Pos { line: 1, column: 12 });
         assert_eq!(map_offset(text, Pos { line: 2, column: 4 }, "SELECT a\nFROM tt\n", 14), Pos { line: 4, column: 8 });
+        // the parser may mark the first content line instead of the indicator
+        assert_eq!(map_offset(text, Pos { line: 3, column: 3 }, "SELECT a\nFROM tt\n", 14), Pos { line: 4, column: 8 });
         assert_eq!(find_word("select amount, am from x", "am"), Some(15));
         assert_eq!(place_in_query("SELECT\n FRM x", "sql parser error: Expected: end of statement, found: x at Line: 2, Column: 6").0, 12);
     }
