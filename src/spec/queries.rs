@@ -69,6 +69,18 @@ pub(super) fn check_queries(c: &mut Checker, text: &str, tables: &[TablePlan], d
     }
 }
 
+/// A design on the streaming engine needs tables that can be written chunk by chunk.
+pub(super) fn check_streaming(c: &mut Checker, tables: &[TablePlan], designs: &[DesignPlan], path: &YamlPath) {
+    for (i, d) in designs.iter().enumerate() {
+        if d.engine != crate::spec::model::EngineChoice::Streaming {
+            continue;
+        }
+        if let Some(why) = tables.iter().find_map(crate::table::related::chunk_blocker) {
+            c.at(&path.index(i).key("engine"), format!("the streaming engine reads its tables as chunks, but {why}"), None);
+        }
+    }
+}
+
 /// One located problem for a query that did not plan.
 fn report(c: &mut Checker, text: &str, qpath: &YamlPath, query: &str, message: &str, tables: &[String], columns: &[String]) {
     let mut message = message.lines().map(str::trim).filter(|l| !l.is_empty()).collect::<Vec<_>>().join(" ");

@@ -96,6 +96,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
     let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"));
+    super::queries::check_streaming(&mut c, &tables, &designs, &root.key("designs"));
     if c.issues.is_empty() {
         // Queries are planned only when everything else is sound (they need the tables).
         super::queries::check_queries(&mut c, text, &tables, &mut designs, &root.key("designs"));
