@@ -43,6 +43,7 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("35-streaming-builtin-step.yaml", "24:13", &["engine: streaming", "only `sql` steps"]),
     ("36-bad-reference.yaml", "13:50", &["no column `membr_id`", "did you mean `member_id`?"]),
     ("37-bad-table-rows.yaml", "6:11", &["1/zero"]),
+    ("38-sql-aggregate-without-group-by.yaml", "20:30", &["`member_id` is neither in a GROUP BY nor inside an aggregate", "SUM"]),
 ];
 
 #[test]

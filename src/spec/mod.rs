@@ -9,6 +9,7 @@
 pub mod locate;
 pub mod model;
 pub mod queries;
+pub mod sql_rules;
 pub mod suggest;
 pub mod tables;
 pub mod units;

@@ -54,6 +54,12 @@ pub(super) fn check_queries(c: &mut Checker, text: &str, tables: &[TablePlan], d
                 let plan = lf.describe_optimized_plan()?;
                 Ok((schema, plan))
             });
+            if let (Ok(_), Some(b)) = (&planned, super::sql_rules::check(query)) {
+                let before: usize = query.split('\n').take(b.line.saturating_sub(1)).map(|l| l.chars().count() + 1).sum();
+                let at = c.loc.value(&qpath).map(|v| map_offset(text, v, query, before + b.column.saturating_sub(1)));
+                c.push(at, &qpath, b.message, None);
+                break;
+            }
             match planned {
                 Ok((schema, plan)) => {
                     data = Some(DataFrame::empty_with_schema(&schema));
