@@ -88,6 +88,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
                 rows: n,
                 measured: None,
                 skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, detail: String::new() }),
+                setup_ns: None,
             }));
             continue;
         }
@@ -120,6 +121,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
                 spent_s: 0.1,
             }),
             skipped: None,
+            setup_ns: None,
         }));
     }
     r.push(Record::End(EndRecord { finished_at: "end".into(), elapsed_s: 1.0, mismatches: 0 }));

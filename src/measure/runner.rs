@@ -88,6 +88,8 @@ struct Active<'a> {
     design: &'a DesignPlan,
     feed: Value,
     ctx: RunContext,
+    /// Time of the untimed set-up steps at this size (ns), when the design has any.
+    setup_ns: Option<f64>,
     private: bool,
     batch: u64,
     warmup_runs: u64,
@@ -229,6 +231,7 @@ pub fn sweep(
                 rows,
                 measured: None,
                 skipped: Some(info),
+                setup_ns: None,
             }))
         };
 
@@ -345,6 +348,7 @@ pub fn sweep(
                     Err(e) => (RunContext::default(), Some(e)),
                 };
                 let mut feed = raw;
+                let setup_started = Instant::now();
                 for s in d.setup.iter().filter(|_| error.is_none()) {
                     match s.runner.run_in(feed.clone(), &ctx) {
                         Ok(v) => feed = v,
@@ -359,6 +363,7 @@ pub fn sweep(
                     design: d,
                     feed,
                     ctx,
+                    setup_ns: (!d.setup.is_empty()).then(|| setup_started.elapsed().as_nanos() as f64),
                     private: d.steps.first().is_some_and(|s| s.def.private_input),
                     batch: 1,
                     warmup_runs: 0,
@@ -484,6 +489,7 @@ pub fn sweep(
                 rows,
                 measured: Some(m),
                 skipped: None,
+                setup_ns: a.setup_ns,
             }))?;
             outcome.measured += 1;
         }

@@ -190,6 +190,10 @@ pub struct PointRecord {
     pub measured: Option<Measured>,
     /// Set when it was not.
     pub skipped: Option<SkipInfo>,
+    /// Time of the design's untimed `setup:` steps at this size (ns), run once before
+    /// sampling; absent when it has none (and in older runs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub setup_ns: Option<f64>,
 }
 
 /// Everything measured at one point. Times are per run of the design (ns); a sample of a
