@@ -89,24 +89,13 @@ pub fn estimate_design(plan: &Plan, design: usize, rows: u64, measured_peaks: &[
 }
 
 fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
-    let table = plan.table_bytes(rows);
-    let records = if plan.designs.iter().any(|d| d.feed == Feed::Records) {
-        rows as f64 * plan.columns.len() as f64 * RECORD_VALUE_BYTES
-    } else {
-        0.0
-    };
-    let working = plan
-        .designs
-        .iter()
-        .enumerate()
-        .filter(|(_, d)| d.engine == EngineChoice::Memory)
-        .map(|(i, d)| {
-            let peaks = measured_peaks.get(i).map(Vec::as_slice).unwrap_or(&[]);
-            extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table)
-        })
-        .fold(0.0, f64::max);
-    let disk = plan.designs.iter().map(|d| d.disk_factor() * table).fold(0.0, f64::max);
-    Estimate { table, records, working, disk }
+    // The tables are shared; records, working memory and files are the largest of any design.
+    let per: Vec<Estimate> = (0..plan.designs.len())
+        .filter(|&i| plan.designs[i].engine == EngineChoice::Memory)
+        .map(|i| estimate_design(plan, i, rows, measured_peaks))
+        .collect();
+    let largest = |f: fn(&Estimate) -> f64| per.iter().map(f).fold(0.0, f64::max);
+    Estimate { table: plan.table_bytes(rows), records: largest(|e| e.records), working: largest(|e| e.working), disk: largest(|e| e.disk) }
 }
 
 /// Bytes free for an unprivileged writer in the folder's file system (statvfs), if known.

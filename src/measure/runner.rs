@@ -337,11 +337,7 @@ pub fn sweep(
             .iter()
             .map(|&i| {
                 let d = &plan.designs[i];
-                let raw = match (d.feed, &records, d.engine) {
-                    (_, _, EngineChoice::Streaming) => Value::Frame(DataFrame::empty()),
-                    (Feed::Records, Some(r), _) => Value::Records(r.clone()),
-                    _ => Value::Frame(df.clone()),
-                };
+                let raw = design_feed(d, &df, &records);
                 // Untimed set-up steps, once per size.
                 let (ctx, mut error) = match inputs.context(d.engine) {
                     Ok(c) => (c, None),
@@ -507,6 +503,17 @@ pub fn sweep(
     Ok(outcome)
 }
 
+/// What a design's first step receives: the first table, its records, or — on the
+/// streaming engine, whose tables stay on disk — an empty table (its `sql` steps read the
+/// scans in the run context).
+fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -> Value {
+    match (d.feed, records, d.engine) {
+        (_, _, EngineChoice::Streaming) => Value::Frame(DataFrame::empty()),
+        (Feed::Records, Some(r), _) => Value::Records(r.clone()),
+        _ => Value::Frame(df.clone()),
+    }
+}
+
 /// Run every design once on a small table before anything is timed, so the first measured
 /// size does not pay for the process's cold start (thread pool, lazily built tables, fresh
 /// heap pages). Failures here are ignored: the real run reports them.
@@ -518,11 +525,7 @@ fn warmup_lap(plan: &Plan) {
     let records = Records::from_frame(&df).ok().map(Arc::new);
     for d in &plan.designs {
         let Ok(ctx) = inputs.context(d.engine) else { continue };
-        let mut v = match (d.feed, &records, d.engine) {
-            (_, _, EngineChoice::Streaming) => Value::Frame(DataFrame::empty()),
-            (Feed::Records, Some(r), _) => Value::Records(r.clone()),
-            _ => Value::Frame(df.clone()),
-        };
+        let mut v = design_feed(d, &df, &records);
         for s in &d.setup {
             match s.runner.run_in(v.clone(), &ctx) {
                 Ok(x) => v = x,

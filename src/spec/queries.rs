@@ -55,8 +55,7 @@ pub(super) fn check_queries(c: &mut Checker, text: &str, tables: &[TablePlan], d
                 Ok((schema, plan))
             });
             if let (Ok(_), Some(b)) = (&planned, super::sql_rules::check(query)) {
-                let before: usize = query.split('\n').take(b.line.saturating_sub(1)).map(|l| l.chars().count() + 1).sum();
-                let at = c.loc.value(&qpath).map(|v| map_offset(text, v, query, before + b.column.saturating_sub(1)));
+                let at = c.loc.value(&qpath).map(|v| map_offset(text, v, query, offset_of(query, b.line, b.column)));
                 c.push(at, &qpath, b.message, None);
                 break;
             }
@@ -120,8 +119,7 @@ fn place_in_query(query: &str, message: &str) -> (usize, Option<String>) {
         let rest = &message[i + 6..];
         let line: usize = rest.split(|ch: char| !ch.is_ascii_digit()).next().and_then(|x| x.parse().ok()).unwrap_or(1);
         let col: usize = rest.find("Column: ").and_then(|k| rest[k + 8..].split(|ch: char| !ch.is_ascii_digit()).next()?.parse().ok()).unwrap_or(1);
-        let before: usize = query.split('\n').take(line.saturating_sub(1)).map(|l| l.chars().count() + 1).sum();
-        let off = before + col.saturating_sub(1);
+        let off = offset_of(query, line, col);
         let word: String = query.chars().skip(off).take_while(|ch| ch.is_alphanumeric() || *ch == '_').collect();
         return (off.min(query.chars().count()), (!word.is_empty()).then_some(word));
     }
@@ -132,6 +130,12 @@ fn place_in_query(query: &str, message: &str) -> (usize, Option<String>) {
         }
     }
     (0, None)
+}
+
+/// Char offset of 1-based `line` and `column` in the query.
+fn offset_of(query: &str, line: usize, column: usize) -> usize {
+    let before: usize = query.split('\n').take(line.saturating_sub(1)).map(|l| l.chars().count() + 1).sum();
+    before + column.saturating_sub(1)
 }
 
 /// Texts between matching quotes, backticks or double quotes.
