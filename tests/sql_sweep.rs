@@ -24,7 +24,7 @@ budget: {per_point: 200ms, whole_run: 20s, max_samples: 8}
 designs:
   - name: in-memory
     steps:
-      - sql:
+      - sql: &same_query
           query: |
             SELECT d.variety_id, COUNT(*) AS n, SUM(d.grams * p.cents_per_kg) AS value
             FROM deliveries AS d JOIN prices AS p ON d.variety_id = p.variety_id
@@ -32,11 +32,7 @@ designs:
   - name: streaming
     engine: streaming
     steps:
-      - sql:
-          query: |
-            SELECT d.variety_id, COUNT(*) AS n, SUM(d.grams * p.cents_per_kg) AS value
-            FROM deliveries AS d JOIN prices AS p ON d.variety_id = p.variety_id
-            GROUP BY d.variety_id ORDER BY d.variety_id
+      - sql: *same_query
 "#;
 
 #[test]
