@@ -3,7 +3,7 @@
 //! only ever sees a plan.
 
 use crate::patterns::{Params, Step, StepDef};
-use crate::spec::model::{ColumnKind, Feed, Order};
+use crate::spec::model::{ColumnKind, EngineChoice, Feed, Order};
 use std::sync::Arc;
 
 /// A workload ready to run.
@@ -17,7 +17,13 @@ pub struct Plan {
     pub name: String,
     pub about: String,
     pub seed: u64,
+    /// The first table's columns (what built-in steps receive).
     pub columns: Vec<ColumnPlan>,
+    /// Every table, the first one first (a lone `table:` is one table named `data`).
+    pub tables: Vec<TablePlan>,
+    /// True when the spec used `tables:` (each table's values are then drawn with a seed
+    /// mixed with its name, so equal column names in two tables differ).
+    pub related: bool,
     /// Increasing row counts.
     pub sizes: Vec<u64>,
     pub target: Option<u64>,
@@ -45,6 +51,7 @@ pub struct DesignPlan {
     pub name: String,
     pub about: Option<String>,
     pub feed: Feed,
+    pub engine: EngineChoice,
     /// Untimed, once per size, before sampling.
     pub setup: Vec<StepPlan>,
     /// Timed.
@@ -54,6 +61,9 @@ pub struct DesignPlan {
     pub expect_bytes: Option<&'static str>,
     /// Dtypes the design is meant to end with, by column ("kilograms" → "f64").
     pub expect_dtypes: Vec<(String, &'static str)>,
+    /// The optimized plan of each `sql` step, as polars describes it when the query is
+    /// planned against the declared (empty) tables; filled in by the query check.
+    pub query_plans: Vec<String>,
 }
 
 impl DesignPlan {
@@ -101,6 +111,56 @@ pub struct ColumnPlan {
     pub duplicates: f64,
     pub length: (u32, u32),
     pub true_share: f64,
+    /// `table.column` of the key this column draws its values from.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub references: Option<String>,
+    /// Share of rows whose reference has no match.
+    #[serde(default)]
+    pub unmatched: f64,
+}
+
+/// One named table of the workload.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TablePlan {
+    pub name: String,
+    pub rows: RowsPlan,
+    pub columns: Vec<ColumnPlan>,
+}
+
+/// How a table's row count follows the swept size.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum RowsPlan {
+    /// The swept size itself.
+    Swept,
+    /// `num/den` of the swept size, at least one row.
+    Share(u64, u64),
+    /// A fixed count at every size.
+    Fixed(u64),
+}
+
+impl RowsPlan {
+    /// Rows at swept size `n`.
+    pub fn at(self, n: u64) -> u64 {
+        match self {
+            RowsPlan::Swept => n,
+            RowsPlan::Share(a, b) => ((n as u128 * a as u128 / b.max(1) as u128) as u64).max(1),
+            RowsPlan::Fixed(k) => k,
+        }
+    }
+    pub fn label(self) -> String {
+        match self {
+            RowsPlan::Swept => "the swept size".into(),
+            RowsPlan::Share(a, b) => format!("{a}/{b} of the swept size"),
+            RowsPlan::Fixed(k) => format!("{k} rows"),
+        }
+    }
+}
+
+impl TablePlan {
+    /// Estimated in-memory bytes at swept size `n`.
+    pub fn bytes(&self, n: u64) -> f64 {
+        self.columns.iter().map(|c| c.bytes_per_row()).sum::<f64>() * self.rows.at(n) as f64
+    }
 }
 
 /// A value range, typed by column kind. Dates are days since 1970-01-01.
@@ -129,8 +189,8 @@ impl ColumnPlan {
 }
 
 impl Plan {
-    /// Estimated in-memory bytes of the synthetic table at `rows` rows.
+    /// Estimated in-memory bytes of every table at swept size `rows`.
     pub fn table_bytes(&self, rows: u64) -> f64 {
-        self.columns.iter().map(|c| c.bytes_per_row()).sum::<f64>() * rows as f64
+        self.tables.iter().map(|t| t.bytes(rows)).sum()
     }
 }

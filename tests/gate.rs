@@ -73,6 +73,8 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
             expect_time: None,
             expect_bytes: None,
             expect_dtypes: vec![],
+            engine: None,
+            query_plans: vec![],
         }],
         outputs_differ: None,
         gate_threshold: None,
@@ -87,6 +89,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
                 rows: n,
                 measured: None,
                 skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, detail: String::new() }),
+                setup_ns: None,
             }));
             continue;
         }
@@ -121,6 +124,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
                 bimodal: false,
             }),
             skipped: None,
+            setup_ns: None,
         }));
     }
     r.push(Record::End(EndRecord { finished_at: "end".into(), elapsed_s: 1.0, mismatches: 0 }));

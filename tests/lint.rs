@@ -13,7 +13,7 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("06-negative-budget.yaml", "7:14", &["budget.per_point", "above zero", "-5"]),
     ("07-zero-size.yaml", "5:13", &["sizes[1]", "found 0"]),
     ("08-impossible-ladder.yaml", "5:24", &["sizes.to", "64000", "1000"]),
-    ("09-one-design.yaml", "7:3", &["two or more designs", "found 1"]),
+    ("09-no-design.yaml", "6:10", &["at least one design"]),
     ("10-unknown-param.yaml", "10:23", &["no parameter `bacth`", "did you mean `batch`?"]),
     ("11-bad-choice.yaml", "10:47", &["one of each, end, never", "`eech`", "did you mean `each`?"]),
     ("12-wrong-feed.yaml", "9:9", &["needs records but receives a table", "feed: records"]),
@@ -27,6 +27,23 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("20-bad-rows.yaml", "5:13", &["whole number of rows", "2.5"]),
     ("21-not-a-mapping.yaml", "1:1", &["expected a workload"]),
     ("22-step-params-list.yaml", "10:22", &["parameters as a mapping", "found a list"]),
+    // Queries: planned against empty tables of the declared dtypes, located inside the query.
+    ("23-sql-unknown-column.yaml", "20:30", &["unable to find column \"kilogram\"", "did you mean `kilograms`?"]),
+    ("24-sql-unknown-table.yaml", "20:37", &["relation 'delivery' was not found", "did you mean `deliveries`?"]),
+    ("25-sql-syntax.yaml", "20:32", &["sql parser error", "found: FRM"]),
+    ("26-sql-type-sum-text.yaml", "23:20", &["`sum` operation not supported for dtype `str`"]),
+    ("27-sql-join-unknown-column.yaml", "24:36", &["no column named 'member'", "did you mean `member_id`?"]),
+    ("28-sql-order-by-unknown.yaml", "20:67", &["\"kilo\"", "did you mean `kilograms`?"]),
+    ("29-sql-unknown-function.yaml", "20:30", &["unsupported function 'average'"]),
+    ("30-sql-ambiguous-column.yaml", "20:30", &["ambiguous reference to column \"member_id\""]),
+    ("31-sql-type-arithmetic.yaml", "20:30", &["arithmetic on dtypes str"]),
+    ("32-sql-group-by-unknown.yaml", "23:35", &["\"distric\"", "did you mean `district`?"]),
+    ("33-sql-missing-query.yaml", "20:9", &["expected text for `query`, found nothing"]),
+    ("34-sql-second-step.yaml", "21:81", &["steps[1]", "\"membr_id\"", "did you mean `member_id`?"]),
+    ("35-streaming-builtin-step.yaml", "24:13", &["engine: streaming", "only `sql` steps"]),
+    ("36-bad-reference.yaml", "13:50", &["no column `membr_id`", "did you mean `member_id`?"]),
+    ("37-bad-table-rows.yaml", "6:11", &["1/zero"]),
+    ("38-sql-aggregate-without-group-by.yaml", "20:30", &["`member_id` is neither in a GROUP BY nor inside an aggregate", "SUM"]),
 ];
 
 #[test]

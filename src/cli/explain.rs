@@ -121,7 +121,26 @@ pub fn run(a: Args) -> i32 {
             );
         }
         print!("{}", crate::explain::render(e, a.long));
+        if a.long {
+            print!("{}", query_plans(&w.header.designs));
+        }
         println!();
     }
     crate::exit::OK
+}
+
+/// The optimized plan of each `sql` step, as recorded with the run (older runs have none).
+pub fn query_plans(designs: &[crate::results::DesignHeader]) -> String {
+    let mut s = String::new();
+    for d in designs.iter().filter(|d| !d.query_plans.is_empty()) {
+        let engine = d.engine.as_deref().unwrap_or("memory");
+        for (k, plan) in d.query_plans.iter().enumerate() {
+            let which = if d.query_plans.len() > 1 { format!(" (query {})", k + 1) } else { String::new() };
+            s.push_str(&format!("  query plan of `{}`{which}, {engine} engine, as polars' optimizer left it:\n", d.name));
+            for line in plan.lines() {
+                s.push_str(&format!("    │ {line}\n"));
+            }
+        }
+    }
+    s
 }

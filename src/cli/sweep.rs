@@ -117,6 +117,33 @@ fn positive(v: Result<f64, String>, flag: &str) -> Result<f64, String> {
     }
 }
 
+/// What `--plan` says about one size: one line, or one per engine when designs differ in it.
+fn plan_lines(p: &Plan, n: u64) -> Vec<String> {
+    use crate::spec::model::EngineChoice;
+    let engines: Vec<EngineChoice> = [EngineChoice::Memory, EngineChoice::Streaming]
+        .into_iter()
+        .filter(|e| p.designs.iter().any(|d| d.engine == *e))
+        .collect();
+    let line = |e: crate::measure::memory::Estimate, who: &str| {
+        let disk = if e.disk > 0.0 { format!("; writes {}", e.describe_disk()) } else { String::new() };
+        format!("{who}needs {}{disk}", e.describe())
+    };
+    if engines.len() < 2 && !engines.contains(&EngineChoice::Streaming) {
+        return vec![line(crate::measure::memory::estimate(p, n, &[]), "")];
+    }
+    engines
+        .iter()
+        .map(|&eng| {
+            let largest = (0..p.designs.len())
+                .filter(|&i| p.designs[i].engine == eng)
+                .map(|i| crate::measure::memory::estimate_design(p, i, n, &[]))
+                .max_by(|a, b| a.total().total_cmp(&b.total()));
+            let who = format!("{} engine: ", eng.label());
+            largest.map(|e| line(e, &who)).unwrap_or_default()
+        })
+        .collect()
+}
+
 /// A progress bar on stderr, only when stderr is a terminal.
 struct Bar(Option<indicatif::ProgressBar>);
 
@@ -183,11 +210,8 @@ pub fn run(a: Args) -> i32 {
         if a.plan {
             println!("{} ({} designs):", p.name, p.designs.len());
             for &n in &p.sizes {
-                let e = crate::measure::memory::estimate(p, n, &[]);
-                if e.disk > 0.0 {
-                    println!("  {:>8} rows  needs {}; writes {}", rows_label(n), e.describe(), e.describe_disk());
-                } else {
-                    println!("  {:>8} rows  needs {}", rows_label(n), e.describe());
+                for line in plan_lines(p, n) {
+                    println!("  {:>8} rows  {line}", rows_label(n));
                 }
             }
             println!(
@@ -210,14 +234,11 @@ pub fn run(a: Args) -> i32 {
                 ));
             }
         }
-        if est.total() > avail as f64 * opts.memory_share {
-            refused.push(format!(
-                "{} at {} rows needs {}; {} available",
-                p.name,
-                rows_label(largest),
-                est.describe(),
-                crate::present::units::bytes(avail as f64)
-            ));
+        let refusals = crate::measure::inputs::refusals(p, largest, &[], avail, opts.memory_share, false);
+        for (d, why) in p.designs.iter().zip(&refusals) {
+            if let Some(why) = why.as_ref().filter(|w| w.reason == crate::results::SkipReason::Memory) {
+                refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), why.detail));
+            }
         }
     }
     if a.plan {

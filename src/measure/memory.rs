@@ -6,10 +6,14 @@
 //! table. Once a design has been measured at two or more sizes, its peak live bytes are
 //! extrapolated along their own log-log slope instead. Steps that write files (the storage
 //! family) also declare a disk factor, checked against the temp folder's free space.
+//!
+//! Designs on the streaming engine keep their tables on disk (Parquet chunks, counted as
+//! disk) and hold a few chunks at a time: before they are measured, their working memory is
+//! their memory factor times two chunks of every table.
 
 use crate::measure::stats::loglog_slope;
 use crate::plan::Plan;
-use crate::spec::model::Feed;
+use crate::spec::model::{EngineChoice, Feed};
 
 /// Bytes a record's value takes: the value itself (an `AnyValue`, 32 bytes here) plus the
 /// record's share of its vector.
@@ -43,25 +47,55 @@ impl Estimate {
     }
 }
 
-/// Estimate memory at `rows`, given measured peaks `(rows, peak_live_bytes)` per design.
+/// Estimate memory at `rows` for the whole size, given measured peaks `(rows,
+/// peak_live_bytes)` per design: the in-memory designs' tables and largest working memory,
+/// or — when every design streams — the largest streaming design's.
 pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
+    let streaming: Vec<usize> = (0..plan.designs.len()).filter(|&i| plan.designs[i].engine == EngineChoice::Streaming).collect();
+    let disk_streaming = if streaming.is_empty() { 0.0 } else { plan.table_bytes(rows) };
+    if streaming.len() == plan.designs.len() && !streaming.is_empty() {
+        let mut largest = Estimate { table: 0.0, records: 0.0, working: 0.0, disk: 0.0 };
+        for &i in &streaming {
+            let e = estimate_design(plan, i, rows, measured_peaks);
+            if e.total() > largest.total() {
+                largest = e;
+            }
+        }
+        largest.disk = disk_streaming;
+        return largest;
+    }
+    let mut e = estimate_memory_designs(plan, rows, measured_peaks);
+    e.disk = e.disk.max(disk_streaming);
+    e
+}
+
+/// Estimate memory at `rows` for one design, on its own engine.
+pub fn estimate_design(plan: &Plan, design: usize, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
+    let d = &plan.designs[design];
+    let peaks = measured_peaks.get(design).map(Vec::as_slice).unwrap_or(&[]);
     let table = plan.table_bytes(rows);
-    let records = if plan.designs.iter().any(|d| d.feed == Feed::Records) {
-        rows as f64 * plan.columns.len() as f64 * RECORD_VALUE_BYTES
-    } else {
-        0.0
-    };
-    let working = plan
-        .designs
-        .iter()
-        .enumerate()
-        .map(|(i, d)| {
-            let peaks = measured_peaks.get(i).map(Vec::as_slice).unwrap_or(&[]);
-            extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table)
-        })
-        .fold(0.0, f64::max);
-    let disk = plan.designs.iter().map(|d| d.disk_factor() * table).fold(0.0, f64::max);
-    Estimate { table, records, working, disk }
+    match d.engine {
+        EngineChoice::Memory => {
+            let records = if d.feed == Feed::Records { rows as f64 * plan.columns.len() as f64 * RECORD_VALUE_BYTES } else { 0.0 };
+            let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table);
+            Estimate { table, records, working, disk: d.disk_factor() * table }
+        }
+        EngineChoice::Streaming => {
+            let chunks = (2.0 * plan.table_bytes(super::inputs::CHUNK_ROWS)).min(table);
+            let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * chunks);
+            Estimate { table: chunks, records: 0.0, working, disk: table }
+        }
+    }
+}
+
+fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
+    // The tables are shared; records, working memory and files are the largest of any design.
+    let per: Vec<Estimate> = (0..plan.designs.len())
+        .filter(|&i| plan.designs[i].engine == EngineChoice::Memory)
+        .map(|i| estimate_design(plan, i, rows, measured_peaks))
+        .collect();
+    let largest = |f: fn(&Estimate) -> f64| per.iter().map(f).fold(0.0, f64::max);
+    Estimate { table: plan.table_bytes(rows), records: largest(|e| e.records), working: largest(|e| e.working), disk: largest(|e| e.disk) }
 }
 
 /// Bytes free for an unprivileged writer in the folder's file system (statvfs), if known.

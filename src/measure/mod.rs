@@ -4,6 +4,7 @@
 pub mod alloc;
 pub mod clock;
 pub mod hygiene;
+pub mod inputs;
 pub mod machine;
 pub mod memory;
 pub mod runner;

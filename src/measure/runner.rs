@@ -14,11 +14,12 @@ use super::clock::{process_cpu_ns, ClockInfo};
 use super::machine::available_memory;
 use super::memory;
 use super::stats::{median_ci_sorted, median_sorted, ratio_ci};
+use crate::patterns::sql::RunContext;
 use crate::patterns::{OutputFacts, Records, Value};
 use crate::plan::{DesignPlan, Plan};
 use crate::results::writer::{RunWriter, WriteError};
 use crate::results::*;
-use crate::spec::model::Feed;
+use crate::spec::model::{EngineChoice, Feed};
 use polars::prelude::DataFrame;
 use std::sync::Arc;
 use std::time::Instant;
@@ -85,6 +86,9 @@ struct Active<'a> {
     index: usize,
     design: &'a DesignPlan,
     feed: Value,
+    ctx: RunContext,
+    /// Time of the untimed set-up steps at this size (ns), when the design has any.
+    setup_ns: Option<f64>,
     private: bool,
     batch: u64,
     warmup_runs: u64,
@@ -100,11 +104,16 @@ struct Active<'a> {
     error: Option<String>,
 }
 
-/// Run one design's steps on one input.
+/// Run one design's steps on one input (with no workload tables: for tests of built-in steps).
 pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
+    run_design_in(design, input, &RunContext::default())
+}
+
+/// Run one design's steps on one input, with the size's tables in `ctx`.
+pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Result<Value, String> {
     let mut v = input;
     for s in &design.steps {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
+        v = s.runner.run_in(v, ctx).map_err(|e| e.to_string())?;
     }
     Ok(v)
 }
@@ -126,7 +135,7 @@ fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
     let w = Window::open();
     let t0 = Instant::now();
     for input in inputs.drain(..) {
-        outputs.push(run_design(a.design, input));
+        outputs.push(run_design_in(a.design, input, &a.ctx));
     }
     let elapsed = t0.elapsed().as_nanos() as f64;
     let alloc = w.close();
@@ -198,6 +207,8 @@ pub fn sweep(
                     Feed::Table => "table".into(),
                     Feed::Records => "records".into(),
                 },
+                engine: Some(d.engine.label().to_string()),
+                query_plans: d.query_plans.clone(),
                 expect_time: d.expect_time.map(str::to_string),
                 expect_bytes: d.expect_bytes.map(str::to_string),
                 expect_dtypes: d.expect_dtypes.iter().map(|(c, t)| (c.clone(), t.to_string())).collect(),
@@ -223,70 +234,27 @@ pub fn sweep(
                 rows,
                 measured: None,
                 skipped: Some(info),
+                setup_ns: None,
             }))
         };
 
-        // Memory: refuse a size that will not fit.
+        // Memory and disk: refuse each design whose estimate will not fit.
         let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
         let est = memory::estimate(plan, rows, &peaks);
         let avail = available_memory();
-        if est.total() > avail as f64 * opts.memory_share && !opts.force {
-            for d in &plan.designs {
-                skip_point(
-                    out,
-                    &d.name,
-                    SkipInfo {
-                        reason: SkipReason::Memory,
-                        predicted_ns: None,
-                        predicted_bytes: Some(est.total()),
-                        detail: format!(
-                            "needs {}; {} available, {:.0}% of it may be used (--force to run anyway)",
-                            est.describe(),
-                            crate::present::units::bytes(avail as f64),
-                            opts.memory_share * 100.0
-                        ),
-                    },
-                )?;
-                outcome.skipped += 1;
-                progress.point_done();
-            }
-            continue;
-        }
-
-        // Disk: refuse a size whose files will not fit in the temp folder.
-        if est.disk > 0.0 && !opts.force {
-            if let Some(free) = memory::available_disk(&std::env::temp_dir()) {
-                if est.disk > free as f64 * opts.memory_share {
-                    for d in &plan.designs {
-                        skip_point(
-                            out,
-                            &d.name,
-                            SkipInfo {
-                                reason: SkipReason::Disk,
-                                predicted_ns: None,
-                                predicted_bytes: Some(est.disk),
-                                detail: format!(
-                                    "writes {}; {} free in {}, {:.0}% of it may be used (--force to run anyway)",
-                                    est.describe_disk(),
-                                    crate::present::units::bytes(free as f64),
-                                    std::env::temp_dir().display(),
-                                    opts.memory_share * 100.0
-                                ),
-                            },
-                        )?;
-                        outcome.skipped += 1;
-                        progress.point_done();
-                    }
-                    continue;
-                }
-            }
-        }
+        let mut refused = super::inputs::refusals(plan, rows, &peaks, avail, opts.memory_share, opts.force);
 
         // Which designs run at this size.
         let elapsed_run = started.elapsed().as_secs_f64();
         let mut runnable = Vec::new();
         for (i, d) in plan.designs.iter().enumerate() {
             let st = &states[i];
+            if let Some(info) = refused[i].take() {
+                skip_point(out, &d.name, info)?;
+                outcome.skipped += 1;
+                progress.point_done();
+                continue;
+            }
             if let Some(block) = &st.blocked {
                 let mut info = block.clone();
                 info.predicted_ns = predict_ns(&st.history, rows).or(info.predicted_ns);
@@ -342,17 +310,16 @@ pub fn sweep(
         // The table and the feeds (untimed).
         let w = Window::open();
         let t0 = Instant::now();
-        let df: DataFrame = crate::table::generate(&plan.columns, plan.seed, rows).map_err(|e| RunError::Table {
-            workload: plan.name.clone(),
-            rows,
-            message: e.to_string(),
-        })?;
+        let engines = |e: EngineChoice| runnable.iter().any(|&i| plan.designs[i].engine == e);
+        let inputs = super::inputs::SizeInputs::prepare(plan, rows, engines(EngineChoice::Memory), engines(EngineChoice::Streaming))
+            .map_err(|message| RunError::Table { workload: plan.name.clone(), rows, message })?;
+        let df: DataFrame = inputs.first();
         let generate_ns = t0.elapsed().as_nanos() as f64;
         let gen_alloc = w.close();
         out.write(Record::Table(TableRecord {
             workload: plan.name.clone(),
             rows,
-            fingerprint: crate::table::fingerprint(&df),
+            fingerprint: if inputs.tables.is_empty() { "on disk only".to_string() } else { crate::table::fingerprint(&df) },
             generate_ns,
             generate_alloc_bytes: gen_alloc.bytes,
             table_bytes_estimate: est.table,
@@ -373,15 +340,16 @@ pub fn sweep(
             .iter()
             .map(|&i| {
                 let d = &plan.designs[i];
-                let raw = match (d.feed, &records) {
-                    (Feed::Records, Some(r)) => Value::Records(r.clone()),
-                    _ => Value::Frame(df.clone()),
-                };
+                let raw = design_feed(d, &df, &records);
                 // Untimed set-up steps, once per size.
-                let mut error = None;
+                let (ctx, mut error) = match inputs.context(d.engine) {
+                    Ok(c) => (c, None),
+                    Err(e) => (RunContext::default(), Some(e)),
+                };
                 let mut feed = raw;
-                for s in &d.setup {
-                    match s.runner.run(feed.clone()) {
+                let setup_started = Instant::now();
+                for s in d.setup.iter().filter(|_| error.is_none()) {
+                    match s.runner.run_in(feed.clone(), &ctx) {
                         Ok(v) => feed = v,
                         Err(e) => {
                             error = Some(format!("set-up step {}: {e}", s.label));
@@ -393,6 +361,8 @@ pub fn sweep(
                     index: i,
                     design: d,
                     feed,
+                    ctx,
+                    setup_ns: (!d.setup.is_empty()).then(|| setup_started.elapsed().as_nanos() as f64),
                     private: d.steps.first().is_some_and(|s| s.def.private_input),
                     batch: 1,
                     warmup_runs: 0,
@@ -523,6 +493,7 @@ pub fn sweep(
                 rows,
                 measured: Some(m),
                 skipped: None,
+                setup_ns: a.setup_ns,
             }))?;
             outcome.measured += 1;
         }
@@ -541,25 +512,36 @@ pub fn sweep(
     Ok(outcome)
 }
 
+/// What a design's first step receives: the first table, its records, or — on the
+/// streaming engine, whose tables stay on disk — an empty table (its `sql` steps read the
+/// scans in the run context).
+fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -> Value {
+    match (d.feed, records, d.engine) {
+        (_, _, EngineChoice::Streaming) => Value::Frame(DataFrame::empty()),
+        (Feed::Records, Some(r), _) => Value::Records(r.clone()),
+        _ => Value::Frame(df.clone()),
+    }
+}
+
 /// Run every design once on a small table before anything is timed, so the first measured
 /// size does not pay for the process's cold start (thread pool, lazily built tables, fresh
 /// heap pages). Failures here are ignored: the real run reports them.
 fn warmup_lap(plan: &Plan) {
     let rows = plan.sizes.first().copied().unwrap_or(1).min(1000);
-    let Ok(df) = crate::table::generate(&plan.columns, plan.seed, rows) else { return };
+    let streams = plan.designs.iter().any(|d| d.engine == EngineChoice::Streaming);
+    let Ok(inputs) = super::inputs::SizeInputs::prepare(plan, rows, true, streams) else { return };
+    let df = inputs.first();
     let records = Records::from_frame(&df).ok().map(Arc::new);
     for d in &plan.designs {
-        let mut v = match (d.feed, &records) {
-            (Feed::Records, Some(r)) => Value::Records(r.clone()),
-            _ => Value::Frame(df.clone()),
-        };
+        let Ok(ctx) = inputs.context(d.engine) else { continue };
+        let mut v = design_feed(d, &df, &records);
         for s in &d.setup {
-            match s.runner.run(v.clone()) {
+            match s.runner.run_in(v.clone(), &ctx) {
                 Ok(x) => v = x,
                 Err(_) => break,
             }
         }
-        let _ = run_design(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)));
+        let _ = run_design_in(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)), &ctx);
     }
 }
 

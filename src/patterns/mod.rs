@@ -16,6 +16,7 @@ pub mod joins_sorting;
 pub mod key_lookups;
 pub mod row_growth;
 pub mod row_wise;
+pub mod sql;
 pub mod storage;
 pub mod subsets;
 pub mod tiny_containers;
@@ -39,6 +40,7 @@ pub const FAMILIES: &[(&str, &[StepDef])] = &[
     ("storage", storage::STEPS),
     ("subsets", subsets::STEPS),
     ("joins and sorting", joins_sorting::STEPS),
+    ("queries", sql::STEPS),
 ];
 
 /// What flows between steps.
@@ -158,6 +160,12 @@ pub trait Step: Send + Sync {
     /// Run the step. This is the timed region: do no set-up here that a real pipeline
     /// would not also do.
     fn run(&self, input: Value) -> Result<Value, StepError>;
+
+    /// Run the step with the size's run context (the workload's tables, the engine).
+    /// Steps that need only their input keep this default.
+    fn run_in(&self, input: Value, _ctx: &sql::RunContext) -> Result<Value, StepError> {
+        self.run(input)
+    }
 }
 
 /// The type of a step parameter, used to check specs and to document steps.
@@ -171,6 +179,8 @@ pub enum ParamKind {
     Number { min: f64, max: f64 },
     /// true or false.
     Flag,
+    /// Free text (a query).
+    Text,
 }
 
 impl ParamKind {
@@ -180,6 +190,7 @@ impl ParamKind {
             ParamKind::Choice(c) => format!("one of {}", c.join(", ")),
             ParamKind::Number { min, max } => format!("a number from {min} to {max}"),
             ParamKind::Flag => "true or false".to_string(),
+            ParamKind::Text => "text".to_string(),
         }
     }
 }
@@ -201,6 +212,7 @@ pub enum ParamValue {
     Choice(String),
     Number(f64),
     Flag(bool),
+    Text(String),
 }
 
 impl std::fmt::Display for ParamValue {
@@ -210,6 +222,7 @@ impl std::fmt::Display for ParamValue {
             ParamValue::Choice(v) => write!(f, "{v}"),
             ParamValue::Number(v) => write!(f, "{v}"),
             ParamValue::Flag(v) => write!(f, "{v}"),
+            ParamValue::Text(v) => write!(f, "\"{}\"", v.split_whitespace().collect::<Vec<_>>().join(" ")),
         }
     }
 }
@@ -235,6 +248,12 @@ impl Params {
         match self.0.get(name) {
             Some(ParamValue::Number(v)) => *v,
             _ => 0.0,
+        }
+    }
+    pub fn text(&self, name: &str) -> &str {
+        match self.0.get(name) {
+            Some(ParamValue::Text(v)) => v,
+            _ => "",
         }
     }
     pub fn flag(&self, name: &str) -> bool {

@@ -187,6 +187,12 @@ fn markdown(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Expl
         for d in &w.header.designs {
             let _ = writeln!(s, "- `{}`: {}{}", d.name, d.recipe, d.about.as_ref().map(|a| format!(" — {a}")).unwrap_or_default());
         }
+        for d in w.header.designs.iter().filter(|d| !d.query_plans.is_empty()) {
+            let engine = d.engine.as_deref().unwrap_or("memory");
+            for plan in &d.query_plans {
+                let _ = writeln!(s, "\nQuery plan of `{}` ({engine} engine, optimized):\n\n```\n{}\n```", d.name, plan.trim_end());
+            }
+        }
         s.push('\n');
     }
     let _ = writeln!(s, "## Machine\n");
@@ -267,6 +273,12 @@ fn html(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Explanat
             );
         }
         let _ = writeln!(s, "</ul>");
+        for d in w.header.designs.iter().filter(|d| !d.query_plans.is_empty()) {
+            let engine = d.engine.as_deref().unwrap_or("memory");
+            for plan in &d.query_plans {
+                let _ = writeln!(s, "<p>Query plan of <code>{}</code> ({engine} engine, optimized):</p><pre>{}</pre>", esc(&d.name), esc(plan.trim_end()));
+            }
+        }
     }
     let _ = writeln!(s, "<h2>Machine</h2><dl>");
     for (k, v) in machine_lines(r) {

@@ -210,6 +210,18 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
     s.push('\n');
     s.push_str(&crate::explain::render_without(&explanation, false, &["growth", "mismatch"]));
 
+    // Set-up: untimed, once per size, outside the samples.
+    for d in &w.header.designs {
+        let made: Vec<String> = w
+            .design_points(&d.name)
+            .iter()
+            .filter_map(|p| p.setup_ns.map(|ns| format!("{} at {}", crate::present::units::time_ns(ns), rows_label(p.rows))))
+            .collect();
+        if !made.is_empty() {
+            let _ = writeln!(s, "  set-up of `{}` (once per size, not in the samples): {}", d.name, made.join(", "));
+        }
+    }
+
     // Skips.
     let skips: Vec<String> = w
         .points

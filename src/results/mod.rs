@@ -91,6 +91,12 @@ pub struct DesignHeader {
     /// Dtypes the design is meant to end with: (column, dtype name such as "f64").
     #[serde(default)]
     pub expect_dtypes: Vec<(String, String)>,
+    /// The engine its queries ran on (`memory` or `streaming`); absent in older runs.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub engine: Option<String>,
+    /// The optimized plan of each `sql` step, in step order; absent in older runs.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub query_plans: Vec<String>,
 }
 
 /// The synthetic table made for one size.
@@ -193,6 +199,10 @@ pub struct PointRecord {
     pub measured: Option<Measured>,
     /// Set when it was not.
     pub skipped: Option<SkipInfo>,
+    /// Time of the design's untimed `setup:` steps at this size (ns), run once before
+    /// sampling; absent when it has none (and in older runs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub setup_ns: Option<f64>,
 }
 
 /// Everything measured at one point. Times are per run of the design (ns); a sample of a

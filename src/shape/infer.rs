@@ -191,6 +191,8 @@ fn empty_spec(name: &str, kind: ColumnKind) -> ColumnSpec {
         duplicates: None,
         length: None,
         true_share: None,
+        references: None,
+        unmatched: None,
     }
 }
 

@@ -8,7 +8,10 @@
 
 pub mod locate;
 pub mod model;
+pub mod queries;
+pub mod sql_rules;
 pub mod suggest;
+pub mod tables;
 pub mod units;
 pub mod validate;
 

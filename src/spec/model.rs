@@ -25,8 +25,13 @@ pub struct WorkloadSpec {
     /// Seed of the synthetic table (the same seed gives the same table, bit for bit).
     #[serde(default = "default_seed")]
     pub seed: u64,
-    /// The synthetic table every design starts from.
-    pub table: TableSpec,
+    /// The synthetic table every design starts from (called `data` in queries unless it
+    /// has a `name:`). Give either `table:` or `tables:`.
+    #[serde(default)]
+    pub table: Option<TableSpec>,
+    /// Several named, related tables; the first is what built-in steps receive.
+    #[serde(default)]
+    pub tables: Option<Vec<TableSpec>>,
     /// The sizes (rows) to replay every design at.
     pub sizes: SizeLadder,
     /// The size that matters: predictions are made for it.
@@ -35,7 +40,7 @@ pub struct WorkloadSpec {
     /// Time, precision and memory limits of the sweep.
     #[serde(default)]
     pub budget: BudgetSpec,
-    /// Two or more ways of doing the same job.
+    /// One or more ways of doing the same job (one design is tracked on its own growth).
     pub designs: Vec<DesignSpec>,
     /// When set, the designs are known to give different outputs, and this says why
     /// (for example a lossy cast). Without it, differing outputs are a loud failure.
@@ -62,11 +67,26 @@ fn default_seed() -> u64 {
     1
 }
 
-/// The synthetic table.
+/// One synthetic table.
 #[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct TableSpec {
+    /// The table's name in queries (needed under `tables:`; `data` for a lone `table:`).
+    #[serde(default)]
+    pub name: Option<String>,
+    /// Its row count: absent for the swept size, `1/20` for a share of it, or a fixed
+    /// count (`365`, `2k`).
+    #[serde(default)]
+    pub rows: Option<TableRows>,
     pub columns: Vec<ColumnSpec>,
+}
+
+/// A table's `rows:` as written: a number, or text such as `1/20` or `2k`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(untagged)]
+pub enum TableRows {
+    Count(u64),
+    Text(String),
 }
 
 /// What a column holds.
@@ -169,6 +189,13 @@ pub struct ColumnSpec {
     /// For bool: share of `true` among non-null rows.
     #[serde(default)]
     pub true_share: Option<Share>,
+    /// For int columns: `table.column` of a key this column refers to (a foreign key);
+    /// values are drawn from that key's values, `skew` spreads the fan-out.
+    #[serde(default)]
+    pub references: Option<String>,
+    /// With `references`: share of rows whose value has no match in the referenced key.
+    #[serde(default)]
+    pub unmatched: Option<Share>,
 }
 
 /// The size ladder: a list of row counts, or a geometric ladder.
@@ -281,6 +308,26 @@ pub enum Feed {
     Records,
 }
 
+/// Which polars engine runs a design's queries.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum EngineChoice {
+    /// Tables in memory, the in-memory engine.
+    #[default]
+    Memory,
+    /// Tables written as Parquet chunks (untimed) and scanned by the streaming engine.
+    Streaming,
+}
+
+impl EngineChoice {
+    pub fn label(self) -> &'static str {
+        match self {
+            EngineChoice::Memory => "memory",
+            EngineChoice::Streaming => "streaming",
+        }
+    }
+}
+
 /// One design: a named list of steps.
 #[derive(Debug, Clone, Deserialize, Serialize)]
 #[serde(deny_unknown_fields)]
@@ -290,6 +337,9 @@ pub struct DesignSpec {
     pub about: Option<String>,
     #[serde(default)]
     pub feed: Feed,
+    /// The engine its `sql` steps run on (default memory).
+    #[serde(default)]
+    pub engine: EngineChoice,
     /// Untimed steps run once per size before sampling (building an index, say); their
     /// output is what the timed steps receive. Same form as `steps`.
     #[serde(default)]

@@ -18,24 +18,24 @@ pub const MAX_ROWS: u64 = 10_000_000_000;
 /// Largest number of sizes in one ladder.
 pub const MAX_SIZES: usize = 64;
 
-struct Checker<'a> {
-    file: &'a str,
-    loc: &'a Locator,
-    issues: Vec<SpecIssue>,
+pub(super) struct Checker<'a> {
+    pub(super) file: &'a str,
+    pub(super) loc: &'a Locator,
+    pub(super) issues: Vec<SpecIssue>,
 }
 
 impl Checker<'_> {
     /// A problem located at the value of `path`.
-    fn at(&mut self, path: &YamlPath, message: impl Into<String>, hint: Option<String>) {
+    pub(super) fn at(&mut self, path: &YamlPath, message: impl Into<String>, hint: Option<String>) {
         let p = self.loc.value(path);
         self.push(p, path, message.into(), hint);
     }
     /// A problem located at the key of `path` (an unknown or misplaced key).
-    fn at_key(&mut self, path: &YamlPath, message: impl Into<String>, hint: Option<String>) {
+    pub(super) fn at_key(&mut self, path: &YamlPath, message: impl Into<String>, hint: Option<String>) {
         let p = self.loc.key(path);
         self.push(p, path, message.into(), hint);
     }
-    fn push(&mut self, at: Option<super::locate::Pos>, path: &YamlPath, message: String, hint: Option<String>) {
+    pub(super) fn push(&mut self, at: Option<super::locate::Pos>, path: &YamlPath, message: String, hint: Option<String>) {
         let p = at.unwrap_or(super::locate::Pos { line: 1, column: 1 });
         self.issues.push(SpecIssue { file: self.file.to_string(), line: p.line, column: p.column, message: format!("{path}: {message}"), hint });
     }
@@ -85,7 +85,8 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         );
     }
 
-    let columns = check_columns(&mut c, &spec.table, &root.key("table").key("columns"));
+    let tables = super::tables::check_tables(&mut c, spec);
+    let columns = tables.first().map(|t| t.columns.clone()).unwrap_or_default();
     let sizes = check_sizes(&mut c, &spec.sizes, &root.key("sizes"));
     let target = spec.target.map(|t| t.0);
     if let Some(t) = target {
@@ -94,7 +95,12 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         }
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
-    let designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns);
+    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns);
+    super::queries::check_streaming(&mut c, &tables, &designs, &root.key("designs"));
+    if c.issues.is_empty() {
+        // Queries are planned only when everything else is sound (they need the tables).
+        super::queries::check_queries(&mut c, text, &tables, &mut designs, &root.key("designs"));
+    }
     if let Some(reason) = &spec.outputs_differ {
         if reason.trim().is_empty() {
             c.at(&root.key("outputs_differ"), "expected a sentence saying why the designs' outputs differ", None);
@@ -118,6 +124,8 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         about: spec.about.trim().to_string(),
         seed: spec.seed,
         columns,
+        related: spec.tables.is_some(),
+        tables,
         sizes,
         target,
         budget,
@@ -127,7 +135,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
     })
 }
 
-fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<ColumnPlan> {
+pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<ColumnPlan> {
     if table.columns.is_empty() {
         c.at(path, "expected at least one column", None);
     }
@@ -158,6 +166,11 @@ fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<Col
         applies(c, col.true_share.is_some(), "true_share", &[Bool]);
         applies(c, col.duplicates.is_some(), "duplicates", &[Key]);
         applies(c, col.skew.is_some(), "skew", &[Int, Float, Text, Category, Date]);
+        applies(c, col.references.is_some(), "references", &[Int]);
+        if col.unmatched.is_some() && col.references.is_none() {
+            c.at_key(&p.key("unmatched"), "`unmatched` applies only with `references` (the share of values without a match)", None);
+        }
+        let unmatched = col.unmatched.map(|s| c.share(&p.key("unmatched"), s.0, "a share of unmatched values")).unwrap_or(0.0);
         if col.run.is_some() && col.order != Order::Clustered {
             c.at_key(&p.key("run"), "`run` applies only with `order: clustered`", None);
         }
@@ -185,7 +198,7 @@ fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<Col
             (None, Text | Category) => Some(100),
             (None, _) => None,
         };
-        if skew > 0.0 && distinct.is_none() {
+        if skew > 0.0 && distinct.is_none() && col.references.is_none() {
             c.at_key(&p.key("skew"), "`skew` needs `distinct` (the number of values the skew is spread over)", None);
         }
         let run = col.run.unwrap_or(64);
@@ -220,6 +233,8 @@ fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<Col
             duplicates,
             length,
             true_share,
+            references: col.references.clone(),
+            unmatched,
         });
     }
     out
@@ -369,8 +384,8 @@ fn check_budget(c: &mut Checker, b: &BudgetSpec, path: &YamlPath) -> Budget {
 }
 
 fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan]) -> Vec<DesignPlan> {
-    if designs.len() < 2 {
-        c.at(path, format!("expected two or more designs to compare, found {}", designs.len()), None);
+    if designs.is_empty() {
+        c.at(path, "expected at least one design (one is tracked on its own growth; two or more are compared)", None);
     }
     let mut seen = HashSet::new();
     let mut out = Vec::new();
@@ -419,6 +434,14 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
             }
         }
         let [setup, steps] = lists;
+        if d.engine == EngineChoice::Streaming {
+            if let Some(j) = steps.iter().position(|s| s.def.name != "sql") {
+                c.at(&p.key("steps").index(j), "a design with `engine: streaming` runs only `sql` steps (its tables stay on disk)", None);
+            }
+            if !d.setup.is_empty() {
+                c.at_key(&p.key("setup"), "a design with `engine: streaming` takes no `setup:` steps", None);
+            }
+        }
         if !broken && !d.steps.is_empty() && flowing != ValueKind::Frame {
             c.at(&p.key("steps"), format!("the last step must give a table (so designs can be compared), but it gives {}", flowing.label()), None);
         }
@@ -450,11 +473,13 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
             name: d.name.clone(),
             about: d.about.clone(),
             feed: d.feed,
+            engine: d.engine,
             setup,
             steps,
             expect_time,
             expect_bytes,
             expect_dtypes,
+            query_plans: Vec::new(),
         });
     }
     out
@@ -559,6 +584,7 @@ fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath) -> Option<StepPlan> {
                 }
             }
             (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
+            (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
             _ => None,
         };
         match got {

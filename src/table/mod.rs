@@ -7,6 +7,7 @@
 //! which is what lets differently-built outputs be compared.
 
 pub mod permute;
+pub mod related;
 pub mod rng;
 mod text;
 pub mod write;
@@ -17,33 +18,51 @@ use polars::prelude::*;
 use polars_arrow::bitmap::Bitmap;
 use rayon::prelude::*;
 use rng::{Alias, Stream};
+use std::ops::Range;
 use xxhash_rust::xxh3::Xxh3;
 
-const VALUES: u64 = 1;
+pub(crate) const VALUES: u64 = 1;
 const NULLS: u64 = 2;
 const SHUFFLE: u64 = 3;
 const DUPES: u64 = 4;
 const WORDS: u64 = 5;
 /// A large prime used to scatter pool ranks over a value range (a bijection mod d when d is
 /// not a multiple of it).
-const SCATTER: u64 = 2_654_435_761;
+pub(crate) const SCATTER: u64 = 2_654_435_761;
 
 /// Build the synthetic table of `rows` rows.
 pub fn generate(columns: &[ColumnPlan], seed: u64, rows: u64) -> PolarsResult<DataFrame> {
     // Columns are independent (no shared generator state), so they are built in parallel,
     // and long columns are themselves drawn in parallel chunks.
-    let cols: Vec<Column> = columns.par_iter().map(|c| column(c, seed, rows)).collect::<PolarsResult<_>>()?;
+    let cols: Vec<Column> = columns.par_iter().map(|c| column(c, seed, rows, 0..rows, None)).collect::<PolarsResult<_>>()?;
     DataFrame::new(rows as usize, cols)
 }
 
+/// Rows `span` of a table of `total` rows: the same values as slicing the whole table, made
+/// without making the rest where the columns allow it ([`related::chunk_blocker`] says
+/// which do not). `ref_rows(c)` gives a referencing column its referenced table's rows.
+pub fn generate_span(
+    columns: &[ColumnPlan],
+    seed: u64,
+    total: u64,
+    span: Range<u64>,
+    ref_rows: &(dyn Fn(&ColumnPlan) -> Option<u64> + Sync),
+) -> PolarsResult<DataFrame> {
+    let len = span.end - span.start;
+    let cols: Vec<Column> =
+        columns.par_iter().map(|c| column(c, seed, total, span.clone(), ref_rows(c))).collect::<PolarsResult<_>>()?;
+    DataFrame::new(len as usize, cols)
+}
+
 /// Which rows are null (None when the column has none).
-fn validity(c: &ColumnPlan, seed: u64, rows: u64) -> Option<Bitmap> {
+fn validity(c: &ColumnPlan, seed: u64, span: Range<u64>) -> Option<Bitmap> {
     if c.nulls <= 0.0 {
         return None;
     }
     let st = Stream::new(seed, &c.name, NULLS);
     let cut = (c.nulls * u64::MAX as f64) as u64;
-    Some(bits(rows, |i| st.at(i) >= cut))
+    let (start, rows) = (span.start, span.end - span.start);
+    Some(bits(rows, |i| st.at(start + i) >= cut))
 }
 
 /// A bitmap of `rows` bits, bit i = `set(i)`, built eight rows per byte in parallel.
@@ -67,29 +86,41 @@ fn bits(rows: u64, set: impl Fn(u64) -> bool + Sync) -> Bitmap {
 }
 
 /// Draws pool ranks 0..d for every row: uniform or Zipf, then put in the column's order.
-fn ranks(c: &ColumnPlan, seed: u64, rows: u64, d: u64) -> Vec<u64> {
+fn ranks(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, d: u64) -> Vec<u64> {
     let st = Stream::new(seed, &c.name, VALUES);
     let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
     let draw = |i: u64| match &alias {
         Some(a) => a.draw(st.at(i)),
         None => st.below(i, d),
     };
-    ordered(c, rows, draw)
+    ordered(c, rows, span, draw)
 }
 
-/// Produce `rows` values from a per-row drawing function, in the column's order.
-fn ordered<T: Copy + PartialOrd + Send>(c: &ColumnPlan, rows: u64, draw: impl Fn(u64) -> T + Sync) -> Vec<T> {
+/// Produce the values of rows `span` (of `rows`) from a per-row drawing function, in the
+/// column's order. Random and clustered orders make only the span; sorted orders make the
+/// whole column and slice it.
+pub(crate) fn ordered<T: Copy + PartialOrd + Send>(c: &ColumnPlan, rows: u64, span: Range<u64>, draw: impl Fn(u64) -> T + Sync) -> Vec<T> {
+    let par = |r: Range<u64>| (r.start as usize..r.end as usize).into_par_iter().with_min_len(1 << 14);
     match c.order {
-        Order::Random => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| draw(i as u64)).collect(),
-        Order::Clustered => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| draw(i as u64 / c.run)).collect(),
+        Order::Random => par(span).map(|i| draw(i as u64)).collect(),
+        Order::Clustered => par(span).map(|i| draw(i as u64 / c.run)).collect(),
         Order::Sorted | Order::Reverse => {
-            let mut v: Vec<T> = (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| draw(i as u64)).collect();
+            let mut v: Vec<T> = par(0..rows).map(|i| draw(i as u64)).collect();
             v.par_sort_unstable_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
             if c.order == Order::Reverse {
                 v.reverse();
             }
-            v
+            slice_span(v, rows, span)
         }
+    }
+}
+
+/// The `span` part of a whole column (the whole vector when the span covers it).
+fn slice_span<T: Copy>(v: Vec<T>, rows: u64, span: Range<u64>) -> Vec<T> {
+    if span.start == 0 && span.end == rows {
+        v
+    } else {
+        v[span.start as usize..span.end as usize].to_vec()
     }
 }
 
@@ -104,17 +135,17 @@ fn pooled_int(k: u64, d: u64, lo: i64, hi: i64) -> i64 {
     (lo as i128 + (pos as u128 * span / (d as u128 - 1)) as i128) as i64
 }
 
-fn int_values(c: &ColumnPlan, seed: u64, rows: u64, lo: i64, hi: i64) -> Vec<i64> {
+fn int_values(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, lo: i64, hi: i64) -> Vec<i64> {
     match c.distinct {
         Some(d) => {
-            let span = (hi as i128 - lo as i128 + 1) as u128;
-            let d = d.min(span.min(u64::MAX as u128) as u64);
+            let width = (hi as i128 - lo as i128 + 1) as u128;
+            let d = d.min(width.min(u64::MAX as u128) as u64);
             if c.order == Order::Random || c.order == Order::Clustered {
-                ranks(c, seed, rows, d).into_iter().map(|k| pooled_int(k, d, lo, hi)).collect()
+                ranks(c, seed, rows, span, d).into_iter().map(|k| pooled_int(k, d, lo, hi)).collect()
             } else {
                 let st = Stream::new(seed, &c.name, VALUES);
                 let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
-                ordered(c, rows, |i| {
+                ordered(c, rows, span, |i| {
                     let k = match &alias {
                         Some(a) => a.draw(st.at(i)),
                         None => st.below(i, d),
@@ -125,23 +156,23 @@ fn int_values(c: &ColumnPlan, seed: u64, rows: u64, lo: i64, hi: i64) -> Vec<i64
         }
         None => {
             let st = Stream::new(seed, &c.name, VALUES);
-            let span = (hi as i128 - lo as i128 + 1) as u128;
-            if span > u64::MAX as u128 {
-                ordered(c, rows, |i| st.at(i) as i64)
+            let width = (hi as i128 - lo as i128 + 1) as u128;
+            if width > u64::MAX as u128 {
+                ordered(c, rows, span, |i| st.at(i) as i64)
             } else {
-                let span = span as u64;
-                ordered(c, rows, |i| (lo as i128 + st.below(i, span) as i128) as i64)
+                let width = width as u64;
+                ordered(c, rows, span, |i| (lo as i128 + st.below(i, width) as i128) as i64)
             }
         }
     }
 }
 
-fn float_values(c: &ColumnPlan, seed: u64, rows: u64, lo: f64, hi: f64) -> Vec<f64> {
+fn float_values(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, lo: f64, hi: f64) -> Vec<f64> {
     let st = Stream::new(seed, &c.name, VALUES);
     match c.distinct {
         Some(d) => {
             let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
-            ordered(c, rows, |i| {
+            ordered(c, rows, span, |i| {
                 let k = match &alias {
                     Some(a) => a.draw(st.at(i)),
                     None => st.below(i, d),
@@ -154,12 +185,16 @@ fn float_values(c: &ColumnPlan, seed: u64, rows: u64, lo: f64, hi: f64) -> Vec<f
                 }
             })
         }
-        None => ordered(c, rows, |i| lo + (hi - lo) * st.unit(i)),
+        None => ordered(c, rows, span, |i| lo + (hi - lo) * st.unit(i)),
     }
 }
 
 /// Unique keys 0..rows in the column's order, then a share replaced by earlier rows' keys.
-fn key_values(c: &ColumnPlan, seed: u64, rows: u64) -> Vec<i64> {
+fn key_values(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>) -> Vec<i64> {
+    if c.order == Order::Sorted && c.duplicates <= 0.0 {
+        // Row i holds key i: made for the span alone.
+        return (span.start as i64..span.end as i64).collect();
+    }
     let st = Stream::new(seed, &c.name, SHUFFLE);
     let mut v: Vec<i64> = match c.order {
         Order::Sorted => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| i as i64).collect(),
@@ -191,7 +226,7 @@ fn key_values(c: &ColumnPlan, seed: u64, rows: u64) -> Vec<i64> {
             _ => {}
         }
     }
-    v
+    slice_span(v, rows, span)
 }
 
 /// The k-th word of a pool of `d`: a fixed-width base-26 code of k (so words are distinct
@@ -220,41 +255,46 @@ fn word(seed: u64, name: &str, k: u64, d: u64, len: (u32, u32)) -> String {
     out
 }
 
-fn column(c: &ColumnPlan, seed: u64, rows: u64) -> PolarsResult<Column> {
+fn column(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, ref_rows: Option<u64>) -> PolarsResult<Column> {
     let name: PlSmallStr = c.name.as_str().into();
-    let valid = validity(c, seed, rows);
+    let valid = validity(c, seed, span.clone());
     let s: Series = match c.kind {
         ColumnKind::Int => {
             let (lo, hi) = match c.range {
                 RangePlan::Int(a, b) => (a, b),
                 _ => (0, 1_000_000),
             };
-            Int64Chunked::from_vec_validity(name, int_values(c, seed, rows, lo, hi), valid).into_series()
+            let v = match ref_rows {
+                Some(n) => related::reference_values(c, seed, rows, span, n),
+                None => int_values(c, seed, rows, span, lo, hi),
+            };
+            Int64Chunked::from_vec_validity(name, v, valid).into_series()
         }
-        ColumnKind::Key => Int64Chunked::from_vec_validity(name, key_values(c, seed, rows), valid).into_series(),
+        ColumnKind::Key => Int64Chunked::from_vec_validity(name, key_values(c, seed, rows, span), valid).into_series(),
         ColumnKind::Float => {
             let (lo, hi) = match c.range {
                 RangePlan::Float(a, b) => (a, b),
                 _ => (0.0, 1.0),
             };
-            Float64Chunked::from_vec_validity(name, float_values(c, seed, rows, lo, hi), valid).into_series()
+            Float64Chunked::from_vec_validity(name, float_values(c, seed, rows, span, lo, hi), valid).into_series()
         }
         ColumnKind::Date => {
             let (lo, hi) = match c.range {
                 RangePlan::Date(a, b) => (a as i64, b as i64),
                 _ => (18262, 21914),
             };
-            let v: Vec<i32> = int_values(c, seed, rows, lo, hi).into_iter().map(|x| x as i32).collect();
+            let v: Vec<i32> = int_values(c, seed, rows, span, lo, hi).into_iter().map(|x| x as i32).collect();
             Int32Chunked::from_vec_validity(name, v, valid).into_date().into_series()
         }
         ColumnKind::Bool => {
             let st = Stream::new(seed, &c.name, VALUES);
             let cut = (c.true_share * u64::MAX as f64) as u64;
             let ca = if c.order == Order::Random {
-                // Straight into bits, eight rows per byte, in parallel.
-                BooleanChunked::from_bitmap(name, bits(rows, |i| st.at(i) < cut))
+                // Straight into bits, eight rows per byte, in parallel (the span alone).
+                let start = span.start;
+                BooleanChunked::from_bitmap(name, bits(span.end - span.start, |i| st.at(start + i) < cut))
             } else {
-                BooleanChunked::from_slice(name, &ordered(c, rows, |i| st.at(i) < cut))
+                BooleanChunked::from_slice(name, &ordered(c, rows, span, |i| st.at(i) < cut))
             };
             match valid {
                 Some(bm) => ca.with_validity(Some(bm)),
@@ -266,7 +306,7 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64) -> PolarsResult<Column> {
             let d = c.distinct.unwrap_or(100).max(1);
             let pool: Vec<String> = (0..d.min(rows.max(1))).map(|k| word(seed, &c.name, k, d, c.length)).collect();
             // Ranks beyond the pool built (only when d > rows) are folded into it.
-            let r = ranks(c, seed, rows, d);
+            let r = ranks(c, seed, rows, span, d);
             if c.kind == ColumnKind::Category {
                 text::category(name, &pool, &r, valid)?
             } else {
