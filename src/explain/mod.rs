@@ -16,6 +16,7 @@ use crate::spec::model::ColumnKind;
 use crate::spec::units::rows_label;
 use serde::{Deserialize, Serialize};
 
+pub mod payback;
 pub mod verdict;
 pub use verdict::{verdict, VerdictKind};
 
@@ -25,7 +26,7 @@ pub struct Finding {
     /// The design it is about, or None for the workload.
     pub design: Option<String>,
     /// A short tag: growth, expectation, copying, peak, chunks, dtype, parallel, tail,
-    /// mismatch, skipped, extrapolation.
+    /// unstable, payback, machine, mismatch, skipped, extrapolation.
     pub kind: String,
     /// What was measured, with the numbers.
     pub measured: String,
@@ -298,6 +299,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
         }
     }
 
+    findings.extend(payback::findings(w));
     if let Some(m) = machine_finding(w) {
         findings.push(m);
     }
