@@ -1,5 +1,23 @@
 //! Human units for times, bytes and row counts: ns, µs, ms, s; B, KiB, MiB, GiB.
 
+/// A name read from a spec or a results file, made safe to print: control characters
+/// (newlines, terminal escape codes) are shown as `\n`, `\u{1b}` and so on, so a name can
+/// neither break a line of output nor drive the terminal. Other text is unchanged.
+pub fn escaped(name: &str) -> std::borrow::Cow<'_, str> {
+    if !name.chars().any(char::is_control) {
+        return std::borrow::Cow::Borrowed(name);
+    }
+    let mut out = String::with_capacity(name.len() + 8);
+    for ch in name.chars() {
+        if ch.is_control() {
+            out.extend(ch.escape_default());
+        } else {
+            out.push(ch);
+        }
+    }
+    std::borrow::Cow::Owned(out)
+}
+
 /// `812 ns`, `4.20 µs`, `13.1 ms`, `2.05 s`, `3.4 min`.
 pub fn time_ns(ns: f64) -> String {
     if !ns.is_finite() {

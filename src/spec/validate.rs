@@ -17,6 +17,114 @@ use std::collections::{BTreeMap, HashSet};
 pub const MAX_ROWS: u64 = 10_000_000_000;
 /// Largest number of sizes in one ladder.
 pub const MAX_SIZES: usize = 64;
+/// Most columns of the synthetic table.
+pub const MAX_COLUMNS: usize = 4096;
+/// Longest design or column name, in characters.
+pub const MAX_NAME: usize = 128;
+/// Most distinct values a skewed column may spread over: the Zipf table the generator builds
+/// holds about 36 bytes per value (10^8 values: about 3.6 GB).
+pub const MAX_SKEWED_DISTINCT: u64 = 100_000_000;
+/// Shortest time budget: a per-point or whole-run budget below a millisecond cannot hold a
+/// single run of anything.
+pub const MIN_BUDGET_S: f64 = 0.001;
+/// Longest time budget: a week.
+pub const MAX_BUDGET_S: f64 = 86_400.0 * 7.0;
+/// Most samples per point.
+pub const MAX_SAMPLES: u64 = 100_000;
+/// Most untimed warm-up runs.
+pub const MAX_WARMUP: u64 = 1000;
+
+/// Why a design, column or workload name cannot be printed or used as it is: control
+/// characters (a newline or terminal escape codes), or too long. None when it is fine.
+pub fn name_problem(name: &str) -> Option<String> {
+    if let Some(ch) = name.chars().find(|c| c.is_control()) {
+        return Some(format!("names may not hold control characters, found {:?} in {}", ch, crate::present::units::escaped(name)));
+    }
+    if name.chars().count() > MAX_NAME {
+        return Some(format!("expected a name of at most {MAX_NAME} characters, found {}", name.chars().count()));
+    }
+    None
+}
+
+/// Problems with the limits of a sweep, as (key, message): shared by the spec checker and the
+/// command-line overrides of `sweep`, so both refuse the same values.
+pub fn budget_problems(b: &Budget) -> Vec<(&'static str, String)> {
+    let mut out = Vec::new();
+    for (key, v) in [("per_point", b.per_point_s), ("whole_run", b.whole_run_s)] {
+        if !(v.is_finite() && (MIN_BUDGET_S..=MAX_BUDGET_S).contains(&v)) {
+            out.push((key, format!("expected a duration above zero (at least 1ms) and at most a week, found {v} s")));
+        }
+    }
+    if !(b.precision > 0.0 && b.precision <= 0.5) {
+        out.push(("precision", format!("expected a precision above 0% and at most 50%, found {}", b.precision)));
+    }
+    if b.min_samples == 0 {
+        out.push(("min_samples", "expected at least 1 sample".to_string()));
+    }
+    if b.max_samples < b.min_samples || b.max_samples > MAX_SAMPLES {
+        out.push(("max_samples", format!("expected from min_samples ({}) to {MAX_SAMPLES} samples, found {}", b.min_samples, b.max_samples)));
+    }
+    if b.warmup > MAX_WARMUP {
+        out.push(("warmup", format!("expected at most {MAX_WARMUP} warm-up runs, found {}", b.warmup)));
+    }
+    out
+}
+
+/// Problems with a list of sizes (already sorted): each from 1 row to [`MAX_ROWS`], at most
+/// [`MAX_SIZES`] of them.
+pub fn sizes_problems(sizes: &[u64]) -> Vec<String> {
+    let mut out = Vec::new();
+    if sizes.is_empty() {
+        out.push("expected at least one size".to_string());
+    }
+    for &n in sizes {
+        if n == 0 || n > MAX_ROWS {
+            out.push(format!("expected a size from 1 to 10^10 rows, found {n}"));
+        }
+    }
+    if sizes.len() > MAX_SIZES {
+        out.push(format!("expected at most {MAX_SIZES} sizes, found {}", sizes.len()));
+    }
+    out
+}
+
+/// A whole-number step parameter against its bound; `largest` is the largest size of the
+/// sweep (the rows a table-sized bound is checked against).
+pub fn count_problem(kind: &ParamKind, x: u64, largest: u64) -> Option<String> {
+    let ParamKind::Count { min, max, .. } = kind else { return None };
+    let (hi, what) = match *max {
+        patterns::Max::Fixed(m) => (m, String::new()),
+        // Small counts are always allowed (a part per row at worst), so a short ladder or
+        // `--sizes` does not reject a step's default.
+        patterns::Max::Rows(m) if largest.max(ROWS_FLOOR) < m => {
+            (largest.max(ROWS_FLOOR), format!(" (the largest size has {largest} rows)"))
+        }
+        patterns::Max::Rows(m) => (m, String::new()),
+    };
+    (x < *min || x > hi).then(|| format!("expected a whole number from {min} to {hi}{what}, found {x}"))
+}
+
+/// A table-sized bound is never below this, whatever the sizes.
+pub const ROWS_FLOOR: u64 = 1024;
+
+/// Step parameters whose bound depends on the sizes, checked again after `--sizes` replaced
+/// them. Returns `design: step: message` lines.
+pub fn plan_param_problems(plan: &Plan) -> Vec<String> {
+    let largest = plan.sizes.last().copied().unwrap_or(0);
+    let mut out = Vec::new();
+    for d in &plan.designs {
+        for s in d.setup.iter().chain(&d.steps) {
+            for pd in s.def.params {
+                if let Some(ParamValue::Count(x)) = s.params.0.get(pd.name) {
+                    if let Some(m) = count_problem(&pd.kind, *x, largest) {
+                        out.push(format!("design `{}`, step `{}`, `{}`: {m}", crate::present::units::escaped(&d.name), s.def.name, pd.name));
+                    }
+                }
+            }
+        }
+    }
+    out
+}
 
 struct Checker<'a> {
     file: &'a str,
@@ -87,6 +195,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
 
     let columns = check_columns(&mut c, &spec.table, &root.key("table").key("columns"));
     let sizes = check_sizes(&mut c, &spec.sizes, &root.key("sizes"));
+    let largest = sizes.last().copied().unwrap_or(MAX_ROWS);
     let target = spec.target.map(|t| t.0);
     if let Some(t) = target {
         if t == 0 || t > MAX_ROWS * 1000 {
@@ -94,7 +203,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         }
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
-    let designs = check_designs(&mut c, &spec.designs, &root.key("designs"));
+    let designs = check_designs(&mut c, &spec.designs, &root.key("designs"), largest);
     if let Some(reason) = &spec.outputs_differ {
         if reason.trim().is_empty() {
             c.at(&root.key("outputs_differ"), "expected a sentence saying why the designs' outputs differ", None);
@@ -131,12 +240,17 @@ fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<Col
     if table.columns.is_empty() {
         c.at(path, "expected at least one column", None);
     }
+    if table.columns.len() > MAX_COLUMNS {
+        c.at(path, format!("expected at most {MAX_COLUMNS} columns, found {}", table.columns.len()), None);
+    }
     let mut seen = HashSet::new();
     let mut out = Vec::new();
     for (i, col) in table.columns.iter().enumerate() {
         let p = path.index(i);
         if col.name.trim().is_empty() {
             c.at(&p.key("name"), "expected a column name, found an empty one", None);
+        } else if let Some(m) = name_problem(&col.name) {
+            c.at(&p.key("name"), m, None);
         } else if !seen.insert(col.name.clone()) {
             c.at(&p.key("name"), format!("column `{}` is defined twice", col.name), None);
         }
@@ -187,6 +301,13 @@ fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath) -> Vec<Col
         };
         if skew > 0.0 && distinct.is_none() {
             c.at_key(&p.key("skew"), "`skew` needs `distinct` (the number of values the skew is spread over)", None);
+        }
+        if let Some(d) = distinct.filter(|&d| skew > 0.0 && d > MAX_SKEWED_DISTINCT) {
+            c.at(
+                &p.key("distinct"),
+                format!("expected at most 10^8 distinct values under `skew` (the skew table holds about 36 bytes per value), found {d}"),
+                None,
+            );
         }
         let run = col.run.unwrap_or(64);
         if run == 0 {
@@ -246,9 +367,9 @@ fn check_range(c: &mut Checker, col: &ColumnSpec, path: &YamlPath) -> RangePlan 
                 Bound::Text(_) => None,
             };
             match (num(a), num(b)) {
-                (Some(a), Some(b)) if a.is_finite() && b.is_finite() => RangePlan::Float(a, b),
+                (Some(a), Some(b)) if a.is_finite() && b.is_finite() && (b - a).is_finite() => RangePlan::Float(a, b),
                 _ => {
-                    c.at(path, "expected two finite numbers for a float range", None);
+                    c.at(path, "expected two finite numbers for a float range, whose width is finite too", None);
                     return default;
                 }
             }
@@ -335,40 +456,21 @@ fn check_sizes(c: &mut Checker, sizes: &SizeLadder, path: &YamlPath) -> Vec<u64>
 }
 
 fn check_budget(c: &mut Checker, b: &BudgetSpec, path: &YamlPath) -> Budget {
-    let pos_time = |c: &mut Checker, v: f64, key: &str| {
-        if !(v > 0.0 && v.is_finite() && v <= 86_400.0 * 7.0) {
-            c.at(&path.key(key), format!("expected a duration above zero and at most a week, found {v} s"), None);
-        }
-    };
-    pos_time(c, b.per_point.0, "per_point");
-    pos_time(c, b.whole_run.0, "whole_run");
-    if !(b.precision.0 > 0.0 && b.precision.0 <= 0.5) {
-        c.at(&path.key("precision"), format!("expected a precision above 0% and at most 50%, found {}", b.precision.0), None);
-    }
-    if b.min_samples == 0 {
-        c.at(&path.key("min_samples"), "expected at least 1 sample", None);
-    }
-    if b.max_samples < b.min_samples || b.max_samples > 100_000 {
-        c.at(
-            &path.key("max_samples"),
-            format!("expected from min_samples ({}) to 100000 samples, found {}", b.min_samples, b.max_samples),
-            None,
-        );
-    }
-    if b.warmup > 1000 {
-        c.at(&path.key("warmup"), format!("expected at most 1000 warm-up runs, found {}", b.warmup), None);
-    }
-    Budget {
+    let budget = Budget {
         per_point_s: b.per_point.0,
         whole_run_s: b.whole_run.0,
         precision: b.precision.0,
         min_samples: b.min_samples,
         max_samples: b.max_samples,
         warmup: b.warmup,
+    };
+    for (key, message) in budget_problems(&budget) {
+        c.at(&path.key(key), message, None);
     }
+    budget
 }
 
-fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Vec<DesignPlan> {
+fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, largest: u64) -> Vec<DesignPlan> {
     if designs.len() < 2 {
         c.at(path, format!("expected two or more designs to compare, found {}", designs.len()), None);
     }
@@ -378,6 +480,8 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
         let p = path.index(i);
         if d.name.trim().is_empty() {
             c.at(&p.key("name"), "expected a design name, found an empty one", None);
+        } else if let Some(m) = name_problem(&d.name) {
+            c.at(&p.key("name"), m, None);
         } else if !seen.insert(d.name.clone()) {
             c.at(&p.key("name"), format!("design `{}` is defined twice", d.name), None);
         }
@@ -396,7 +500,7 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath) -> Ve
                     break;
                 }
                 let sp = p.key(key).index(j);
-                let Some(step) = check_step(c, raw, &sp) else {
+                let Some(step) = check_step(c, raw, &sp, largest) else {
                     // The chain cannot be judged past a step we could not read.
                     broken = true;
                     break;
@@ -462,7 +566,7 @@ fn yaml_kind(v: &Y) -> &'static str {
     }
 }
 
-fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath) -> Option<StepPlan> {
+fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64) -> Option<StepPlan> {
     let (name, params_raw): (String, Option<&Y>) = match raw {
         Y::String(s) => (s.clone(), None),
         Y::Mapping(m) if m.len() == 1 => {
@@ -524,8 +628,14 @@ fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath) -> Option<StepPlan> {
         let v = raw.unwrap_or(&default_y);
         let vp = pp.key(pd.name);
         let got = match (pd.kind, v) {
-            (ParamKind::Count { min }, Y::Number(n)) => match n.as_u64() {
-                Some(x) if x >= min => Some(ParamValue::Count(x)),
+            (ParamKind::Count { .. }, Y::Number(n)) => match n.as_u64() {
+                Some(x) => match count_problem(&pd.kind, x, largest) {
+                    None => Some(ParamValue::Count(x)),
+                    Some(m) => {
+                        c.at(&vp, format!("`{}`: {m}", pd.name), None);
+                        continue;
+                    }
+                },
                 _ => None,
             },
             (ParamKind::Number { min, max }, Y::Number(n)) => match n.as_f64() {
