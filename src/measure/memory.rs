@@ -15,11 +15,19 @@ use crate::spec::model::Feed;
 /// record's share of its vector.
 pub const RECORD_VALUE_BYTES: f64 = 40.0;
 
+/// Bytes per value of the Zipf (alias) table a skewed column is drawn with: the weights,
+/// probabilities and aliases, and the two work lists used while building it.
+pub const ZIPF_BYTES_PER_VALUE: f64 = 36.0;
+/// Bytes per word of a text or category column's word pool besides its letters (a `String`).
+pub const WORD_OVERHEAD_BYTES: f64 = 24.0;
+
 /// Estimated memory for one size.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Estimate {
     pub table: f64,
     pub records: f64,
+    /// What the table generator builds besides the table: Zipf tables and word pools.
+    pub generator: f64,
     pub working: f64,
     /// Bytes the largest-writing design puts in the temp folder.
     pub disk: f64,
@@ -27,17 +35,18 @@ pub struct Estimate {
 
 impl Estimate {
     pub fn total(&self) -> f64 {
-        self.table + self.records + self.working
+        self.table + self.records + self.generator + self.working
     }
     pub fn describe_disk(&self) -> String {
         format!("about {} in the temp folder", crate::present::units::bytes(self.disk))
     }
     pub fn describe(&self) -> String {
         format!(
-            "about {} (table {}, records {}, largest design's working memory {})",
+            "about {} (table {}, records {}, generator {}, largest design's working memory {})",
             crate::present::units::bytes(self.total()),
             crate::present::units::bytes(self.table),
             crate::present::units::bytes(self.records),
+            crate::present::units::bytes(self.generator),
             crate::present::units::bytes(self.working)
         )
     }
@@ -57,11 +66,46 @@ pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> E
         .enumerate()
         .map(|(i, d)| {
             let peaks = measured_peaks.get(i).map(Vec::as_slice).unwrap_or(&[]);
-            extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table)
+            // What its parameters make it build (new columns, probe lists, pieces) comes on
+            // top of the table-sized working memory, measured or not.
+            extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table).max(params_bytes(d, rows) + table)
         })
         .fold(0.0, f64::max);
     let disk = plan.designs.iter().map(|d| d.disk_factor() * table).fold(0.0, f64::max);
-    Estimate { table, records, working, disk }
+    Estimate { table, records, generator: generator_bytes(plan, rows), working, disk }
+}
+
+/// Bytes the generator holds besides the table at `rows`: each skewed column's Zipf table
+/// (over all its distinct values, whatever the rows) and each text column's word pool.
+pub fn generator_bytes(plan: &Plan, rows: u64) -> f64 {
+    use crate::spec::model::ColumnKind;
+    plan.columns
+        .iter()
+        .map(|c| {
+            let d = c.distinct.unwrap_or(0) as f64;
+            let zipf = if c.skew > 0.0 { d * ZIPF_BYTES_PER_VALUE } else { 0.0 };
+            let pool = match c.kind {
+                ColumnKind::Text | ColumnKind::Category => d.min(rows as f64) * (WORD_OVERHEAD_BYTES + c.length.1 as f64),
+                _ => 0.0,
+            };
+            zipf + pool
+        })
+        .sum()
+}
+
+/// Bytes a design's steps build from their whole-number parameters at `rows` rows (each
+/// parameter's declared cost per unit), summed over its steps.
+pub fn params_bytes(d: &crate::plan::DesignPlan, rows: u64) -> f64 {
+    use crate::patterns::{ParamKind, ParamValue};
+    d.setup
+        .iter()
+        .chain(&d.steps)
+        .flat_map(|s| s.def.params.iter().map(move |pd| (pd, s.params.0.get(pd.name))))
+        .map(|(pd, v)| match (pd.kind, v) {
+            (ParamKind::Count { cost, .. }, Some(ParamValue::Count(n))) => cost.at(*n, rows),
+            _ => 0.0,
+        })
+        .sum()
 }
 
 /// Bytes free for an unprivileged writer in the folder's file system (statvfs), if known.
@@ -86,4 +130,83 @@ pub fn extrapolate(peaks: &[(u64, f64)], rows: u64) -> Option<f64> {
     let slope = loglog_slope(&x, &y)?.clamp(0.0, 4.0);
     let (n0, p0) = tail[tail.len() - 1];
     Some(p0 * (rows as f64 / n0 as f64).powf(slope))
+}
+
+/// How much memory a size may count on, and which limit set it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MemoryLimit {
+    pub bytes: u64,
+    /// "available memory", "the address-space limit (ulimit -v)", "the data-segment limit",
+    /// "the cgroup memory limit".
+    pub source: String,
+    /// A hard limit (a resource limit or a cgroup): allocations past it fail or the process
+    /// is killed, so `--force` cannot lift it. Available memory is soft (the kernel may
+    /// reclaim caches or swap).
+    pub hard: bool,
+}
+
+/// The smallest of: the machine's available memory; what `RLIMIT_AS` and `RLIMIT_DATA`
+/// leave above the process's current address space and data segment; and what the
+/// cgroup's limit leaves above its current use (v2 `memory.max`, v1 `memory.limit_in_bytes`).
+pub fn memory_limit() -> MemoryLimit {
+    let mut best = MemoryLimit { bytes: super::machine::available_memory(), source: "available memory".into(), hard: false };
+    let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
+    let status_kib = |key: &str| -> Option<u64> {
+        let line = status.lines().find(|l| l.starts_with(key))?;
+        line[key.len()..].trim().trim_end_matches("kB").trim().parse::<u64>().ok().map(|k| k * 1024)
+    };
+    let mut consider = |bytes: Option<u64>, source: &str| {
+        if let Some(b) = bytes {
+            if b < best.bytes {
+                best = MemoryLimit { bytes: b, source: source.to_string(), hard: true };
+            }
+        }
+    };
+    consider(rlimit_room(libc::RLIMIT_AS, status_kib("VmSize:")), "the address-space limit (ulimit -v)");
+    consider(rlimit_room(libc::RLIMIT_DATA, status_kib("VmData:")), "the data-segment limit (ulimit -d)");
+    consider(cgroup_room(), "the cgroup memory limit");
+    best
+}
+
+/// What a resource limit leaves above the current use, if the limit is set.
+fn rlimit_room(resource: libc::__rlimit_resource_t, used: Option<u64>) -> Option<u64> {
+    // SAFETY: getrlimit writes into the struct we own.
+    let mut rl: libc::rlimit = unsafe { std::mem::zeroed() };
+    if unsafe { libc::getrlimit(resource, &mut rl) } != 0 || rl.rlim_cur == libc::RLIM_INFINITY {
+        return None;
+    }
+    Some((rl.rlim_cur as u64).saturating_sub(used.unwrap_or(0)))
+}
+
+/// What the process's memory cgroup leaves, if it has a limit.
+fn cgroup_room() -> Option<u64> {
+    let own = std::fs::read_to_string("/proc/self/cgroup").ok()?;
+    let read = |p: std::path::PathBuf| std::fs::read_to_string(p).ok().map(|t| t.trim().to_string());
+    for line in own.lines() {
+        let mut parts = line.splitn(3, ':');
+        let (_, controllers, path) = (parts.next()?, parts.next()?, parts.next()?);
+        let rel = path.trim_start_matches('/');
+        if controllers.is_empty() {
+            // cgroup v2: the unified hierarchy.
+            let dir = std::path::Path::new("/sys/fs/cgroup").join(rel);
+            let max = read(dir.join("memory.max"))?;
+            if max == "max" {
+                return None;
+            }
+            let max: u64 = max.parse().ok()?;
+            let current: u64 = read(dir.join("memory.current")).and_then(|c| c.parse().ok()).unwrap_or(0);
+            return Some(max.saturating_sub(current));
+        }
+        if controllers.split(',').any(|c| c == "memory") {
+            let dir = std::path::Path::new("/sys/fs/cgroup/memory").join(rel);
+            let max: u64 = read(dir.join("memory.limit_in_bytes")).and_then(|c| c.parse().ok())?;
+            // v1 reports "no limit" as a huge number near i64::MAX.
+            if max >= 1 << 60 {
+                return None;
+            }
+            let used: u64 = read(dir.join("memory.usage_in_bytes")).and_then(|c| c.parse().ok()).unwrap_or(0);
+            return Some(max.saturating_sub(used));
+        }
+    }
+    None
 }

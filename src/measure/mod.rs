@@ -3,7 +3,9 @@
 
 pub mod alloc;
 pub mod clock;
+pub mod interrupt;
 pub mod machine;
 pub mod memory;
 pub mod runner;
 pub mod stats;
+pub mod watchdog;

@@ -58,6 +58,8 @@ pub struct Outcome {
     pub mismatches: usize,
     pub measured: usize,
     pub skipped: usize,
+    /// The sweep stopped early on Ctrl-C or SIGTERM (see [`super::interrupt`]).
+    pub interrupted: bool,
 }
 
 /// Receives progress between samples (never inside the timed region).
@@ -96,15 +98,88 @@ struct Active<'a> {
     output: Option<OutputFacts>,
     stop: Option<StopReason>,
     error: Option<String>,
+    /// Its point has been written.
+    written: bool,
 }
 
-/// Run one design's steps on one input.
-pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
-    let mut v = input;
-    for s in &design.steps {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
+/// What the comparison of one size is made from: (design, samples, median, output).
+type MeasuredRow = (String, Vec<f64>, f64, Option<OutputFacts>);
+
+/// Write the point of a design whose sampling ended, the moment it ends, and update what
+/// later sizes learn from it. A design interrupted before its first sample leaves no point.
+fn finish_point(
+    plan: &Plan,
+    rows: u64,
+    a: &mut Active,
+    st: &mut DesignState,
+    out: &mut RunWriter,
+    outcome: &mut Outcome,
+    measured: &mut Vec<MeasuredRow>,
+) -> Result<(), RunError> {
+    if a.written {
+        return Ok(());
     }
-    Ok(v)
+    a.written = true;
+    let b = plan.budget;
+    let point = |m: Option<Measured>, s: Option<SkipInfo>| {
+        Record::Point(PointRecord { workload: plan.name.clone(), design: a.design.name.clone(), rows, measured: m, skipped: s })
+    };
+    if let Some(err) = &a.error {
+        let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: err.clone() };
+        st.blocked = Some(SkipInfo { detail: format!("failed at {rows} rows: {err}"), ..info.clone() });
+        out.write(point(None, Some(info)))?;
+        outcome.failures += 1;
+        return Ok(());
+    }
+    if a.samples.is_empty() {
+        return Ok(());
+    }
+    let m = summarize(a);
+    st.history.push((rows, m.median_ns));
+    st.peaks.push((rows, m.alloc.peak_live as f64));
+    if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
+        st.blocked = Some(SkipInfo {
+            reason: SkipReason::SmallerSizeOverBudget,
+            predicted_ns: None,
+            predicted_bytes: None,
+            detail: format!(
+                "at {} rows the {} point budget allowed only {} of {} samples (one run {})",
+                crate::spec::units::rows_label(rows),
+                crate::present::units::time_ns(b.per_point_s * 1e9),
+                m.samples_ns.len(),
+                b.min_samples,
+                crate::present::units::time_ns(m.median_ns)
+            ),
+        });
+    }
+    measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
+    out.write(point(Some(m), None))?;
+    outcome.measured += 1;
+    Ok(())
+}
+
+/// Run one design's steps on one input. A step that panics (a capacity overflow on an
+/// absurd parameter, say) becomes an error of this run, so the sweep goes on.
+pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
+    let run = std::panic::AssertUnwindSafe(|| {
+        let mut v = input;
+        for s in &design.steps {
+            v = s.runner.run(v).map_err(|e| e.to_string())?;
+        }
+        Ok(v)
+    });
+    std::panic::catch_unwind(run).unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+}
+
+/// Run one (set-up) step, a panic becoming an error.
+fn run_step(s: &crate::plan::StepPlan, input: Value) -> Result<Value, String> {
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| s.runner.run(input).map_err(|e| e.to_string())))
+        .unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+}
+
+/// The message of a caught panic.
+pub fn panic_text(p: &(dyn std::any::Any + Send)) -> String {
+    p.downcast_ref::<&str>().map(|s| s.to_string()).or_else(|| p.downcast_ref::<String>().cloned()).unwrap_or_else(|| "no message".into())
 }
 
 /// The input for one run: shared when steps only read it, a private deep copy otherwise.
@@ -213,6 +288,10 @@ pub fn sweep(
     let min_sample_ns = clock.min_sample_ns();
 
     for &rows in &plan.sizes {
+        if super::interrupt::requested() {
+            outcome.interrupted = true;
+            break;
+        }
         let skip_point = |out: &mut RunWriter, design: &str, info: SkipInfo| {
             out.write(Record::Point(PointRecord {
                 workload: plan.name.clone(),
@@ -226,8 +305,12 @@ pub fn sweep(
         // Memory: refuse a size that will not fit.
         let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
         let est = memory::estimate(plan, rows, &peaks);
-        let avail = available_memory();
-        if est.total() > avail as f64 * opts.memory_share && !opts.force {
+        let limit = memory::memory_limit();
+        let avail = limit.bytes;
+        // A hard limit (ulimit, cgroup) cannot be forced past: the allocation would fail
+        // and abort the process, so such a size is refused even with --force.
+        let beyond_hard = limit.hard && est.total() > avail as f64;
+        if est.total() > avail as f64 * opts.memory_share && (!opts.force || beyond_hard) {
             for d in &plan.designs {
                 skip_point(
                     out,
@@ -237,10 +320,12 @@ pub fn sweep(
                         predicted_ns: None,
                         predicted_bytes: Some(est.total()),
                         detail: format!(
-                            "needs {}; {} available, {:.0}% of it may be used (--force to run anyway)",
+                            "needs {}; {} allowed by {}, {:.0}% of it may be used ({})",
                             est.describe(),
                             crate::present::units::bytes(avail as f64),
-                            opts.memory_share * 100.0
+                            limit.source,
+                            opts.memory_share * 100.0,
+                            if limit.hard { "a hard limit: --force cannot lift it" } else { "--force to run anyway" }
                         ),
                     },
                 )?;
@@ -339,11 +424,9 @@ pub fn sweep(
         // The table and the feeds (untimed).
         let w = Window::open();
         let t0 = Instant::now();
-        let df: DataFrame = crate::table::generate(&plan.columns, plan.seed, rows).map_err(|e| RunError::Table {
-            workload: plan.name.clone(),
-            rows,
-            message: e.to_string(),
-        })?;
+        let generated = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| crate::table::generate(&plan.columns, plan.seed, rows)))
+            .unwrap_or_else(|p| Err(polars::prelude::PolarsError::ComputeError(format!("the generator panicked: {}", panic_text(p.as_ref())).into())));
+        let df: DataFrame = generated.map_err(|e| RunError::Table { workload: plan.name.clone(), rows, message: e.to_string() })?;
         let generate_ns = t0.elapsed().as_nanos() as f64;
         let gen_alloc = w.close();
         out.write(Record::Table(TableRecord {
@@ -378,7 +461,8 @@ pub fn sweep(
                 let mut error = None;
                 let mut feed = raw;
                 for s in &d.setup {
-                    match s.runner.run(feed.clone()) {
+                    let _watch = super::watchdog::arm(&plan.name, &d.name, rows, "a set-up step", super::watchdog::limit_for(b.per_point_s));
+                    match run_step(s, feed.clone()) {
                         Ok(v) => feed = v,
                         Err(e) => {
                             error = Some(format!("set-up step {}: {e}", s.label));
@@ -400,15 +484,23 @@ pub fn sweep(
                     output: None,
                     stop: None,
                     error,
+                    written: false,
                 }
             })
             .collect();
+        let mut measured: Vec<MeasuredRow> = Vec::new();
 
         // First run of each design: learn its speed, choose the batch, record its output.
         for a in active.iter_mut().filter(|a| a.error.is_none()) {
+            if super::interrupt::requested() {
+                break;
+            }
             progress.point(&plan.name, rows, &a.design.name, 0);
             let t = Instant::now();
-            match sample(a) {
+            let watch = super::watchdog::arm(&plan.name, &a.design.name, rows, "the first run", super::watchdog::limit_for(b.per_point_s));
+            let first = sample(a);
+            drop(watch);
+            match first {
                 Ok((ns, cpu, alloc, out_v)) => {
                     a.output = out_v.as_ref().map(OutputFacts::of);
                     a.warmup_runs = 1;
@@ -430,11 +522,14 @@ pub fn sweep(
         // Further warm-up, in whole batches, while it stays cheap.
         for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
             for _ in 1..b.warmup {
-                if a.spent_s > b.per_point_s * 0.2 {
+                if a.spent_s > b.per_point_s * 0.2 || super::interrupt::requested() {
                     break;
                 }
                 let t = Instant::now();
-                if let Err(e) = sample(a) {
+                let watch = super::watchdog::arm(&plan.name, &a.design.name, rows, "a warm-up run", super::watchdog::limit_for(b.per_point_s));
+                let warm = sample(a);
+                drop(watch);
+                if let Err(e) = warm {
                     a.error = Some(e);
                     break;
                 }
@@ -445,15 +540,30 @@ pub fn sweep(
 
         // Interleaved sampling, with the drift probe timed once per round.
         let mut probe_ns: Vec<f64> = Vec::new();
+        // A design's point is written as soon as its sampling ends.
+        for a in active.iter_mut().filter(|a| a.error.is_some() || a.stop.is_some()) {
+            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured)?;
+            progress.point_done();
+        }
         loop {
             let mut any = false;
+            if super::interrupt::requested() {
+                outcome.interrupted = true;
+                break;
+            }
             if active.iter().any(|a| a.error.is_none() && a.stop.is_none()) {
                 probe_ns.push(probe.time());
             }
             for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
+                if super::interrupt::requested() {
+                    break;
+                }
                 any = true;
                 let t = Instant::now();
-                match sample(a) {
+                let watch = super::watchdog::arm(&plan.name, &a.design.name, rows, "a sample", super::watchdog::limit_for(b.per_point_s));
+                let taken = sample(a);
+                drop(watch);
+                match taken {
                     Ok((ns, cpu, alloc, _)) => {
                         a.samples.push(ns);
                         a.cpu.push(cpu);
@@ -461,63 +571,34 @@ pub fn sweep(
                     }
                     Err(e) => {
                         a.error = Some(e);
+                        finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured)?;
+                        progress.point_done();
                         continue;
                     }
                 }
                 a.spent_s += t.elapsed().as_secs_f64();
                 a.stop = decide(a, &b, started.elapsed().as_secs_f64());
                 progress.point(&plan.name, rows, &a.design.name, a.samples.len());
+                if a.stop.is_some() {
+                    finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured)?;
+                    progress.point_done();
+                }
             }
             if !any {
                 break;
             }
         }
 
-        // Points.
-        let mut measured: Vec<(String, Vec<f64>, f64, Option<OutputFacts>)> = Vec::new();
-        for a in &active {
-            let st = &mut states[a.index];
+        // Designs still sampling when a stop was asked for keep what they measured.
+        for a in active.iter_mut().filter(|a| !a.written) {
+            if a.error.is_none() && a.stop.is_none() {
+                a.stop = Some(StopReason::Interrupted);
+            }
+            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured)?;
             progress.point_done();
-            if let Some(err) = &a.error {
-                let info = SkipInfo {
-                    reason: SkipReason::Failed,
-                    predicted_ns: None,
-                    predicted_bytes: None,
-                    detail: err.clone(),
-                };
-                st.blocked = Some(SkipInfo { detail: format!("failed at {rows} rows: {err}"), ..info.clone() });
-                skip_point(out, &a.design.name, info)?;
-                outcome.failures += 1;
-                continue;
-            }
-            let m = summarize(a);
-            st.history.push((rows, m.median_ns));
-            st.peaks.push((rows, m.alloc.peak_live as f64));
-            if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
-                st.blocked = Some(SkipInfo {
-                    reason: SkipReason::SmallerSizeOverBudget,
-                    predicted_ns: None,
-                    predicted_bytes: None,
-                    detail: format!(
-                        "at {} rows the {} point budget allowed only {} of {} samples (one run {})",
-                        crate::spec::units::rows_label(rows),
-                        crate::present::units::time_ns(b.per_point_s * 1e9),
-                        m.samples_ns.len(),
-                        b.min_samples,
-                        crate::present::units::time_ns(m.median_ns)
-                    ),
-                });
-            }
-            measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
-            out.write(Record::Point(PointRecord {
-                workload: plan.name.clone(),
-                design: a.design.name.clone(),
-                rows,
-                measured: Some(m),
-                skipped: None,
-            }))?;
-            outcome.measured += 1;
         }
+        // The comparison keeps the designs' order, whatever order their sampling ended in.
+        measured.sort_by_key(|m| plan.designs.iter().position(|d| d.name == m.0));
 
         // Side by side.
         let mut cmp = compare(plan, rows, &measured, opts.seed);
@@ -528,6 +609,10 @@ pub fn sweep(
             outcome.mismatches += 1;
         }
         out.write(Record::Comparison(cmp))?;
+        if super::interrupt::requested() {
+            outcome.interrupted = true;
+            break;
+        }
     }
     Ok(outcome)
 }
@@ -535,21 +620,29 @@ pub fn sweep(
 /// Run every design once on a small table before anything is timed, so the first measured
 /// size does not pay for the process's cold start (thread pool, lazily built tables, fresh
 /// heap pages). Failures here are ignored: the real run reports them.
+/// The lap obeys the point budget: once it has taken that long, the remaining designs are
+/// not warmed up (their first measured run warms them instead).
 fn warmup_lap(plan: &Plan) {
     let rows = plan.sizes.first().copied().unwrap_or(1).min(1000);
-    let Ok(df) = crate::table::generate(&plan.columns, plan.seed, rows) else { return };
+    let Ok(Ok(df)) = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| crate::table::generate(&plan.columns, plan.seed, rows))) else { return };
     let records = Records::from_frame(&df).ok().map(Arc::new);
+    let started = Instant::now();
     for d in &plan.designs {
+        if started.elapsed().as_secs_f64() > plan.budget.per_point_s || super::interrupt::requested() {
+            break;
+        }
         let mut v = match (d.feed, &records) {
             (Feed::Records, Some(r)) => Value::Records(r.clone()),
             _ => Value::Frame(df.clone()),
         };
         for s in &d.setup {
-            match s.runner.run(v.clone()) {
+            match run_step(s, v.clone()) {
                 Ok(x) => v = x,
                 Err(_) => break,
             }
         }
+        let rows = df.height() as u64;
+        let _watch = super::watchdog::arm(&plan.name, &d.name, rows, "the untimed warm-up lap", super::watchdog::limit_for(plan.budget.per_point_s));
         let _ = run_design(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)));
     }
 }
