@@ -3,9 +3,11 @@
 //! A workload file is read only when it is a regular file of at most [`MAX_SPEC_BYTES`]
 //! (a FIFO, a device or `/dev/zero` is refused at once: the file is opened without blocking
 //! and checked with `fstat`), and its nesting is capped by a linear pre-scan
-//! ([`nesting_problem`]). The cap matters because the YAML scanners keep one entry per open
-//! bracket and revisit all of them at every token, so deep nesting costs time quadratic in
-//! the depth (a 200 KB file of `[` took over a minute); real workloads nest 6 levels.
+//! ([`nesting_problem`]). The cap matters because serde_yaml's scanner (libyaml's, ported)
+//! keeps one entry per open bracket and revisits them at every token: measured here, 5k,
+//! 10k and 20k nested `[` took 0.16, 0.60 and 1.8 s in `serde_yaml::from_str` alone (×4 per
+//! doubling), while yaml-rust2's parser, used by the locator, stopped at once; a 200 KB file
+//! of `[` took over a minute. Real workloads nest 6 levels.
 
 use std::io::Read;
 use std::path::Path;
@@ -58,7 +60,8 @@ pub fn read_spec(path: &Path) -> Result<String, String> {
     })
 }
 
-/// Where the text nests deeper than the caps allow, as (line, column, message), in one pass.
+/// Where the text nests deeper than the caps allow, as (line, column, message), in one pass
+/// (linear in the text).
 /// Brackets inside quoted scalars and comments are not counted.
 pub fn nesting_problem(text: &str) -> Option<(usize, usize, String)> {
     let mut depth = 0usize;
