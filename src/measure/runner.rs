@@ -641,8 +641,10 @@ fn warmup_lap(plan: &Plan) {
                 Err(_) => break,
             }
         }
-        let rows = df.height() as u64;
-        let _watch = super::watchdog::arm(&plan.name, &d.name, rows, "the untimed warm-up lap", super::watchdog::limit_for(plan.budget.per_point_s));
+        // A runaway here is recorded at the first size, which it keeps from being measured.
+        let what = format!("the untimed warm-up lap (one run on {} rows)", df.height());
+        let first = plan.sizes.first().copied().unwrap_or(1);
+        let _watch = super::watchdog::arm(&plan.name, &d.name, first, what, super::watchdog::limit_for(plan.budget.per_point_s));
         let _ = run_design(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)));
     }
 }

@@ -20,7 +20,7 @@ struct Armed {
     workload: String,
     design: String,
     rows: u64,
-    what: &'static str,
+    what: String,
     started: Instant,
     limit: Duration,
 }
@@ -68,15 +68,16 @@ impl Drop for Guard {
     }
 }
 
-/// Watch one run (or sample, or set-up step) of `design` at `rows`. Does nothing until
-/// [`start`] named a results file (so library users and tests are never ended by it).
-pub fn arm(workload: &str, design: &str, rows: u64, what: &'static str, limit: Duration) -> Guard {
+/// Watch one run (or sample, or set-up step) of `design`; a failure is recorded at `rows`
+/// (a size of the sweep). Does nothing until [`start`] named a results file (so library
+/// users and tests are never ended by it).
+pub fn arm(workload: &str, design: &str, rows: u64, what: impl Into<String>, limit: Duration) -> Guard {
     let s = shared();
     if s.points.lock().map(|p| p.is_none()).unwrap_or(true) {
         return Guard(());
     }
     if let Ok(mut a) = s.armed.lock() {
-        *a = Some(Armed { workload: workload.to_string(), design: design.to_string(), rows, what, started: Instant::now(), limit });
+        *a = Some(Armed { workload: workload.to_string(), design: design.to_string(), rows, what: what.into(), started: Instant::now(), limit });
     }
     Guard(())
 }
@@ -87,13 +88,13 @@ fn watch() {
         let Some(s) = SHARED.get() else { continue };
         let over = match s.armed.lock() {
             Ok(a) => a.as_ref().filter(|a| a.started.elapsed() > a.limit).map(|a| {
-                (a.workload.clone(), a.design.clone(), a.rows, a.what, a.started.elapsed(), a.limit)
+                (a.workload.clone(), a.design.clone(), a.rows, a.what.clone(), a.started.elapsed(), a.limit)
             }),
             Err(_) => None,
         };
         let Some((workload, design, rows, what, took, limit)) = over else { continue };
         let detail = format!(
-            "{what} ran for {} past its limit of {} (twice the point budget) and could not be stopped from inside; the sweep was ended here",
+            "{what} ran for {}, past its limit of {} (twice the point budget, at least the budget + 5 s), and could not be stopped from inside; the sweep was ended here",
             crate::present::units::time_ns(took.as_nanos() as f64),
             crate::present::units::time_ns(limit.as_nanos() as f64)
         );
