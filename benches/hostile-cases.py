@@ -16,6 +16,7 @@ LIMIT = 60
 TINY = open(os.path.join(ROOT, "tests/data/tiny.yaml")).read()
 work = tempfile.mkdtemp()
 counts = {}
+codes = {}
 
 
 def classify(rc):
@@ -37,8 +38,12 @@ def run(group, label, args, env=None, stdin=subprocess.DEVNULL):
         rc, tail = None, ""
     kind = classify(rc)
     counts.setdefault(group, {"clear": 0, "panic": 0, "hang": 0, "abort": 0})[kind] += 1
+    codes.setdefault(group, {}).setdefault(rc, 0)
+    codes[group][rc] += 1
     if kind != "clear":
         print(f"{group}: {label}: {kind} (exit {rc}) {tail}")
+    elif rc == 0 and os.environ.get("SHOW_ACCEPTED"):
+        print(f"{group}: {label}: accepted")
 
 
 def spec(label, text):
@@ -214,12 +219,15 @@ for label, sigs in [("SIGINT once", [signal.SIGINT]), ("SIGTERM once", [signal.S
         rc = None
     kind = classify(rc)
     counts.setdefault("signals", {"clear": 0, "panic": 0, "hang": 0, "abort": 0})[kind] += 1
+    codes.setdefault("signals", {}).setdefault(rc, 0)
+    codes["signals"][rc] += 1
     if kind != "clear":
         print(f"signals: {label}: {kind} (exit {rc})")
 
 for group, c in counts.items():
     total = sum(c.values())
-    print(f"{group:28} {total:4} cases: clear {c['clear']}, panics {c['panic']}, hangs {c['hang']}, aborts {c['abort']}")
+    by_code = ", ".join(f"exit {k}: {v}" for k, v in sorted(codes[group].items(), key=lambda kv: str(kv[0])))
+    print(f"{group:28} {total:4} cases: clear {c['clear']}, panics {c['panic']}, hangs {c['hang']}, aborts {c['abort']} ({by_code})")
 os.chmod(work, 0o755)
 for d in os.listdir(work):
     try:

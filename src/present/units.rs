@@ -1,15 +1,23 @@
 //! Human units for times, bytes and row counts: ns, µs, ms, s; B, KiB, MiB, GiB.
 
-/// A name read from a spec or a results file, made safe to print: control characters
-/// (newlines, terminal escape codes) are shown as `\n`, `\u{1b}` and so on, so a name can
-/// neither break a line of output nor drive the terminal. Other text is unchanged.
+/// Characters a printed name must not carry as they are: control characters (newlines,
+/// terminal escape codes) and the invisible marks that reorder or hide text (bidirectional
+/// overrides and isolates, zero-width characters, the byte-order mark).
+pub fn unprintable(ch: char) -> bool {
+    ch.is_control() || matches!(ch, '\u{200B}'..='\u{200F}' | '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}' | '\u{FEFF}')
+}
+
+/// A name read from a spec or a results file, made safe to print: [`unprintable`]
+/// characters are shown as `\n`, `\u{1b}`, `\u{202e}` and so on, so a name can neither
+/// break a line of output, drive the terminal nor reorder what is shown. Other text is
+/// unchanged.
 pub fn escaped(name: &str) -> std::borrow::Cow<'_, str> {
-    if !name.chars().any(char::is_control) {
+    if !name.chars().any(unprintable) {
         return std::borrow::Cow::Borrowed(name);
     }
     let mut out = String::with_capacity(name.len() + 8);
     for ch in name.chars() {
-        if ch.is_control() {
+        if unprintable(ch) {
             out.extend(ch.escape_default());
         } else {
             out.push(ch);

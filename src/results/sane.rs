@@ -61,7 +61,7 @@ fn measured_ok(m: &Measured) -> bool {
 }
 
 fn clean(s: &mut String) {
-    if s.chars().any(char::is_control) {
+    if s.chars().any(crate::present::units::unprintable) {
         *s = crate::present::units::escaped(s).into_owned();
     }
 }

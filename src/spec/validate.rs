@@ -27,6 +27,8 @@ pub const MAX_SKEWED_DISTINCT: u64 = 100_000_000;
 /// Shortest time budget: a per-point or whole-run budget below a millisecond cannot hold a
 /// single run of anything.
 pub const MIN_BUDGET_S: f64 = 0.001;
+/// Tightest target precision of a median (0.1%).
+pub const MIN_PRECISION: f64 = 0.001;
 /// Longest time budget: a week.
 pub const MAX_BUDGET_S: f64 = 86_400.0 * 7.0;
 /// Most samples per point.
@@ -37,8 +39,12 @@ pub const MAX_WARMUP: u64 = 1000;
 /// Why a design, column or workload name cannot be printed or used as it is: control
 /// characters (a newline or terminal escape codes), or too long. None when it is fine.
 pub fn name_problem(name: &str) -> Option<String> {
-    if let Some(ch) = name.chars().find(|c| c.is_control()) {
-        return Some(format!("names may not hold control characters, found {:?} in {}", ch, crate::present::units::escaped(name)));
+    if let Some(ch) = name.chars().find(|&c| crate::present::units::unprintable(c)) {
+        return Some(format!(
+            "names may not hold control characters or invisible marks, found {} in {}",
+            ch.escape_unicode(),
+            crate::present::units::escaped(name)
+        ));
     }
     if name.chars().count() > MAX_NAME {
         return Some(format!("expected a name of at most {MAX_NAME} characters, found {}", name.chars().count()));
@@ -55,8 +61,9 @@ pub fn budget_problems(b: &Budget) -> Vec<(&'static str, String)> {
             out.push((key, format!("expected a duration above zero (at least 1ms) and at most a week, found {v} s")));
         }
     }
-    if !(b.precision > 0.0 && b.precision <= 0.5) {
-        out.push(("precision", format!("expected a precision above 0% and at most 50%, found {}", b.precision)));
+    // Below 0.1% no point would ever be precise enough: sampling would always run to its cap.
+    if !(MIN_PRECISION..=0.5).contains(&b.precision) {
+        out.push(("precision", format!("expected a precision above 0% (at least 0.1%) and at most 50%, found {}", b.precision)));
     }
     if b.min_samples == 0 {
         out.push(("min_samples", "expected at least 1 sample".to_string()));
