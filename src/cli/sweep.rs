@@ -351,7 +351,7 @@ pub fn run(a: Args) -> i32 {
     }
     let report = crate::present::report::write(&dir, &saved, &crate::analyse::AnalyseOptions::default());
     if let Err(e) = &report {
-        eprintln!("framecost sweep: the pictures and reports could not be drawn: {e}");
+        eprintln!("framecost sweep: could not write results: the pictures and reports: {e} (the measurements are kept; `framecost report` redraws them)");
     }
     if !a.quiet {
         print!("{}", render(&saved, Style::detect()));
@@ -370,6 +370,10 @@ pub fn run(a: Args) -> i32 {
     if failures > 0 || mismatches > 0 {
         eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");
         return crate::exit::RUN_FAILED;
+    }
+    if report.is_err() {
+        // The measurements are safe on disk, but not everything asked for could be written.
+        return crate::exit::WRITE_FAILED;
     }
     crate::exit::OK
 }

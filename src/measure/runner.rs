@@ -283,6 +283,7 @@ pub fn sweep(
     let started = Instant::now();
     let mut outcome = Outcome::default();
     let probe = super::machine::DriftProbe::new();
+    super::watchdog::names(&plan.name, plan.designs.iter().map(|d| d.name.clone()).collect());
     warmup_lap(plan);
     let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
     let min_sample_ns = clock.min_sample_ns();
@@ -461,7 +462,7 @@ pub fn sweep(
                 let mut error = None;
                 let mut feed = raw;
                 for s in &d.setup {
-                    let _watch = super::watchdog::arm(&plan.name, &d.name, rows, "a set-up step", super::watchdog::limit_for(b.per_point_s));
+                    let _watch = super::watchdog::arm(i, rows, "a set-up step", super::watchdog::limit_for(b.per_point_s));
                     match run_step(s, feed.clone()) {
                         Ok(v) => feed = v,
                         Err(e) => {
@@ -497,7 +498,7 @@ pub fn sweep(
             }
             progress.point(&plan.name, rows, &a.design.name, 0);
             let t = Instant::now();
-            let watch = super::watchdog::arm(&plan.name, &a.design.name, rows, "the first run", super::watchdog::limit_for(b.per_point_s));
+            let watch = super::watchdog::arm(a.index, rows, "the first run", super::watchdog::limit_for(b.per_point_s));
             let first = sample(a);
             drop(watch);
             match first {
@@ -526,7 +527,7 @@ pub fn sweep(
                     break;
                 }
                 let t = Instant::now();
-                let watch = super::watchdog::arm(&plan.name, &a.design.name, rows, "a warm-up run", super::watchdog::limit_for(b.per_point_s));
+                let watch = super::watchdog::arm(a.index, rows, "a warm-up run", super::watchdog::limit_for(b.per_point_s));
                 let warm = sample(a);
                 drop(watch);
                 if let Err(e) = warm {
@@ -560,7 +561,7 @@ pub fn sweep(
                 }
                 any = true;
                 let t = Instant::now();
-                let watch = super::watchdog::arm(&plan.name, &a.design.name, rows, "a sample", super::watchdog::limit_for(b.per_point_s));
+                let watch = super::watchdog::arm(a.index, rows, "a sample", super::watchdog::limit_for(b.per_point_s));
                 let taken = sample(a);
                 drop(watch);
                 match taken {
@@ -627,7 +628,7 @@ fn warmup_lap(plan: &Plan) {
     let Ok(Ok(df)) = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| crate::table::generate(&plan.columns, plan.seed, rows))) else { return };
     let records = Records::from_frame(&df).ok().map(Arc::new);
     let started = Instant::now();
-    for d in &plan.designs {
+    for (i, d) in plan.designs.iter().enumerate() {
         if started.elapsed().as_secs_f64() > plan.budget.per_point_s || super::interrupt::requested() {
             break;
         }
@@ -642,9 +643,8 @@ fn warmup_lap(plan: &Plan) {
             }
         }
         // A runaway here is recorded at the first size, which it keeps from being measured.
-        let what = format!("the untimed warm-up lap (one run on {} rows)", df.height());
         let first = plan.sizes.first().copied().unwrap_or(1);
-        let _watch = super::watchdog::arm(&plan.name, &d.name, first, what, super::watchdog::limit_for(plan.budget.per_point_s));
+        let _watch = super::watchdog::arm(i, first, "the untimed warm-up lap (one run on at most 1000 rows)", super::watchdog::limit_for(plan.budget.per_point_s));
         let _ = run_design(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)));
     }
 }

@@ -8,7 +8,9 @@
 //! sweep's thread is inside the run, not writing), prints where the run is, and ends the
 //! process with [`crate::exit::RUN_FAILED`]. The sweep does not go on after that: measuring
 //! in a child process the parent can kill would allow it, at the cost of building each
-//! table once per design. Cost when nothing runs away: two mutex operations per sample.
+//! table once per design. Cost when nothing runs away, outside the timed region: arming and
+//! disarming take two uncontended mutex operations and no allocation (names are given once
+//! per workload with [`names`]); the thread wakes every 50 ms and allocates nothing.
 
 use crate::results::{PointRecord, Record, SkipInfo, SkipReason};
 use std::io::Write;
@@ -17,16 +19,17 @@ use std::sync::{Mutex, OnceLock};
 use std::time::{Duration, Instant};
 
 struct Armed {
-    workload: String,
-    design: String,
+    design: usize,
     rows: u64,
-    what: String,
+    what: &'static str,
     started: Instant,
     limit: Duration,
 }
 
 struct Shared {
     points: Mutex<Option<PathBuf>>,
+    /// The workload being swept and its design names, by index.
+    names: Mutex<(String, Vec<String>)>,
     armed: Mutex<Option<Armed>>,
 }
 
@@ -38,7 +41,7 @@ fn shared() -> &'static Shared {
             .name("framecost-watchdog".into())
             .spawn(watch)
             .ok();
-        Shared { points: Mutex::new(None), armed: Mutex::new(None) }
+        Shared { points: Mutex::new(None), names: Mutex::new((String::new(), Vec::new())), armed: Mutex::new(None) }
     })
 }
 
@@ -55,6 +58,13 @@ pub fn start(points: PathBuf) {
     }
 }
 
+/// The workload about to be swept and its designs (indices are what [`arm`] takes).
+pub fn names(workload: &str, designs: Vec<String>) {
+    if let Ok(mut n) = shared().names.lock() {
+        *n = (workload.to_string(), designs);
+    }
+}
+
 /// Disarms when dropped.
 pub struct Guard(());
 
@@ -68,16 +78,13 @@ impl Drop for Guard {
     }
 }
 
-/// Watch one run (or sample, or set-up step) of `design`; a failure is recorded at `rows`
-/// (a size of the sweep). Does nothing until [`start`] named a results file (so library
-/// users and tests are never ended by it).
-pub fn arm(workload: &str, design: &str, rows: u64, what: impl Into<String>, limit: Duration) -> Guard {
+/// Watch one run (or sample, or set-up step) of design number `design` (see [`names`]); a
+/// failure is recorded at `rows` (a size of the sweep). Does nothing until [`start`] named
+/// a results file, so library users and tests are never ended by it.
+pub fn arm(design: usize, rows: u64, what: &'static str, limit: Duration) -> Guard {
     let s = shared();
-    if s.points.lock().map(|p| p.is_none()).unwrap_or(true) {
-        return Guard(());
-    }
     if let Ok(mut a) = s.armed.lock() {
-        *a = Some(Armed { workload: workload.to_string(), design: design.to_string(), rows, what: what.into(), started: Instant::now(), limit });
+        *a = Some(Armed { design, rows, what, started: Instant::now(), limit });
     }
     Guard(())
 }
@@ -87,12 +94,16 @@ fn watch() {
         std::thread::sleep(Duration::from_millis(50));
         let Some(s) = SHARED.get() else { continue };
         let over = match s.armed.lock() {
-            Ok(a) => a.as_ref().filter(|a| a.started.elapsed() > a.limit).map(|a| {
-                (a.workload.clone(), a.design.clone(), a.rows, a.what.clone(), a.started.elapsed(), a.limit)
-            }),
+            Ok(a) => a.as_ref().filter(|a| a.started.elapsed() > a.limit).map(|a| (a.design, a.rows, a.what, a.started.elapsed(), a.limit)),
             Err(_) => None,
         };
-        let Some((workload, design, rows, what, took, limit)) = over else { continue };
+        let Some((index, rows, what, took, limit)) = over else { continue };
+        let path = s.points.lock().ok().and_then(|p| p.clone());
+        let Some(path) = path else { continue };
+        let (workload, design) = match s.names.lock() {
+            Ok(n) => (n.0.clone(), n.1.get(index).cloned().unwrap_or_else(|| format!("design {index}"))),
+            Err(_) => (String::new(), format!("design {index}")),
+        };
         let detail = format!(
             "{what} ran for {}, past its limit of {} (twice the point budget, at least the budget + 5 s), and could not be stopped from inside; the sweep was ended here",
             crate::present::units::time_ns(took.as_nanos() as f64),
@@ -105,15 +116,14 @@ fn watch() {
             measured: None,
             skipped: Some(SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: detail.clone() }),
         });
-        let path = s.points.lock().ok().and_then(|p| p.clone());
-        if let (Some(path), Ok(line)) = (&path, serde_json::to_string(&rec)) {
-            if let Ok(mut f) = std::fs::OpenOptions::new().append(true).open(path) {
+        if let Ok(line) = serde_json::to_string(&rec) {
+            if let Ok(mut f) = std::fs::OpenOptions::new().append(true).open(&path) {
                 let _ = f.write_all(format!("{line}\n").as_bytes());
                 let _ = f.sync_data();
             }
         }
         eprintln!("\nframecost sweep: `{}` at {rows} rows: {detail}", crate::present::units::escaped(&design));
-        if let Some(dir) = path.as_ref().and_then(|p| p.parent()) {
+        if let Some(dir) = path.parent() {
             eprintln!("framecost sweep: the points measured so far are in {}; `framecost report {}` draws them", dir.display(), dir.display());
         }
         // _exit: no destructors or exit handlers race the threads still inside the run.
