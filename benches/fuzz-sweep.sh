@@ -7,7 +7,9 @@
 #
 #   benches/fuzz-sweep.sh [MUTANTS] [SEED]          (default 100 mutants, seed 1)
 #
-# Prints one line per accepted mutant that did not end clearly, then the counts. Needs the
+# Prints one line per accepted mutant that did not end clearly, then the counts; the spec
+# and log of each such mutant are kept in $FUZZ_KEEP (default: a new folder in /tmp), with
+# every thread's stack when gdb is installed and the sweep passed the time limit. Needs the
 # release binary (cargo build --release) and python3.
 set -uo pipefail
 cd "$(dirname "$0")/.."
@@ -17,6 +19,8 @@ count=${1:-100}
 seed=${2:-1}
 limit=${FUZZ_TIME_LIMIT:-90}
 work=$(mktemp -d)
+keep=${FUZZ_KEEP:-$(mktemp -d /tmp/fuzz-keep-XXXX)}
+mkdir -p "$keep"
 trap 'rm -rf "$work"' EXIT
 
 python3 - "$work" "$count" "$seed" <<'PY'
@@ -50,8 +54,16 @@ for spec in "$work"/m*.yaml; do
     refused=$((refused + 1)); continue
   fi
   out="$work/run-$(basename "$spec" .yaml)"
-  timeout -s KILL "$limit" "$bin" sweep "$spec" --quiet --out "$out" \
-    --point-budget 100ms --run-budget 4s --max-samples 6 >"$out.log" 2>&1
+  "$bin" sweep "$spec" --quiet --out "$out" --point-budget 100ms --run-budget 4s --max-samples 6 >"$out.log" 2>&1 &
+  pid=$!
+  waited=0
+  while kill -0 "$pid" 2>/dev/null && [ "$waited" -lt $((limit * 10)) ]; do sleep 0.1; waited=$((waited + 1)); done
+  if kill -0 "$pid" 2>/dev/null; then
+    # Over the limit: record where every thread is, then end it.
+    command -v gdb >/dev/null && gdb -p "$pid" -batch -ex "thread apply all bt 12" >>"$out.log" 2>&1
+    kill -KILL "$pid" 2>/dev/null
+  fi
+  wait "$pid"
   rc=$?
   case $rc in
     0|2|3|4) clear=$((clear + 1)) ;;
@@ -60,6 +72,8 @@ for spec in "$work"/m*.yaml; do
     134|139) aborts=$((aborts + 1)); echo "abort ($rc): $what"; tail -3 "$out.log" ;;
     *) other=$((other + 1)); echo "exit $rc: $what"; tail -3 "$out.log" ;;
   esac
+  case $rc in 0|2|3|4) ;; *) cp "$spec" "$out.log" "$keep/" 2>/dev/null ;; esac
   rm -rf "$out" "$out.log"
 done
+echo "kept for study: $keep"
 echo "mutants: $count; refused by lint: $refused; swept: $((count - refused)) — clear: $clear, panics: $panics, hangs: $hangs, aborts: $aborts, other: $other"
