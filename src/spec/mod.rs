@@ -7,6 +7,7 @@
 //! problem through [`locate::Locator`]. Nothing here panics on any input.
 
 pub mod guard;
+pub mod limits;
 pub mod locate;
 pub mod model;
 pub mod suggest;
