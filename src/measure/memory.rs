@@ -178,35 +178,35 @@ fn rlimit_room(resource: libc::__rlimit_resource_t, used: Option<u64>) -> Option
     Some((rl.rlim_cur as u64).saturating_sub(used.unwrap_or(0)))
 }
 
-/// What the process's memory cgroup leaves, if it has a limit.
+/// What the process's memory cgroups leave, if any has a limit: the smallest room over the
+/// v2 (unified) entry and the v1 memory controller's entry of `/proc/self/cgroup`.
 fn cgroup_room() -> Option<u64> {
     let own = std::fs::read_to_string("/proc/self/cgroup").ok()?;
-    let read = |p: std::path::PathBuf| std::fs::read_to_string(p).ok().map(|t| t.trim().to_string());
+    let num = |p: std::path::PathBuf| std::fs::read_to_string(p).ok().and_then(|t| t.trim().parse::<u64>().ok());
+    let mut room: Option<u64> = None;
     for line in own.lines() {
         let mut parts = line.splitn(3, ':');
-        let (_, controllers, path) = (parts.next()?, parts.next()?, parts.next()?);
+        let (Some(_), Some(controllers), Some(path)) = (parts.next(), parts.next(), parts.next()) else { continue };
         let rel = path.trim_start_matches('/');
-        if controllers.is_empty() {
-            // cgroup v2: the unified hierarchy.
-            let dir = std::path::Path::new("/sys/fs/cgroup").join(rel);
-            let max = read(dir.join("memory.max"))?;
-            if max == "max" {
-                return None;
-            }
-            let max: u64 = max.parse().ok()?;
-            let current: u64 = read(dir.join("memory.current")).and_then(|c| c.parse().ok()).unwrap_or(0);
-            return Some(max.saturating_sub(current));
-        }
-        if controllers.split(',').any(|c| c == "memory") {
+        let found = if controllers.is_empty() {
+            // cgroup v2, mounted at /sys/fs/cgroup or (hybrid) /sys/fs/cgroup/unified;
+            // `max` (no limit) does not parse as a number.
+            ["/sys/fs/cgroup", "/sys/fs/cgroup/unified"].iter().map(|m| std::path::Path::new(m).join(rel)).find_map(|dir| {
+                let max = num(dir.join("memory.max"))?;
+                Some(max.saturating_sub(num(dir.join("memory.current")).unwrap_or(0)))
+            })
+        } else if controllers.split(',').any(|c| c == "memory") {
             let dir = std::path::Path::new("/sys/fs/cgroup/memory").join(rel);
-            let max: u64 = read(dir.join("memory.limit_in_bytes")).and_then(|c| c.parse().ok())?;
-            // v1 reports "no limit" as a huge number near i64::MAX.
-            if max >= 1 << 60 {
-                return None;
-            }
-            let used: u64 = read(dir.join("memory.usage_in_bytes")).and_then(|c| c.parse().ok()).unwrap_or(0);
-            return Some(max.saturating_sub(used));
+            // v1 reports "no limit" as a number near i64::MAX.
+            num(dir.join("memory.limit_in_bytes"))
+                .filter(|&max| max < 1 << 60)
+                .map(|max| max.saturating_sub(num(dir.join("memory.usage_in_bytes")).unwrap_or(0)))
+        } else {
+            None
+        };
+        if let Some(r) = found {
+            room = Some(room.map_or(r, |x| x.min(r)));
         }
     }
-    None
+    room
 }
