@@ -161,20 +161,23 @@ fn finish_point(
 /// Run one design's steps on one input. A step that panics (a capacity overflow on an
 /// absurd parameter, say) becomes an error of this run, so the sweep goes on.
 pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
-    let run = std::panic::AssertUnwindSafe(|| {
+    caught(|| {
         let mut v = input;
         for s in &design.steps {
             v = s.runner.run(v).map_err(|e| e.to_string())?;
         }
         Ok(v)
-    });
-    std::panic::catch_unwind(run).unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+    })
 }
 
 /// Run one (set-up) step, a panic becoming an error.
 fn run_step(s: &crate::plan::StepPlan, input: Value) -> Result<Value, String> {
-    std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| s.runner.run(input).map_err(|e| e.to_string())))
-        .unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+    caught(|| s.runner.run(input).map_err(|e| e.to_string()))
+}
+
+/// Run step work with a panic turned into an error that names it.
+fn caught(work: impl FnOnce() -> Result<Value, String>) -> Result<Value, String> {
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(work)).unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
 }
 
 /// The message of a caught panic.
