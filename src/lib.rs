@@ -29,4 +29,9 @@ pub mod exit {
     pub const BAD_INPUT: i32 = 2;
     /// A run failed (a step failed, or designs that should agree did not).
     pub const RUN_FAILED: i32 = 3;
+    /// Results could not be written (disk full, no permission, a read-only folder).
+    pub const WRITE_FAILED: i32 = 4;
+    /// The sweep was interrupted (Ctrl-C or SIGTERM); finished points were kept
+    /// (128 + SIGINT, as shells report it).
+    pub const INTERRUPTED: i32 = 130;
 }

@@ -140,7 +140,8 @@ fn bad_command_lines_exit_2() {
 fn steps_that_write_files_get_a_disk_estimate_checked_against_free_space() {
     // The storage family declares a disk factor: --plan shows what a size would write and
     // the temp folder's free space, and a size far beyond any disk is refused up front.
-    let plan = sweep(&["workloads/storage.yaml", "--sizes", "1k,20G", "--plan"]);
+    // (10G rows: the largest size a spec or --sizes may ask for.)
+    let plan = sweep(&["workloads/storage.yaml", "--sizes", "1k,10G", "--plan"]);
     let text = String::from_utf8_lossy(&plan.stdout);
     assert!(plan.status.success(), "{}", String::from_utf8_lossy(&plan.stderr));
     assert!(text.contains("writes about") && text.contains("in the temp folder"), "{text}");

@@ -59,6 +59,12 @@ pub fn run(a: Args) -> i32 {
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
         return crate::exit::OK;
     }
+    if !r.complete() {
+        println!("this run did not finish (interrupted or killed): what follows is drawn from the points measured before it stopped\n");
+    }
+    if r.damaged_lines > 0 {
+        println!("{} damaged line(s) in the results file were left out\n", r.damaged_lines);
+    }
     for ((w, wa), e) in r.workloads.iter().zip(&analysis.workloads).zip(&explanations) {
         println!("▌ {}", w.header.workload);
         for d in &wa.designs {

@@ -37,6 +37,11 @@ pub struct Args {
     /// Print the comparison as JSON.
     #[arg(long)]
     pub json: bool,
+    /// Judge what can be compared even when the comparison is partial (the new run did not
+    /// finish, designs match nothing, records are duplicated or damaged). Without it such
+    /// a comparison is refused with exit 2.
+    #[arg(long)]
+    pub partial_ok: bool,
 }
 
 /// A run folder, or a saved baseline's folder by name.
@@ -70,6 +75,19 @@ pub fn run(a: Args) -> i32 {
         Ok(r) => r,
         Err(e) => return bad(format!("new run: {e}")),
     };
+    // Refuse to pass on a comparison of little or nothing (see track::completeness).
+    let completeness = crate::track::completeness::check(&base, &new);
+    let problems = completeness.problems();
+    if !problems.is_empty() {
+        let lines = problems.iter().map(|p| format!("  - {p}")).collect::<Vec<_>>().join("\n");
+        if !a.partial_ok {
+            return bad(format!(
+                "the comparison would be partial ({} of {} baseline points comparable):\n{lines}\n(--partial-ok judges what can be compared)",
+                completeness.comparable_points, completeness.baseline_points
+            ));
+        }
+        eprintln!("framecost gate: partial comparison (--partial-ok):\n{lines}");
+    }
     let growth_rise = match (a.no_growth_check, a.growth_rise) {
         (true, _) => None,
         (false, Some(r)) if !(r > 0.0 && r <= 3.0) => return bad(format!("--growth-rise: expected an exponent above 0 and at most 3, found {r}")),

@@ -41,8 +41,8 @@ pub fn run(a: Args) -> i32 {
             crate::exit::OK
         }
         Err(e) => {
-            eprintln!("framecost report: {e}");
-            crate::exit::RUN_FAILED
+            eprintln!("framecost report: could not write the report: {e}");
+            crate::exit::WRITE_FAILED
         }
     }
 }

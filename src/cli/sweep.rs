@@ -59,19 +59,36 @@ fn fail(msg: impl std::fmt::Display) -> i32 {
     crate::exit::BAD_INPUT
 }
 
+/// After Ctrl-C or SIGTERM: a partial summary, where the run is, how to redraw it.
+fn interrupted(out: &RunWriter) -> i32 {
+    let dir = out.dir().display();
+    if let Err(e) = out.finish_interrupted() {
+        return write_failed(e);
+    }
+    let points = out.results.workloads.iter().map(|w| w.points.len()).sum::<usize>();
+    eprintln!("framecost sweep: interrupted; {points} finished point(s) are in {dir}/points.jsonl (partial summary: {dir}/summary.json)");
+    eprintln!("framecost sweep: redraw it with `framecost report {dir}`, or see it with `framecost recap {dir}`");
+    crate::exit::INTERRUPTED
+}
+
+/// Results could not be written: one message form and one exit code wherever it happens.
+fn write_failed(msg: impl std::fmt::Display) -> i32 {
+    eprintln!("framecost sweep: could not write results: {msg}");
+    crate::exit::WRITE_FAILED
+}
+
 /// Apply command-line overrides to a plan.
 fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
     if let Some(list) = &a.sizes {
         let mut v = Vec::new();
         for s in list {
-            let n = parse_rows(s).map_err(|e| format!("--sizes: expected {e}"))?;
-            if n == 0 {
-                return Err("--sizes: sizes must be at least 1 row".into());
-            }
-            v.push(n);
+            v.push(parse_rows(s).map_err(|e| format!("--sizes: expected {e}"))?);
         }
         v.sort_unstable();
         v.dedup();
+        if let Some(m) = crate::spec::validate::sizes_problems(&v).into_iter().next() {
+            return Err(format!("--sizes: {m}"));
+        }
         plan.sizes = v;
     }
     if let Some(s) = &a.point_budget {
@@ -81,11 +98,7 @@ fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
         plan.budget.whole_run_s = positive(parse_seconds(s), "--run-budget")?;
     }
     if let Some(s) = &a.precision {
-        let p = parse_share(s).map_err(|e| format!("--precision: expected {e}"))?;
-        if !(p > 0.0 && p <= 0.5) {
-            return Err(format!("--precision: expected above 0% and at most 50%, found {s}"));
-        }
-        plan.budget.precision = p;
+        plan.budget.precision = parse_share(s).map_err(|e| format!("--precision: expected {e}"))?;
     }
     if let Some(m) = a.max_samples {
         if m < plan.budget.min_samples.min(6) {
@@ -105,6 +118,19 @@ fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
             }
         }
         plan.designs.retain(|x| a.designs.contains(&x.name));
+    }
+    // The overridden values go through the same limits as the spec's own.
+    let flag = |key: &str| match key {
+        "per_point" => "--point-budget",
+        "whole_run" => "--run-budget",
+        "precision" => "--precision",
+        _ => "--max-samples",
+    };
+    if let Some((key, m)) = crate::spec::validate::budget_problems(&plan.budget).into_iter().next() {
+        return Err(format!("{}: {m}", flag(key)));
+    }
+    if let Some(m) = crate::spec::validate::plan_param_problems(plan).into_iter().next() {
+        return Err(format!("--sizes: with these sizes, {m}"));
     }
     Ok(())
 }
@@ -201,7 +227,8 @@ pub fn run(a: Args) -> i32 {
     }
 
     // Memory plan: the largest size of each workload against what is free now.
-    let avail = crate::measure::machine::available_memory();
+    let limit = crate::measure::memory::memory_limit();
+    let avail = limit.bytes;
     let opts = SweepOptions { force: a.force, ..SweepOptions::default() };
     let mut refused = Vec::new();
     for p in &plans {
@@ -234,7 +261,7 @@ pub fn run(a: Args) -> i32 {
                 ));
             }
         }
-        let refusals = crate::measure::inputs::refusals(p, largest, &[], avail, opts.memory_share, false);
+        let refusals = crate::measure::inputs::refusals(p, largest, &[], &limit, opts.memory_share, false);
         for (d, why) in p.designs.iter().zip(&refusals) {
             if let Some(why) = why.as_ref().filter(|w| w.reason == crate::results::SkipReason::Memory) {
                 refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), why.detail));
@@ -242,7 +269,7 @@ pub fn run(a: Args) -> i32 {
         }
     }
     if a.plan {
-        println!("available memory now: {}", crate::present::units::bytes(avail as f64));
+        println!("memory a size may use now: {} (set by {})", crate::present::units::bytes(avail as f64), limit.source);
         if let Some(free) = crate::measure::memory::available_disk(&std::env::temp_dir()) {
             println!("free disk in {}: {}", std::env::temp_dir().display(), crate::present::units::bytes(free as f64));
         }
@@ -278,14 +305,16 @@ pub fn run(a: Args) -> i32 {
     }
     let mut out = match RunWriter::create(&dir) {
         Ok(w) => w,
-        Err(e) => return fail(e),
+        Err(e) => return write_failed(e),
     };
 
+    crate::measure::interrupt::install();
+    crate::measure::watchdog::start(dir.join("points.jsonl"));
     let started = Instant::now();
     let clock = crate::measure::clock::calibrate();
     let header = runner::run_header(std::env::args().collect(), clock, a.force);
     if let Err(e) = out.write(Record::Run(header)) {
-        return fail(e);
+        return write_failed(e);
     }
     eprintln!("framecost: writing {}", dir.display());
     let total: u64 = plans.iter().map(|p| (p.sizes.len() * p.designs.len()) as u64).sum();
@@ -295,6 +324,12 @@ pub fn run(a: Args) -> i32 {
     for p in &plans {
         let _ = out.side_file(&format!("spec-{}.yaml", p.name), &p.spec_text);
         match runner::sweep(p, &opts, &clock, &mut out, &bar) {
+            Ok(o) if o.interrupted || crate::measure::interrupt::requested() => {
+                if let Some(pb) = &bar.0 {
+                    pb.finish_and_clear();
+                }
+                return interrupted(&out);
+            }
             Ok(o) => {
                 failures += o.failures;
                 mismatches += o.mismatches;
@@ -303,8 +338,13 @@ pub fn run(a: Args) -> i32 {
                 if let Some(pb) = &bar.0 {
                     pb.finish_and_clear();
                 }
-                eprintln!("framecost sweep: {e}");
-                return crate::exit::RUN_FAILED;
+                return match e {
+                    runner::RunError::Write(w) => write_failed(w),
+                    other => {
+                        eprintln!("framecost sweep: {other}");
+                        crate::exit::RUN_FAILED
+                    }
+                };
             }
         }
     }
@@ -312,11 +352,11 @@ pub fn run(a: Args) -> i32 {
         pb.finish_and_clear();
     }
     if let Err(e) = out.write(Record::End(runner::end_record(started, mismatches))) {
-        return fail(e);
+        return write_failed(e);
     }
     let summary_path = match out.finish() {
         Ok(p) => p,
-        Err(e) => return fail(e),
+        Err(e) => return write_failed(e),
     };
     // Everything after the measurements is drawn from the results as read back from disk,
     // exactly as `explain`, `report` and `recap` will read them later, so they agree.
@@ -327,11 +367,11 @@ pub fn run(a: Args) -> i32 {
         saved.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
     let doc = serde_json::json!({ "schema": crate::results::SCHEMA, "analysis": analysis, "explanations": explanations });
     if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
-        return fail(e);
+        return write_failed(e);
     }
     let report = crate::present::report::write(&dir, &saved, &crate::analyse::AnalyseOptions::default());
     if let Err(e) = &report {
-        eprintln!("framecost sweep: the pictures and reports could not be drawn: {e}");
+        eprintln!("framecost sweep: could not write results: the pictures and reports: {e} (the measurements are kept; `framecost report` redraws them)");
     }
     if !a.quiet {
         print!("{}", render(&saved, Style::detect()));
@@ -350,6 +390,10 @@ pub fn run(a: Args) -> i32 {
     if failures > 0 || mismatches > 0 {
         eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");
         return crate::exit::RUN_FAILED;
+    }
+    if report.is_err() {
+        // The measurements are safe on disk, but not everything asked for could be written.
+        return crate::exit::WRITE_FAILED;
     }
     crate::exit::OK
 }

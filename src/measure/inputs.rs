@@ -98,27 +98,36 @@ fn write_chunks(plan: &Plan, rows: u64, in_memory: &[(String, DataFrame)]) -> Re
 }
 
 /// For each design, why the memory or disk guard refuses it at this size (None: it may run).
-pub fn refusals(plan: &Plan, rows: u64, peaks: &[Vec<(u64, f64)>], avail: u64, share: f64, force: bool) -> Vec<Option<SkipInfo>> {
+/// `force` lifts the guard except against a hard limit (a resource limit or a cgroup), past
+/// which an allocation would fail and abort the process.
+pub fn refusals(plan: &Plan, rows: u64, peaks: &[Vec<(u64, f64)>], limit: &memory::MemoryLimit, share: f64, force: bool) -> Vec<Option<SkipInfo>> {
     let free_disk = memory::available_disk(&std::env::temp_dir());
+    let avail = limit.bytes;
     (0..plan.designs.len())
         .map(|i| {
-            if force {
+            let est = memory::estimate_design(plan, i, rows, peaks);
+            let beyond_hard = limit.hard && est.total() > avail as f64;
+            if force && !beyond_hard {
                 return None;
             }
-            let est = memory::estimate_design(plan, i, rows, peaks);
             if est.total() > avail as f64 * share {
                 return Some(SkipInfo {
                     reason: SkipReason::Memory,
                     predicted_ns: None,
                     predicted_bytes: Some(est.total()),
                     detail: format!(
-                        "needs {} on the {} engine; {} available, {:.0}% of it may be used (--force to run anyway)",
+                        "needs {} on the {} engine; {} allowed by {}, {:.0}% of it may be used ({})",
                         est.describe(),
                         plan.designs[i].engine.label(),
                         crate::present::units::bytes(avail as f64),
-                        share * 100.0
+                        limit.source,
+                        share * 100.0,
+                        if limit.hard { "a hard limit: --force cannot lift it" } else { "--force to run anyway" }
                     ),
                 });
+            }
+            if force {
+                return None;
             }
             match free_disk {
                 Some(free) if est.disk > 0.0 && est.disk > free as f64 * share => Some(SkipInfo {

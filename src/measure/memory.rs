@@ -19,11 +19,19 @@ use crate::spec::model::{EngineChoice, Feed};
 /// record's share of its vector.
 pub const RECORD_VALUE_BYTES: f64 = 40.0;
 
+/// Bytes per value of the Zipf (alias) table a skewed column is drawn with: the weights,
+/// probabilities and aliases, and the two work lists used while building it.
+pub const ZIPF_BYTES_PER_VALUE: f64 = 36.0;
+/// Bytes per word of a text or category column's word pool besides its letters (a `String`).
+pub const WORD_OVERHEAD_BYTES: f64 = 24.0;
+
 /// Estimated memory for one size.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Estimate {
     pub table: f64,
     pub records: f64,
+    /// What the table generator builds besides the table: Zipf tables and word pools.
+    pub generator: f64,
     pub working: f64,
     /// Bytes the largest-writing design puts in the temp folder.
     pub disk: f64,
@@ -31,17 +39,18 @@ pub struct Estimate {
 
 impl Estimate {
     pub fn total(&self) -> f64 {
-        self.table + self.records + self.working
+        self.table + self.records + self.generator + self.working
     }
     pub fn describe_disk(&self) -> String {
         format!("about {} in the temp folder", crate::present::units::bytes(self.disk))
     }
     pub fn describe(&self) -> String {
         format!(
-            "about {} (table {}, records {}, largest design's working memory {})",
+            "about {} (table {}, records {}, generator {}, largest design's working memory {})",
             crate::present::units::bytes(self.total()),
             crate::present::units::bytes(self.table),
             crate::present::units::bytes(self.records),
+            crate::present::units::bytes(self.generator),
             crate::present::units::bytes(self.working)
         )
     }
@@ -54,7 +63,7 @@ pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> E
     let streaming: Vec<usize> = (0..plan.designs.len()).filter(|&i| plan.designs[i].engine == EngineChoice::Streaming).collect();
     let disk_streaming = if streaming.is_empty() { 0.0 } else { plan.table_bytes(rows) };
     if streaming.len() == plan.designs.len() && !streaming.is_empty() {
-        let mut largest = Estimate { table: 0.0, records: 0.0, working: 0.0, disk: 0.0 };
+        let mut largest = Estimate { table: 0.0, records: 0.0, generator: 0.0, working: 0.0, disk: 0.0 };
         for &i in &streaming {
             let e = estimate_design(plan, i, rows, measured_peaks);
             if e.total() > largest.total() {
@@ -77,13 +86,15 @@ pub fn estimate_design(plan: &Plan, design: usize, rows: u64, measured_peaks: &[
     match d.engine {
         EngineChoice::Memory => {
             let records = if d.feed == Feed::Records { rows as f64 * plan.columns.len() as f64 * RECORD_VALUE_BYTES } else { 0.0 };
-            let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table);
-            Estimate { table, records, working, disk: d.disk_factor() * table }
+            // What its parameters make it build (new columns, probe lists, pieces) comes on top
+            // of the table-sized working memory, measured or not.
+            let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table).max(params_bytes(d, rows) + table);
+            Estimate { table, records, generator: generator_bytes(plan, rows), working, disk: d.disk_factor() * table }
         }
         EngineChoice::Streaming => {
             let chunks = (2.0 * plan.table_bytes(super::inputs::CHUNK_ROWS)).min(table);
             let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * chunks);
-            Estimate { table: chunks, records: 0.0, working, disk: table }
+            Estimate { table: chunks, records: 0.0, generator: generator_bytes(plan, rows), working, disk: table }
         }
     }
 }
@@ -95,7 +106,46 @@ fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f
         .map(|i| estimate_design(plan, i, rows, measured_peaks))
         .collect();
     let largest = |f: fn(&Estimate) -> f64| per.iter().map(f).fold(0.0, f64::max);
-    Estimate { table: plan.table_bytes(rows), records: largest(|e| e.records), working: largest(|e| e.working), disk: largest(|e| e.disk) }
+    Estimate {
+        table: plan.table_bytes(rows),
+        records: largest(|e| e.records),
+        generator: generator_bytes(plan, rows),
+        working: largest(|e| e.working),
+        disk: largest(|e| e.disk),
+    }
+}
+
+/// Bytes the generator holds besides the table at `rows`: each skewed column's Zipf table
+/// (over all its distinct values, whatever the rows) and each text column's word pool.
+pub fn generator_bytes(plan: &Plan, rows: u64) -> f64 {
+    use crate::spec::model::ColumnKind;
+    plan.columns
+        .iter()
+        .map(|c| {
+            let d = c.distinct.unwrap_or(0) as f64;
+            let zipf = if c.skew > 0.0 { d * ZIPF_BYTES_PER_VALUE } else { 0.0 };
+            let pool = match c.kind {
+                ColumnKind::Text | ColumnKind::Category => d.min(rows as f64) * (WORD_OVERHEAD_BYTES + c.length.1 as f64),
+                _ => 0.0,
+            };
+            zipf + pool
+        })
+        .sum()
+}
+
+/// Bytes a design's steps build from their whole-number parameters at `rows` rows (each
+/// parameter's declared cost per unit), summed over its steps.
+pub fn params_bytes(d: &crate::plan::DesignPlan, rows: u64) -> f64 {
+    use crate::patterns::{ParamKind, ParamValue};
+    d.setup
+        .iter()
+        .chain(&d.steps)
+        .flat_map(|s| s.def.params.iter().map(move |pd| (pd, s.params.0.get(pd.name))))
+        .map(|(pd, v)| match (pd.kind, v) {
+            (ParamKind::Count { cost, .. }, Some(ParamValue::Count(n))) => cost.at(*n, rows),
+            _ => 0.0,
+        })
+        .sum()
 }
 
 /// Bytes free for an unprivileged writer in the folder's file system (statvfs), if known.
@@ -120,4 +170,83 @@ pub fn extrapolate(peaks: &[(u64, f64)], rows: u64) -> Option<f64> {
     let slope = loglog_slope(&x, &y)?.clamp(0.0, 4.0);
     let (n0, p0) = tail[tail.len() - 1];
     Some(p0 * (rows as f64 / n0 as f64).powf(slope))
+}
+
+/// How much memory a size may count on, and which limit set it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MemoryLimit {
+    pub bytes: u64,
+    /// "available memory", "the address-space limit (ulimit -v)", "the data-segment limit",
+    /// "the cgroup memory limit".
+    pub source: String,
+    /// A hard limit (a resource limit or a cgroup): allocations past it fail or the process
+    /// is killed, so `--force` cannot lift it. Available memory is soft (the kernel may
+    /// reclaim caches or swap).
+    pub hard: bool,
+}
+
+/// The smallest of: the machine's available memory; what `RLIMIT_AS` and `RLIMIT_DATA`
+/// leave above the process's current address space and data segment; and what the
+/// cgroup's limit leaves above its current use (v2 `memory.max`, v1 `memory.limit_in_bytes`).
+pub fn memory_limit() -> MemoryLimit {
+    let mut best = MemoryLimit { bytes: super::machine::available_memory(), source: "available memory".into(), hard: false };
+    let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
+    let status_kib = |key: &str| -> Option<u64> {
+        let line = status.lines().find(|l| l.starts_with(key))?;
+        line[key.len()..].trim().trim_end_matches("kB").trim().parse::<u64>().ok().map(|k| k * 1024)
+    };
+    let mut consider = |bytes: Option<u64>, source: &str| {
+        if let Some(b) = bytes {
+            if b < best.bytes {
+                best = MemoryLimit { bytes: b, source: source.to_string(), hard: true };
+            }
+        }
+    };
+    consider(rlimit_room(libc::RLIMIT_AS, status_kib("VmSize:")), "the address-space limit (ulimit -v)");
+    consider(rlimit_room(libc::RLIMIT_DATA, status_kib("VmData:")), "the data-segment limit (ulimit -d)");
+    consider(cgroup_room(), "the cgroup memory limit");
+    best
+}
+
+/// What a resource limit leaves above the current use, if the limit is set.
+fn rlimit_room(resource: libc::__rlimit_resource_t, used: Option<u64>) -> Option<u64> {
+    // SAFETY: getrlimit writes into the struct we own.
+    let mut rl: libc::rlimit = unsafe { std::mem::zeroed() };
+    if unsafe { libc::getrlimit(resource, &mut rl) } != 0 || rl.rlim_cur == libc::RLIM_INFINITY {
+        return None;
+    }
+    Some((rl.rlim_cur as u64).saturating_sub(used.unwrap_or(0)))
+}
+
+/// What the process's memory cgroups leave, if any has a limit: the smallest room over the
+/// v2 (unified) entry and the v1 memory controller's entry of `/proc/self/cgroup`.
+fn cgroup_room() -> Option<u64> {
+    let own = std::fs::read_to_string("/proc/self/cgroup").ok()?;
+    let num = |p: std::path::PathBuf| std::fs::read_to_string(p).ok().and_then(|t| t.trim().parse::<u64>().ok());
+    let mut room: Option<u64> = None;
+    for line in own.lines() {
+        let mut parts = line.splitn(3, ':');
+        let (Some(_), Some(controllers), Some(path)) = (parts.next(), parts.next(), parts.next()) else { continue };
+        let rel = path.trim_start_matches('/');
+        let found = if controllers.is_empty() {
+            // cgroup v2, mounted at /sys/fs/cgroup or (hybrid) /sys/fs/cgroup/unified;
+            // `max` (no limit) does not parse as a number.
+            ["/sys/fs/cgroup", "/sys/fs/cgroup/unified"].iter().map(|m| std::path::Path::new(m).join(rel)).find_map(|dir| {
+                let max = num(dir.join("memory.max"))?;
+                Some(max.saturating_sub(num(dir.join("memory.current")).unwrap_or(0)))
+            })
+        } else if controllers.split(',').any(|c| c == "memory") {
+            let dir = std::path::Path::new("/sys/fs/cgroup/memory").join(rel);
+            // v1 reports "no limit" as a number near i64::MAX.
+            num(dir.join("memory.limit_in_bytes"))
+                .filter(|&max| max < 1 << 60)
+                .map(|max| max.saturating_sub(num(dir.join("memory.usage_in_bytes")).unwrap_or(0)))
+        } else {
+            None
+        };
+        if let Some(r) = found {
+            room = Some(room.map_or(r, |x| x.min(r)));
+        }
+    }
+    room
 }

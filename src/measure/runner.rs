@@ -58,6 +58,8 @@ pub struct Outcome {
     pub mismatches: usize,
     pub measured: usize,
     pub skipped: usize,
+    /// The sweep stopped early on Ctrl-C or SIGTERM (see [`super::interrupt`]).
+    pub interrupted: bool,
 }
 
 /// Receives progress between samples (never inside the timed region).
@@ -102,6 +104,65 @@ struct Active<'a> {
     output: Option<OutputFacts>,
     stop: Option<StopReason>,
     error: Option<String>,
+    /// Its point has been written.
+    written: bool,
+}
+
+/// What the comparison of one size is made from: (design, samples, median, output).
+type MeasuredRow = (String, Vec<f64>, f64, Option<OutputFacts>);
+
+/// Write the point of a design whose sampling ended, the moment it ends, and update what
+/// later sizes learn from it. A design interrupted before its first sample leaves no point.
+fn finish_point(
+    plan: &Plan,
+    rows: u64,
+    a: &mut Active,
+    st: &mut DesignState,
+    out: &mut RunWriter,
+    outcome: &mut Outcome,
+    measured: &mut Vec<MeasuredRow>,
+    probe_runs: &[(f64, f64)],
+) -> Result<(), RunError> {
+    if a.written {
+        return Ok(());
+    }
+    a.written = true;
+    let b = plan.budget;
+    let point = |m: Option<Measured>, s: Option<SkipInfo>| {
+        Record::Point(PointRecord { workload: plan.name.clone(), design: a.design.name.clone(), rows, measured: m, skipped: s, setup_ns: a.setup_ns })
+    };
+    if let Some(err) = &a.error {
+        let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: err.clone() };
+        st.blocked = Some(SkipInfo { detail: format!("failed at {rows} rows: {err}"), ..info.clone() });
+        out.write(point(None, Some(info)))?;
+        outcome.failures += 1;
+        return Ok(());
+    }
+    if a.samples.is_empty() {
+        return Ok(());
+    }
+    let m = summarize(a, probe_runs);
+    st.history.push((rows, m.median_ns));
+    st.peaks.push((rows, m.alloc.peak_live as f64));
+    if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
+        st.blocked = Some(SkipInfo {
+            reason: SkipReason::SmallerSizeOverBudget,
+            predicted_ns: None,
+            predicted_bytes: None,
+            detail: format!(
+                "at {} rows the {} point budget allowed only {} of {} samples (one run {})",
+                crate::spec::units::rows_label(rows),
+                crate::present::units::time_ns(b.per_point_s * 1e9),
+                m.samples_ns.len(),
+                b.min_samples,
+                crate::present::units::time_ns(m.median_ns)
+            ),
+        });
+    }
+    measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
+    out.write(point(Some(m), None))?;
+    outcome.measured += 1;
+    Ok(())
 }
 
 /// Run one design's steps on one input (with no workload tables: for tests of built-in steps).
@@ -109,13 +170,32 @@ pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
     run_design_in(design, input, &RunContext::default())
 }
 
-/// Run one design's steps on one input, with the size's tables in `ctx`.
+/// Run one design's steps on one input, with the size's tables in `ctx`. A step that
+/// panics (a capacity overflow on an absurd parameter, say) becomes an error of this run,
+/// so the sweep goes on.
 pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Result<Value, String> {
-    let mut v = input;
-    for s in &design.steps {
-        v = s.runner.run_in(v, ctx).map_err(|e| e.to_string())?;
-    }
-    Ok(v)
+    caught(|| {
+        let mut v = input;
+        for s in &design.steps {
+            v = s.runner.run_in(v, ctx).map_err(|e| e.to_string())?;
+        }
+        Ok(v)
+    })
+}
+
+/// Run one (set-up) step, a panic becoming an error.
+fn run_step(s: &crate::plan::StepPlan, input: Value, ctx: &RunContext) -> Result<Value, String> {
+    caught(|| s.runner.run_in(input, ctx).map_err(|e| e.to_string()))
+}
+
+/// Run step work with a panic turned into an error that names it.
+fn caught(work: impl FnOnce() -> Result<Value, String>) -> Result<Value, String> {
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(work)).unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+}
+
+/// The message of a caught panic.
+pub fn panic_text(p: &(dyn std::any::Any + Send)) -> String {
+    p.downcast_ref::<&str>().map(|s| s.to_string()).or_else(|| p.downcast_ref::<String>().cloned()).unwrap_or_else(|| "no message".into())
 }
 
 /// The input for one run: shared when steps only read it, a private deep copy otherwise.
@@ -222,11 +302,16 @@ pub fn sweep(
     let started = Instant::now();
     let mut outcome = Outcome::default();
     let probe = super::machine::DriftProbe::new();
+    super::watchdog::names(&plan.name, plan.designs.iter().map(|d| d.name.clone()).collect());
     warmup_lap(plan);
     let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
     let min_sample_ns = clock.min_sample_ns();
 
     for &rows in &plan.sizes {
+        if super::interrupt::requested() {
+            outcome.interrupted = true;
+            break;
+        }
         let skip_point = |out: &mut RunWriter, design: &str, info: SkipInfo| {
             out.write(Record::Point(PointRecord {
                 workload: plan.name.clone(),
@@ -241,8 +326,11 @@ pub fn sweep(
         // Memory and disk: refuse each design whose estimate will not fit.
         let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
         let est = memory::estimate(plan, rows, &peaks);
-        let avail = available_memory();
-        let mut refused = super::inputs::refusals(plan, rows, &peaks, avail, opts.memory_share, opts.force);
+        let limit = memory::memory_limit();
+        let avail = limit.bytes;
+        // A hard limit (ulimit, cgroup) cannot be forced past: the allocation would fail and
+        // abort the process, so such a size is refused even with --force.
+        let mut refused = super::inputs::refusals(plan, rows, &peaks, &limit, opts.memory_share, opts.force);
 
         // Which designs run at this size.
         let elapsed_run = started.elapsed().as_secs_f64();
@@ -311,8 +399,11 @@ pub fn sweep(
         let w = Window::open();
         let t0 = Instant::now();
         let engines = |e: EngineChoice| runnable.iter().any(|&i| plan.designs[i].engine == e);
-        let inputs = super::inputs::SizeInputs::prepare(plan, rows, engines(EngineChoice::Memory), engines(EngineChoice::Streaming))
-            .map_err(|message| RunError::Table { workload: plan.name.clone(), rows, message })?;
+        let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+            super::inputs::SizeInputs::prepare(plan, rows, engines(EngineChoice::Memory), engines(EngineChoice::Streaming))
+        }))
+        .unwrap_or_else(|p| Err(format!("the generator panicked: {}", panic_text(p.as_ref()))));
+        let inputs = prepared.map_err(|message| RunError::Table { workload: plan.name.clone(), rows, message })?;
         let df: DataFrame = inputs.first();
         let generate_ns = t0.elapsed().as_nanos() as f64;
         let gen_alloc = w.close();
@@ -349,7 +440,8 @@ pub fn sweep(
                 let mut feed = raw;
                 let setup_started = Instant::now();
                 for s in d.setup.iter().filter(|_| error.is_none()) {
-                    match s.runner.run_in(feed.clone(), &ctx) {
+                    let _watch = super::watchdog::arm(i, rows, "a set-up step", super::watchdog::limit_for(b.per_point_s));
+                    match run_step(s, feed.clone(), &ctx) {
                         Ok(v) => feed = v,
                         Err(e) => {
                             error = Some(format!("set-up step {}: {e}", s.label));
@@ -374,15 +466,23 @@ pub fn sweep(
                     output: None,
                     stop: None,
                     error,
+                    written: false,
                 }
             })
             .collect();
+        let mut measured: Vec<MeasuredRow> = Vec::new();
 
         // First run of each design: learn its speed, choose the batch, record its output.
         for a in active.iter_mut().filter(|a| a.error.is_none()) {
+            if super::interrupt::requested() {
+                break;
+            }
             progress.point(&plan.name, rows, &a.design.name, 0);
             let t = Instant::now();
-            match sample(a) {
+            let watch = super::watchdog::arm(a.index, rows, "the first run", super::watchdog::limit_for(b.per_point_s));
+            let first = sample(a);
+            drop(watch);
+            match first {
                 Ok((ns, cpu, alloc, out_v)) => {
                     a.output = out_v.as_ref().map(OutputFacts::of);
                     a.warmup_runs = 1;
@@ -404,11 +504,14 @@ pub fn sweep(
         // Further warm-up, in whole batches, while it stays cheap.
         for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
             for _ in 1..b.warmup {
-                if a.spent_s > b.per_point_s * 0.2 {
+                if a.spent_s > b.per_point_s * 0.2 || super::interrupt::requested() {
                     break;
                 }
                 let t = Instant::now();
-                if let Err(e) = sample(a) {
+                let watch = super::watchdog::arm(a.index, rows, "a warm-up run", super::watchdog::limit_for(b.per_point_s));
+                let warm = sample(a);
+                drop(watch);
+                if let Err(e) = warm {
                     a.error = Some(e);
                     break;
                 }
@@ -419,19 +522,33 @@ pub fn sweep(
 
         // Interleaved sampling, with the drift probe timed once per round.
         let mut probe_runs: Vec<(f64, f64)> = Vec::new();
+        // A design's point is written as soon as its sampling ends.
+        for a in active.iter_mut().filter(|a| a.error.is_some() || a.stop.is_some()) {
+            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+            progress.point_done();
+        }
         loop {
             let mut any = false;
+            if super::interrupt::requested() {
+                outcome.interrupted = true;
+                break;
+            }
             if active.iter().any(|a| a.error.is_none() && a.stop.is_none()) {
                 probe_runs.push(probe.time_with_cpu());
             }
             for a in active.iter_mut().filter(|a| a.error.is_none() && a.stop.is_none()) {
+                if super::interrupt::requested() {
+                    break;
+                }
                 any = true;
                 let t = Instant::now();
+                let watch = super::watchdog::arm(a.index, rows, "a sample", super::watchdog::limit_for(b.per_point_s));
                 let sw0 = super::hygiene::involuntary_switches();
-                let sampled = sample(a);
+                let taken = sample(a);
                 a.switches.0 += super::hygiene::involuntary_switches().saturating_sub(sw0);
                 a.switches.1 += t.elapsed().as_secs_f64();
-                match sampled {
+                drop(watch);
+                match taken {
                     Ok((ns, cpu, alloc, _)) => {
                         a.samples.push(ns);
                         a.cpu.push(cpu);
@@ -439,64 +556,34 @@ pub fn sweep(
                     }
                     Err(e) => {
                         a.error = Some(e);
+                        finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+                        progress.point_done();
                         continue;
                     }
                 }
                 a.spent_s += t.elapsed().as_secs_f64();
                 a.stop = decide(a, &b, started.elapsed().as_secs_f64());
                 progress.point(&plan.name, rows, &a.design.name, a.samples.len());
+                if a.stop.is_some() {
+                    finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+                    progress.point_done();
+                }
             }
             if !any {
                 break;
             }
         }
 
-        // Points.
-        let mut measured: Vec<(String, Vec<f64>, f64, Option<OutputFacts>)> = Vec::new();
-        for a in &active {
-            let st = &mut states[a.index];
+        // Designs still sampling when a stop was asked for keep what they measured.
+        for a in active.iter_mut().filter(|a| !a.written) {
+            if a.error.is_none() && a.stop.is_none() {
+                a.stop = Some(StopReason::Interrupted);
+            }
+            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
             progress.point_done();
-            if let Some(err) = &a.error {
-                let info = SkipInfo {
-                    reason: SkipReason::Failed,
-                    predicted_ns: None,
-                    predicted_bytes: None,
-                    detail: err.clone(),
-                };
-                st.blocked = Some(SkipInfo { detail: format!("failed at {rows} rows: {err}"), ..info.clone() });
-                skip_point(out, &a.design.name, info)?;
-                outcome.failures += 1;
-                continue;
-            }
-            let m = summarize(a, &probe_runs);
-            st.history.push((rows, m.median_ns));
-            st.peaks.push((rows, m.alloc.peak_live as f64));
-            if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
-                st.blocked = Some(SkipInfo {
-                    reason: SkipReason::SmallerSizeOverBudget,
-                    predicted_ns: None,
-                    predicted_bytes: None,
-                    detail: format!(
-                        "at {} rows the {} point budget allowed only {} of {} samples (one run {})",
-                        crate::spec::units::rows_label(rows),
-                        crate::present::units::time_ns(b.per_point_s * 1e9),
-                        m.samples_ns.len(),
-                        b.min_samples,
-                        crate::present::units::time_ns(m.median_ns)
-                    ),
-                });
-            }
-            measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
-            out.write(Record::Point(PointRecord {
-                workload: plan.name.clone(),
-                design: a.design.name.clone(),
-                rows,
-                measured: Some(m),
-                skipped: None,
-                setup_ns: a.setup_ns,
-            }))?;
-            outcome.measured += 1;
         }
+        // The comparison keeps the designs' order, whatever order their sampling ended in.
+        measured.sort_by_key(|m| plan.designs.iter().position(|d| d.name == m.0));
 
         // Side by side.
         let mut cmp = compare(plan, rows, &measured, opts.seed);
@@ -508,6 +595,10 @@ pub fn sweep(
             outcome.mismatches += 1;
         }
         out.write(Record::Comparison(cmp))?;
+        if super::interrupt::requested() {
+            outcome.interrupted = true;
+            break;
+        }
     }
     Ok(outcome)
 }
@@ -526,21 +617,31 @@ fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -
 /// Run every design once on a small table before anything is timed, so the first measured
 /// size does not pay for the process's cold start (thread pool, lazily built tables, fresh
 /// heap pages). Failures here are ignored: the real run reports them.
+/// The lap obeys the point budget: once it has taken that long, the remaining designs are
+/// not warmed up (their first measured run warms them instead).
 fn warmup_lap(plan: &Plan) {
     let rows = plan.sizes.first().copied().unwrap_or(1).min(1000);
     let streams = plan.designs.iter().any(|d| d.engine == EngineChoice::Streaming);
-    let Ok(inputs) = super::inputs::SizeInputs::prepare(plan, rows, true, streams) else { return };
+    let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| super::inputs::SizeInputs::prepare(plan, rows, true, streams)));
+    let Ok(Ok(inputs)) = prepared else { return };
     let df = inputs.first();
     let records = Records::from_frame(&df).ok().map(Arc::new);
-    for d in &plan.designs {
+    let started = Instant::now();
+    for (i, d) in plan.designs.iter().enumerate() {
+        if started.elapsed().as_secs_f64() > plan.budget.per_point_s || super::interrupt::requested() {
+            break;
+        }
         let Ok(ctx) = inputs.context(d.engine) else { continue };
         let mut v = design_feed(d, &df, &records);
         for s in &d.setup {
-            match s.runner.run_in(v.clone(), &ctx) {
+            match run_step(s, v.clone(), &ctx) {
                 Ok(x) => v = x,
                 Err(_) => break,
             }
         }
+        // A runaway here is recorded at the first size, which it keeps from being measured.
+        let first = plan.sizes.first().copied().unwrap_or(1);
+        let _watch = super::watchdog::arm(i, first, "the untimed warm-up lap (one run on at most 1000 rows)", super::watchdog::limit_for(plan.budget.per_point_s));
         let _ = run_design_in(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)), &ctx);
     }
 }

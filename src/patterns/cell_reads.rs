@@ -18,8 +18,8 @@ const VIA: &[&str] = &["table_cell", "table_row", "typed_get", "slice"];
 /// The name of the family's own value: a column copied into a plain vector.
 pub const PLAIN_VECTOR: &str = "plain vector";
 
-const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the numeric column to read" };
-const READS: ParamDef = ParamDef { name: "reads", kind: ParamKind::Count { min: 1 }, default: "10000", doc: "cells read per run" };
+const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the numeric column to read" };
+const READS: ParamDef = ParamDef { name: "reads", kind: ParamKind::count(1, 10_000_000), default: "10000", doc: "cells read per run" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[

@@ -24,7 +24,7 @@ pub const STEPS: &[StepDef] = &[
         summary: "split every column into `pieces` chunks, like a table appended from daily loads and never consolidated",
         cost_note: "Slices share the original buffers, so this allocates only chunk bookkeeping (linear \
 in pieces, not rows). Meant for `setup:`: it gives the fragmented starting point other steps pay for.",
-        params: &[ParamDef { name: "pieces", kind: ParamKind::Count { min: 1 }, default: "64", doc: "chunks per column" }],
+        params: &[ParamDef { name: "pieces", kind: ParamKind::per_rows(1, 1_000_000).costing(256.0, 0.0), default: "64", doc: "chunks per column" }],
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 1.0,
@@ -58,8 +58,8 @@ contiguous; after pays one read of the final table. dtype: f32 changes each new 
 after it is made, one more pass and a second buffer per column. Time and bytes grow linearly with \
 rows in every case.",
         params: &[
-            ParamDef { name: "source", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the numeric column the new columns derive from" },
-            ParamDef { name: "columns", kind: ParamKind::Count { min: 1 }, default: "8", doc: "how many derived columns to add" },
+            ParamDef { name: "source", kind: ParamKind::position(), default: "0", doc: "position of the numeric column the new columns derive from" },
+            ParamDef { name: "columns", kind: ParamKind::count(1, 10_000).costing(64.0, 8.0), default: "8", doc: "how many derived columns to add" },
             ParamDef { name: "how", kind: ParamKind::Choice(HOW), default: "one_at_a_time", doc: "add each column as it is made, or build them all and add them in one go" },
             ParamDef {
                 name: "reads",

@@ -15,13 +15,13 @@ use polars::prelude::*;
 const HOW: &[&str] = &["function", "arithmetic"];
 const DECIMALS: ParamDef = ParamDef {
     name: "decimals",
-    kind: ParamKind::Count { min: 0 },
+    kind: ParamKind::count(0, 15),
     default: "6",
     doc: "round the total to this many decimals (half to even), so designs that add in another order agree",
 };
 const RANGE: &[ParamDef] = &[
-    ParamDef { name: "first", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the first column summed (0 = first)" },
-    ParamDef { name: "count", kind: ParamKind::Count { min: 1 }, default: "2", doc: "how many consecutive columns are summed" },
+    ParamDef { name: "first", kind: ParamKind::position(), default: "0", doc: "position of the first column summed (0 = first)" },
+    ParamDef { name: "count", kind: ParamKind::count(1, super::MAX_POSITION), default: "2", doc: "how many consecutive columns are summed" },
 ];
 
 /// Name of the output column of every reduction here.

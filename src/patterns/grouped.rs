@@ -17,8 +17,8 @@ const TOTALS: &[&str] = &["native", "per_group_fn", "partitions"];
 const SHARES: &[&str] = &["window", "join_back", "per_group_fn", "partitions"];
 const ROW: &str = "__row";
 
-const BY: ParamDef = ParamDef { name: "by", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the group column" };
-const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::Count { min: 0 }, default: "1", doc: "position of the integer value column" };
+const BY: ParamDef = ParamDef { name: "by", kind: ParamKind::position(), default: "0", doc: "position of the group column" };
+const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::position(), default: "1", doc: "position of the integer value column" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[
@@ -28,8 +28,8 @@ pub const STEPS: &[StepDef] = &[
         cost_note: "One pass and one new column of n integers: linear in rows. Meant for `setup:`; on a key \
 column (a permutation of 0..n) every group gets about `rows_per_group` rows.",
         params: &[
-            ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the integer column to turn into a group number" },
-            ParamDef { name: "rows_per_group", kind: ParamKind::Count { min: 1 }, default: "16", doc: "rows per group on average" },
+            ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the integer column to turn into a group number" },
+            ParamDef { name: "rows_per_group", kind: ParamKind::per_rows(1, 10_000_000_000), default: "16", doc: "rows per group on average" },
         ],
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,

@@ -17,7 +17,7 @@ use polars::prelude::*;
 use polars::series::IsSorted;
 
 const COLUMN: ParamDef =
-    ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the key column (0 = first)" };
+    ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the key column (0 = first)" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[

@@ -21,11 +21,11 @@ use std::sync::Arc;
 pub const KEY_INDEX: &str = "key index";
 pub const PAIR_INDEX: &str = "pair index";
 
-const KEY: ParamDef = ParamDef { name: "key", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the integer key column" };
-const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::Count { min: 0 }, default: "1", doc: "position of the column returned with each match" };
-const PROBES: ParamDef = ParamDef { name: "probes", kind: ParamKind::Count { min: 1 }, default: "1000", doc: "wanted keys per run" };
-const FIRST: ParamDef = ParamDef { name: "first", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the first-level integer key column" };
-const SECOND: ParamDef = ParamDef { name: "second", kind: ParamKind::Count { min: 0 }, default: "1", doc: "position of the second-level integer key column" };
+const KEY: ParamDef = ParamDef { name: "key", kind: ParamKind::position(), default: "0", doc: "position of the integer key column" };
+const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::position(), default: "1", doc: "position of the column returned with each match" };
+const PROBES: ParamDef = ParamDef { name: "probes", kind: ParamKind::count(1, 1_000_000).costing(48.0, 0.0), default: "1000", doc: "wanted keys per run" };
+const FIRST: ParamDef = ParamDef { name: "first", kind: ParamKind::position(), default: "0", doc: "position of the first-level integer key column" };
+const SECOND: ParamDef = ParamDef { name: "second", kind: ParamKind::position(), default: "1", doc: "position of the second-level integer key column" };
 const LEVELS: &[&str] = &["full", "prefix"];
 
 /// The steps of this family.
@@ -35,7 +35,7 @@ pub const STEPS: &[StepDef] = &[
         summary: "check that a column is sorted ascending (no nulls) and set its sorted flag",
         cost_note: "One pass to verify the order, no copy of the values (the flag lives in the column's \
 metadata): linear in rows. Meant for `setup:`, so `lookup_sorted` can trust the flag.",
-        params: &[ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the column" }],
+        params: &[ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the column" }],
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 1.0,

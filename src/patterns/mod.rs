@@ -168,11 +168,40 @@ pub trait Step: Send + Sync {
     }
 }
 
+/// Largest column position a step parameter may name (tables have at most
+/// [`crate::spec::validate::MAX_COLUMNS`] columns, and steps add a bounded number).
+pub const MAX_POSITION: u64 = 65_536;
+
+/// The upper bound of a whole-number parameter.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Max {
+    /// At most this value.
+    Fixed(u64),
+    /// At most the table's rows (the largest size of the sweep), and never above this value.
+    Rows(u64),
+}
+
+/// What a whole-number parameter makes a step build, for the memory estimate: each unit of
+/// the parameter costs `bytes` plus `row_bytes` per row of the table.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Cost {
+    pub bytes: f64,
+    pub row_bytes: f64,
+}
+
+impl Cost {
+    pub const NONE: Cost = Cost { bytes: 0.0, row_bytes: 0.0 };
+    /// Bytes a parameter of value `n` makes a step hold at `rows` rows.
+    pub fn at(&self, n: u64, rows: u64) -> f64 {
+        n as f64 * (self.bytes + self.row_bytes * rows as f64)
+    }
+}
+
 /// The type of a step parameter, used to check specs and to document steps.
 #[derive(Debug, Clone, Copy)]
 pub enum ParamKind {
-    /// A whole number at least `min`.
-    Count { min: u64 },
+    /// A whole number from `min` to `max`; `cost` says what each unit makes the step build.
+    Count { min: u64, max: Max, cost: Cost },
     /// One of a fixed set of words.
     Choice(&'static [&'static str]),
     /// A number between `min` and `max`.
@@ -184,9 +213,32 @@ pub enum ParamKind {
 }
 
 impl ParamKind {
+    /// A column position (0 = first).
+    pub const fn position() -> ParamKind {
+        ParamKind::Count { min: 0, max: Max::Fixed(MAX_POSITION), cost: Cost::NONE }
+    }
+    /// A whole number from `min` to `max` that builds nothing.
+    pub const fn count(min: u64, max: u64) -> ParamKind {
+        ParamKind::Count { min, max: Max::Fixed(max), cost: Cost::NONE }
+    }
+    /// A whole number from `min` to the table's rows (and never above `max`).
+    pub const fn per_rows(min: u64, max: u64) -> ParamKind {
+        ParamKind::Count { min, max: Max::Rows(max), cost: Cost::NONE }
+    }
+    /// The same bound, with what each unit makes the step build.
+    pub const fn costing(self, bytes: f64, row_bytes: f64) -> ParamKind {
+        match self {
+            ParamKind::Count { min, max, .. } => ParamKind::Count { min, max, cost: Cost { bytes, row_bytes } },
+            other => other,
+        }
+    }
+
     pub fn describe(&self) -> String {
         match self {
-            ParamKind::Count { min } => format!("a whole number ≥ {min}"),
+            ParamKind::Count { min, max: Max::Fixed(max), .. } => format!("a whole number from {min} to {max}"),
+            ParamKind::Count { min, max: Max::Rows(max), .. } => {
+                format!("a whole number from {min} to the table's rows (at most {max})")
+            }
             ParamKind::Choice(c) => format!("one of {}", c.join(", ")),
             ParamKind::Number { min, max } => format!("a number from {min} to {max}"),
             ParamKind::Flag => "true or false".to_string(),

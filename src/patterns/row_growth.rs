@@ -23,7 +23,7 @@ quadratic in time and in bytes allocated. With consolidate: end, appends stay ch
 copy at the end merges the chunks; with never, the result keeps one chunk per append and every \
 later read pays for the fragmentation.",
         params: &[
-            ParamDef { name: "batch", kind: ParamKind::Count { min: 1 }, default: "1", doc: "records per append" },
+            ParamDef { name: "batch", kind: ParamKind::per_rows(1, 10_000_000_000), default: "1", doc: "records per append" },
             ParamDef {
                 name: "consolidate",
                 kind: ParamKind::Choice(CONSOLIDATE),
@@ -46,7 +46,7 @@ buffers. Numeric and boolean buffers that are not shared grow in place (amortize
 chunk); text columns are extended by adding the batch as a new chunk (polars 0.55), which is also \
 linear but fragments storage like an append without consolidation. The output's chunk count shows \
 it.",
-        params: &[ParamDef { name: "batch", kind: ParamKind::Count { min: 1 }, default: "1", doc: "records per extend" }],
+        params: &[ParamDef { name: "batch", kind: ParamKind::per_rows(1, 10_000_000_000), default: "1", doc: "records per extend" }],
         takes: ValueKind::Records,
         gives: ValueKind::Frame,
         memory_factor: 3.0,
@@ -65,7 +65,7 @@ rehearsing that a regression gate catches one (a realistic 10-20% slowdown, or a
         params: &[
             ParamDef {
                 name: "extra_passes",
-                kind: ParamKind::Count { min: 0 },
+                kind: ParamKind::count(0, 100),
                 default: "0",
                 doc: "test knob: build the table this many extra times (slows the design by that factor + 1)",
             },

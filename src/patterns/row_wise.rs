@@ -18,9 +18,9 @@ use polars::prelude::*;
 const ACCESS: &[&str] = &["row", "row_reused", "typed"];
 const OUT: &str = "payout";
 
-const A: ParamDef = ParamDef { name: "a", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the first integer column (gross)" };
-const B: ParamDef = ParamDef { name: "b", kind: ParamKind::Count { min: 0 }, default: "1", doc: "position of the integer column subtracted (tare)" };
-const FLAG: ParamDef = ParamDef { name: "flag", kind: ParamKind::Count { min: 0 }, default: "2", doc: "position of the boolean column that raises the rate" };
+const A: ParamDef = ParamDef { name: "a", kind: ParamKind::position(), default: "0", doc: "position of the first integer column (gross)" };
+const B: ParamDef = ParamDef { name: "b", kind: ParamKind::position(), default: "1", doc: "position of the integer column subtracted (tare)" };
+const FLAG: ParamDef = ParamDef { name: "flag", kind: ParamKind::position(), default: "2", doc: "position of the boolean column that raises the rate" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[

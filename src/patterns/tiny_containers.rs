@@ -17,7 +17,7 @@ const CONTAINERS: &[&str] = &["series", "table"];
 const SEP: ParamDef =
     ParamDef { name: "sep", kind: ParamKind::Choice(SEPARATORS), default: "/", doc: "the separator between parts" };
 const COLUMN: ParamDef =
-    ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the text column (0 = first)" };
+    ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the text column (0 = first)" };
 /// Name of the output column.
 pub const PARTS: &str = "parts";
 /// Name of the label column `join_text` makes.
@@ -31,8 +31,8 @@ pub const STEPS: &[StepDef] = &[
         cost_note: "Casts each chosen column to text and concatenates them row by row into one new \
 text column: linear time and bytes (the label's characters). Usually set-up for the split steps.",
         params: &[
-            ParamDef { name: "first", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the first column joined" },
-            ParamDef { name: "count", kind: ParamKind::Count { min: 1 }, default: "2", doc: "how many consecutive columns are joined" },
+            ParamDef { name: "first", kind: ParamKind::position(), default: "0", doc: "position of the first column joined" },
+            ParamDef { name: "count", kind: ParamKind::count(1, super::MAX_POSITION), default: "2", doc: "how many consecutive columns are joined" },
             SEP,
         ],
         takes: ValueKind::Frame,

@@ -18,7 +18,7 @@ use std::sync::Arc;
 
 const DECLARED: &[&str] = &["float", "int", "text"];
 const COLUMN: ParamDef =
-    ParamDef { name: "column", kind: ParamKind::Count { min: 0 }, default: "0", doc: "position of the column (0 = first)" };
+    ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the column (0 = first)" };
 const DECLARED_PARAM: ParamDef =
     ParamDef { name: "declared", kind: ParamKind::Choice(DECLARED), default: "float", doc: "the dtype the schema declares: Float64, Int64 or String" };
 /// The name of the value `split_into_pieces` passes to `stack_pieces`.
@@ -87,7 +87,7 @@ the dtype drifts and every later numeric operation on it fails or must parse.",
         cost_note: "Slicing is free; each re-typed piece costs one cast of its column (linear in its rows). \
 Usually set-up for `stack_pieces`.",
         params: &[
-            ParamDef { name: "parts", kind: ParamKind::Count { min: 1 }, default: "8", doc: "number of pieces" },
+            ParamDef { name: "parts", kind: ParamKind::per_rows(1, 1_000_000).costing(1024.0, 0.0), default: "8", doc: "number of pieces" },
             COLUMN,
             ParamDef { name: "retype", kind: ParamKind::Choice(&["float", "text", "none"]), default: "text", doc: "dtype of the column in the odd-numbered pieces" },
         ],

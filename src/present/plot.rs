@@ -51,8 +51,8 @@ fn ensure_font() {
 }
 
 type Res<T> = Result<T, String>;
-fn err<E: std::fmt::Debug>(e: E) -> String {
-    format!("{e:?}")
+fn err<E: std::fmt::Display>(e: E) -> String {
+    e.to_string()
 }
 
 /// Draw a marker of design `i`'s shape.
@@ -412,7 +412,8 @@ pub fn ratios<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResu
 pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Vec<(String, PathBuf)>> {
     ensure_font();
     std::fs::create_dir_all(dir).map_err(err)?;
-    let name = &w.header.workload;
+    // The workload name comes from a results file: never a path of its own.
+    let name = crate::results::writer::file_stem(&w.header.workload);
     // The size for the distribution picture: the largest with every design measured, or
     // failing that the largest with two or more.
     let all = w.header.designs.len();
@@ -428,11 +429,8 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
                 let root = SVGBackend::with_string(&mut text, SIZE).into_drawing_area();
                 $f(root)?;
             }
-            std::fs::write(&svg_path, &text).map_err(err)?;
-            {
-                let root = BitMapBackend::new(&png_path, SIZE).into_drawing_area();
-                $f(root)?;
-            }
+            write_svg(&svg_path, &text)?;
+            write_png(&png_path, SIZE, |root| $f(root))?;
             out.push(($title.to_string(), svg_path));
         }};
     }
@@ -549,17 +547,31 @@ pub fn history<DB: DrawingBackend>(
 pub fn draw_history(dir: &Path, workload: &str, runs: &[(String, &WorkloadResults)], changes: &[(usize, String, u64, bool)]) -> Res<PathBuf> {
     ensure_font();
     std::fs::create_dir_all(dir).map_err(err)?;
-    let svg_path = dir.join(format!("{workload}-history.svg"));
-    let png_path = dir.join(format!("{workload}-history.png"));
+    let stem = crate::results::writer::file_stem(workload);
+    let svg_path = dir.join(format!("{stem}-history.svg"));
+    let png_path = dir.join(format!("{stem}-history.png"));
     let mut text = String::new();
     {
         let root = SVGBackend::with_string(&mut text, (1000, 720)).into_drawing_area();
         history(root, workload, runs, changes)?;
     }
-    std::fs::write(&svg_path, &text).map_err(err)?;
-    {
-        let root = BitMapBackend::new(&png_path, (1000, 720)).into_drawing_area();
-        history(root, workload, runs, changes)?;
-    }
+    write_svg(&svg_path, &text)?;
+    write_png(&png_path, (1000, 720), |root| history(root, workload, runs, changes))?;
     Ok(svg_path)
+}
+
+/// Write an SVG by temp file and rename (never through an existing file or symlink).
+fn write_svg(path: &Path, text: &str) -> Res<()> {
+    crate::results::writer::write_atomic(path, text).map(|_| ()).map_err(|e| e.to_string())
+}
+
+/// Draw a PNG into a fresh temp file beside `path`, then rename it over `path`.
+fn write_png(path: &Path, size: (u32, u32), draw: impl FnOnce(DrawingArea<BitMapBackend<'_>, plotters::coord::Shift>) -> Res<()>) -> Res<()> {
+    let mut drawn: Res<()> = Ok(());
+    let written = crate::results::writer::replace_with(path, |tmp| {
+        drawn = draw(BitMapBackend::new(tmp, size).into_drawing_area());
+        drawn.as_ref().map(|_| ()).map_err(|e| std::io::Error::other(e.to_string()))
+    });
+    drawn?;
+    written.map(|_| ()).map_err(|e| e.to_string())
 }

@@ -91,7 +91,16 @@ pub fn csv(r: &RunResults) -> String {
     let mut s = String::from(
         "workload,design,rows,status,median_ns,ci_low_ns,ci_high_ns,p50_ns,p90_ns,p99_ns,max_ns,cpu_ns,samples,batch,alloc_bytes,alloc_count,peak_live_bytes,output_rows,output_chunks,ratio_to_fastest,stop,skip_reason,predicted_ns\r\n",
     );
-    let q = |t: &str| if t.contains([',', '"', '\n', '\r']) { format!("\"{}\"", t.replace('"', "\"\"")) } else { t.to_string() };
+    let q = |t: &str| {
+        // A cell a spreadsheet would run as a formula is prefixed with `'` (common practice
+        // against CSV formula injection).
+        let t = if t.starts_with(['=', '+', '-', '@', '\t', '\r']) { format!("'{t}") } else { t.to_string() };
+        if t.contains([',', '"', '\n', '\r']) {
+            format!("\"{}\"", t.replace('"', "\"\""))
+        } else {
+            t
+        }
+    };
     let o = |v: Option<f64>| v.map(|x| format!("{x}")).unwrap_or_default();
     for w in &r.workloads {
         let mut pts: Vec<_> = w.points.iter().collect();

@@ -240,10 +240,11 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
     if any_marks {
         let _ = writeln!(
             s,
-            "\n  sampling ended by: c {}, b {}, r {}; unmarked: {} (95% interval of the median within ±{:.0}%)",
+            "\n  sampling ended by: c {}, b {}, r {}, i {}; unmarked: {} (95% interval of the median within ±{:.0}%)",
             StopReason::SampleCap.label(),
             StopReason::PointBudget.label(),
             StopReason::RunBudget.label(),
+            StopReason::Interrupted.label(),
             StopReason::Precise.label(),
             h.budget.precision * 100.0
         );

@@ -1,5 +1,31 @@
 //! Human units for times, bytes and row counts: ns, µs, ms, s; B, KiB, MiB, GiB.
 
+/// Characters a printed name must not carry as they are: control characters (newlines,
+/// terminal escape codes) and the invisible marks that reorder or hide text (bidirectional
+/// overrides and isolates, zero-width characters, the byte-order mark).
+pub fn unprintable(ch: char) -> bool {
+    ch.is_control() || matches!(ch, '\u{200B}'..='\u{200F}' | '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}' | '\u{FEFF}')
+}
+
+/// A name read from a spec or a results file, made safe to print: [`unprintable`]
+/// characters are shown as `\n`, `\u{1b}`, `\u{202e}` and so on, so a name can neither
+/// break a line of output, drive the terminal nor reorder what is shown. Other text is
+/// unchanged.
+pub fn escaped(name: &str) -> std::borrow::Cow<'_, str> {
+    if !name.chars().any(unprintable) {
+        return std::borrow::Cow::Borrowed(name);
+    }
+    let mut out = String::with_capacity(name.len() + 8);
+    for ch in name.chars() {
+        if unprintable(ch) {
+            out.extend(ch.escape_default());
+        } else {
+            out.push(ch);
+        }
+    }
+    std::borrow::Cow::Owned(out)
+}
+
 /// `812 ns`, `4.20 µs`, `13.1 ms`, `2.05 s`, `3.4 min`.
 pub fn time_ns(ns: f64) -> String {
     if !ns.is_finite() {

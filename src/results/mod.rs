@@ -10,6 +10,7 @@
 //! schema version.
 
 pub mod reader;
+pub mod sane;
 pub mod summary;
 pub mod writer;
 
@@ -127,6 +128,8 @@ pub enum StopReason {
     PointBudget,
     /// The whole run's time budget ran out.
     RunBudget,
+    /// The sweep was interrupted (Ctrl-C or SIGTERM) while this point was being sampled.
+    Interrupted,
 }
 
 impl StopReason {
@@ -136,6 +139,7 @@ impl StopReason {
             StopReason::SampleCap => "sample cap",
             StopReason::PointBudget => "point budget",
             StopReason::RunBudget => "run budget",
+            StopReason::Interrupted => "interrupted",
         }
     }
     pub fn mark(self) -> &'static str {
@@ -144,6 +148,7 @@ impl StopReason {
             StopReason::SampleCap => "c",
             StopReason::PointBudget => "b",
             StopReason::RunBudget => "r",
+            StopReason::Interrupted => "i",
         }
     }
 }

@@ -1,5 +1,8 @@
-//! Reads a run folder back. Tolerates a damaged last line (a run killed mid-write):
-//! complete lines are kept and the damage is counted, not hidden.
+//! Reads a run folder back. Tolerates damaged lines (a run killed mid-write, a byte that is
+//! not UTF-8, a line edited by hand): every line is read on its own, good lines are kept and
+//! the damage is counted, not hidden. A record whose numbers cannot come from a measurement
+//! (a median of 1e308 ns or 1e-300 ns, zero rows) counts as damaged too, so nothing
+//! downstream fits or draws absurd values; names are stripped of control characters.
 
 use super::*;
 use std::path::Path;
@@ -83,16 +86,19 @@ impl RunResults {
     /// Read `points.jsonl` from a run folder (or the file itself).
     pub fn read(path: &Path) -> Result<RunResults, ReadError> {
         let file = if path.is_dir() { path.join("points.jsonl") } else { path.to_path_buf() };
-        let text = std::fs::read_to_string(&file)
-            .map_err(|source| ReadError::Io { path: file.display().to_string(), source })?;
+        let bytes = std::fs::read(&file).map_err(|source| ReadError::Io { path: file.display().to_string(), source })?;
         let mut out = RunResults::default();
-        for line in text.lines() {
+        for line in bytes.split(|&b| b == b'\n') {
+            let Ok(line) = std::str::from_utf8(line) else {
+                out.damaged_lines += 1;
+                continue;
+            };
             if line.trim().is_empty() {
                 continue;
             }
             match serde_json::from_str::<Record>(line) {
-                Ok(rec) => out.push(rec),
-                Err(_) => out.damaged_lines += 1,
+                Ok(rec) if super::sane::plausible(&rec) => out.push(super::sane::tidy(rec)),
+                _ => out.damaged_lines += 1,
             }
         }
         match &out.run {

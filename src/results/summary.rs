@@ -14,6 +14,9 @@ pub struct Summary {
     pub started_at: String,
     pub finished_at: Option<String>,
     pub complete: bool,
+    /// The sweep was stopped by Ctrl-C or SIGTERM: what is here is what was finished.
+    #[serde(default)]
+    pub interrupted: bool,
     pub machine: Option<MachineFingerprint>,
     pub yardstick_ns: Option<f64>,
     pub workloads: Vec<WorkloadSummary>,
@@ -79,6 +82,7 @@ impl Summary {
             started_at: run.map(|h| h.started_at.clone()).unwrap_or_default(),
             finished_at: r.end.as_ref().map(|e| e.finished_at.clone()),
             complete: r.complete(),
+            interrupted: false,
             machine: run.map(|h| h.machine.clone()),
             yardstick_ns: run.map(|h| h.yardstick.median_ns),
             workloads: r.workloads.iter().map(workload_summary).collect(),

@@ -6,6 +6,8 @@
 //! (ranges, unknown steps, steps that do not fit together) and builds the plan, locating each
 //! problem through [`locate::Locator`]. Nothing here panics on any input.
 
+pub mod guard;
+pub mod limits;
 pub mod locate;
 pub mod model;
 pub mod queries;
@@ -31,9 +33,11 @@ pub struct SpecIssue {
 
 impl fmt::Display for SpecIssue {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{}:{}:{}: {}", self.file, self.line, self.column, self.message)?;
+        // Messages quote what the file says: control characters in it are shown escaped.
+        let esc = crate::present::units::escaped;
+        write!(f, "{}:{}:{}: {}", self.file, self.line, self.column, esc(&self.message))?;
         if let Some(h) = &self.hint {
-            write!(f, " ({h})")?;
+            write!(f, " ({})", esc(h))?;
         }
         Ok(())
     }
@@ -59,16 +63,9 @@ impl std::error::Error for SpecErrors {}
 
 /// Read, check and resolve one workload file.
 pub fn load(path: &Path) -> Result<Plan, SpecErrors> {
-    let file = path.display().to_string();
-    let text = std::fs::read_to_string(path).map_err(|e| {
-        SpecErrors(vec![SpecIssue {
-            file: file.clone(),
-            line: 1,
-            column: 1,
-            message: format!("cannot read the workload file: {e}"),
-            hint: None,
-        }])
-    })?;
+    let file = crate::present::units::escaped(&path.display().to_string()).into_owned();
+    let text = guard::read_spec(path)
+        .map_err(|message| SpecErrors(vec![SpecIssue { file: file.clone(), line: 1, column: 1, message, hint: None }]))?;
     load_str(&file, &text)
 }
 
@@ -83,6 +80,9 @@ pub fn load_str(file: &str, text: &str) -> Result<Plan, SpecErrors> {
             message: "the file is empty: expected a workload (a mapping with name, table, sizes and designs)".into(),
             hint: None,
         }]));
+    }
+    if let Some((line, column, message)) = guard::nesting_problem(text) {
+        return Err(SpecErrors(vec![SpecIssue { file: file.to_string(), line, column, message, hint: None }]));
     }
     let spec: model::WorkloadSpec = serde_yaml::from_str(text).map_err(|e| SpecErrors(vec![from_serde(file, &e)]))?;
     let loc = locate::Locator::new(text);

@@ -93,7 +93,8 @@ pub struct Seconds(pub f64);
 
 pub fn parse_seconds(text: &str) -> Result<f64, String> {
     let t = text.trim();
-    let split = t.find(|c: char| c.is_ascii_alphabetic() || c == 'µ').unwrap_or(t.len());
+    // The unit is the trailing run of letters (so the `e` of `1e-3s` stays with the number).
+    let split = t.trim_end_matches(|c: char| c.is_ascii_alphabetic() || c == 'µ').len();
     let (num, unit) = t.split_at(split);
     let v: f64 = num
         .trim()

@@ -17,6 +17,7 @@ use std::collections::{BTreeMap, HashSet};
 pub const MAX_ROWS: u64 = 10_000_000_000;
 /// Largest number of sizes in one ladder.
 pub const MAX_SIZES: usize = 64;
+pub use super::limits::*;
 
 pub(super) struct Checker<'a> {
     pub(super) file: &'a str,
@@ -88,6 +89,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
     let tables = super::tables::check_tables(&mut c, spec);
     let columns = tables.first().map(|t| t.columns.clone()).unwrap_or_default();
     let sizes = check_sizes(&mut c, &spec.sizes, &root.key("sizes"));
+    let largest = sizes.last().copied().unwrap_or(MAX_ROWS);
     let target = spec.target.map(|t| t.0);
     if let Some(t) = target {
         if t == 0 || t > MAX_ROWS * 1000 {
@@ -95,7 +97,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         }
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
-    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns);
+    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns, largest);
     super::queries::check_streaming(&mut c, &tables, &designs, &root.key("designs"));
     if c.issues.is_empty() {
         // Queries are planned only when everything else is sound (they need the tables).
@@ -139,12 +141,17 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
     if table.columns.is_empty() {
         c.at(path, "expected at least one column", None);
     }
+    if table.columns.len() > MAX_COLUMNS {
+        c.at(path, format!("expected at most {MAX_COLUMNS} columns, found {}", table.columns.len()), None);
+    }
     let mut seen = HashSet::new();
     let mut out = Vec::new();
     for (i, col) in table.columns.iter().enumerate() {
         let p = path.index(i);
         if col.name.trim().is_empty() {
             c.at(&p.key("name"), "expected a column name, found an empty one", None);
+        } else if let Some(m) = name_problem(&col.name) {
+            c.at(&p.key("name"), m, None);
         } else if !seen.insert(col.name.clone()) {
             c.at(&p.key("name"), format!("column `{}` is defined twice", col.name), None);
         }
@@ -200,6 +207,13 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
         };
         if skew > 0.0 && distinct.is_none() && col.references.is_none() {
             c.at_key(&p.key("skew"), "`skew` needs `distinct` (the number of values the skew is spread over)", None);
+        }
+        if let Some(d) = distinct.filter(|&d| skew > 0.0 && d > MAX_SKEWED_DISTINCT) {
+            c.at(
+                &p.key("distinct"),
+                format!("expected at most 10^8 distinct values under `skew` (the skew table holds about 36 bytes per value), found {d}"),
+                None,
+            );
         }
         let run = col.run.unwrap_or(64);
         if run == 0 {
@@ -261,9 +275,9 @@ fn check_range(c: &mut Checker, col: &ColumnSpec, path: &YamlPath) -> RangePlan 
                 Bound::Text(_) => None,
             };
             match (num(a), num(b)) {
-                (Some(a), Some(b)) if a.is_finite() && b.is_finite() => RangePlan::Float(a, b),
+                (Some(a), Some(b)) if a.is_finite() && b.is_finite() && (b - a).is_finite() => RangePlan::Float(a, b),
                 _ => {
-                    c.at(path, "expected two finite numbers for a float range", None);
+                    c.at(path, "expected two finite numbers for a float range, whose width is finite too", None);
                     return default;
                 }
             }
@@ -350,40 +364,21 @@ fn check_sizes(c: &mut Checker, sizes: &SizeLadder, path: &YamlPath) -> Vec<u64>
 }
 
 fn check_budget(c: &mut Checker, b: &BudgetSpec, path: &YamlPath) -> Budget {
-    let pos_time = |c: &mut Checker, v: f64, key: &str| {
-        if !(v > 0.0 && v.is_finite() && v <= 86_400.0 * 7.0) {
-            c.at(&path.key(key), format!("expected a duration above zero and at most a week, found {v} s"), None);
-        }
-    };
-    pos_time(c, b.per_point.0, "per_point");
-    pos_time(c, b.whole_run.0, "whole_run");
-    if !(b.precision.0 > 0.0 && b.precision.0 <= 0.5) {
-        c.at(&path.key("precision"), format!("expected a precision above 0% and at most 50%, found {}", b.precision.0), None);
-    }
-    if b.min_samples == 0 {
-        c.at(&path.key("min_samples"), "expected at least 1 sample", None);
-    }
-    if b.max_samples < b.min_samples || b.max_samples > 100_000 {
-        c.at(
-            &path.key("max_samples"),
-            format!("expected from min_samples ({}) to 100000 samples, found {}", b.min_samples, b.max_samples),
-            None,
-        );
-    }
-    if b.warmup > 1000 {
-        c.at(&path.key("warmup"), format!("expected at most 1000 warm-up runs, found {}", b.warmup), None);
-    }
-    Budget {
+    let budget = Budget {
         per_point_s: b.per_point.0,
         whole_run_s: b.whole_run.0,
         precision: b.precision.0,
         min_samples: b.min_samples,
         max_samples: b.max_samples,
         warmup: b.warmup,
+    };
+    for (key, message) in budget_problems(&budget) {
+        c.at(&path.key(key), message, None);
     }
+    budget
 }
 
-fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan]) -> Vec<DesignPlan> {
+fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan], largest: u64) -> Vec<DesignPlan> {
     if designs.is_empty() {
         c.at(path, "expected at least one design (one is tracked on its own growth; two or more are compared)", None);
     }
@@ -393,6 +388,8 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
         let p = path.index(i);
         if d.name.trim().is_empty() {
             c.at(&p.key("name"), "expected a design name, found an empty one", None);
+        } else if let Some(m) = name_problem(&d.name) {
+            c.at(&p.key("name"), m, None);
         } else if !seen.insert(d.name.clone()) {
             c.at(&p.key("name"), format!("design `{}` is defined twice", d.name), None);
         }
@@ -411,7 +408,7 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
                     break;
                 }
                 let sp = p.key(key).index(j);
-                let Some(step) = check_step(c, raw, &sp) else {
+                let Some(step) = check_step(c, raw, &sp, largest) else {
                     // The chain cannot be judged past a step we could not read.
                     broken = true;
                     break;
@@ -497,7 +494,7 @@ fn yaml_kind(v: &Y) -> &'static str {
     }
 }
 
-fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath) -> Option<StepPlan> {
+fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64) -> Option<StepPlan> {
     let (name, params_raw): (String, Option<&Y>) = match raw {
         Y::String(s) => (s.clone(), None),
         Y::Mapping(m) if m.len() == 1 => {
@@ -559,8 +556,14 @@ fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath) -> Option<StepPlan> {
         let v = raw.unwrap_or(&default_y);
         let vp = pp.key(pd.name);
         let got = match (pd.kind, v) {
-            (ParamKind::Count { min }, Y::Number(n)) => match n.as_u64() {
-                Some(x) if x >= min => Some(ParamValue::Count(x)),
+            (ParamKind::Count { .. }, Y::Number(n)) => match n.as_u64() {
+                Some(x) => match count_problem(&pd.kind, x, largest) {
+                    None => Some(ParamValue::Count(x)),
+                    Some(m) => {
+                        c.at(&vp, format!("`{}`: {m}", pd.name), None);
+                        continue;
+                    }
+                },
                 _ => None,
             },
             (ParamKind::Number { min, max }, Y::Number(n)) => match n.as_f64() {

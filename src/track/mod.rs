@@ -2,5 +2,6 @@
 //! with a new one size by size (rank test, shift estimates with intervals). The gate itself
 //! builds on these.
 
+pub mod completeness;
 pub mod gate;
 pub mod stats;
