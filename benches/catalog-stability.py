@@ -16,13 +16,17 @@ from collections import defaultdict
 runs = sys.argv[1:]
 docs = [json.load(open(f"{r}/analysis.json")) for r in runs]
 
+RANK = ["constant", "log n", "n", "n log n", "n²", "n³"]
+
 def label(g):
+    # The class, or the pair in growth order ("n or n log n" whichever was chosen).
     if not g:
         return "-"
     c = g["class"]
     if c == "unclear":
         return f"unclear({g.get('top_slope') or 0:.2f})"
-    return c + (" or " + g["alternative"] if g.get("alternative") else "")
+    pair = sorted({c, g.get("alternative") or c}, key=lambda x: RANK.index(x) if x in RANK else 9)
+    return " or ".join(pair)
 
 verdicts = defaultdict(list)
 classes = defaultdict(list)

@@ -1,5 +1,5 @@
 //! Deterministic evidence for the single-cell-reads family: allocation counts and bytes,
-//! never time. Expectation [common practice, no source; ../shared/REFERENCES.md "Rules of
+//! never time. Expectation [common practice, no source; the shared REFERENCES.md "Rules of
 //! thumb"]: element-by-element access through a table API costs at least 10× more per
 //! element than indexing a plain array. Time is not checked here (the workload's sweep shows
 //! it); what must hold deterministically is that whole-row table access allocates on every

@@ -1,5 +1,5 @@
 //! Deterministic evidence for the column-growth family: chunk counts, dtypes and bytes
-//! allocated, never time. Expectation [common practice, no source; ../shared/REFERENCES.md
+//! allocated, never time. Expectation [common practice, no source; the shared REFERENCES.md
 //! "Rules of thumb"]: adding columns one at a time leaves storage fragmented, and the first
 //! operation that needs contiguous storage pays to consolidate it. In polars the
 //! fragmentation is per column (a derived column inherits its source's chunks), so the

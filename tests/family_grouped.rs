@@ -1,6 +1,6 @@
 //! Deterministic evidence for the grouped-work family: row counts, output equality and
 //! allocation counts, never time. Expectation [common practice, no source;
-//! ../shared/REFERENCES.md "Rules of thumb"]: a user function called once per group is much
+//! the shared REFERENCES.md "Rules of thumb"]: a user function called once per group is much
 //! slower than a native aggregate over the same groups. Checked here through its cause: the
 //! per-group designs build a small table and call a function for every group — dozens of
 //! allocations per group — while the native aggregate allocates about once per group (its

@@ -1,7 +1,7 @@
 //! Deterministic evidence for the key-lookups family: row counts, output equality and
 //! allocation bytes, never time. References [published: Cormen, Leiserson, Rivest, Stein,
 //! *Introduction to Algorithms* — binary search Θ(log n), hash-table lookup O(1) expected,
-//! scanning Θ(n); see ../shared/REFERENCES.md "Order of growth"]. What is checked here:
+//! scanning Θ(n); see the shared REFERENCES.md "Order of growth"]. What is checked here:
 //! every way of finding keys returns the same rows (several for a duplicated key, none for
 //! a missing one), a prefix index filters on the second level, and building a hash index
 //! costs bytes in proportion to the table while probing a prebuilt one does not.

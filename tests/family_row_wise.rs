@@ -1,6 +1,6 @@
 //! Deterministic evidence for the row-wise family: output equality, nulls, one value
 //! checked by hand, and allocation counts, never time. Expectation [common practice, no
-//! source; ../shared/REFERENCES.md "Rules of thumb"]: element-by-element access through a
+//! source; the shared REFERENCES.md "Rules of thumb"]: element-by-element access through a
 //! table API costs at least 10× more per element than plain array work. Checked here
 //! through its deterministic side: building a row per call allocates on every row, while the
 //! reused row, the typed loop and the expression allocate in bulk.

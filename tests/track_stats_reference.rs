@@ -1,6 +1,7 @@
 //! Reference checks for the regression gate's statistics core: every number
 //! here comes from outside this crate, and its source is named beside it.
-//! "REFERENCES.md" is framecost's shared reference notes (`REFERENCES.md`, kept beside the project; each value's source is named below), section
+//! "REFERENCES.md" is the shared reference notes kept beside the project (each value's
+//! source is also named below), section
 //! "Rank test — Mann–Whitney U (scipy 1.17.1 `scipy.stats.mannwhitneyu`)".
 
 use framecost::track::stats::{

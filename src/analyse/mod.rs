@@ -159,8 +159,8 @@ impl GrowthOut {
     /// True when `class` is the chosen class, the alternative, or between them.
     pub fn admits(&self, class: GrowthClass) -> bool {
         let Some(best) = class_of(&self.class) else { return false };
-        let top = self.alternative.as_deref().and_then(class_of).unwrap_or(best);
-        (best.rank()..=top.rank()).contains(&class.rank())
+        let alt = self.alternative.as_deref().and_then(class_of).unwrap_or(best);
+        (best.rank().min(alt.rank())..=best.rank().max(alt.rank())).contains(&class.rank())
     }
 
     /// The fitted cost at `n` (None when unclear or from an old analysis without terms).

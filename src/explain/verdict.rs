@@ -287,8 +287,10 @@ fn busy_verdict(w: &WorkloadResults, total: usize) -> Verdict {
     }
 }
 
-/// Among tied designs, the one other evidence favours: slower growth of time, then fewer
-/// allocated bytes at the size compared, then the faster median.
+/// Among tied designs, the one other evidence favours: fewer allocated bytes at the size
+/// compared (exact counts, the same in every run), then slower growth of time, then the
+/// design listed first in the workload (never the noisier median, so the named design does
+/// not change between runs of a tie).
 fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, tied: &[&str], rows: u64) -> (String, String) {
     let rank = |name: &str| {
         design(a, name)
@@ -298,14 +300,24 @@ fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, tied: &[&str], rows: u64
             .unwrap_or(usize::MAX)
     };
     let bytes = |name: &str| w.point(name, rows).and_then(|p| p.measured.as_ref()).map(|m| m.alloc.bytes).unwrap_or(u64::MAX);
-    let first = tied[0];
-    let by_growth = tied.iter().min_by_key(|n| rank(n)).copied().unwrap_or(first);
-    if rank(by_growth) < rank(first) {
+    let listed = |n: &str| w.header.designs.iter().position(|d| d.name == n).unwrap_or(usize::MAX);
+    let first = tied.iter().min_by_key(|n| listed(n)).copied().unwrap_or(tied[0]);
+    let by_bytes = tied.iter().min_by_key(|n| (bytes(n), listed(n))).copied().unwrap_or(first);
+    if bytes(by_bytes) != u64::MAX && tied.iter().any(|n| bytes(n) != u64::MAX && bytes(by_bytes) * 10 < bytes(n) * 9) {
+        let other = tied.iter().copied().filter(|n| *n != by_bytes).max_by_key(|n| bytes(n)).unwrap_or(first);
+        return (
+            by_bytes.to_string(),
+            format!(
+                "`{by_bytes}` is suggested because it allocates less ({} vs {} for `{other}` at {} rows)",
+                crate::present::units::bytes(bytes(by_bytes) as f64),
+                crate::present::units::bytes(bytes(other) as f64),
+                rows_label(rows)
+            ),
+        );
+    }
+    let by_growth = tied.iter().min_by_key(|n| (rank(n), listed(n))).copied().unwrap_or(first);
+    if rank(by_growth) < tied.iter().map(|n| rank(n)).max().unwrap_or(0) {
         return (by_growth.to_string(), format!("`{by_growth}` is suggested because its time grows more slowly, which matters more as the data grows"));
     }
-    let by_bytes = tied.iter().min_by_key(|n| bytes(n)).copied().unwrap_or(first);
-    if bytes(by_bytes) < bytes(first) && bytes(first) != u64::MAX && bytes(by_bytes) * 10 < bytes(first) * 9 {
-        return (by_bytes.to_string(), format!("`{by_bytes}` is suggested because it allocates less ({} vs {} at {} rows)", crate::present::units::bytes(bytes(by_bytes) as f64), crate::present::units::bytes(bytes(first) as f64), rows_label(rows)));
-    }
-    (first.to_string(), format!("either will do; `{first}` had the lower median, and memory or growth did not separate them"))
+    (first.to_string(), format!("either will do; neither memory nor growth separates them (`{first}` is named as the first listed)"))
 }

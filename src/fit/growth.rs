@@ -96,6 +96,13 @@ pub const MIN_POINTS: usize = 5;
 /// faster than the chosen class: the data cannot tell them apart.
 pub const ALTERNATIVE_MARGIN: f64 = 4.0;
 
+/// n and n log n (and constant and log n) are reported as a pair unless one is
+/// better than the other by this many AICc units: over the two or three decades a
+/// sweep measures they differ by a slowly growing factor, which the data
+/// outgrowing the processor's caches imitates (measured: repeated sweeps of the
+/// same workload moved their difference by 4 to 8 units).
+pub const NEIGHBOUR_MARGIN: f64 = 10.0;
+
 /// A growing class is accepted only when its leading term carries at least this
 /// share of the fitted cost at the largest size measured: a class nests the
 /// slower ones, so with noise its leading term always takes a little; a term
@@ -151,10 +158,12 @@ impl Term {
 /// "n", "n or n log n" for neighbouring classes, "n to n²" when a class between
 /// the two is plausible too.
 pub fn pair_label(best: GrowthClass, alternative: Option<GrowthClass>) -> String {
-    match alternative {
-        Some(alt) if alt.rank() == best.rank() + 1 => format!("{} or {}", best.label(), alt.label()),
-        Some(alt) => format!("{} to {}", best.label(), alt.label()),
-        None => best.label().to_string(),
+    let Some(alt) = alternative else { return best.label().to_string() };
+    let (lo, hi) = if alt.rank() < best.rank() { (alt, best) } else { (best, alt) };
+    if hi.rank() == lo.rank() + 1 {
+        format!("{} or {}", lo.label(), hi.label())
+    } else {
+        format!("{} to {}", lo.label(), hi.label())
     }
 }
 
@@ -334,8 +343,9 @@ pub struct GrowthFit {
     pub a: f64,
     /// Coefficient of the leading term in the best class (0 for constant).
     pub b: f64,
-    /// A faster-growing class the data cannot tell apart from `best`
-    /// ([`ALTERNATIVE_MARGIN`]): report "best or alternative".
+    /// A class the data cannot tell apart from `best`: a faster one within
+    /// [`ALTERNATIVE_MARGIN`], or the neighbour within [`NEIGHBOUR_MARGIN`]
+    /// (n / n log n, constant / log n). Report the two as a pair.
     pub alternative: Option<GrowthClass>,
     /// Log-log slope of the per-size medians over the largest
     /// [`SLOPE_SIZES`] sizes (the slope the classes were checked against).
@@ -512,6 +522,18 @@ pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> 
         .filter(|c| c.class.rank() > best.class.rank() && c.aicc < min_aicc + ALTERNATIVE_MARGIN)
         .max_by_key(|c| c.class.rank())
         .map(|c| c.class);
+    // Neighbours that a few decades of sizes barely separate (n and n log n, constant
+    // and log n) are reported together unless one wins decisively.
+    let alternative = alternative.or_else(|| {
+        let neighbour = match best.class {
+            GrowthClass::Constant => GrowthClass::Log,
+            GrowthClass::Log => GrowthClass::Constant,
+            GrowthClass::Linear => GrowthClass::Linearithmic,
+            GrowthClass::Linearithmic => GrowthClass::Linear,
+            _ => return None,
+        };
+        ranked.iter().find(|c| c.class == neighbour && c.aicc < min_aicc + NEIGHBOUR_MARGIN).map(|c| c.class)
+    });
     let total: f64 = ranked
         .iter()
         .map(|c| (-(c.aicc - best.aicc) / 2.0).exp())
