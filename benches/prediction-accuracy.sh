@@ -30,6 +30,7 @@ for name in sorted(os.listdir(root)):
     pts = os.path.join(root, name, "points.jsonl")
     if not os.path.isfile(pts):
         continue
+    # A run folder may hold one workload or a whole catalog: key designs by workload too.
     largest = defaultdict(int)
     for line in open(pts, errors="replace"):
         try:
@@ -37,17 +38,18 @@ for name in sorted(os.listdir(root)):
         except Exception:
             continue
         if r.get("record") == "point" and r.get("measured"):
-            largest[r["design"]] = max(largest[r["design"]], r["rows"])
+            key = (r["workload"], r["design"])
+            largest[key] = max(largest[key], r["rows"])
     by_n = defaultdict(list)
-    for d, n in largest.items():
-        by_n[n].append(d)
+    for key, n in largest.items():
+        by_n[n].append(key)
     for n, designs in sorted(by_n.items()):
         limit = n // 4
         doc = json.loads(subprocess.run([binary, "explain", os.path.join(root, name), "--fit-up-to", str(limit), "--json"],
                                         capture_output=True, text=True).stdout or "{}")
         for w in doc.get("analysis", {}).get("workloads", []):
             for d in w["designs"]:
-                if d["design"] not in designs:
+                if (w["workload"], d["design"]) not in designs:
                     continue
                 t = d.get("time") or {}
                 for h in d.get("holdout", []):
