@@ -69,9 +69,19 @@ fn reported_resolution_ns() -> f64 {
 
 /// CPU time used by the whole process so far (all threads), in ns.
 pub fn process_cpu_ns() -> u64 {
+    cpu_clock_ns(libc::CLOCK_PROCESS_CPUTIME_ID)
+}
+
+/// CPU time used by the calling thread so far, in ns.
+pub fn thread_cpu_ns() -> u64 {
+    cpu_clock_ns(libc::CLOCK_THREAD_CPUTIME_ID)
+}
+
+/// A CPU-time clock (Unix `clock_gettime`) in ns, 0 where unavailable.
+fn cpu_clock_ns(clock: libc::clockid_t) -> u64 {
     let mut ts = libc::timespec { tv_sec: 0, tv_nsec: 0 };
     // SAFETY: clock_gettime writes into the timespec we own.
-    let rc = unsafe { libc::clock_gettime(libc::CLOCK_PROCESS_CPUTIME_ID, &mut ts) };
+    let rc = unsafe { libc::clock_gettime(clock, &mut ts) };
     if rc == 0 {
         ts.tv_sec as u64 * 1_000_000_000 + ts.tv_nsec as u64
     } else {

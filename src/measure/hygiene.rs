@@ -28,17 +28,7 @@ use crate::results::Disturbance;
 /// Below this share of a core the probe was kept waiting: the machine was busy.
 pub const PROBE_SHARE_FLOOR: f64 = 0.85;
 
-/// CPU time of the calling thread (ns), 0 where unavailable.
-pub fn thread_cpu_ns() -> u64 {
-    let mut ts = libc::timespec { tv_sec: 0, tv_nsec: 0 };
-    // SAFETY: clock_gettime writes into the timespec we own.
-    let rc = unsafe { libc::clock_gettime(libc::CLOCK_THREAD_CPUTIME_ID, &mut ts) };
-    if rc == 0 {
-        ts.tv_sec as u64 * 1_000_000_000 + ts.tv_nsec as u64
-    } else {
-        0
-    }
-}
+pub use super::clock::thread_cpu_ns;
 
 /// Involuntary context switches of this process so far (Unix `getrusage`), 0 where
 /// unavailable.
