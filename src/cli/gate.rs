@@ -208,6 +208,16 @@ pub fn render(r: &GateReport) -> String {
                 g.sizes.len()
             );
         }
+        if let Some(cm) = &w.common_mode {
+            if (cm.ratio - 1.0).abs() > w.threshold {
+                let _ = writeln!(
+                    s,
+                    "  the whole workload moved ×{:.2} (median of its points; spread ×{:.2}): the environment, or a change common to every design — reported, not judged; points are judged against it",
+                    cm.ratio,
+                    cm.spread.exp()
+                );
+            }
+        }
         for m in &w.missing {
             let _ = writeln!(s, "  not compared: {} at {} rows (baseline {}, new {})", m.design, rows_label(m.rows), m.baseline, m.new);
         }
