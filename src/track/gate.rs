@@ -160,6 +160,19 @@ pub struct CommonMode {
     pub spread: f64,
 }
 
+/// Confirmation of one design's points (in size order): a regression or improvement is
+/// confirmed when a neighbouring compared size made the same call, or the design was
+/// compared at one size only. A change in the code shows at more than one size; run-to-run
+/// noise of one point rarely repeats at the next (two independent tests).
+fn confirm(points: &mut [PointGate]) {
+    let calls: Vec<Call> = points.iter().map(|p| p.call).collect();
+    for (k, p) in points.iter_mut().enumerate() {
+        let next_to = |j: Option<usize>| j.and_then(|j| calls.get(j)).is_some_and(|c| *c == p.call);
+        p.confirmed = matches!(p.call, Call::Regression | Call::Improvement)
+            && (calls.len() == 1 || next_to(k.checked_sub(1)) || next_to(Some(k + 1)));
+    }
+}
+
 /// How many robust spreads a point must stand out from its workload's common move.
 pub const COMMON_MODE_SPREADS: f64 = 3.0;
 
@@ -197,17 +210,12 @@ pub fn common_mode(wg: &mut WorkloadGate, designs: usize, threshold: f64) {
             p.call = Call::Unclear;
         }
     }
-    let mut names: Vec<String> = wg.points.iter().map(|p| p.design.clone()).collect();
-    names.dedup();
-    for d in names {
-        let idx: Vec<usize> = (0..wg.points.len()).filter(|&i| wg.points[i].design == d).collect();
-        let calls: Vec<Call> = idx.iter().map(|&i| wg.points[i].call).collect();
-        for (k, &i) in idx.iter().enumerate() {
-            let p = &mut wg.points[i];
-            let next_to = |j: Option<usize>| j.and_then(|j| calls.get(j)).is_some_and(|c| *c == p.call);
-            p.confirmed = matches!(p.call, Call::Regression | Call::Improvement)
-                && (calls.len() == 1 || next_to(k.checked_sub(1)) || next_to(Some(k + 1)));
-        }
+    // Each design's points are contiguous, in size order (as `compare` pushes them).
+    let mut start = 0;
+    while start < wg.points.len() {
+        let end = (start..wg.points.len()).find(|&i| wg.points[i].design != wg.points[start].design).unwrap_or(wg.points.len());
+        confirm(&mut wg.points[start..end]);
+        start = end;
     }
     // A time growth call needs its design's largest size to agree (see `compare`): recheck
     // it against the calls as they are now.
@@ -361,16 +369,9 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
                     confirmed: false,
                 });
             }
-            // Confirmation: the same call at a neighbouring compared size of this design. A
-            // change in the code shows at more than one size; run-to-run noise of one point
-            // rarely repeats at the next (two independent tests).
+            // Confirmation: the same call at a neighbouring compared size (see `confirm`).
             let first = wg.points.len() - common.len();
-            let calls: Vec<Call> = wg.points[first..].iter().map(|p| p.call).collect();
-            for (k, p) in wg.points[first..].iter_mut().enumerate() {
-                let next_to = |j: Option<usize>| j.and_then(|j| calls.get(j)).is_some_and(|c| *c == p.call);
-                p.confirmed = matches!(p.call, Call::Regression | Call::Improvement)
-                    && (calls.len() == 1 || next_to(k.checked_sub(1)) || next_to(Some(k + 1)));
-            }
+            confirm(&mut wg.points[first..]);
             // Growth over the sizes both runs measured.
             let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
             let bpts: Vec<(u64, &Measured)> = common.iter().map(|c| (c.0, c.1)).collect();
