@@ -60,19 +60,19 @@ fn undecided(text: String) -> Verdict {
     Verdict { kind: VerdictKind::Undecided, design: None, text, decided_at: None }
 }
 
-/// A comparison counts when two or more designs were measured and none of its points was
-/// marked as measured on a busy machine.
-fn usable<'a>(w: &'a WorkloadResults) -> (Vec<&'a ComparisonRecord>, usize) {
+/// Every comparison with two or more designs measured, by size, and those of them where
+/// no point was marked as measured on a busy machine.
+fn usable<'a>(w: &'a WorkloadResults) -> (Vec<&'a ComparisonRecord>, Vec<&'a ComparisonRecord>) {
     let mut all: Vec<&ComparisonRecord> = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).collect();
     all.sort_by_key(|c| c.rows);
-    let total = all.len();
     let clean: Vec<&ComparisonRecord> = all
-        .into_iter()
+        .iter()
+        .copied()
         .filter(|c| {
             c.ratios.iter().all(|r| w.point(&r.design, c.rows).and_then(|p| p.measured.as_ref()).is_none_or(|m| !m.is_contaminated()))
         })
         .collect();
-    (clean, total)
+    (all, clean)
 }
 
 fn design<'a>(a: &'a WorkloadAnalysis, name: &str) -> Option<&'a DesignAnalysis> {
@@ -155,12 +155,13 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
             decided_at: None,
         };
     }
-    let (cmps, total) = usable(w);
+    let (all, cmps) = usable(w);
+    let total = all.len();
     let Some(last) = cmps.last().copied() else {
         if total == 0 {
             return undecided("no verdict: no size had two designs measured; lower the sizes or raise the point budget".into());
         }
-        return busy_verdict(w, total);
+        return busy_verdict(&all);
     };
     let mut ranked = last.ratios.clone();
     ranked.sort_by(|x, y| x.ratio.total_cmp(&y.ratio));
@@ -259,9 +260,8 @@ pub const BUSY_MARGIN: f64 = 1.5;
 
 /// Every compared size was measured on a busy machine: a winner only when the same design
 /// was fastest by at least [`BUSY_MARGIN`] at the two largest sizes, else undecided.
-fn busy_verdict(w: &WorkloadResults, total: usize) -> Verdict {
-    let mut all: Vec<&ComparisonRecord> = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).collect();
-    all.sort_by_key(|c| c.rows);
+fn busy_verdict(all: &[&ComparisonRecord]) -> Verdict {
+    let total = all.len();
     let clear = |c: &ComparisonRecord| -> Option<(String, f64)> {
         let mut r = c.ratios.clone();
         r.sort_by(|x, y| x.ratio.total_cmp(&y.ratio));

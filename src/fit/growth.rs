@@ -258,11 +258,7 @@ impl GrowthClass {
     pub fn shape(self, n: f64) -> f64 {
         match self {
             GrowthClass::Constant => 0.0,
-            GrowthClass::Log => n.ln(),
-            GrowthClass::Linear => n,
-            GrowthClass::Linearithmic => n * n.ln(),
-            GrowthClass::Quadratic => n * n,
-            GrowthClass::Cubic => n * n * n,
+            _ => self.leading().at(n),
         }
     }
 
