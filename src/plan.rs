@@ -3,8 +3,9 @@
 //! only ever sees a plan.
 
 use crate::patterns::{Params, Step, StepDef};
-use crate::spec::model::{ColumnKind, EngineChoice, Feed, Order};
+use crate::spec::model::{ColumnKind, EngineChoice, Feed, InputFormat, ProgramMode};
 use std::sync::Arc;
+pub use crate::results::schema::{Budget, ColumnPlan, RangePlan};
 
 /// A workload ready to run.
 #[derive(Clone)]
@@ -34,17 +35,6 @@ pub struct Plan {
     pub gate_threshold: Option<f64>,
 }
 
-/// Limits of a sweep, resolved.
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct Budget {
-    pub per_point_s: f64,
-    pub whole_run_s: f64,
-    pub precision: f64,
-    pub min_samples: u64,
-    pub max_samples: u64,
-    pub warmup: u64,
-}
-
 /// One design, resolved.
 #[derive(Clone)]
 pub struct DesignPlan {
@@ -64,11 +54,41 @@ pub struct DesignPlan {
     /// The optimized plan of each `sql` step, as polars describes it when the query is
     /// planned against the declared (empty) tables; filled in by the query check.
     pub query_plans: Vec<String>,
+    /// Set when the design is a program of the user's (then `steps` and `setup` are empty).
+    pub program: Option<ProgramPlan>,
+}
+
+/// A program design, resolved: paths made absolute against the workload's folder.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ProgramPlan {
+    /// The argument list as written in the workload (for messages and results).
+    pub written: Vec<String>,
+    /// The argument list with relative paths that exist beside the workload made absolute.
+    pub command: Vec<String>,
+    pub mode: ProgramMode,
+    pub input: InputFormat,
+    /// Output rows are compared as a set.
+    pub any_row_order: bool,
+    pub env: Vec<(String, String)>,
+}
+
+impl ProgramPlan {
+    /// `python3 designs/x.py (worker, csv input)`
+    pub fn label(&self) -> String {
+        format!("{} ({}, {} input)", self.written.join(" "), self.mode.label(), self.input.label())
+    }
+    /// Whether the command names a file for the program's output (`{output}`).
+    pub fn writes_output(&self) -> bool {
+        self.mode == ProgramMode::Worker || self.command.iter().any(|a| a.contains("{output}"))
+    }
 }
 
 impl DesignPlan {
     /// `append_rows{batch=1, consolidate=each} → …`
     pub fn recipe(&self) -> String {
+        if let Some(p) = &self.program {
+            return format!("program: {}", p.label());
+        }
         let timed = self.steps.iter().map(|s| s.label.clone()).collect::<Vec<_>>().join(" → ");
         if self.setup.is_empty() {
             timed
@@ -79,13 +99,25 @@ impl DesignPlan {
     }
     /// The largest disk factor of its steps (0 when nothing is written).
     pub fn disk_factor(&self) -> f64 {
+        if self.program.is_some() {
+            // The table written in the program's format, and its output file.
+            return 2.0;
+        }
         self.setup.iter().chain(&self.steps).map(|s| s.def.disk_factor).fold(0.0, f64::max)
     }
     /// The largest memory factor of its steps.
     pub fn memory_factor(&self) -> f64 {
+        if self.program.is_some() {
+            // Unknown until measured: a program holds the table in its own form (Python
+            // objects take several times the columnar bytes); measured peaks take over.
+            return PROGRAM_MEMORY_FACTOR;
+        }
         self.setup.iter().chain(&self.steps).map(|s| s.def.memory_factor).fold(1.0, f64::max)
     }
 }
+
+/// Peak memory of a program design before anything is measured, as a multiple of the table.
+pub const PROGRAM_MEMORY_FACTOR: f64 = 8.0;
 
 /// One step with its parameters and its runnable form.
 #[derive(Clone)]
@@ -94,29 +126,6 @@ pub struct StepPlan {
     pub params: Params,
     pub label: String,
     pub runner: Arc<dyn Step>,
-}
-
-/// A column of the synthetic table with every default filled in.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct ColumnPlan {
-    pub name: String,
-    pub kind: ColumnKind,
-    pub nulls: f64,
-    /// Number of distinct values to draw from (None: continuous, or unique keys).
-    pub distinct: Option<u64>,
-    pub range: RangePlan,
-    pub order: Order,
-    pub run: u64,
-    pub skew: f64,
-    pub duplicates: f64,
-    pub length: (u32, u32),
-    pub true_share: f64,
-    /// `table.column` of the key this column draws its values from.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
-    pub references: Option<String>,
-    /// Share of rows whose reference has no match.
-    #[serde(default)]
-    pub unmatched: f64,
 }
 
 /// One named table of the workload.
@@ -161,15 +170,6 @@ impl TablePlan {
     pub fn bytes(&self, n: u64) -> f64 {
         self.columns.iter().map(|c| c.bytes_per_row()).sum::<f64>() * self.rows.at(n) as f64
     }
-}
-
-/// A value range, typed by column kind. Dates are days since 1970-01-01.
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
-pub enum RangePlan {
-    None,
-    Int(i64, i64),
-    Float(f64, f64),
-    Date(i32, i32),
 }
 
 impl ColumnPlan {

@@ -379,7 +379,7 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
             (fit_growth(&x, &y), slope)
         };
         let (bytes_res, bytes_exponent) = metric(&|m| m.alloc.bytes as f64);
-        let (peak_res, peak_exponent) = metric(&|m| m.alloc.peak_live as f64);
+        let (peak_res, peak_exponent) = metric(&|m| m.peak_bytes() as f64);
         let (bytes_out, peak_out) = (growth_out(&bytes_res, measured.len()).ok(), growth_out(&peak_res, measured.len()).ok());
         let bytes_fit = bytes_res.ok();
         let time_fit = time_fit.map(|t| match bounded_by_bytes(&t, bytes_fit.as_ref()) {

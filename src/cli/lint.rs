@@ -25,7 +25,13 @@ pub fn run(args: Args) -> i32 {
     let mut bad = 0;
     for f in &files {
         match crate::spec::load(f) {
-            Ok(plan) => println!("{}: ok — {} with {} designs over {} sizes", f.display(), plan.name, plan.designs.len(), plan.sizes.len()),
+            Ok(plan) => {
+                println!("{}: ok — {} with {} designs over {} sizes", f.display(), plan.name, plan.designs.len(), plan.sizes.len());
+                // Programs run with the user's permissions: say what `sweep --allow-programs` would run.
+                for c in super::sweep::program_commands(std::slice::from_ref(&plan)) {
+                    println!("  runs a program (needs sweep --allow-programs): {c}");
+                }
+            }
             Err(errs) => {
                 bad += 1;
                 eprintln!("{errs}");

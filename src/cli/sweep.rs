@@ -52,6 +52,10 @@ pub struct Args {
     /// Print only the run folder's path at the end, not the summary.
     #[arg(long)]
     pub quiet: bool,
+    /// Let designs that are programs run (they run with your permissions: read their
+    /// commands first; without this flag such a workload is refused and its commands listed).
+    #[arg(long)]
+    pub allow_programs: bool,
 }
 
 fn fail(msg: impl std::fmt::Display) -> i32 {
@@ -170,6 +174,14 @@ fn plan_lines(p: &Plan, n: u64) -> Vec<String> {
         .collect()
 }
 
+/// `workload/design: command (mode, input)` for every program design, as the user wrote it.
+pub fn program_commands(plans: &[Plan]) -> Vec<String> {
+    plans
+        .iter()
+        .flat_map(|p| p.designs.iter().filter_map(move |d| d.program.as_ref().map(|g| format!("{}/{}: {}", p.name, d.name, g.label()))))
+        .collect()
+}
+
 /// A progress bar on stderr, only when stderr is a terminal.
 struct Bar(Option<indicatif::ProgressBar>);
 
@@ -224,6 +236,15 @@ pub fn run(a: Args) -> i32 {
         if let Err(e) = adjust(p, &a) {
             return fail(e);
         }
+    }
+    // Programs run with the user's permissions: only when allowed, and never unannounced.
+    let commands = program_commands(&plans);
+    if !commands.is_empty() && !a.allow_programs && !a.plan {
+        eprintln!("framecost sweep: these workloads have designs that are programs; they would run:");
+        for c in &commands {
+            eprintln!("  {c}");
+        }
+        return fail("nothing was run: read the commands above, then add --allow-programs to run them");
     }
 
     // Memory plan: the largest size of each workload against what is free now.

@@ -160,7 +160,8 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             let per1 = m1.alloc.bytes as f64 / n1 as f64;
             let superlinear = da.bytes.as_ref().and_then(|b| class_of(&b.class)).map(|c| rank(c) >= rank(GrowthClass::Quadratic));
             let slope = da.bytes_exponent.unwrap_or(1.0);
-            if n1 >= 4 * n0 && per1 > 2.0 * per0 && (superlinear == Some(true) || (superlinear.is_none() && slope >= 1.5)) {
+            // A program has no allocation counts: no copying is claimed from zeros.
+            if m1.alloc_counted && n1 >= 4 * n0 && per1 > 2.0 * per0 && (superlinear == Some(true) || (superlinear.is_none() && slope >= 1.5)) {
                 let tb = table_bytes(n1).map(|t| format!(", {:.0}× the table's own {}", m1.alloc.bytes as f64 / t.max(1.0), bytes(t))).unwrap_or_default();
                 findings.push(f(
                     "copying",
@@ -179,11 +180,14 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             }
             // Peak live memory against the table.
             if let Some(t) = table_bytes(n1) {
-                let copies = m1.alloc.peak_live as f64 / t.max(1.0);
+                let peak = m1.peak_bytes() as f64;
+                let copies = peak / t.max(1.0);
+                // For a program: what its runs added to its resident size, as its process showed it.
+                let what = if m1.alloc_counted { "peak live memory" } else { "peak resident memory added by the runs" };
                 if copies >= 2.0 {
                     findings.push(f(
                         "peak",
-                        format!("peak live memory {} at {} rows, {:.1}× the table's size ({})", bytes(m1.alloc.peak_live as f64), rows_label(n1), copies, bytes(t)),
+                        format!("{what} {} at {} rows, {:.1}× the table's size ({})", bytes(peak), rows_label(n1), copies, bytes(t)),
                         format!("at its peak the design holds the equivalent of about {:.0} tables: memory, not time, may be the limit on the full data", copies.floor()),
                         String::new(),
                     ));
@@ -206,7 +210,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 if par >= 1.4 {
                     findings.push(f(
                         "parallel",
-                        format!("CPU time is {par:.1}× wall time at {} rows", rows_label(n1)),
+                        format!("{} is {par:.1}× wall time at {} rows", if dh.program.is_some() { "the program's CPU time" } else { "CPU time" }, rows_label(n1)),
                         "the work ran on several cores; on a busier or smaller machine it will be slower".into(),
                         String::new(),
                     ));
@@ -249,7 +253,8 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             }
             // Dtype drift: the output against the dtypes the design declares it is meant to
             // end with, else against the table's declared column kinds.
-            if let Some(o) = &m1.output {
+            // (Not for a program: the file format it writes decides its dtypes.)
+            if let Some(o) = m1.output.as_ref().filter(|_| dh.program.is_none()) {
                 let drift: Vec<String> = o
                     .dtypes
                     .iter()

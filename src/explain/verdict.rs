@@ -299,7 +299,7 @@ fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, tied: &[&str], rows: u64
             .map(|c| c.rank())
             .unwrap_or(usize::MAX)
     };
-    let bytes = |name: &str| w.point(name, rows).and_then(|p| p.measured.as_ref()).map(|m| m.alloc.bytes).unwrap_or(u64::MAX);
+    let bytes = |name: &str| w.point(name, rows).and_then(|p| p.measured.as_ref()).and_then(|m| m.counted_bytes()).unwrap_or(u64::MAX);
     let listed = |n: &str| w.header.designs.iter().position(|d| d.name == n).unwrap_or(usize::MAX);
     let first = tied.iter().min_by_key(|n| listed(n)).copied().unwrap_or(tied[0]);
     let by_bytes = tied.iter().min_by_key(|n| (bytes(n), listed(n))).copied().unwrap_or(first);

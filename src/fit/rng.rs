@@ -6,6 +6,15 @@
 //! platform, which is what makes bootstrap intervals and noisy test suites
 //! deterministic.
 
+/// SplitMix64's output function: the mixing step of the generator below, also used by the
+/// table generator's counter-based streams.
+#[inline(always)]
+pub fn mix64(mut z: u64) -> u64 {
+    z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
+    z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
+    z ^ (z >> 31)
+}
+
 /// SplitMix64 (Steele, Lea and Flood, "Fast splittable pseudorandom number
 /// generators", OOPSLA 2014): a 64-bit counter passed through a mixing
 /// function.
@@ -23,7 +32,7 @@ impl SplitMix64 {
     /// The next 64 random bits.
     pub fn next_u64(&mut self) -> u64 {
         self.state = self.state.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        crate::table::rng::mix64(self.state)
+        mix64(self.state)
     }
 
     /// Uniform on `[0, 1)` with 53 random bits.

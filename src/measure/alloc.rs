@@ -9,6 +9,7 @@
 
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::sync::atomic::{AtomicU64, Ordering::Relaxed};
+pub use crate::results::schema::AllocStats;
 
 pub struct CountingAlloc;
 
@@ -63,17 +64,6 @@ unsafe impl GlobalAlloc for CountingAlloc {
 
 #[global_allocator]
 static GLOBAL: CountingAlloc = CountingAlloc;
-
-/// What happened inside one measurement window.
-#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
-pub struct AllocStats {
-    /// Bytes requested (reallocations count their new size).
-    pub bytes: u64,
-    /// Number of allocations (and reallocations).
-    pub count: u64,
-    /// Highest live bytes above the level at the window's start.
-    pub peak_live: u64,
-}
 
 /// An open measurement window.
 pub struct Window {

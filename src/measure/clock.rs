@@ -4,25 +4,7 @@
 //! calibration decides the smallest sample the runner may take.
 
 use std::time::Instant;
-
-/// What the clock can do on this machine.
-#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct ClockInfo {
-    /// Resolution the OS reports for the monotonic clock (ns).
-    pub reported_resolution_ns: f64,
-    /// Smallest non-zero step seen between consecutive reads (ns).
-    pub observed_step_ns: f64,
-    /// Mean cost of one read of `Instant::now()` (ns).
-    pub read_cost_ns: f64,
-}
-
-impl ClockInfo {
-    /// The shortest sample (ns) for which reading the clock twice costs under 1%, and that
-    /// spans at least 1000 clock steps.
-    pub fn min_sample_ns(&self) -> f64 {
-        (2.0 * self.read_cost_ns * 100.0).max(1000.0 * self.observed_step_ns.max(self.reported_resolution_ns)).max(1000.0)
-    }
-}
+pub use crate::results::schema::ClockInfo;
 
 /// Measure the clock. Takes a few milliseconds.
 pub fn calibrate() -> ClockInfo {

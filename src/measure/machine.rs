@@ -5,25 +5,10 @@
 //! yardstick got 30% slower, a 30% slower design says more about the machine than about
 //! the design.
 
-use serde::{Deserialize, Serialize};
+
 use std::time::Instant;
 use sysinfo::{CpuRefreshKind, System};
-
-/// Who ran what, where.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct MachineFingerprint {
-    pub cpu_model: String,
-    pub logical_cores: usize,
-    pub physical_cores: Option<usize>,
-    pub memory_total_bytes: u64,
-    pub os: String,
-    pub kernel: String,
-    pub arch: String,
-    pub framecost_version: String,
-    pub polars_version: String,
-    /// Threads polars may use (POLARS_MAX_THREADS, or the logical cores).
-    pub polars_threads: usize,
-}
+pub use crate::results::schema::{MachineFingerprint, Yardstick};
 
 impl MachineFingerprint {
     pub fn collect() -> MachineFingerprint {
@@ -64,17 +49,6 @@ pub fn available_memory() -> u64 {
     let mut sys = System::new();
     sys.refresh_memory();
     sys.available_memory()
-}
-
-/// The yardstick's result.
-#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
-pub struct Yardstick {
-    /// What was timed.
-    pub kernel: String,
-    /// Median of the rounds (ns).
-    pub median_ns: f64,
-    /// Every round (ns).
-    pub rounds_ns: Vec<f64>,
 }
 
 /// The drift probe: a small fixed kernel (sum 64 Ki words, sort 16 Ki words of fixed data,

@@ -8,6 +8,7 @@ pub mod inputs;
 pub mod interrupt;
 pub mod machine;
 pub mod memory;
+pub mod program;
 pub mod runner;
 pub mod stats;
 pub mod watchdog;

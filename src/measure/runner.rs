@@ -13,6 +13,7 @@ use super::alloc::{AllocStats, Window};
 use super::clock::{process_cpu_ns, ClockInfo};
 use super::machine::available_memory;
 use super::memory;
+use super::program::{ProgramDesign, ProgramInputs};
 use super::stats::{median_ci_sorted, median_sorted, ratio_ci};
 use crate::patterns::sql::RunContext;
 use crate::patterns::{OutputFacts, Records, Value};
@@ -106,6 +107,9 @@ struct Active<'a> {
     error: Option<String>,
     /// Its point has been written.
     written: bool,
+    /// A program design: peak resident size of each sample and the size before it (bytes).
+    resident: Vec<(u64, Option<u64>)>,
+    is_program: bool,
 }
 
 /// What the comparison of one size is made from: (design, samples, median, output).
@@ -122,6 +126,7 @@ fn finish_point(
     outcome: &mut Outcome,
     measured: &mut Vec<MeasuredRow>,
     probe_runs: &[(f64, f64)],
+    programs: &[Option<ProgramDesign>],
 ) -> Result<(), RunError> {
     if a.written {
         return Ok(());
@@ -141,9 +146,9 @@ fn finish_point(
     if a.samples.is_empty() {
         return Ok(());
     }
-    let m = summarize(a, probe_runs);
+    let m = summarize(a, probe_runs, programs);
     st.history.push((rows, m.median_ns));
-    st.peaks.push((rows, m.alloc.peak_live as f64));
+    st.peaks.push((rows, m.program.map(|p| p.peak_resident_bytes as f64).unwrap_or(m.alloc.peak_live as f64)));
     if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
         st.blocked = Some(SkipInfo {
             reason: SkipReason::SmallerSizeOverBudget,
@@ -237,6 +242,42 @@ fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
     Ok((elapsed / b, cpu / b, per_run, first))
 }
 
+/// What one sample gave: ns per run, CPU ns per run, allocations per run, the first
+/// output (steps only), the resident size at its peak and before it (programs only).
+type Taken = (f64, f64, AllocStats, Option<Value>, Option<(u64, Option<u64>)>);
+
+/// Take one sample of a design: its steps in this process, or its program.
+fn take(a: &Active, programs: &mut [Option<ProgramDesign>], b: &crate::plan::Budget) -> Result<Taken, String> {
+    match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
+        Some(p) => {
+            let s = p.sample(a.batch, program_limit(b, a.spent_s))?;
+            Ok((s.ns_per_run, s.cpu_ns_per_run, AllocStats::default(), None, s.peak_resident.map(|p| (p, s.resident_before))))
+        }
+        None => sample(a).map(|(ns, cpu, alloc, out)| (ns, cpu, alloc, out, None)),
+    }
+}
+
+/// How long a program's request may take: what is left of its point budget, with a
+/// quarter and a second of grace (and at least a second).
+fn program_limit(b: &crate::plan::Budget, spent_s: f64) -> std::time::Duration {
+    std::time::Duration::from_secs_f64((b.per_point_s * 1.25 + 1.0 - spent_s).clamp(1.0, 86_400.0 * 14.0))
+}
+
+/// The facts of a design's first output as the equivalence check compares them. When
+/// programs take part, every output goes through the same CSV form first (so in-memory
+/// types do not make equal tables differ) and, when a program says its row order carries
+/// no meaning, rows are sorted.
+fn facts_for_comparison(plan: &Plan, v: &Value) -> Result<OutputFacts, String> {
+    let mut facts = OutputFacts::of(v);
+    if plan.designs.iter().any(|d| d.program.is_some()) {
+        if let Value::Frame(df) = v {
+            let any = plan.designs.iter().any(|d| d.program.as_ref().is_some_and(|p| p.any_row_order));
+            facts.fingerprint = crate::table::fingerprint(&super::program::comparable(df, any)?);
+        }
+    }
+    Ok(facts)
+}
+
 /// Predicted median time of one run at `rows` from the measured sizes: the log-log slope of
 /// the last three (at least 1, so growth is never assumed to be below linear).
 pub fn predict_ns(history: &[(u64, f64)], rows: u64) -> Option<f64> {
@@ -265,6 +306,27 @@ pub fn sweep(
     progress: &dyn Progress,
 ) -> Result<Outcome, RunError> {
     let b = plan.budget;
+    // Program designs: one work folder each in a temp folder for the whole sweep, and a
+    // worker started now (its hello says what it runs on, for the header).
+    let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {
+        Some(crate::patterns::storage::TempFolder::create().map_err(|e| RunError::Table {
+            workload: plan.name.clone(),
+            rows: 0,
+            message: format!("could not create a temp folder for the program designs: {e}"),
+        })?)
+    } else {
+        None
+    };
+    let start_limit = std::time::Duration::from_secs_f64((b.per_point_s * 1.25 + 1.0).max(30.0));
+    let mut programs: Vec<Option<ProgramDesign>> = plan
+        .designs
+        .iter()
+        .enumerate()
+        .map(|(i, d)| match (&d.program, &program_temp) {
+            (Some(p), Some(t)) => Some(ProgramDesign::new(i, &d.name, p, t.path(), start_limit)),
+            _ => None,
+        })
+        .collect();
     out.write(Record::Workload(WorkloadHeader {
         workload: plan.name.clone(),
         file: plan.file.clone(),
@@ -278,7 +340,8 @@ pub fn sweep(
         designs: plan
             .designs
             .iter()
-            .map(|d| DesignHeader {
+            .enumerate()
+            .map(|(i, d)| DesignHeader {
                 name: d.name.clone(),
                 about: d.about.clone(),
                 recipe: d.recipe(),
@@ -289,6 +352,13 @@ pub fn sweep(
                 },
                 engine: Some(d.engine.label().to_string()),
                 query_plans: d.query_plans.clone(),
+                program: d.program.as_ref().map(|p| ProgramHeader {
+                    command: p.written.clone(),
+                    mode: p.mode.label().to_string(),
+                    input: p.input.label().to_string(),
+                    any_row_order: p.any_row_order,
+                    runtime: programs.get(i).and_then(|x| x.as_ref()).and_then(|x| x.runtime.clone()),
+                }),
                 expect_time: d.expect_time.map(str::to_string),
                 expect_bytes: d.expect_bytes.map(str::to_string),
                 expect_dtypes: d.expect_dtypes.iter().map(|(c, t)| (c.clone(), t.to_string())).collect(),
@@ -427,6 +497,9 @@ pub fn sweep(
             None
         };
 
+        // Program designs read the tables from files (untimed); a worker loads its input now.
+        let formats: Vec<crate::spec::model::InputFormat> = runnable.iter().filter_map(|&i| plan.designs[i].program.as_ref().map(|p| p.input)).collect();
+        let program_files = (!formats.is_empty()).then(|| ProgramInputs::write(&inputs.tables, &formats));
         let mut active: Vec<Active> = runnable
             .iter()
             .map(|&i| {
@@ -437,6 +510,14 @@ pub fn sweep(
                     Ok(c) => (c, None),
                     Err(e) => (RunContext::default(), Some(e)),
                 };
+                if let Some(p) = programs.get_mut(i).and_then(|p| p.as_mut()) {
+                    let _watch = super::watchdog::arm(i, rows, "loading a program's input", super::watchdog::limit_for(b.per_point_s));
+                    error = match &program_files {
+                        Some(Ok(files)) => p.start_size(files, rows, program_limit(&b, 0.0)).err(),
+                        Some(Err(e)) => Some(e.clone()),
+                        None => Some("its input files were not written".into()),
+                    };
+                }
                 let mut feed = raw;
                 let setup_started = Instant::now();
                 for s in d.setup.iter().filter(|_| error.is_none()) {
@@ -467,6 +548,8 @@ pub fn sweep(
                     stop: None,
                     error,
                     written: false,
+                    resident: Vec::new(),
+                    is_program: d.program.is_some(),
                 }
             })
             .collect();
@@ -480,24 +563,41 @@ pub fn sweep(
             progress.point(&plan.name, rows, &a.design.name, 0);
             let t = Instant::now();
             let watch = super::watchdog::arm(a.index, rows, "the first run", super::watchdog::limit_for(b.per_point_s));
-            let first = sample(a);
+            let first = take(a, &mut programs, &b);
             drop(watch);
+            // The output to compare: a step's first result, or what the program saved.
+            let first = first.and_then(|(ns, cpu, alloc, out_v, peak)| {
+                let facts = match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
+                    Some(p) => match p.output(program_limit(&b, a.spent_s + ns / 1e9))? {
+                        // How the file was read back says nothing about the program's storage.
+                        Some(df) => Some(OutputFacts { chunks: 0, ..facts_for_comparison(plan, &Value::Frame(df))? }),
+                        None => None,
+                    },
+                    None => out_v.as_ref().map(|v| facts_for_comparison(plan, v)).transpose()?,
+                };
+                Ok((ns, cpu, alloc, facts, peak))
+            });
             match first {
-                Ok((ns, cpu, alloc, out_v)) => {
-                    a.output = out_v.as_ref().map(OutputFacts::of);
+                Ok((ns, cpu, alloc, facts, peak)) => {
+                    a.output = facts;
                     a.warmup_runs = 1;
                     if ns / 1e9 >= b.per_point_s {
                         // Too slow to sample further: keep this single run as the only sample.
                         a.samples.push(ns);
                         a.cpu.push(cpu);
                         a.allocs.push(alloc);
+                        a.resident.extend(peak);
                         a.warmup_runs = 0;
                         a.stop = Some(StopReason::PointBudget);
                     } else {
-                        a.batch = ((min_sample_ns / ns.max(1.0)).ceil() as u64).clamp(1, 100_000);
+                        // A worker's own clock may cost more to read than framecost's.
+                        let worker_clock = programs.get(a.index).and_then(|p| p.as_ref()).and_then(|p| p.clock_ns);
+                        let min_ns = worker_clock.map(|c| (c * 100.0).max(min_sample_ns)).unwrap_or(min_sample_ns);
+                        let cap = if a.is_program { super::program::MAX_WORKER_BATCH } else { 100_000 };
+                        a.batch = ((min_ns / ns.max(1.0)).ceil() as u64).clamp(1, cap);
                     }
                 }
-                Err(e) => a.error = Some(e),
+                Err(e) => failed(a, e),
             }
             a.spent_s += t.elapsed().as_secs_f64();
         }
@@ -509,10 +609,10 @@ pub fn sweep(
                 }
                 let t = Instant::now();
                 let watch = super::watchdog::arm(a.index, rows, "a warm-up run", super::watchdog::limit_for(b.per_point_s));
-                let warm = sample(a);
+                let warm = take(a, &mut programs, &b);
                 drop(watch);
                 if let Err(e) = warm {
-                    a.error = Some(e);
+                    failed(a, e);
                     break;
                 }
                 a.warmup_runs += a.batch;
@@ -524,7 +624,7 @@ pub fn sweep(
         let mut probe_runs: Vec<(f64, f64)> = Vec::new();
         // A design's point is written as soon as its sampling ends.
         for a in active.iter_mut().filter(|a| a.error.is_some() || a.stop.is_some()) {
-            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs, &programs)?;
             progress.point_done();
         }
         loop {
@@ -544,19 +644,20 @@ pub fn sweep(
                 let t = Instant::now();
                 let watch = super::watchdog::arm(a.index, rows, "a sample", super::watchdog::limit_for(b.per_point_s));
                 let sw0 = super::hygiene::involuntary_switches();
-                let taken = sample(a);
+                let taken = take(a, &mut programs, &b);
                 a.switches.0 += super::hygiene::involuntary_switches().saturating_sub(sw0);
                 a.switches.1 += t.elapsed().as_secs_f64();
                 drop(watch);
                 match taken {
-                    Ok((ns, cpu, alloc, _)) => {
+                    Ok((ns, cpu, alloc, _, peak)) => {
                         a.samples.push(ns);
                         a.cpu.push(cpu);
                         a.allocs.push(alloc);
+                        a.resident.extend(peak);
                     }
                     Err(e) => {
-                        a.error = Some(e);
-                        finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+                        failed(a, e);
+                        finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs, &programs)?;
                         progress.point_done();
                         continue;
                     }
@@ -565,7 +666,7 @@ pub fn sweep(
                 a.stop = decide(a, &b, started.elapsed().as_secs_f64());
                 progress.point(&plan.name, rows, &a.design.name, a.samples.len());
                 if a.stop.is_some() {
-                    finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+                    finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs, &programs)?;
                     progress.point_done();
                 }
             }
@@ -579,7 +680,7 @@ pub fn sweep(
             if a.error.is_none() && a.stop.is_none() {
                 a.stop = Some(StopReason::Interrupted);
             }
-            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs)?;
+            finish_point(plan, rows, a, &mut states[a.index], out, &mut outcome, &mut measured, &probe_runs, &programs)?;
             progress.point_done();
         }
         // The comparison keeps the designs' order, whatever order their sampling ended in.
@@ -601,6 +702,16 @@ pub fn sweep(
         }
     }
     Ok(outcome)
+}
+
+/// A sample that ended in an error: a failure of the design, or — when the sweep was
+/// interrupted while a program ran — a stop that keeps what was measured.
+fn failed(a: &mut Active, e: String) {
+    if e == super::program::INTERRUPTED && super::interrupt::requested() {
+        a.stop = Some(StopReason::Interrupted);
+    } else {
+        a.error = Some(e);
+    }
 }
 
 /// What a design's first step receives: the first table, its records, or — on the
@@ -630,6 +741,10 @@ fn warmup_lap(plan: &Plan) {
     for (i, d) in plan.designs.iter().enumerate() {
         if started.elapsed().as_secs_f64() > plan.budget.per_point_s || super::interrupt::requested() {
             break;
+        }
+        // A program warms up in its own process, on its first run at each size.
+        if d.program.is_some() {
+            continue;
         }
         let Ok(ctx) = inputs.context(d.engine) else { continue };
         let mut v = design_feed(d, &df, &records);
@@ -671,7 +786,7 @@ fn decide(a: &Active, b: &crate::plan::Budget, run_elapsed_s: f64) -> Option<Sto
     None
 }
 
-fn summarize(a: &Active, probe_runs: &[(f64, f64)]) -> Measured {
+fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDesign>]) -> Measured {
     let mut s = a.samples.clone();
     s.sort_by(f64::total_cmp);
     let med = median_sorted(&s);
@@ -700,7 +815,23 @@ fn summarize(a: &Active, probe_runs: &[(f64, f64)]) -> Measured {
         p90_ns: tail.p90,
         p99_ns: tail.p99,
         max_ns: tail.max,
-        cpu_ns: crate::measure::stats::median(&a.cpu),
+        cpu_ns: {
+            let cpu: Vec<f64> = a.cpu.iter().copied().filter(|x| x.is_finite()).collect();
+            if cpu.is_empty() { 0.0 } else { crate::measure::stats::median(&cpu) }
+        },
+        alloc_counted: !a.is_program,
+        program: a.is_program.then(|| {
+            let p = programs.get(a.index).and_then(|x| x.as_ref());
+            let cpu: Vec<f64> = a.cpu.iter().copied().filter(|x| x.is_finite()).collect();
+            // The sample whose runs added the most above what was resident before them.
+            let top = a.resident.iter().max_by_key(|(peak, before)| peak.saturating_sub(before.unwrap_or(0))).copied();
+            ProgramMeasured {
+                child_cpu_ns: (!cpu.is_empty()).then(|| crate::measure::stats::median(&cpu)),
+                peak_resident_bytes: top.map(|t| t.0).unwrap_or(0),
+                resident_before_bytes: top.and_then(|t| t.1).or_else(|| p.and_then(|p| p.resident_before)),
+                load_ns: p.and_then(|p| p.load_ns),
+            }
+        }),
         alloc: AllocStats { bytes: mid.bytes, count: mid.count, peak_live: peak },
         alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
         output: a.output.clone(),
@@ -726,17 +857,26 @@ fn compare(plan: &Plan, rows: u64, measured: &[(String, Vec<f64>, f64, Option<Ou
         None => vec![],
     };
     let mut groups: Vec<(String, Vec<String>)> = Vec::new();
+    // A program that saves no output takes no part in the check.
+    let silent: Vec<&str> = measured.iter().filter(|m| m.3.is_none()).map(|m| m.0.as_str()).collect();
     for (name, _, _, facts) in measured {
-        let key = facts.as_ref().map(|f| f.fingerprint.clone()).unwrap_or_else(|| "none".into());
+        let Some(key) = facts.as_ref().map(|f| f.fingerprint.clone()) else { continue };
         match groups.iter_mut().find(|g| g.0 == key) {
             Some(g) => g.1.push(name.clone()),
             None => groups.push((key, vec![name.clone()])),
         }
     }
-    let (status, note) = if measured.len() < 2 {
-        (EquivalenceStatus::NotChecked, "fewer than two designs measured at this size".to_string())
+    let with_output = measured.len() - silent.len();
+    let (status, note) = if with_output < 2 {
+        let why = if silent.is_empty() {
+            "fewer than two designs measured at this size".to_string()
+        } else {
+            format!("fewer than two designs with an output to compare ({} saved none)", silent.join(", "))
+        };
+        (EquivalenceStatus::NotChecked, why)
     } else if groups.len() == 1 {
-        (EquivalenceStatus::Same, format!("all {} designs produced identical contents", measured.len()))
+        let also = if silent.is_empty() { String::new() } else { format!(" ({} saved none)", silent.join(", ")) };
+        (EquivalenceStatus::Same, format!("all {with_output} designs produced identical contents{also}"))
     } else {
         let detail: Vec<String> = groups
             .iter()

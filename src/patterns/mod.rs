@@ -25,6 +25,7 @@ pub mod type_drift;
 use polars::prelude::*;
 use std::collections::BTreeMap;
 use std::sync::Arc;
+pub use crate::results::schema::OutputFacts;
 
 /// Every family of steps. Register a new family here (one line).
 pub const FAMILIES: &[(&str, &[StepDef])] = &[
@@ -353,18 +354,6 @@ pub fn all_steps() -> impl Iterator<Item = (&'static str, &'static StepDef)> {
 /// Look a step up by its YAML name.
 pub fn find_step(name: &str) -> Option<&'static StepDef> {
     all_steps().map(|(_, s)| s).find(|s| s.name == name)
-}
-
-/// The output's shape and contents, recorded for every point so designs that should agree
-/// can be checked to agree.
-#[derive(Debug, Clone, PartialEq, serde::Serialize, serde::Deserialize)]
-pub struct OutputFacts {
-    pub rows: u64,
-    /// Largest number of chunks over the columns (1 = contiguous storage).
-    pub chunks: u64,
-    pub dtypes: Vec<(String, String)>,
-    /// Hash of the contents in row order, independent of how storage is chunked.
-    pub fingerprint: String,
 }
 
 impl OutputFacts {

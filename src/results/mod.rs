@@ -11,14 +11,11 @@
 
 pub mod reader;
 pub mod sane;
+pub mod schema;
 pub mod summary;
 pub mod writer;
 
-use crate::measure::alloc::AllocStats;
-use crate::measure::clock::ClockInfo;
-use crate::measure::machine::{MachineFingerprint, Yardstick};
-use crate::patterns::OutputFacts;
-use crate::plan::{Budget, ColumnPlan};
+pub use schema::{AllocStats, Budget, ClockInfo, ColumnKind, ColumnPlan, MachineFingerprint, Order, OutputFacts, RangePlan, Yardstick};
 use serde::{Deserialize, Serialize};
 
 /// Schema name and version written into every run.
@@ -98,6 +95,27 @@ pub struct DesignHeader {
     /// The optimized plan of each `sql` step, in step order; absent in older runs.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub query_plans: Vec<String>,
+    /// Set when the design is a program of the user's: it has no allocation counts, and
+    /// its memory is its peak resident size.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub program: Option<ProgramHeader>,
+}
+
+/// How a program design was run.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct ProgramHeader {
+    /// The argument list as written in the workload.
+    pub command: Vec<String>,
+    /// `worker` or `process`.
+    pub mode: String,
+    /// The table's file format: `parquet`, `ipc` or `csv`.
+    pub input: String,
+    /// Outputs compared as sets of rows.
+    #[serde(default)]
+    pub any_row_order: bool,
+    /// What the program said about itself when it started (a worker's hello: its runtime).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub runtime: Option<String>,
 }
 
 /// The synthetic table made for one size.
@@ -234,10 +252,18 @@ pub struct Measured {
     pub max_ns: f64,
     /// Median CPU time of the whole process per run (ns); above wall time means parallel work.
     pub cpu_ns: f64,
-    /// Allocations per run inside the timed region (median over samples).
+    /// Allocations per run inside the timed region (median over samples); zero for a
+    /// program design, which has none counted (see `alloc_counted`).
     pub alloc: AllocStats,
     /// True when every sample allocated the same bytes per run.
     pub alloc_exact: bool,
+    /// False for a program design: `alloc` holds no counts and must not be read as zero
+    /// allocations (absent in older runs: true).
+    #[serde(default = "yes", skip_serializing_if = "is_true")]
+    pub alloc_counted: bool,
+    /// What was measured of a program design's process (absent for steps).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub program: Option<ProgramMeasured>,
     /// What the design produced (from its first run).
     pub output: Option<OutputFacts>,
     /// Wall time spent on this point, warm-up included (s).
@@ -251,7 +277,51 @@ pub struct Measured {
     pub bimodal: bool,
 }
 
+fn yes() -> bool {
+    true
+}
+fn is_true(b: &bool) -> bool {
+    *b
+}
+
+/// A program design's process at one point: its own CPU time and resident memory.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Serialize, Deserialize)]
+pub struct ProgramMeasured {
+    /// Median CPU time of the program per run (ns), from its own resource usage (every
+    /// thread); above the wall time means parallel work. Absent where it cannot be read.
+    pub child_cpu_ns: Option<f64>,
+    /// Largest peak resident size of the program over the samples (bytes): `VmHWM` of a
+    /// worker, reset before each sample; `ru_maxrss` of a whole process run.
+    pub peak_resident_bytes: u64,
+    /// Resident size before the timed runs (bytes): a worker's size with the input loaded;
+    /// absent in process mode, where every run starts from nothing.
+    pub resident_before_bytes: Option<u64>,
+    /// Time the worker took to load the input (ns, untimed by the sweep).
+    pub load_ns: Option<f64>,
+}
+
+impl ProgramMeasured {
+    /// Memory the timed runs added on top of what was resident before them (the whole
+    /// peak in process mode).
+    pub fn working_bytes(&self) -> u64 {
+        self.peak_resident_bytes.saturating_sub(self.resident_before_bytes.unwrap_or(0))
+    }
+}
+
 impl Measured {
+    /// Bytes allocated per run, when they were counted (steps only).
+    pub fn counted_bytes(&self) -> Option<u64> {
+        self.alloc_counted.then_some(self.alloc.bytes)
+    }
+    /// Peak memory of one run: the counted peak of live allocations for steps, the working
+    /// resident size for a program.
+    pub fn peak_bytes(&self) -> u64 {
+        match (&self.program, self.alloc_counted) {
+            (Some(p), false) => p.working_bytes(),
+            _ => self.alloc.peak_live,
+        }
+    }
+
     /// Measured while the machine was busy: such a point never decides a class or a verdict.
     pub fn is_contaminated(&self) -> bool {
         self.disturbance.as_ref().is_some_and(|d| d.busy)

@@ -4,7 +4,6 @@
 
 use super::reader::{RunResults, WorkloadResults};
 use super::*;
-use crate::measure::stats::loglog_slope;
 use serde::{Deserialize, Serialize};
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -59,6 +58,9 @@ pub struct PointSummary {
     pub samples: usize,
     pub alloc_bytes: Option<u64>,
     pub peak_live_bytes: Option<u64>,
+    /// A program design's peak resident size (it has no allocation counts).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub peak_resident_bytes: Option<u64>,
     pub output_chunks: Option<u64>,
     pub skipped: Option<SkipInfo>,
 }
@@ -68,9 +70,11 @@ pub fn exponent(points: &[(u64, f64)]) -> Option<f64> {
     if points.len() < 3 {
         return None;
     }
-    let x: Vec<f64> = points.iter().map(|p| p.0 as f64).collect();
-    let y: Vec<f64> = points.iter().map(|p| p.1).collect();
-    loglog_slope(&x, &y)
+    let (x, y): (Vec<f64>, Vec<f64>) = points.iter().filter(|p| p.0 > 0 && p.1 > 0.0).map(|p| (p.0 as f64, p.1)).unzip();
+    if x.len() < 2 {
+        return None;
+    }
+    crate::fit::growth::loglog_slope(&x, &y).ok()
 }
 
 impl Summary {
@@ -113,8 +117,9 @@ fn workload_summary(w: &WorkloadResults) -> WorkloadSummary {
                         ratio_to_fastest: ratio,
                         stop: m.map(|m| m.stop),
                         samples: m.map(|m| m.samples_ns.len()).unwrap_or(0),
-                        alloc_bytes: m.map(|m| m.alloc.bytes),
-                        peak_live_bytes: m.map(|m| m.alloc.peak_live),
+                        alloc_bytes: m.and_then(|m| m.counted_bytes()),
+                        peak_live_bytes: m.filter(|m| m.alloc_counted).map(|m| m.alloc.peak_live),
+                        peak_resident_bytes: m.and_then(|m| m.program).map(|p| p.peak_resident_bytes),
                         output_chunks: m.and_then(|m| m.output.as_ref().map(|o| o.chunks)),
                         skipped: p.skipped.clone(),
                     }

@@ -10,6 +10,7 @@ pub mod guard;
 pub mod limits;
 pub mod locate;
 pub mod model;
+pub mod programs;
 pub mod queries;
 pub mod sql_rules;
 pub mod suggest;

@@ -6,6 +6,7 @@
 
 use super::units::{RowCount, Seconds, Share};
 use serde::{Deserialize, Serialize};
+pub use crate::results::schema::{ColumnKind, Order};
 
 /// The newest workload format this build reads.
 pub const FORMAT_VERSION: u32 = 1;
@@ -87,65 +88,6 @@ pub struct TableSpec {
 pub enum TableRows {
     Count(u64),
     Text(String),
-}
-
-/// What a column holds.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum ColumnKind {
-    /// 64-bit signed integers.
-    Int,
-    /// 64-bit floats.
-    Float,
-    /// true / false.
-    Bool,
-    /// UTF-8 text drawn from a pool of distinct words.
-    Text,
-    /// Text stored as a categorical column.
-    Category,
-    /// Calendar dates.
-    Date,
-    /// A row identifier: unique integers (0..n) unless `duplicates` is set.
-    Key,
-}
-
-impl ColumnKind {
-    pub fn label(self) -> &'static str {
-        match self {
-            ColumnKind::Int => "int",
-            ColumnKind::Float => "float",
-            ColumnKind::Bool => "bool",
-            ColumnKind::Text => "text",
-            ColumnKind::Category => "category",
-            ColumnKind::Date => "date",
-            ColumnKind::Key => "key",
-        }
-    }
-
-    /// The short dtype name a column of this kind has in a table ("i64", "f64", "bool",
-    /// "str", "cat", "date"), as recorded in a point's output facts.
-    pub fn dtype_label(self) -> &'static str {
-        match self {
-            ColumnKind::Int | ColumnKind::Key => "i64",
-            ColumnKind::Float => "f64",
-            ColumnKind::Bool => "bool",
-            ColumnKind::Text => "str",
-            ColumnKind::Category => "cat",
-            ColumnKind::Date => "date",
-        }
-    }
-}
-
-/// The order of a column's values down the rows.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize, Serialize)]
-#[serde(rename_all = "lowercase")]
-pub enum Order {
-    #[default]
-    Random,
-    Sorted,
-    Reverse,
-    /// Runs of equal values (`run` rows each, default 64).
-    Clustered,
 }
 
 /// One bound of a value range: a number, or a date as `YYYY-MM-DD`.
@@ -345,10 +287,95 @@ pub struct DesignSpec {
     #[serde(default)]
     pub setup: Vec<serde_yaml::Value>,
     /// The timed steps. Each item is `step_name` or `{step_name: {param: value, ...}}`.
+    /// A design has either `steps` or a `program`.
+    #[serde(default)]
     pub steps: Vec<serde_yaml::Value>,
+    /// A program of the user's, in any language, replayed on the generated table instead of
+    /// steps (runs only with `sweep --allow-programs`).
+    #[serde(default)]
+    pub program: Option<ProgramSpec>,
     /// What the trade expects of this design, for teaching.
     #[serde(default)]
     pub expect: Option<ExpectSpec>,
+}
+
+/// A design that is a program: `{command: [python3, x.py], mode: worker, input: csv}`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct ProgramSpec {
+    /// The program and its arguments (no shell). Relative paths are relative to the
+    /// workload file. In `process` mode `{input}`, `{output}` and `{rows}` are replaced;
+    /// `{input:NAME}` names one of several tables.
+    pub command: Vec<String>,
+    /// `worker` (default): one long-lived process speaking framecost's JSON-lines protocol
+    /// (docs/programs.md); `process`: one whole run of the command per sample.
+    #[serde(default)]
+    pub mode: ProgramMode,
+    /// The file format the table is handed over in (default parquet).
+    #[serde(default)]
+    pub input: InputFormat,
+    /// `any` when the order of the program's output rows carries no meaning: outputs are
+    /// then compared as sets of rows (for every design of the workload).
+    #[serde(default)]
+    pub row_order: RowOrder,
+    /// Extra environment variables for the program.
+    #[serde(default)]
+    pub env: std::collections::BTreeMap<String, String>,
+}
+
+/// How a program design is run.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum ProgramMode {
+    #[default]
+    Worker,
+    Process,
+}
+
+impl ProgramMode {
+    pub fn label(self) -> &'static str {
+        match self {
+            ProgramMode::Worker => "worker",
+            ProgramMode::Process => "process",
+        }
+    }
+}
+
+/// A file format a table is written in for a program.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Default, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum InputFormat {
+    #[default]
+    Parquet,
+    Ipc,
+    Csv,
+}
+
+impl InputFormat {
+    pub fn label(self) -> &'static str {
+        match self {
+            InputFormat::Parquet => "parquet",
+            InputFormat::Ipc => "ipc",
+            InputFormat::Csv => "csv",
+        }
+    }
+    /// The file extension used for it.
+    pub fn extension(self) -> &'static str {
+        match self {
+            InputFormat::Parquet => "parquet",
+            InputFormat::Ipc => "arrow",
+            InputFormat::Csv => "csv",
+        }
+    }
+}
+
+/// Whether the order of output rows is part of the result.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum RowOrder {
+    #[default]
+    Kept,
+    Any,
 }
 
 /// Teaching expectations: the growth class of time and of allocated bytes.

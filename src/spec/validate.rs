@@ -97,7 +97,14 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         }
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
+    let table_names: Vec<String> = tables.iter().map(|t| t.name.clone()).collect();
     let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns, largest);
+    for (i, d) in spec.designs.iter().enumerate() {
+        if let Some(p) = &d.program {
+            let plan = super::programs::check_program(&mut c, d, p, &root.key("designs").index(i), file, &table_names);
+            designs[i].program = plan;
+        }
+    }
     super::queries::check_streaming(&mut c, &tables, &designs, &root.key("designs"));
     if c.issues.is_empty() {
         // Queries are planned only when everything else is sound (they need the tables).
@@ -393,8 +400,8 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
         } else if !seen.insert(d.name.clone()) {
             c.at(&p.key("name"), format!("design `{}` is defined twice", d.name), None);
         }
-        if d.steps.is_empty() {
-            c.at(&p.key("steps"), "expected at least one step", None);
+        if d.steps.is_empty() && d.program.is_none() {
+            c.at(&p.key("steps"), "expected at least one step (or a `program:`)", None);
         }
         let mut flowing = match d.feed {
             Feed::Table => ValueKind::Frame,
@@ -477,6 +484,7 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
             expect_bytes,
             expect_dtypes,
             query_plans: Vec::new(),
+            program: None,
         });
     }
     out

@@ -7,13 +7,8 @@
 //! number generators", OOPSLA 2014), fixed here so that a dependency upgrade can never
 //! change the tables.
 
-/// SplitMix64's output function.
-#[inline(always)]
-pub fn mix64(mut z: u64) -> u64 {
-    z = (z ^ (z >> 30)).wrapping_mul(0xbf58_476d_1ce4_e5b9);
-    z = (z ^ (z >> 27)).wrapping_mul(0x94d0_49bb_1331_11eb);
-    z ^ (z >> 31)
-}
+/// SplitMix64's output function (its one home is `fit::rng`, which depends on nothing).
+pub use crate::fit::rng::mix64;
 
 const GOLDEN: u64 = 0x9e37_79b9_7f4a_7c15;
 

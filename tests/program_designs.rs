@@ -1,0 +1,233 @@
+//! Designs that are programs: the permission rule, the protocol, failures that must not take
+//! the sweep down, resident memory against a known allocation, and the standard-library
+//! workloads' growth against the published costs of Python's containers.
+//!
+//! Needs `python3` (on the machine and on CI). The test of the dataframe-library workload
+//! makes its own virtual environment with `scripts/python-env.sh` (polars from PyPI).
+//! Timing-based checks compare ratios measured in the same run, with margins far wider than
+//! run-to-run noise (an n² design against an n design over an 8-fold size range).
+
+use assert_cmd::Command;
+use framecost::results::reader::RunResults;
+use framecost::results::{EquivalenceStatus, SkipReason};
+use std::path::{Path, PathBuf};
+
+fn repo() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+fn adapter() -> String {
+    repo().join("adapters/python/framecost_worker.py").display().to_string()
+}
+
+fn sweep(args: &[&str], spec: &Path, run: &Path, tmp: &Path) -> std::process::Output {
+    Command::cargo_bin("framecost")
+        .expect("binary")
+        .env("TMPDIR", tmp)
+        .arg("sweep")
+        .args(args)
+        .args(["--quiet", "--out"])
+        .arg(run)
+        .arg(spec)
+        .output()
+        .expect("runs")
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, text).expect("write");
+    p
+}
+
+/// Medians of one design by size.
+fn medians(r: &RunResults, design: &str) -> Vec<(u64, f64)> {
+    r.workloads[0].design_points(design).iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m.median_ns))).collect()
+}
+
+#[test]
+fn programs_run_only_when_allowed_and_lint_lists_them() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    write(dir.path(), "d.py", "def load(p):\n    return p\n\ndef run(d):\n    return d\n");
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        &format!("name: permit\ntable: {{columns: [{{name: k, kind: key}}]}}\nsizes: [1k]\ndesigns:\n  - name: mine\n    program: {{command: [python3, {}, d.py]}}\n", adapter()),
+    );
+    let run = dir.path().join("run");
+    let out = sweep(&[], &spec, &run, tmp.path());
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("--allow-programs") && err.contains("permit/mine: python3"), "{err}");
+    assert!(!run.exists(), "nothing may be written when programs are refused");
+    let lint = Command::cargo_bin("framecost").expect("binary").arg("lint").arg(&spec).output().expect("runs");
+    assert!(lint.status.success());
+    let text = String::from_utf8_lossy(&lint.stdout);
+    assert!(text.contains("runs a program") && text.contains("d.py"), "{text}");
+}
+
+#[test]
+fn lint_rejects_what_cannot_run() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        "name: bad\ntable: {columns: [{name: k, kind: key}]}\nsizes: [1k]\ndesigns:\n  - name: a\n    program: {command: [./missing.py], mode: process}\n  - name: b\n    program: {command: [python3, x.py, \"{output}\"], mode: worker}\n    steps: [sort_rows]\n",
+    );
+    let lint = Command::cargo_bin("framecost").expect("binary").arg("lint").arg(&spec).output().expect("runs");
+    assert_eq!(lint.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&lint.stderr);
+    assert!(err.contains("no program at"), "{err}");
+    assert!(err.contains("put `{input}` in an argument"), "{err}");
+    assert!(err.contains("in `mode: process` only"), "{err}");
+    assert!(err.contains("either `steps` or a `program`"), "{err}");
+}
+
+/// A design that never answers is killed at its budget; one that crashes at the second size
+/// fails there, is skipped later, and the others are measured; one that breaks the protocol
+/// fails with a protocol error. The sweep finishes with exit 3 and leaves nothing running.
+#[test]
+fn hostile_programs_become_failed_points() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    write(dir.path(), "ok.py", "def load(p):\n    return open(p).read()\n\ndef run(d):\n    return len(d)\n");
+    write(dir.path(), "sleeper.py", "import time\n\ndef load(p):\n    return p\n\ndef run(d):\n    time.sleep(3600)\n");
+    write(
+        dir.path(),
+        "crash.py",
+        "import sys\n\ndef load(p):\n    return sum(1 for _ in open(p))\n\ndef run(n):\n    if n > 3000:\n        sys.stderr.write('the scale broke at the second size\\n')\n        sys.exit(7)\n    return n\n",
+    );
+    write(dir.path(), "chatty.py", "import os\n\ndef load(p):\n    os.write(1, b'hello there\\n')\n    return p\n\ndef run(d):\n    return d\n");
+    let a = adapter();
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        &format!(
+            "name: hostile\ntable: {{columns: [{{name: k, kind: key}}]}}\nsizes: [2k, 4k, 8k]\nbudget: {{per_point: 1s, whole_run: 60s, max_samples: 8}}\noutputs_differ: the designs return different things\ndesigns:\n  - name: fine\n    program: {{command: [python3, {a}, ok.py], input: csv}}\n  - name: sleeper\n    program: {{command: [python3, {a}, sleeper.py], input: csv}}\n  - name: crasher\n    program: {{command: [python3, {a}, crash.py], input: csv}}\n  - name: chatty\n    program: {{command: [python3, {a}, chatty.py], input: csv}}\n"
+        ),
+    );
+    let run = dir.path().join("run");
+    let started = std::time::Instant::now();
+    let out = sweep(&["--allow-programs"], &spec, &run, tmp.path());
+    let took = started.elapsed().as_secs_f64();
+    assert_eq!(out.status.code(), Some(3), "{}", String::from_utf8_lossy(&out.stderr));
+    // The sleeper is killed at 1.25 × 1 s + 1 s, once; far below an hour.
+    assert!(took < 50.0, "the sweep took {took} s");
+    let r = RunResults::read(&run).expect("results");
+    let w = &r.workloads[0];
+    let fine = medians(&r, "fine");
+    assert_eq!(fine.len(), 3, "the sound design is measured at every size");
+    let sleeper = w.design_points("sleeper");
+    let first = sleeper[0].skipped.as_ref().expect("failed");
+    assert_eq!(first.reason, SkipReason::Failed);
+    assert!(first.detail.contains("no answer") && first.detail.contains("killed"), "{}", first.detail);
+    assert!(sleeper[1..].iter().all(|p| p.skipped.is_some()), "later sizes skipped");
+    let crasher = w.design_points("crasher");
+    assert!(crasher[0].measured.is_some(), "the crasher works at 2k rows");
+    let failed = crasher[1].skipped.as_ref().expect("fails at 4k");
+    assert!(failed.detail.contains("the scale broke at the second size"), "stderr tail in the message: {}", failed.detail);
+    assert!(failed.detail.contains("status 7") || failed.detail.contains("ended"), "{}", failed.detail);
+    assert!(crasher[2].skipped.is_some());
+    let chatty = w.design_points("chatty");
+    let c = chatty[0].skipped.as_ref().expect("protocol error");
+    assert!(c.detail.contains("protocol error") && c.detail.contains("hello there"), "{}", c.detail);
+    // Nothing is left in the temp folder, and no worker survives the sweep.
+    let left: Vec<_> = std::fs::read_dir(tmp.path()).expect("read").collect();
+    assert!(left.is_empty(), "left in the temp folder: {left:?}");
+    let ps = std::process::Command::new("pgrep").args(["-f", "sleeper.py"]).output();
+    if let Ok(ps) = ps {
+        assert!(ps.stdout.is_empty(), "a worker survived: {}", String::from_utf8_lossy(&ps.stdout));
+    }
+}
+
+/// Peak resident size against a known allocation: each run fills a buffer of 96 MiB
+/// (touching every page), in a worker and as a whole process.
+#[test]
+fn resident_memory_matches_a_known_allocation() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    write(dir.path(), "hold.py", "def load(p):\n    return p\n\ndef run(d):\n    b = bytearray(b'\\x01') * (96 << 20)\n    return len(b)\n");
+    write(dir.path(), "hold_cli.py", "import sys\nb = bytearray(b'\\x01') * (96 << 20)\nopen(sys.argv[2], 'w').write('held\\n' + str(len(b)) + '\\n')\n");
+    let a = adapter();
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        &format!(
+            "name: holder\ntable: {{columns: [{{name: k, kind: key}}]}}\nsizes: [1k]\nbudget: {{per_point: 2s, max_samples: 6}}\ndesigns:\n  - name: worker\n    program: {{command: [python3, {a}, hold.py], input: csv}}\n  - name: process\n    program: {{command: [python3, hold_cli.py, \"{{input}}\", \"{{output}}\"], mode: process, input: csv}}\n"
+        ),
+    );
+    let run = dir.path().join("run");
+    let out = sweep(&["--allow-programs"], &spec, &run, tmp.path());
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("results");
+    let w = &r.workloads[0];
+    let mib = |b: u64| b as f64 / (1u64 << 20) as f64;
+    for d in ["worker", "process"] {
+        let m = w.point(d, 1000).and_then(|p| p.measured.as_ref()).expect("measured");
+        assert!(!m.alloc_counted, "a program has no allocation counts");
+        let p = m.program.expect("program measures");
+        // What the runs added: the 96 MiB buffer, plus at most a few MiB of interpreter
+        // overhead (and, for a whole process, the interpreter itself: ~10 MiB).
+        let added = mib(p.working_bytes());
+        let slack = if d == "worker" { 8.0 } else { 24.0 };
+        assert!(added >= 96.0 && added <= 96.0 + slack, "{d}: {added:.1} MiB added");
+        assert!(p.child_cpu_ns.is_none_or(|c| c > 0.0), "{d}: CPU time {:?}", p.child_cpu_ns);
+    }
+    // The process design's output was read back; the worker's design saves none.
+    assert!(w.comparisons[0].equivalence.note.contains("worker saved none") || w.comparisons[0].equivalence.status == EquivalenceStatus::NotChecked);
+}
+
+/// The standard-library workload: n inserts at the front of a Python list cost O(n²); n
+/// appends (amortised O(1) each) or deque.appendleft (O(1)) cost O(n). Source: the Python
+/// wiki's "TimeComplexity" page (list: insert O(n), append O(1) amortised; deque: appendleft
+/// O(1)). Checked as the growth of each design's median over an 8-fold range of sizes,
+/// measured interleaved in one run: n² gives about 64×, n about 8×.
+#[test]
+fn python_containers_scale_as_published() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    let spec = repo().join("workloads/programs/crate-ledger.yaml");
+    let run = dir.path().join("run");
+    let out = sweep(&["--allow-programs", "--sizes", "4k,8k,16k,32k", "--point-budget", "2s"], &spec, &run, tmp.path());
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("results");
+    let growth = |d: &str| {
+        let m = medians(&r, d);
+        assert_eq!(m.len(), 4, "{d} measured at every size: {m:?}");
+        m[3].1 / m[0].1
+    };
+    let front = growth("insert-at-front");
+    let append = growth("append-then-reverse");
+    let deque = growth("deque-at-left");
+    assert!(front > 24.0, "n² over 8× sizes: {front:.1}×");
+    assert!(append < 16.0 && deque < 16.0, "n over 8× sizes: append {append:.1}×, deque {deque:.1}×");
+    for c in &r.workloads[0].comparisons {
+        assert_eq!(c.equivalence.status, EquivalenceStatus::Same, "{}", c.equivalence.note);
+    }
+    // The runtime each worker reported is kept.
+    assert!(r.workloads[0].header.designs.iter().all(|d| d.program.as_ref().and_then(|p| p.runtime.as_ref()).is_some_and(|t| t.contains("Python"))));
+}
+
+/// The same job in framecost's own engine, in Python polars (a worker and a whole process)
+/// and as a Python row walk: every design gives the same totals at every size.
+#[test]
+fn mixed_workload_agrees_across_engines() {
+    let setup = std::process::Command::new(repo().join("scripts/python-env.sh")).output().expect("python-env.sh runs");
+    assert!(setup.status.success(), "scripts/python-env.sh: {}", String::from_utf8_lossy(&setup.stderr));
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    let spec = repo().join("workloads/programs/grower-totals.yaml");
+    let run = dir.path().join("run");
+    let out = sweep(&["--allow-programs", "--sizes", "16k,64k", "--point-budget", "2s"], &spec, &run, tmp.path());
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("results");
+    let w = &r.workloads[0];
+    assert_eq!(w.points.iter().filter(|p| p.measured.is_some()).count(), 8, "four designs at two sizes");
+    for c in &w.comparisons {
+        assert_eq!(c.equivalence.status, EquivalenceStatus::Same, "{}", c.equivalence.note);
+    }
+    let sql = w.point("engine-sql", 16_000).and_then(|p| p.measured.as_ref()).expect("sql");
+    assert!(sql.alloc_counted && sql.program.is_none());
+    let py = w.header.designs.iter().find(|d| d.name == "python-expression").and_then(|d| d.program.clone()).expect("program");
+    assert!(py.runtime.as_deref().is_some_and(|t| t.contains("polars 1.44.2")), "{:?}", py.runtime);
+}
