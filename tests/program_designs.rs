@@ -170,7 +170,8 @@ fn resident_memory_matches_a_known_allocation() {
         // overhead (and, for a whole process, the interpreter itself: ~10 MiB).
         let added = mib(p.working_bytes());
         let slack = if d == "worker" { 8.0 } else { 24.0 };
-        assert!(added >= 96.0 && added <= 96.0 + slack, "{d}: {added:.1} MiB added");
+        // Lower bound: pages resident before the run may be given back during it.
+        assert!(added >= 92.0 && added <= 96.0 + slack, "{d}: {added:.1} MiB added");
         assert!(p.child_cpu_ns.is_none_or(|c| c > 0.0), "{d}: CPU time {:?}", p.child_cpu_ns);
     }
     // The process design's output was read back; the worker's design saves none.
@@ -188,7 +189,7 @@ fn python_containers_scale_as_published() {
     let tmp = tempfile::tempdir().expect("tmp");
     let spec = repo().join("workloads/programs/crate-ledger.yaml");
     let run = dir.path().join("run");
-    let out = sweep(&["--allow-programs", "--sizes", "4k,8k,16k,32k", "--point-budget", "2s"], &spec, &run, tmp.path());
+    let out = sweep(&["--allow-programs", "--sizes", "4k,8k,16k,32k"], &spec, &run, tmp.path());
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let r = RunResults::read(&run).expect("results");
     let growth = |d: &str| {
@@ -199,8 +200,10 @@ fn python_containers_scale_as_published() {
     let front = growth("insert-at-front");
     let append = growth("append-then-reverse");
     let deque = growth("deque-at-left");
+    // n² against n: 64× against 8× in theory; the test asks for half the separation on
+    // either side of the geometric middle (×2.8), so a noisy machine does not decide it.
     assert!(front > 24.0, "n² over 8× sizes: {front:.1}×");
-    assert!(append < 16.0 && deque < 16.0, "n over 8× sizes: append {append:.1}×, deque {deque:.1}×");
+    assert!(front / append > 2.8 && front / deque > 2.8, "n² {front:.1}× against n: append {append:.1}×, deque {deque:.1}×");
     for c in &r.workloads[0].comparisons {
         assert_eq!(c.equivalence.status, EquivalenceStatus::Same, "{}", c.equivalence.note);
     }
@@ -218,7 +221,7 @@ fn mixed_workload_agrees_across_engines() {
     let tmp = tempfile::tempdir().expect("tmp");
     let spec = repo().join("workloads/programs/grower-totals.yaml");
     let run = dir.path().join("run");
-    let out = sweep(&["--allow-programs", "--sizes", "16k,64k", "--point-budget", "2s"], &spec, &run, tmp.path());
+    let out = sweep(&["--allow-programs", "--sizes", "16k,64k"], &spec, &run, tmp.path());
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let r = RunResults::read(&run).expect("results");
     let w = &r.workloads[0];

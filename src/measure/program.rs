@@ -237,7 +237,13 @@ impl ProgramDesign {
             .spawn(move || read_lines(stdout, tx))
             .map_err(|e| format!("could not start a reader thread: {e}"))?;
         self.worker = Some(Worker { child, pid, stdin, lines: rx });
-        let hello = self.receive(limit, "hello")?;
+        let hello = match self.receive(limit, "hello") {
+            Ok(h) => h,
+            Err(e) => {
+                self.kill();
+                return Err(e);
+            }
+        };
         if hello.get("framecost_worker").and_then(|v| v.as_u64()) != Some(PROTOCOL) {
             let said = short(&hello.to_string());
             self.kill();
@@ -441,7 +447,7 @@ impl ProgramDesign {
     fn request(&mut self, req: &serde_json::Value, limit: Duration, what: &str) -> Result<serde_json::Value, String> {
         let Some(w) = self.worker.as_mut() else { return Err("the worker is not running".into()) };
         let line = format!("{req}\n");
-        if let Err(e) = w.stdin.write_all(line.as_bytes()).and_then(|_| w.stdin.flush()) {
+        if let Err(e) = write_no_sigpipe(&mut w.stdin, line.as_bytes()) {
             let status = w.child.try_wait().ok().flatten().map(|s| format!(" ({s})")).unwrap_or_default();
             self.kill();
             return Err(format!("the worker stopped reading requests{status}: {e}{}", self.tail()));
@@ -512,8 +518,7 @@ impl ProgramDesign {
     /// Ask the worker to leave, then make sure its group is gone.
     pub fn finish(&mut self) {
         if let Some(w) = self.worker.as_mut() {
-            let _ = w.stdin.write_all(b"{\"op\":\"bye\"}\n");
-            let _ = w.stdin.flush();
+            let _ = write_no_sigpipe(&mut w.stdin, b"{\"op\":\"bye\"}\n");
             let until = Instant::now() + Duration::from_millis(500);
             while Instant::now() < until {
                 if let Ok(Some(_)) = w.child.try_wait() {
@@ -577,6 +582,27 @@ fn read_lines(stdout: std::process::ChildStdout, tx: mpsc::Sender<Result<String,
                 return;
             }
         }
+    }
+}
+
+/// Write to a child's stdin without dying of SIGPIPE when it has gone (framecost restores
+/// the default SIGPIPE action so `| head` ends it quietly): the signal is blocked on this
+/// thread for the write, and one it raised is taken back before unblocking.
+fn write_no_sigpipe(w: &mut ChildStdin, bytes: &[u8]) -> std::io::Result<()> {
+    // SAFETY: plain signal-mask calls on this thread with valid, initialised sets.
+    unsafe {
+        let mut block: libc::sigset_t = std::mem::zeroed();
+        let mut old: libc::sigset_t = std::mem::zeroed();
+        libc::sigemptyset(&mut block);
+        libc::sigaddset(&mut block, libc::SIGPIPE);
+        libc::pthread_sigmask(libc::SIG_BLOCK, &block, &mut old);
+        let r = w.write_all(bytes).and_then(|_| w.flush());
+        if r.as_ref().is_err_and(|e| e.kind() == std::io::ErrorKind::BrokenPipe) {
+            let zero = libc::timespec { tv_sec: 0, tv_nsec: 0 };
+            libc::sigtimedwait(&block, std::ptr::null_mut(), &zero);
+        }
+        libc::pthread_sigmask(libc::SIG_SETMASK, &old, std::ptr::null_mut());
+        r
     }
 }
 

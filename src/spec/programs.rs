@@ -144,8 +144,10 @@ pub(super) fn check_program(c: &mut Checker, d: &DesignSpec, p: &ProgramSpec, pa
     })
 }
 
+/// An absolute path that keeps symlinks as they are: a virtual environment's `bin/python`
+/// is a symlink whose own location is what selects the environment.
 fn absolute(p: &Path) -> String {
-    std::fs::canonicalize(p).unwrap_or_else(|_| p.to_path_buf()).display().to_string()
+    std::path::absolute(p).unwrap_or_else(|_| p.to_path_buf()).display().to_string()
 }
 
 #[cfg(test)]
