@@ -344,13 +344,16 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         let pts: Vec<_> = w.design_points(&d.name).into_iter().filter(|p| p.measured.is_some()).collect();
         let mut used: Vec<_> = pts.iter().filter(|p| p.rows <= limit).collect();
         let mut notes = Vec::new();
+        // Memory is counted, not timed: a busy machine does not change it, so its fits keep
+        // every size.
+        let mut for_memory = used.clone();
         // Points measured on a busy machine never decide a class, as long as enough clean
         // sizes remain to fit one.
         let busy = used.iter().filter(|p| p.measured.as_ref().is_some_and(|m| m.is_contaminated())).count();
         if busy > 0 {
             if used.len() - busy >= crate::fit::growth::MIN_SIZES {
                 used.retain(|p| !p.measured.as_ref().is_some_and(|m| m.is_contaminated()));
-                notes.push(format!("{busy} size(s) measured on a busy machine were left out of the fits"));
+                notes.push(format!("{busy} size(s) measured on a busy machine were left out of the time fits"));
             } else {
                 notes.push(format!("{busy} size(s) were measured on a busy machine and too few clean ones remain: the fits include them"));
             }
@@ -358,6 +361,8 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         if let Some(k) = opts.top_sizes {
             let drop = used.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
             used.drain(..drop);
+            let drop = for_memory.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
+            for_memory.drain(..drop);
         }
         let measured: Vec<(u64, &crate::results::Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
         let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
@@ -373,7 +378,7 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         };
         let metric = |get: &dyn Fn(&crate::results::Measured) -> f64| -> (Result<GrowthFit, FitError>, Option<f64>) {
             let v: Vec<(f64, f64)> =
-                used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
+                for_memory.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
             let (x, y): (Vec<f64>, Vec<f64>) = v.iter().copied().unzip();
             let slope = crate::fit::growth::loglog_slope(&x, &y).ok();
             (fit_growth(&x, &y), slope)
