@@ -51,7 +51,13 @@ fn exports_hold_every_point_and_every_sample() {
         let rec = points.iter().find(|p| p["design"] == d && p["rows"] == n).expect("a record for every row");
         assert_eq!(median.get(i), rec["measured"]["median_ns"].as_f64(), "{d} at {n}");
     }
-    assert!(pts.column("skip_reason").expect("skip").str().expect("text").iter().any(|s| s == Some("predicted_over_budget")));
+    // Each skipped point's reason is the one recorded (which reason depends on the machine's speed).
+    let reason = pts.column("skip_reason").expect("skip").str().expect("text").clone();
+    for i in 0..pts.height() {
+        let (d, n) = (design.get(i).expect("design"), rows.get(i).expect("rows"));
+        let rec = points.iter().find(|p| p["design"] == d && p["rows"] == n).expect("record");
+        assert_eq!(reason.get(i), rec["skipped"]["reason"].as_str(), "{d} at {n}");
+    }
 
     let smp = parquet(&run.join("samples.parquet"));
     assert_eq!(smp.height(), samples, "one row per sample");
