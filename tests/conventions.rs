@@ -112,6 +112,7 @@ fn colour_follows_the_flag_no_color_and_the_terminal() {
     assert_eq!(doc["schema"], "framecost.sweep/1");
     assert_eq!(doc["run"], again.to_str().expect("utf8"));
     assert_eq!(doc["failed_points"], 0);
+    assert_eq!(doc["tables"].as_array().expect("tables").len(), 3, "{doc}");
 }
 
 #[test]
@@ -140,7 +141,10 @@ fn built_in_workloads_work_from_any_folder_and_errors_go_to_stderr() {
         assert!(!out.contains("no such") && !out.contains("no built-in"), "{args:?}: error on stdout: {out}");
     }
     let o = run_in(elsewhere.path(), &["sweep", "--builtin", "row-growt"], &[]);
-    assert!(String::from_utf8_lossy(&o.stderr).contains("did you mean `row-growth`?"));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("row-growth"), "the error names the closest built-in");
+    // The shells complete built-in names.
+    let bash = run_in(elsewhere.path(), &["completions", "bash"], &[]);
+    assert!(String::from_utf8_lossy(&bash.stdout).contains("key-lookups"));
 
     // lint --json keeps every problem's place.
     let broken = std::fs::canonicalize("tests/data/broken/04-unknown-step.yaml").expect("path");

@@ -23,7 +23,7 @@ pub struct Args {
     #[arg(required_unless_present = "builtin")]
     pub paths: Vec<PathBuf>,
     /// Also sweep this built-in workload (repeatable; `framecost catalog` lists them).
-    #[arg(long, value_name = "NAME")]
+    #[arg(long, value_name = "NAME", value_parser = clap::builder::PossibleValuesParser::new(crate::builtin::names()), hide_possible_values = true)]
     pub builtin: Vec<String>,
     /// Run folder to write (default: reports/<workload>-<date>-<time>).
     #[arg(long, value_name = "DIR")]
@@ -395,6 +395,13 @@ pub fn run(a: Args) -> i32 {
         let mut doc = super::recap::document(SCHEMA, &saved);
         doc["run"] = dir.display().to_string().into();
         doc["report"] = report.as_ref().ok().map(|w| w.html.display().to_string()).into();
+        let tables: Vec<String> = ["points.parquet", "samples.parquet", "points.csv"]
+            .iter()
+            .map(|f| dir.join(f))
+            .filter(|p| p.is_file())
+            .map(|p| p.display().to_string())
+            .collect();
+        doc["tables"] = tables.into();
         doc["failed_points"] = failures.into();
         doc["mismatched_sizes"] = mismatches.into();
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
