@@ -20,8 +20,7 @@ use clap::{CommandFactory, FromArgMatches, Parser, Subcommand};
 #[derive(Debug, Parser)]
 #[command(name = "framecost", version, about, long_about = None, propagate_version = true)]
 pub struct Cli {
-    /// When to colour output: `auto` (only on a terminal, and not when NO_COLOR is set),
-    /// `always` or `never`.
+    /// When to colour output; `auto`: on a terminal, unless NO_COLOR is set.
     #[arg(long, global = true, value_name = "WHEN", default_value = "auto")]
     pub color: ColorWhen,
     #[command(subcommand)]
