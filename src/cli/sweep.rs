@@ -420,6 +420,9 @@ pub fn run(a: Args) -> i32 {
         if let Ok(w) = &report {
             println!("report:  {} ({} pictures)", w.html.display(), w.pictures.len());
         }
+        if dir.join("points.parquet").is_file() {
+            println!("tables:  {} (also samples.parquet, points.csv)", dir.join("points.parquet").display());
+        }
     }
     if failures > 0 || mismatches > 0 {
         eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");
