@@ -20,8 +20,11 @@ use std::time::Instant;
 #[derive(Debug, clap::Args)]
 pub struct Args {
     /// Workload files, or folders of them.
-    #[arg(required = true)]
+    #[arg(required_unless_present = "builtin")]
     pub paths: Vec<PathBuf>,
+    /// Also sweep this built-in workload (repeatable; `framecost catalog` lists them).
+    #[arg(long, value_name = "NAME", value_parser = clap::builder::PossibleValuesParser::new(crate::builtin::names()), hide_possible_values = true)]
+    pub builtin: Vec<String>,
     /// Run folder to write (default: reports/<workload>-<date>-<time>).
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
@@ -56,7 +59,13 @@ pub struct Args {
     /// commands first; without this flag such a workload is refused and its commands listed).
     #[arg(long)]
     pub allow_programs: bool,
+    /// At the end, print one JSON document (`framecost.sweep/1`) instead of the summary.
+    #[arg(long)]
+    pub json: bool,
 }
+
+/// Schema of the `--json` document (docs/results.md).
+pub const SCHEMA: &str = "framecost.sweep/1";
 
 fn fail(msg: impl std::fmt::Display) -> i32 {
     eprintln!("framecost sweep: {msg}");
@@ -229,6 +238,15 @@ pub fn run(a: Args) -> i32 {
             }
         }
     }
+    for name in &a.builtin {
+        match crate::builtin::load(name) {
+            Ok(p) => plans.push(p),
+            Err(e) => {
+                eprintln!("framecost sweep: --builtin: {e}");
+                bad = true;
+            }
+        }
+    }
     if bad {
         return fail("fix the workload files above (nothing was run)");
     }
@@ -386,7 +404,7 @@ pub fn run(a: Args) -> i32 {
     let analysis = crate::analyse::analyse(&saved, &crate::analyse::AnalyseOptions::default());
     let explanations: Vec<_> =
         saved.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
-    let doc = serde_json::json!({ "schema": crate::results::SCHEMA, "analysis": analysis, "explanations": explanations });
+    let doc = serde_json::json!({ "schema": super::explain::SCHEMA, "analysis": analysis, "explanations": explanations });
     if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
         return write_failed(e);
     }
@@ -394,7 +412,21 @@ pub fn run(a: Args) -> i32 {
     if let Err(e) = &report {
         eprintln!("framecost sweep: could not write results: the pictures and reports: {e} (the measurements are kept; `framecost report` redraws them)");
     }
-    if !a.quiet {
+    if a.json {
+        let mut doc = super::recap::document(SCHEMA, &saved);
+        doc["run"] = dir.display().to_string().into();
+        doc["report"] = report.as_ref().ok().map(|w| w.html.display().to_string()).into();
+        let tables: Vec<String> = ["points.parquet", "samples.parquet", "points.csv"]
+            .iter()
+            .map(|f| dir.join(f))
+            .filter(|p| p.is_file())
+            .map(|p| p.display().to_string())
+            .collect();
+        doc["tables"] = tables.into();
+        doc["failed_points"] = failures.into();
+        doc["mismatched_sizes"] = mismatches.into();
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+    } else if !a.quiet {
         print!("{}", render(&saved, Style::detect()));
         if plans.len() > 1 {
             let s = crate::results::summary::Summary::from_results(&saved);
@@ -404,9 +436,14 @@ pub fn run(a: Args) -> i32 {
             }
         }
     }
-    println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());
-    if let Ok(w) = &report {
-        println!("report:  {} ({} pictures)", w.html.display(), w.pictures.len());
+    if !a.json {
+        println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());
+        if let Ok(w) = &report {
+            println!("report:  {} ({} pictures)", w.html.display(), w.pictures.len());
+        }
+        if dir.join("points.parquet").is_file() {
+            println!("tables:  {} (also samples.parquet, points.csv)", dir.join("points.parquet").display());
+        }
     }
     if failures > 0 || mismatches > 0 {
         eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");

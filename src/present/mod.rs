@@ -1,5 +1,6 @@
 //! Presentation: everything people read. Works from saved results only.
 
+pub mod color;
 pub mod plot;
 pub mod report;
 pub mod terminal;

@@ -1,7 +1,7 @@
 //! Reports of a run, redrawn from saved results alone: pictures (SVG and PNG) in
 //! `pictures/`, `report.md` (linking the SVGs), `report.html` (one self-contained file:
 //! SVGs and styles inline; no scripts, fonts or links to anything outside it) and
-//! `points.csv` (the per-point table for notebooks).
+//! the notebook tables (`points.parquet`, `samples.parquet`, `points.csv`: `results::export`).
 //!
 //! Each workload's section puts the verdict first — the same sentence the terminal prints
 //! — then the job, the pictures, the findings, the per-size table, and at the end the
@@ -85,69 +85,6 @@ fn size_rows(w: &WorkloadResults) -> Vec<[String; 9]> {
 }
 
 const HEAD: [&str; 9] = ["rows", "design", "median", "95% interval", "× fastest (95%)", "allocated", "peak live", "chunks", "ended by"];
-
-/// The per-point table as CSV (RFC 4180: comma-separated, quoted where needed).
-pub fn csv(r: &RunResults) -> String {
-    let mut s = String::from(
-        "workload,design,rows,status,median_ns,ci_low_ns,ci_high_ns,p50_ns,p90_ns,p99_ns,max_ns,cpu_ns,samples,batch,alloc_bytes,alloc_count,peak_live_bytes,output_rows,output_chunks,ratio_to_fastest,stop,skip_reason,predicted_ns\r\n",
-    );
-    let q = |t: &str| {
-        // A cell a spreadsheet would run as a formula is prefixed with `'` (common practice
-        // against CSV formula injection).
-        let t = if t.starts_with(['=', '+', '-', '@', '\t', '\r']) { format!("'{t}") } else { t.to_string() };
-        if t.contains([',', '"', '\n', '\r']) {
-            format!("\"{}\"", t.replace('"', "\"\""))
-        } else {
-            t
-        }
-    };
-    let o = |v: Option<f64>| v.map(|x| format!("{x}")).unwrap_or_default();
-    for w in &r.workloads {
-        let mut pts: Vec<_> = w.points.iter().collect();
-        pts.sort_by_key(|p| (p.rows, w.header.designs.iter().position(|d| d.name == p.design)));
-        for p in pts {
-            let ratio = w.comparison(p.rows).and_then(|c| c.ratios.iter().find(|r| r.design == p.design)).map(|r| r.ratio);
-            let line = match (&p.measured, &p.skipped) {
-                (Some(m), _) => vec![
-                    q(&w.header.workload),
-                    q(&p.design),
-                    p.rows.to_string(),
-                    "measured".into(),
-                    format!("{}", m.median_ns),
-                    o(m.ci_low_ns),
-                    o(m.ci_high_ns),
-                    format!("{}", m.p50_ns),
-                    format!("{}", m.p90_ns),
-                    format!("{}", m.p99_ns),
-                    format!("{}", m.max_ns),
-                    format!("{}", m.cpu_ns),
-                    m.samples_ns.len().to_string(),
-                    m.batch.to_string(),
-                    m.alloc.bytes.to_string(),
-                    m.alloc.count.to_string(),
-                    m.alloc.peak_live.to_string(),
-                    m.output.as_ref().map(|x| x.rows.to_string()).unwrap_or_default(),
-                    m.output.as_ref().map(|x| x.chunks.to_string()).unwrap_or_default(),
-                    o(ratio),
-                    m.stop.label().replace(' ', "_"),
-                    String::new(),
-                    String::new(),
-                ],
-                (None, Some(sk)) => {
-                    let mut v = vec![q(&w.header.workload), q(&p.design), p.rows.to_string(), "skipped".into()];
-                    v.extend(std::iter::repeat_n(String::new(), 17));
-                    v.push(serde_json::to_value(sk.reason).ok().and_then(|x| x.as_str().map(str::to_string)).unwrap_or_default());
-                    v.push(o(sk.predicted_ns));
-                    v
-                }
-                _ => continue,
-            };
-            s.push_str(&line.join(","));
-            s.push_str("\r\n");
-        }
-    }
-    s
-}
 
 fn machine_lines(r: &RunResults) -> Vec<(String, String)> {
     let Some(h) = &r.run else { return vec![] };
@@ -299,6 +236,8 @@ fn html(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Explanat
 
 /// Draw and write everything for a run into `dir`.
 pub fn write(dir: &Path, r: &RunResults, opts: &AnalyseOptions) -> Result<Written, String> {
+    // The tables for notebooks first: they need no drawing, so a picture that fails cannot cost them.
+    let exports = crate::results::export::write(dir, r)?;
     let analysis = analyse(r, opts);
     let explanations: Vec<Explanation> = r.workloads.iter().zip(&analysis.workloads).map(|(w, a)| explain(w, a)).collect();
     let pic_dir = dir.join("pictures");
@@ -316,10 +255,8 @@ pub fn write(dir: &Path, r: &RunResults, opts: &AnalyseOptions) -> Result<Writte
     let page = html(r, &parts)?;
     let markdown = dir.join("report.md");
     let html_path = dir.join("report.html");
-    let csv_path = dir.join("points.csv");
     let io = |p: &Path, t: &str| crate::results::writer::write_atomic(p, t).map_err(|e| e.to_string());
     io(&markdown, &md)?;
     io(&html_path, &page)?;
-    io(&csv_path, &csv(r))?;
-    Ok(Written { markdown, html: html_path, csv: csv_path, pictures })
+    Ok(Written { markdown, html: html_path, csv: exports.csv, pictures })
 }

@@ -19,24 +19,15 @@ pub struct Style {
 }
 
 impl Style {
-    /// Colour only on a terminal and when NO_COLOR is not set.
+    /// Colour as `--color` says; `auto`: only on a terminal and when NO_COLOR is not set.
     pub fn detect() -> Style {
-        use std::io::IsTerminal;
-        Style { color: std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none() }
+        Style { color: super::color::stdout_on() }
     }
     fn bold(&self, s: &str) -> String {
-        if self.color {
-            format!("\x1b[1m{s}\x1b[0m")
-        } else {
-            s.to_string()
-        }
+        super::color::paint(super::color::STRONG, self.color, s)
     }
     fn alarm(&self, s: &str) -> String {
-        if self.color {
-            format!("\x1b[1;31m{s}\x1b[0m")
-        } else {
-            s.to_string()
-        }
+        super::color::paint(super::color::ALARM, self.color, s)
     }
 }
 
