@@ -8,12 +8,16 @@ use std::path::PathBuf;
 pub struct Args {
     /// A run folder (or its points.jsonl).
     pub run: PathBuf,
+    /// Print everything: all findings, cost-model notes, intervals, chunks.
+    #[arg(long)]
+    pub long: bool,
 }
 
 pub fn run(args: Args) -> i32 {
     match crate::results::reader::RunResults::read(&args.run) {
         Ok(r) => {
-            print!("{}", crate::present::terminal::render(&r, crate::present::terminal::Style::detect()));
+            use crate::present::terminal::{render_with, Options, Style};
+            print!("{}", render_with(&r, Style::detect(), Options::detect(args.long)));
             crate::exit::OK
         }
         Err(e) => {

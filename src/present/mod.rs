@@ -1,5 +1,7 @@
 //! Presentation: everything people read. Works from saved results only.
 
+pub mod digest;
+pub mod page;
 pub mod plot;
 pub mod report;
 pub mod terminal;
