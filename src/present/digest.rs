@@ -93,12 +93,62 @@ pub fn sentence(s: &str) -> String {
     out
 }
 
+/// Ratios written the old way round ("×1.06") put the number first ("1.06×"), the way every
+/// other multiple in framecost's summaries reads.
+pub fn number_first(s: &str) -> String {
+    let mut out = String::with_capacity(s.len());
+    let mut chars = s.chars().peekable();
+    while let Some(c) = chars.next() {
+        if c == '×' && chars.peek().is_some_and(|d| d.is_ascii_digit()) {
+            let mut num = String::new();
+            while let Some(&d) = chars.peek() {
+                if d.is_ascii_digit() || (d == '.' && !num.is_empty()) {
+                    num.push(d);
+                    chars.next();
+                } else {
+                    break;
+                }
+            }
+            let trail = if num.ends_with('.') { num.pop(); "." } else { "" };
+            out.push_str(&num);
+            out.push('×');
+            out.push_str(trail);
+        } else {
+            out.push(c);
+        }
+    }
+    out
+}
+
 /// True when a design's points carry allocation counts. Designs that cannot count their
 /// allocations (a program run outside the process, measured by its resident memory) record
 /// none at all; every built-in or SQL design allocates at least its output table.
 pub fn counts_allocations(w: &WorkloadResults, design: &str) -> bool {
     let pts: Vec<_> = w.design_points(design).into_iter().filter_map(|p| p.measured.as_ref()).collect();
     pts.is_empty() || pts.iter().any(|m| m.alloc.count > 0 || m.alloc.bytes > 0 || m.alloc.peak_live > 0)
+}
+
+/// Allocated bytes that are the same at every measured size (two or more): constant, with no
+/// fit needed (a fit of identical values has nothing to choose between).
+pub fn same_bytes_everywhere(w: &WorkloadResults, design: &str) -> bool {
+    let b: Vec<u64> = w.design_points(design).into_iter().filter_map(|p| p.measured.as_ref().map(|m| m.alloc.bytes)).collect();
+    b.len() >= 2 && b.iter().all(|x| *x == b[0])
+}
+
+/// How a design's allocated bytes grow, for the tables: the fitted class, "constant" when
+/// they are the same at every size, "slope s" from the exponent alone, or "not counted".
+/// With it, whether an expected class is met (None: cannot be judged).
+pub fn bytes_growth(w: &WorkloadResults, da: &DesignAnalysis, expect: Option<&str>) -> (String, Option<bool>) {
+    let want = expect.and_then(crate::analyse::class_of);
+    if !counts_allocations(w, &da.design) {
+        return ("not counted".into(), None);
+    }
+    match (&da.bytes, da.bytes_exponent) {
+        (Some(b), _) => (b.label(), want.map(|c| b.admits(c))),
+        _ if same_bytes_everywhere(w, &da.design) => ("constant".into(), want.map(|c| c == crate::fit::growth::GrowthClass::Constant)),
+        (None, Some(e)) => (format!("slope {e:.2}"), None),
+        (None, None) => ("—".into(), None),
+    }
 }
 
 fn design<'a>(a: &'a WorkloadAnalysis, name: &str) -> Option<&'a DesignAnalysis> {
@@ -199,7 +249,7 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
                 }
             } else {
                 // Every size was measured on a busy machine: the verdict's own words.
-                why.push(sentence(&v.text));
+                why.push(sentence(&number_first(&v.text)));
             }
             if let Some(x) = a.crossovers.iter().find(|x| x.faster_below == best && !x.inside_measured && a.predict_at.is_some_and(|t| x.rows <= t as f64)) {
                 why.push(format!(
@@ -252,18 +302,18 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
             answer = format!("a tie; `{pick}` suggested");
             let at = v.decided_at.map(rows_label).unwrap_or_default();
             from = format!("at {at} rows, the largest size compared");
-            why.push(sentence(&v.text));
+            why.push(sentence(&number_first(&v.text)));
         }
         _ => {
             answer = "no verdict".into();
             crossover = "—".into();
-            why.push(sentence(v.text.trim_start_matches("no verdict: ")));
+            why.push(sentence(&number_first(v.text.trim_start_matches("no verdict: "))));
         }
     }
     if let Some(best) = v.design.as_deref() {
         let da = design(a, best);
         let t = da.and_then(|d| d.time.as_ref()).map(|t| t.label());
-        let b = da.filter(|_| counts_allocations(w, best)).and_then(|d| d.bytes.as_ref()).map(|b| b.label());
+        let b = da.map(|d| bytes_growth(w, d, None).0).filter(|l| l != "not counted" && l != "—" && !l.starts_with("slope"));
         match (t, b) {
             (Some(t), Some(b)) if !single => why.push(format!("`{best}`'s time grows as {t} and its allocated bytes as {b}.")),
             (Some(t), None) if !single => why.push(format!("`{best}`'s time grows as {t}.")),
@@ -372,9 +422,10 @@ pub fn sections(findings: &[Finding], all: bool) -> Vec<Section> {
         if !all && (SHOWN_ELSEWHERE.contains(&f.kind.as_str()) || (f.kind == "expectation" && f.implies == "the measurement confirms the rule")) {
             continue;
         }
-        match groups.iter_mut().find(|g| g.kind == f.kind && g.implies == f.implies && g.action == f.action) {
-            Some(g) => g.measured.push((f.design.clone(), f.measured.clone())),
-            None => groups.push(Group { kind: f.kind.clone(), implies: f.implies.clone(), action: f.action.clone(), measured: vec![(f.design.clone(), f.measured.clone())] }),
+        let (measured, implies, action) = (number_first(&f.measured), number_first(&f.implies), number_first(&f.action));
+        match groups.iter_mut().find(|g| g.kind == f.kind && g.implies == implies && g.action == action) {
+            Some(g) => g.measured.push((f.design.clone(), measured)),
+            None => groups.push(Group { kind: f.kind.clone(), implies, action, measured: vec![(f.design.clone(), measured)] }),
         }
     }
     let mut out: Vec<Section> = Vec::new();
@@ -410,6 +461,7 @@ mod tests {
         assert_eq!(sentence("Done."), "Done.");
         assert_eq!(times(57.04), "57×");
         assert_eq!(times(4.96), "5.0×");
+        assert_eq!(number_first("within the noise (×1.06 [×0.98–×1.12]) by ×2."), "within the noise (1.06× [0.98×–1.12×]) by 2×.");
     }
 
     #[test]

@@ -366,21 +366,15 @@ fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
             (None, Some(e)) => vec![format!("slope {:.2}", e.slope)],
             (None, None) => vec!["too few sizes".into()],
         };
-        let counted = counts_allocations(w, &d.name);
-        let mem = match (&da.bytes, da.bytes_exponent) {
-            _ if !counted => vec!["not counted".into()],
-            (Some(b), _) => vec![b.label()],
-            (None, Some(e)) => vec![format!("slope {e:.2}")],
-            (None, None) => vec!["—".into()],
-        };
+        let (bytes_label, bytes_met) = digest::bytes_growth(w, da, d.expect_bytes.as_deref());
+        let mem = vec![bytes_label];
         let mut exp = Vec::new();
         if let Some(e) = &d.expect_time {
             let ok = da.time.as_ref().is_some_and(|t| crate::analyse::class_of(e).is_some_and(|c| t.admits(c)));
             exp.push(format!("time {e} {}", if ok { "✓" } else { "✗" }));
         }
         if let Some(e) = &d.expect_bytes {
-            let ok = da.bytes.as_ref().is_some_and(|b| crate::analyse::class_of(e).is_some_and(|c| b.admits(c)));
-            exp.push(format!("bytes {e} {}", if ok { "✓" } else { "✗" }));
+            exp.push(format!("bytes {e} {}", match bytes_met { Some(true) => "✓", Some(false) => "✗", None => "?" }));
         }
         if exp.is_empty() {
             exp.push("—".into());
