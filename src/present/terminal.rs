@@ -145,6 +145,16 @@ fn grid(head: &[String], rows: &[(String, Vec<Vec<String>>)], width: usize, inde
         blocks.push((start, end));
         start = end;
     }
+    // Spread the columns evenly over the blocks (10 sizes as 5 + 5, not 9 + 1) when that
+    // still fits.
+    if blocks.len() > 1 {
+        let per = ncols.div_ceil(blocks.len());
+        let even: Vec<(usize, usize)> = (0..ncols).step_by(per).map(|s| (s, (s + per).min(ncols))).collect();
+        let fits = |&(s, e): &(usize, usize)| cols(indent) + label_w + (s..e).map(|j| gap + col_w[j]).sum::<usize>() <= width;
+        if even.len() == blocks.len() && even.iter().all(fits) {
+            blocks = even;
+        }
+    }
     let mut out = Vec::new();
     for (b, &(s, e)) in blocks.iter().enumerate() {
         if b > 0 {
@@ -290,7 +300,7 @@ fn time_grid(w: &WorkloadResults, o: Options) -> (Vec<String>, bool, bool) {
                         any_marks |= !mark.is_empty();
                         let busy = if m.is_contaminated() { "*" } else { "" };
                         let rt = match r {
-                            Some(x) if (x - 1.0).abs() < 1e-12 => "fastest".to_string(),
+                            Some(x) if (x - 1.0).abs() < 1e-12 => "best".to_string(),
                             Some(x) => times(x),
                             None => String::new(),
                         };
@@ -450,7 +460,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
     for l in growth_grid(p, o) {
         let _ = writeln!(s, "{l}");
     }
-    let mut keys = vec!["under each time: its multiple of the fastest design at that size".to_string()];
+    let mut keys = vec!["under each time: its multiple of the fastest design's time at that size (best: the fastest)".to_string()];
     if any_marks {
         keys.push(format!(
             "sampling ended by c {}, b {}, r {}, i {} (unmarked: the median's 95% interval within ±{:.0}%)",
@@ -578,8 +588,11 @@ mod tests {
         let rows = vec![("one-at-a-time".to_string(), (1..=10).map(|_| vec!["887 ms".to_string(), "506×".to_string()]).collect())];
         let lines = grid(&head, &rows, 60, "  ");
         assert!(lines.iter().all(|l| cols(l) <= 60), "{lines:?}");
-        // Every size heading appears once, and the label is repeated per block.
+        // Every size heading appears once, the label is repeated per block, and the blocks
+        // are even.
         assert!(lines.iter().filter(|l| l.contains("one-at-a-time")).count() >= 2);
+        let heads: Vec<usize> = lines.iter().filter(|l| l.trim_start().starts_with("time per run")).map(|l| l.split_whitespace().count() - 3).collect();
+        assert!(heads.iter().max().unwrap_or(&0) - heads.iter().min().unwrap_or(&0) <= 1, "{heads:?}");
         for k in 1..=10 {
             assert_eq!(lines.iter().filter(|l| l.split_whitespace().any(|w| w == format!("{k}k"))).count(), 1);
         }
