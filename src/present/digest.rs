@@ -61,9 +61,9 @@ impl Cost {
             format!("{} ({} to {})", time_ns(self.median), time_ns(self.low), time_ns(self.high))
         }
     }
-    /// "~195 ms" or "~3 s ?" for a grid cell.
+    /// "~195 ms", or "~3 s (rough)" when the interval spans more than ×10.
     pub fn short(&self) -> String {
-        format!("~{}{}", time_ns(self.median), if self.rough { " ?" } else { "" })
+        format!("~{}{}", time_ns(self.median), if self.rough { " (rough)" } else { "" })
     }
 }
 

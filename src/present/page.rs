@@ -94,6 +94,9 @@ fn md_anchor(name: &str) -> String {
 
 /// What a picture shows, in words, from the same numbers it is drawn from.
 pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String {
+    if kind == "distribution" {
+        return describe_percentiles(w);
+    }
     let mut per = Vec::new();
     for (i, d) in w.header.designs.iter().enumerate() {
         let pts: Vec<_> = w.design_points(&d.name).into_iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
@@ -126,7 +129,7 @@ pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String
                 let r = |n: u64| w.comparison(n).and_then(|c| c.ratios.iter().find(|r| r.design == d.name)).map(|r| times(r.ratio)).unwrap_or_else(|| "—".into());
                 format!("{} from {} the fastest at {} rows to {} at {}", d.name, r(first.0), rows_label(first.0), r(last.0), rows_label(last.0))
             }
-            _ => format!("{} median {} at {} rows", d.name, time_ns(last.1.median_ns), rows_label(last.0)),
+            _ => format!("{} at {} rows: {}", d.name, rows_label(last.0), time_ns(last.1.median_ns)),
         };
         per.push(line);
     }
@@ -137,9 +140,29 @@ pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String
         }
         "memory" => "Allocated and peak live bytes per run against the number of rows, on logarithmic scales".to_string(),
         "ratios" => "Each design's time as a multiple of the fastest design's at each size".to_string(),
-        _ => "Time per run by percentile at one size, one line per design".to_string(),
+        _ => "A picture of the workload's measurements".to_string(),
     };
     format!("{lead}. {}.", per.join("; "))
+}
+
+/// The percentile picture in words, at the size `plot::draw_all` draws it (the largest size
+/// with every design measured, else the largest with two or more).
+fn describe_percentiles(w: &WorkloadResults) -> String {
+    let all = w.header.designs.len();
+    let count = |n: u64| w.header.designs.iter().filter(|d| w.point(&d.name, n).is_some_and(|p| p.measured.is_some())).count();
+    let Some(n) = w.header.sizes.iter().rev().copied().find(|&n| count(n) == all).or_else(|| w.header.sizes.iter().rev().copied().find(|&n| count(n) >= 2)) else {
+        return "Time per run by percentile: no size had two designs measured.".into();
+    };
+    let per: Vec<String> = w
+        .header
+        .designs
+        .iter()
+        .filter_map(|d| {
+            let m = w.point(&d.name, n)?.measured.as_ref()?;
+            Some(format!("{} median {}, 90th percentile {}, 99th {}", d.name, time_ns(m.p50_ns), time_ns(m.p90_ns), time_ns(m.p99_ns)))
+        })
+        .collect();
+    format!("Time per run by percentile at {} rows, one line per design. {}.", rows_label(n), per.join("; "))
 }
 
 /// Pictures of a workload as drawn by `plot::draw_all`, with their alternatives.
