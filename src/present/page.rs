@@ -292,7 +292,7 @@ pre{font-family:'DejaVu Sans Mono',Menlo,Consolas,monospace;font-size:13px;backg
 .alarm{background:#f7e6d6;border-left:5px solid var(--apricot);padding:8px 12px}\
 table{border-collapse:collapse;font-size:14px}th,td{padding:4px 8px;vertical-align:top}\
 .glance{width:100%}.glance th{text-align:left;font-family:'DejaVu Sans',Verdana,sans-serif;font-size:12px;color:var(--muted);border-bottom:2px solid var(--rule)}\
-.glance td{border-bottom:1px solid var(--rule)}.glance td:first-child{white-space:nowrap}\
+.glance td{border-bottom:1px solid var(--rule)}.glance td:first-child{white-space:nowrap}.glance td:nth-child(2){min-width:15em}.glance td:nth-child(4){white-space:nowrap}.glance td:nth-child(5){font-size:13px}.glance code{white-space:nowrap}\
 .kind{font-family:'DejaVu Sans',Verdana,sans-serif;font-size:11px;text-transform:uppercase;letter-spacing:.06em;padding:1px 6px;border-radius:9px;border:1px solid;white-space:nowrap}\
 .k-winner{color:var(--harbour)}.k-crossover{color:var(--orchard)}.k-tie{color:var(--straw)}.k-undecided{color:var(--muted)}\
 .job{font-style:italic;color:#3c3a35;margin-top:4px}\

@@ -487,7 +487,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
         let _ = writeln!(s, "  {}", style.bold("findings"));
         for sec in &sections {
             let who = if sec.designs.is_empty() { "the workload as a whole".to_string() } else { sec.designs.join(", ") };
-            let _ = writeln!(s, "    {who}:");
+            push_wrapped(&mut s, &format!("{who}:"), width, "    ", "      ");
             for g in &sec.groups {
                 let reading = if g.action.is_empty() { digest::sentence(&g.implies) } else { format!("{} {}", digest::sentence(&g.implies), digest::sentence(&g.action)) };
                 if g.measured.len() == 1 {
