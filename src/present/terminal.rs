@@ -425,7 +425,8 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
         push_wrapped(s, text, width, &first, &rest);
     };
     let kind = d.kind.word();
-    field(&mut s, "decision", &format!("{} ({kind})", d.answer));
+    let decision = if d.answer.contains(kind) { d.answer.clone() } else { format!("{} ({kind})", d.answer) };
+    field(&mut s, "decision", &decision);
     if !d.from.is_empty() {
         field(&mut s, "holds", &d.from);
     }
