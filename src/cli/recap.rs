@@ -13,6 +13,9 @@ pub const SCHEMA: &str = "framecost.recap/1";
 pub struct Args {
     /// A run folder (or its points.jsonl).
     pub run: PathBuf,
+    /// Print everything: all findings, cost-model notes, intervals, chunks.
+    #[arg(long)]
+    pub long: bool,
     /// Print one JSON document (summary and verdicts) instead of text.
     #[arg(long)]
     pub json: bool,
@@ -46,7 +49,8 @@ pub fn run(args: Args) -> i32 {
             crate::exit::OK
         }
         Ok(r) => {
-            print!("{}", crate::present::terminal::render(&r, crate::present::terminal::Style::detect()));
+            use crate::present::terminal::{render_with, Options, Style};
+            print!("{}", render_with(&r, Style::detect(), Options::detect(args.long)));
             crate::exit::OK
         }
         Err(e) => {
