@@ -2,129 +2,47 @@
 //! with their 95% intervals, the fitted growth curve, the prediction continued to the target,
 //! crossovers and skipped points), memory curves (allocated and peak live bytes beside the
 //! table's own size), latency by percentile at one size, and each design's cost relative to
-//! the best.
+//! the best. `history.rs` draws one workload across many runs.
 //!
-//! Look: framecost's own palette on a warm paper background; every design also has its own
-//! marker shape and line pattern, so the pictures read in grey print and with colour-vision
-//! deficiencies. Text uses the embedded DejaVu Sans (assets/fonts, Bitstream Vera licence),
-//! so nothing depends on installed fonts. A newcomer must know: everything here is drawn
-//! from saved results and their analysis, and drawing the same results twice gives the
-//! same files (no clock, no randomness).
+//! Look (`look.rs`): framecost's own palette on a warm paper background; every design also
+//! has its own marker shape and dash pattern (the dash phase runs on across a curve's
+//! vertices), so the pictures read in grey print and with colour-vision deficiencies. Every
+//! picture has the same frame: a title band on top, the plot, a legend band to its right
+//! (never over the data) and, when there is something to list, a numbered key below (the
+//! crossovers). Labels inside the plot go through a placer that keeps them apart. Ticks
+//! (`ticks.rs`) are round in the unit printed. Each SVG carries a `<title>` and a `<desc>`.
+//! Text uses the embedded DejaVu Sans (assets/fonts, Bitstream Vera licence), so nothing
+//! depends on installed fonts. Everything is drawn from saved results and their analysis,
+//! and drawing the same results twice gives the same files (no clock, no randomness).
+
+mod history;
+pub mod look;
+pub mod ticks;
+
+pub use history::{draw_history, history, short_run_id, spec_changes, RunMark};
+pub use look::INKS;
 
 use crate::analyse::WorkloadAnalysis;
-use crate::present::units::{bytes, rows_label_f, time_ns};
+use crate::present::units::{bytes_tick, size_label, time_tick};
 use crate::results::reader::WorkloadResults;
+use look::*;
+use plotters::coord::combinators::BindKeyPoints;
+
 use plotters::coord::Shift;
 use plotters::prelude::*;
 use std::path::{Path, PathBuf};
 
-/// Design colours (framecost's own), chosen to stay apart in lightness as well as hue.
-pub const INKS: [RGBColor; 6] = [
-    RGBColor(0x1f, 0x6e, 0x8c), // harbour blue
-    RGBColor(0xc8, 0x6b, 0x1e), // apricot
-    RGBColor(0x4e, 0x8f, 0x3a), // orchard green
-    RGBColor(0x8e, 0x3b, 0x7a), // plum
-    RGBColor(0x5c, 0x5c, 0x5c), // slate
-    RGBColor(0xb8, 0x9b, 0x1c), // straw
-];
-const PAPER: RGBColor = RGBColor(0xfb, 0xf9, 0xf4);
-const RULE: RGBColor = RGBColor(0xe4, 0xdf, 0xd3);
-const TEXT: RGBColor = RGBColor(0x26, 0x26, 0x26);
-const MUTED: RGBColor = RGBColor(0x8a, 0x84, 0x78);
-/// Line patterns per design: (dash, gap) in pixels; (0, 0) is solid.
-const PATTERNS: [(u32, u32); 6] = [(0, 0), (10, 4), (3, 3), (16, 5), (6, 2), (2, 6)];
 const SIZE: (u32, u32) = (960, 600);
-const FONT: &str = "sans-serif";
-
-fn ink(i: usize) -> RGBColor {
-    INKS[i % INKS.len()]
-}
+const TITLE_BAND: i32 = 44;
 
 /// Register the embedded font once (plotters' ab_glyph text needs it for every backend).
 fn ensure_font() {
     static ONCE: std::sync::Once = std::sync::Once::new();
     ONCE.call_once(|| {
-        let bytes: &'static [u8] = include_bytes!("../../assets/fonts/DejaVuSans.ttf");
+        let bytes: &'static [u8] = include_bytes!("../../../assets/fonts/DejaVuSans.ttf");
         let _ = plotters::style::register_font(FONT, FontStyle::Normal, bytes);
         let _ = plotters::style::register_font(FONT, FontStyle::Bold, bytes);
     });
-}
-
-type Res<T> = Result<T, String>;
-fn err<E: std::fmt::Display>(e: E) -> String {
-    e.to_string()
-}
-
-/// Draw a marker of design `i`'s shape.
-fn mark<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, at: (i32, i32), i: usize, filled: bool) -> Res<()> {
-    let c = ink(i);
-    let style = if filled { c.filled() } else { c.stroke_width(2) };
-    let (x, y) = at;
-    match i % 6 {
-        0 => area.draw(&Circle::new(at, 5, style)).map_err(err),
-        1 => area.draw(&Polygon::new(vec![(x, y - 6), (x + 6, y + 5), (x - 6, y + 5)], style)).map_err(err),
-        2 => area.draw(&Rectangle::new([(x - 5, y - 5), (x + 5, y + 5)], style)).map_err(err),
-        3 => area.draw(&Polygon::new(vec![(x, y - 7), (x + 6, y), (x, y + 7), (x - 6, y)], style)).map_err(err),
-        4 => {
-            area.draw(&PathElement::new(vec![(x - 5, y - 5), (x + 5, y + 5)], c.stroke_width(3))).map_err(err)?;
-            area.draw(&PathElement::new(vec![(x - 5, y + 5), (x + 5, y - 5)], c.stroke_width(3))).map_err(err)
-        }
-        _ => area.draw(&Polygon::new(vec![(x - 6, y - 5), (x + 6, y - 5), (x, y + 6)], style)).map_err(err),
-    }
-}
-
-/// A polyline in design `i`'s pattern, in pixel coordinates.
-fn pattern_line<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, pts: &[(i32, i32)], i: usize, width: u32, dashed: bool) -> Res<()> {
-    let (dash, gap) = if dashed { (7, 6) } else { PATTERNS[i % PATTERNS.len()] };
-    let style = ink(i).stroke_width(width);
-    if dash == 0 {
-        return area.draw(&PathElement::new(pts.to_vec(), style)).map_err(err);
-    }
-    // Walk the polyline and emit dashes.
-    for w in pts.windows(2) {
-        let (x0, y0) = (w[0].0 as f64, w[0].1 as f64);
-        let (x1, y1) = (w[1].0 as f64, w[1].1 as f64);
-        let len = ((x1 - x0).powi(2) + (y1 - y0).powi(2)).sqrt();
-        if len < 1e-9 {
-            continue;
-        }
-        let mut t = 0.0;
-        while t < len {
-            let t2 = (t + dash as f64).min(len);
-            let p = |s: f64| ((x0 + (x1 - x0) * s / len) as i32, (y0 + (y1 - y0) * s / len) as i32);
-            area.draw(&PathElement::new(vec![p(t), p(t2)], style)).map_err(err)?;
-            t = t2 + gap as f64;
-        }
-    }
-    Ok(())
-}
-
-/// One chart: log-log axes over rows × value, with its frame, grid and labels. Returns the
-/// plotting area's mapping closure inputs (ranges) via the chart context.
-macro_rules! log_chart {
-    ($root:expr, $title:expr, $x:expr, $y:expr, $ylabel:expr, $yfmt:expr) => {{
-        let mut chart = ChartBuilder::on($root)
-            .caption($title, (FONT, 22).into_font().color(&TEXT))
-            .margin(18)
-            .x_label_area_size(46)
-            .y_label_area_size(78)
-            .build_cartesian_2d($x.log_scale(), $y.log_scale())
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .light_line_style(RULE.mix(0.5))
-            .bold_line_style(RULE)
-            .axis_style(MUTED)
-            .label_style((FONT, 14).into_font().color(&TEXT))
-            .x_desc("rows")
-            .y_desc($ylabel)
-            .axis_desc_style((FONT, 15).into_font().color(&TEXT))
-            .x_label_formatter(&|v| rows_label_f(*v))
-            .y_label_formatter($yfmt)
-            .draw()
-            .map_err(err)?;
-        chart
-    }};
 }
 
 fn span(values: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
@@ -137,39 +55,100 @@ fn span(values: impl Iterator<Item = f64>) -> Option<(f64, f64)> {
     Some((lo / 1.6, hi * 1.6))
 }
 
-/// A legend box in the upper left: marker, line pattern and name per design.
-fn legend<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, names: &[String], extra: &[(&str, RGBColor, bool)]) -> Res<()> {
-    let x0 = 100;
-    let y0 = 62;
-    let rows = names.len() + extra.len();
-    let width = 14 + 58 + 10 + 8 * names.iter().map(|n| n.len()).chain(extra.iter().map(|e| e.0.len())).max().unwrap_or(8) as i32;
-    area.draw(&Rectangle::new([(x0 - 8, y0 - 12), (x0 + width, y0 + 22 * rows as i32 - 4)], PAPER.mix(0.92).filled()))
-        .map_err(err)?;
-    area.draw(&Rectangle::new([(x0 - 8, y0 - 12), (x0 + width, y0 + 22 * rows as i32 - 4)], RULE.stroke_width(1))).map_err(err)?;
-    for (i, n) in names.iter().enumerate() {
-        let y = y0 + 22 * i as i32;
-        pattern_line(area, &[(x0, y), (x0 + 46, y)], i, 2, false)?;
-        mark(area, (x0 + 23, y), i, true)?;
-        area.draw(&Text::new(n.clone(), (x0 + 58, y - 8), (FONT, 14).into_font().color(&TEXT))).map_err(err)?;
+/// The frame of a picture: title band, plot, legend band to the right, key band below.
+struct Frame {
+    chart: Zone,
+    legend: Zone,
+    key: Zone,
+}
+
+fn frame<DB: DrawingBackend>(root: &Area<DB>, title: &str, legend_rows: &[(Sample, String)], key_lines: usize) -> Res<Frame> {
+    let (w, h) = root.dim_in_pixel();
+    let (w, h) = (w as i32, h as i32);
+    let lw = legend_width(root, legend_rows);
+    let key_h = if key_lines == 0 { 0 } else { 14 + 18 * key_lines as i32 };
+    text(root, &fit_text(root, title, 20.0, w - 36), (18, 12), 20.0, TEXT)?;
+    Ok(Frame {
+        chart: Zone { x0: 0, y0: TITLE_BAND, x1: w - lw, y1: h - key_h },
+        legend: Zone { x0: w - lw, y0: TITLE_BAND + 10, x1: w - 6, y1: h - key_h - 10 },
+        key: Zone { x0: 18, y0: h - key_h, x1: w - 18, y1: h - 4 },
+    })
+}
+
+fn sub<DB: DrawingBackend>(root: &Area<DB>, r: Zone) -> Area<DB> {
+    root.clone().shrink((r.x0, r.y0), ((r.x1 - r.x0).max(1) as u32, (r.y1 - r.y0).max(1) as u32))
+}
+
+/// The numbered key below the plot: one line each.
+fn key<DB: DrawingBackend>(root: &Area<DB>, band: Zone, lines: &[String]) -> Res<()> {
+    if lines.is_empty() {
+        return Ok(());
     }
-    for (k, (label, color, dashed)) in extra.iter().enumerate() {
-        let y = y0 + 22 * (names.len() + k) as i32;
-        if *dashed {
-            for s in (0..46).step_by(10) {
-                area.draw(&PathElement::new(vec![(x0 + s, y), (x0 + s + 5, y)], color.stroke_width(2))).map_err(err)?;
-            }
-        } else {
-            area.draw(&PathElement::new(vec![(x0, y), (x0 + 46, y)], color.stroke_width(2))).map_err(err)?;
-        }
-        area.draw(&Text::new(label.to_string(), (x0 + 58, y - 8), (FONT, 14).into_font().color(&TEXT))).map_err(err)?;
+    root.draw(&PathElement::new(vec![(band.x0, band.y0 + 4), (band.x1, band.y0 + 4)], RULE.stroke_width(1))).map_err(err)?;
+    for (k, l) in lines.iter().enumerate() {
+        let y = band.y0 + 10 + 18 * k as i32;
+        text(root, &format!("{}", k + 1), (band.x0 + 4, y), 13.0, TEXT)?;
+        text(root, &fit_text(root, l, 13.0, band.x1 - band.x0 - 30), (band.x0 + 26, y), 13.0, TEXT)?;
     }
     Ok(())
 }
 
-/// Scaling curves: one picture per workload.
-pub fn scaling<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<()> {
+type LogAxis = plotters::coord::combinators::WithKeyPoints<plotters::coord::combinators::LogCoord<f64>>;
+type LogLog = Cartesian2d<LogAxis, LogAxis>;
+
+fn log_axis(lo: f64, hi: f64, (bold, light): (Vec<f64>, Vec<f64>)) -> LogAxis {
+    let c: plotters::coord::combinators::LogCoord<f64> = (lo..hi).log_scale().into();
+    c.with_key_points(bold).with_light_points(light)
+}
+
+/// A log-log chart over rows × value in `area`, with round ticks.
+fn log_chart<'a, DB: DrawingBackend>(
+    area: &'a Area<DB>,
+    x: (f64, f64),
+    y: (f64, f64),
+    y_desc: &str,
+    y_binary: bool,
+    y_fmt: &dyn Fn(&f64) -> String,
+) -> Res<ChartContext<'a, DB, LogLog>> {
+    let yt = if y_binary { ticks::binary(y.0, y.1) } else { ticks::decimal(y.0, y.1) };
+    let mut chart = ChartBuilder::on(area)
+        .margin_top(8)
+        .margin_right(18)
+        .margin_left(10)
+        .x_label_area_size(46)
+        .y_label_area_size(82)
+        .build_cartesian_2d(log_axis(x.0, x.1, ticks::decimal(x.0, x.1)), log_axis(y.0, y.1, yt))
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .light_line_style(RULE.mix(0.45))
+        .bold_line_style(RULE)
+        .axis_style(MUTED)
+        .label_style((FONT, 14).into_font().color(&TEXT))
+        .x_desc("rows")
+        .y_desc(y_desc)
+        .axis_desc_style((FONT, 15).into_font().color(&TEXT))
+        .x_label_formatter(&|v| size_label(*v))
+        .y_label_formatter(y_fmt)
+        .draw()
+        .map_err(err)?;
+    Ok(chart)
+}
+
+fn plot_rect<DB: DrawingBackend, CT: CoordTranslate>(c: &ChartContext<'_, DB, CT>) -> Zone {
+    let (xr, yr) = c.plotting_area().get_pixel_range();
+    Zone { x0: xr.start, y0: yr.start, x1: xr.end, y1: yr.end }
+}
+
+fn design_words(names: &[String]) -> String {
+    names.iter().enumerate().map(|(i, n)| format!("{n} ({})", look_words(i))).collect::<Vec<_>>().join("; ")
+}
+
+/// Scaling curves: one picture per workload. Returns the picture's description.
+pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<String> {
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
+    let fit_of = |d: &str| a.designs.iter().find(|x| x.design == d);
     let target = a.predict_at;
     let xs = w.points.iter().map(|p| p.rows as f64).chain(target.map(|t| t as f64));
     let ys = w
@@ -177,105 +156,140 @@ pub fn scaling<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadRes
         .iter()
         .flat_map(|p| {
             let m = p.measured.as_ref();
-            [
-                m.map(|m| m.median_ns),
-                m.and_then(|m| m.ci_low_ns),
-                m.and_then(|m| m.ci_high_ns),
-                p.skipped.as_ref().and_then(|s| s.predicted_ns),
-            ]
+            [m.map(|m| m.median_ns), m.and_then(|m| m.ci_low_ns), m.and_then(|m| m.ci_high_ns), p.skipped.as_ref().and_then(|s| s.predicted_ns)]
         })
         .flatten()
         .chain(a.designs.iter().filter_map(|d| d.prediction.as_ref().map(|p| p.median)));
+    let title = format!("{} — time per run as the rows grow", w.header.workload);
     let (Some((x0, x1)), Some((y0, y1))) = (span(xs), span(ys)) else {
-        return root.present().map_err(err);
+        text(&root, &title, (18, 12), 20.0, TEXT)?;
+        return root.present().map(|_| "No measured points to draw.".to_string()).map_err(err);
     };
-    let title = format!("{} — time per run", w.header.workload);
-    let chart = log_chart!(&root, title, (x0..x1), (y0..y1), "time per run", &|v: &f64| time_ns(*v));
-    let area = chart.plotting_area().strip_coord_spec();
-    let to_px = |c: &ChartContext<DB, _>, x: f64, y: f64| c.backend_coord(&(x, y));
-    let to_local = |p: (i32, i32)| {
-        let (ox, oy) = area.get_base_pixel();
-        (p.0 - ox, p.1 - oy)
-    };
+    let crossings: Vec<_> = a.crossovers.iter().filter(|c| (c.bounded || c.inside_measured) && c.rows > x0 && c.rows < x1).collect();
+    let key_lines: Vec<String> = crossings
+        .iter()
+        .map(|c| {
+            format!(
+                "{} becomes cheaper than {} at about {} rows (between {} and {})",
+                c.faster_above,
+                c.faster_below,
+                size_label(c.rows),
+                size_label(c.rows_low),
+                size_label(c.rows_high)
+            )
+        })
+        .collect();
+    let has_skipped = w.points.iter().any(|p| p.skipped.as_ref().is_some_and(|s| s.predicted_ns.is_some()));
+    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "measured median".into()));
+    rows.push((Sample::Interval, "its 95% interval".into()));
+    rows.push((Sample::Line { pattern: &[], width: 1, ink: TEXT, mark: None }, "fitted growth".into()));
+    if let Some(t) = target {
+        rows.push((Sample::Line { pattern: &[], width: 2, ink: tint(TEXT, 0.4), mark: Some(false) }, format!("fit continued to {}", size_label(t as f64))));
+    }
+    if has_skipped {
+        rows.push((Sample::Mark(false), "skipped: predicted cost".into()));
+    }
+    if !crossings.is_empty() {
+        rows.push((Sample::Ring, "curves cross (see below)".into()));
+    }
+    let f = frame(&root, &title, &rows, key_lines.len())?;
+    let chart_area = sub(&root, f.chart);
+    let chart = log_chart(&chart_area, (x0, x1), (y0, y1), "time per run", false, &|v: &f64| time_tick(*v))?;
+    let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
+    let plot = plot_rect(&chart);
+    let mut placer = Placer::new(plot);
+    let mut labels: Vec<(String, (i32, i32))> = Vec::new();
+    // Target: a faint rule.
+    if let Some(t) = target.filter(|&t| (t as f64) < x1) {
+        let (tx, _) = px(t as f64, y1);
+        pattern_line(&root, &[(tx, plot.y0), (tx, plot.y1)], &[2.0, 5.0], MUTED, 1)?;
+        labels.push((format!("target {}", size_label(t as f64)), (tx, plot.y0 + 4)));
+    }
     for (i, d) in designs.iter().enumerate() {
         let pts = w.design_points(d);
-        let measured: Vec<(f64, &crate::results::Measured)> =
-            pts.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m))).collect();
-        // Intervals of the median.
+        let measured: Vec<(f64, &crate::results::Measured)> = pts.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m))).collect();
         for (n, m) in &measured {
             if let (Some(lo), Some(hi)) = (m.ci_low_ns, m.ci_high_ns) {
-                let a0 = to_local(to_px(&chart, *n, lo.max(y0)));
-                let a1 = to_local(to_px(&chart, *n, hi.min(y1)));
-                area.draw(&PathElement::new(vec![a0, a1], ink(i).stroke_width(2))).map_err(err)?;
-                area.draw(&PathElement::new(vec![(a0.0 - 4, a0.1), (a0.0 + 4, a0.1)], ink(i).stroke_width(1))).map_err(err)?;
-                area.draw(&PathElement::new(vec![(a1.0 - 4, a1.1), (a1.0 + 4, a1.1)], ink(i).stroke_width(1))).map_err(err)?;
+                let a0 = px(*n, lo.max(y0));
+                let a1 = px(*n, hi.min(y1));
+                root.draw(&PathElement::new(vec![a0, a1], ink(i).stroke_width(2))).map_err(err)?;
+                root.draw(&PathElement::new(vec![(a0.0 - 4, a0.1), (a0.0 + 4, a0.1)], ink(i).stroke_width(1))).map_err(err)?;
+                root.draw(&PathElement::new(vec![(a1.0 - 4, a1.1), (a1.0 + 4, a1.1)], ink(i).stroke_width(1))).map_err(err)?;
             }
         }
-        // The fitted growth curve over the measured range, then continued (dashed) to the target.
-        if let Some(fit) = a.designs.get(i).and_then(|da| da.time.as_ref()) {
-            if let (Some(first), Some(last)) = (measured.first(), measured.last()) {
-                let f = |n: f64| fit.cost_at(n).unwrap_or(f64::NAN);
-                let curve = |from: f64, to: f64| -> Vec<(i32, i32)> {
-                    (0..=60)
-                        .map(|k| from * (to / from).powf(k as f64 / 60.0))
-                        .filter_map(|n| f(n).is_finite().then(|| (n, f(n).clamp(y0, y1))))
-                        .map(|(n, y)| to_local(to_px(&chart, n, y)))
-                        .collect()
-                };
-                pattern_line(&area, &curve(first.0, last.0), i, 1, false)?;
-                if let Some(t) = target {
-                    if t as f64 > last.0 {
-                        pattern_line(&area, &curve(last.0, t as f64), i, 2, true)?;
-                        if let Some(p) = a.designs.get(i).and_then(|da| da.prediction.as_ref()) {
-                            let c = to_local(to_px(&chart, t as f64, p.median.clamp(y0, y1)));
-                            mark(&area, c, i, false)?;
-                        }
-                    }
+        // The fitted growth curve over the measured range, then continued (faint) to the target.
+        if let (Some(fit), Some(first), Some(last)) = (fit_of(d).and_then(|da| da.time.as_ref()), measured.first(), measured.last()) {
+            let f = |n: f64| fit.cost_at(n).unwrap_or(f64::NAN);
+            let curve = |from: f64, to: f64| -> Vec<(i32, i32)> {
+                (0..=60)
+                    .map(|k| from * (to / from).powf(k as f64 / 60.0))
+                    .filter_map(|n| f(n).is_finite().then(|| (n, f(n).clamp(y0, y1))))
+                    .map(|(n, y)| px(n, y))
+                    .collect()
+            };
+            design_line(&root, &curve(first.0, last.0), i, 1, 1.0)?;
+            if let Some(t) = target.filter(|&t| t as f64 > last.0) {
+                design_line(&root, &curve(last.0, t as f64), i, 2, 0.4)?;
+                if let Some(p) = fit_of(d).and_then(|da| da.prediction.as_ref()) {
+                    let c = px(t as f64, p.median.clamp(y0, y1));
+                    draw_mark(&root, c, mark_of(i), tint(ink(i), 0.75), false)?;
+                    placer.reserve_point(c, 7);
                 }
             }
         }
-        // Measured medians, joined.
-        let line: Vec<(i32, i32)> = measured.iter().map(|(n, m)| to_local(to_px(&chart, *n, m.median_ns))).collect();
-        pattern_line(&area, &line, i, 2, false)?;
+        let line: Vec<(i32, i32)> = measured.iter().map(|(n, m)| px(*n, m.median_ns)).collect();
+        design_line(&root, &line, i, 2, 1.0)?;
         for p in &line {
-            mark(&area, *p, i, true)?;
+            mark(&root, *p, i, true)?;
+            placer.reserve_point(*p, 7);
         }
-        // Skipped points at their predicted cost, hollow.
         for p in pts.iter().filter(|p| p.skipped.is_some()) {
             if let Some(pred) = p.skipped.as_ref().and_then(|s| s.predicted_ns) {
-                let c = to_local(to_px(&chart, p.rows as f64, pred.clamp(y0, y1)));
-                mark(&area, c, i, false)?;
-                area.draw(&Text::new("skipped", (c.0 + 8, c.1 - 16), (FONT, 12).into_font().color(&MUTED))).map_err(err)?;
+                let c = px(p.rows as f64, pred.clamp(y0, y1));
+                mark(&root, c, i, false)?;
+                placer.reserve_point(c, 7);
+                labels.push(("skipped".into(), c));
             }
         }
     }
-    // Crossovers: a dotted vertical rule with the size.
-    for c in a.crossovers.iter().filter(|c| c.bounded || c.inside_measured) {
-        if c.rows > x0 && c.rows < x1 {
-            let top = to_local(to_px(&chart, c.rows, y1));
-            let bottom = to_local(to_px(&chart, c.rows, y0));
-            let mut y = top.1;
-            while y < bottom.1 {
-                area.draw(&PathElement::new(vec![(top.0, y), (top.0, (y + 3).min(bottom.1))], MUTED.stroke_width(1))).map_err(err)?;
-                y += 7;
-            }
-            let label = format!("{} overtakes {} ≈ {}", c.faster_above, c.faster_below, rows_label_f(c.rows));
-            area.draw(&Text::new(label, (top.0 + 6, top.1 + 6), (FONT, 12).into_font().color(&TEXT))).map_err(err)?;
-        }
+    // Crossovers: a ring on the faster design's fitted curve, numbered; the key says what it is.
+    let mut numbers = Vec::new();
+    for (k, c) in crossings.iter().enumerate() {
+        let y = fit_of(&c.faster_above).and_then(|da| da.time.as_ref()).and_then(|g| g.cost_at(c.rows)).filter(|v| v.is_finite()).unwrap_or(y0);
+        let at = px(c.rows, y.clamp(y0, y1));
+        ring(&root, at)?;
+        placer.reserve_point(at, 9);
+        numbers.push((format!("{}", k + 1), at));
     }
+    for (s, at) in numbers {
+        placer.place(&root, &s, at, 13.0, TEXT)?;
+    }
+    for (s, at) in labels {
+        placer.place(&root, &s, at, 12.0, MUTED)?;
+    }
+    legend(&root, f.legend, &rows)?;
+    key(&root, f.key, &key_lines)?;
+    root.present().map_err(err)?;
+    let mut desc = format!(
+        "Log-log chart of time per run against rows, from {} to {} rows. Designs: {}. Filled marks are measured medians with their 95% intervals, thin lines the fitted growth",
+        size_label(w.header.sizes.first().copied().unwrap_or(0) as f64),
+        size_label(w.header.sizes.last().copied().unwrap_or(0) as f64),
+        design_words(&designs)
+    );
     if let Some(t) = target {
-        let top = to_local(to_px(&chart, t as f64, y1));
-        area.draw(&Text::new(format!("target {}", rows_label_f(t as f64)), (top.0 - 80, top.1 + 6), (FONT, 12).into_font().color(&MUTED)))
-            .map_err(err)?;
+        desc += &format!("; faint lines continue each fit to the target of {} rows and end in a hollow mark", size_label(t as f64));
     }
-    let extra: Vec<(&str, RGBColor, bool)> = if target.is_some() { vec![("prediction to the target", MUTED, true)] } else { vec![] };
-    legend(&root, &designs, &extra)?;
-    root.present().map_err(err)
+    desc.push('.');
+    for (k, l) in key_lines.iter().enumerate() {
+        desc += &format!(" Crossing {}: {l}.", k + 1);
+    }
+    Ok(desc)
 }
 
-/// Memory curves: allocated bytes per run (solid) and peak live bytes (dashed) per design,
-/// beside the table's own estimated size.
-pub fn memory<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResults) -> Res<()> {
+/// Memory curves: allocated bytes per run (filled marks, thick) and peak live bytes (hollow
+/// marks, thin and faint) per design, beside the table's own estimated size (a pale band).
+pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<String> {
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
     let xs = w.points.iter().filter(|p| p.measured.is_some()).map(|p| p.rows as f64);
@@ -285,130 +299,157 @@ pub fn memory<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResu
         .filter_map(|p| p.measured.as_ref())
         .flat_map(|m| [m.alloc.bytes as f64, m.alloc.peak_live as f64])
         .chain(w.tables.iter().map(|t| t.table_bytes_estimate));
+    let title = format!("{} — memory per run", w.header.workload);
     let (Some((x0, x1)), Some((y0, y1))) = (span(xs), span(ys)) else {
-        return root.present().map_err(err);
+        text(&root, &title, (18, 12), 20.0, TEXT)?;
+        return root.present().map(|_| "No measured points to draw.".to_string()).map_err(err);
     };
-    let title = format!("{} — memory", w.header.workload);
-    let chart = log_chart!(&root, title, (x0..x1), (y0..y1), "bytes", &|v: &f64| bytes(*v));
-    let area = chart.plotting_area().strip_coord_spec();
-    let (ox, oy) = area.get_base_pixel();
-    let px = |c: &ChartContext<DB, _>, x: f64, y: f64| {
-        let p = c.backend_coord(&(x, y));
-        (p.0 - ox, p.1 - oy)
-    };
-    let table: Vec<(i32, i32)> = w.tables.iter().map(|t| px(&chart, t.rows as f64, t.table_bytes_estimate.max(y0))).collect();
-    let mut k = 0;
-    while k + 1 < table.len() {
-        area.draw(&PathElement::new(vec![table[k], table[k + 1]], TEXT.stroke_width(1))).map_err(err)?;
-        k += 1;
-    }
+    let table_ink = tint(MUTED, 0.45);
+    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "allocated per run".into()));
+    rows.push((Sample::Line { pattern: &[], width: 1, ink: tint(TEXT, 0.5), mark: Some(false) }, "peak live".into()));
+    rows.push((Sample::Line { pattern: &[], width: 6, ink: table_ink, mark: None }, "the table's own size".into()));
+    let f = frame(&root, &title, &rows, 0)?;
+    let chart_area = sub(&root, f.chart);
+    let chart = log_chart(&chart_area, (x0, x1), (y0, y1), "bytes", true, &|v: &f64| bytes_tick(*v))?;
+    let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
+    let mut tables: Vec<&crate::results::TableRecord> = w.tables.iter().filter(|t| t.table_bytes_estimate > 0.0 && (t.rows as f64) > x0 && (t.rows as f64) < x1).collect();
+    tables.sort_by_key(|t| t.rows);
+    tables.dedup_by_key(|t| t.rows);
+    let table: Vec<(i32, i32)> = tables.iter().map(|t| px(t.rows as f64, t.table_bytes_estimate.clamp(y0, y1))).collect();
+    pattern_line(&root, &table, &[], table_ink, 6)?;
     for (i, d) in designs.iter().enumerate() {
-        let pts: Vec<(f64, &crate::results::Measured)> =
-            w.design_points(d).iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m))).collect();
-        let alloc: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.alloc.bytes > 0).map(|(n, m)| px(&chart, *n, m.alloc.bytes as f64)).collect();
-        let peak: Vec<(i32, i32)> =
-            pts.iter().filter(|(_, m)| m.alloc.peak_live > 0).map(|(n, m)| px(&chart, *n, m.alloc.peak_live as f64)).collect();
-        pattern_line(&area, &alloc, i, 2, false)?;
-        for p in &alloc {
-            mark(&area, *p, i, true)?;
-        }
-        pattern_line(&area, &peak, i, 1, true)?;
+        let pts: Vec<(f64, &crate::results::Measured)> = w.design_points(d).iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m))).collect();
+        let alloc: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.alloc.bytes > 0).map(|(n, m)| px(*n, m.alloc.bytes as f64)).collect();
+        let peak: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.alloc.peak_live > 0).map(|(n, m)| px(*n, m.alloc.peak_live as f64)).collect();
+        design_line(&root, &peak, i, 1, 0.5)?;
         for p in &peak {
-            mark(&area, *p, i, false)?;
+            draw_mark(&root, *p, mark_of(i), tint(ink(i), 0.7), false)?;
+        }
+        design_line(&root, &alloc, i, 2, 1.0)?;
+        for p in &alloc {
+            mark(&root, *p, i, true)?;
         }
     }
-    legend(&root, &designs, &[("table's own size", TEXT, false), ("peak live (hollow, dashed)", MUTED, true)])?;
-    chart.plotting_area().present().map_err(err)
+    legend(&root, f.legend, &rows)?;
+    root.present().map_err(err)?;
+    Ok(format!(
+        "Log-log chart of bytes against rows. Designs: {}. Filled marks on thick lines are the bytes allocated per run; hollow marks on thin faint lines the peak of live bytes; the pale band is the table's own estimated size.",
+        design_words(&designs)
+    ))
 }
 
 /// Latency by percentile for each design at one size (from the samples).
-pub fn distribution<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResults, rows: u64) -> Res<()> {
+pub fn distribution<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, rows_at: u64) -> Res<String> {
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
-    let ys = designs
-        .iter()
-        .filter_map(|d| w.point(d, rows).and_then(|p| p.measured.as_ref()))
-        .flat_map(|m| m.samples_ns.iter().copied());
-    let Some((y0, y1)) = span(ys) else { return root.present().map_err(err) };
-    let mut chart = ChartBuilder::on(&root)
-        .caption(format!("{} — time per run by percentile at {} rows", w.header.workload, rows_label_f(rows as f64)), (FONT, 22).into_font().color(&TEXT))
-        .margin(18)
+    let ys = designs.iter().filter_map(|d| w.point(d, rows_at).and_then(|p| p.measured.as_ref())).flat_map(|m| m.samples_ns.iter().copied());
+    let title = format!("{} — time per run by percentile at {} rows", w.header.workload, size_label(rows_at as f64));
+    let Some((y0, y1)) = span(ys) else {
+        text(&root, &title, (18, 12), 20.0, TEXT)?;
+        return root.present().map(|_| "No samples to draw.".to_string()).map_err(err);
+    };
+    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    rows.push((Sample::Mark(true), "every twelfth sample".into()));
+    let f = frame(&root, &title, &rows, 0)?;
+    let chart_area = sub(&root, f.chart);
+    let mut chart = ChartBuilder::on(&chart_area)
+        .margin_top(8)
+        .margin_right(18)
+        .margin_left(10)
         .x_label_area_size(46)
-        .y_label_area_size(78)
-        .build_cartesian_2d(0f64..100f64, (y0..y1).log_scale())
+        .y_label_area_size(82)
+        .build_cartesian_2d(0f64..100f64, log_axis(y0, y1, ticks::decimal(y0, y1)))
         .map_err(err)?;
     chart
         .configure_mesh()
-        .light_line_style(RULE.mix(0.5))
+        .light_line_style(RULE.mix(0.45))
         .bold_line_style(RULE)
         .axis_style(MUTED)
         .label_style((FONT, 14).into_font().color(&TEXT))
-        .x_desc("percentile of samples")
+        .x_labels(11)
+        .x_desc("percentile of the samples")
         .y_desc("time per run")
         .axis_desc_style((FONT, 15).into_font().color(&TEXT))
         .x_label_formatter(&|v| format!("p{v:.0}"))
-        .y_label_formatter(&|v| time_ns(*v))
+        .y_label_formatter(&|v| time_tick(*v))
         .draw()
         .map_err(err)?;
-    let area = chart.plotting_area().strip_coord_spec();
-    let (ox, oy) = area.get_base_pixel();
     for (i, d) in designs.iter().enumerate() {
-        let Some(m) = w.point(d, rows).and_then(|p| p.measured.as_ref()) else { continue };
+        let Some(m) = w.point(d, rows_at).and_then(|p| p.measured.as_ref()) else { continue };
         let mut s = m.samples_ns.clone();
         s.sort_by(f64::total_cmp);
         let n = s.len();
         let pts: Vec<(i32, i32)> = s
             .iter()
             .enumerate()
-            .map(|(k, v)| {
-                let pct = if n == 1 { 50.0 } else { 100.0 * k as f64 / (n - 1) as f64 };
-                let p = chart.backend_coord(&(pct, *v));
-                (p.0 - ox, p.1 - oy)
-            })
+            .map(|(k, v)| chart.backend_coord(&(if n == 1 { 50.0 } else { 100.0 * k as f64 / (n - 1) as f64 }, *v)))
             .collect();
-        pattern_line(&area, &pts, i, 2, false)?;
+        design_line(&root, &pts, i, 2, 1.0)?;
         for p in pts.iter().step_by((n / 12).max(1)) {
-            mark(&area, *p, i, true)?;
+            mark(&root, *p, i, true)?;
         }
     }
-    legend(&root, &designs, &[])?;
-    root.present().map_err(err)
+    legend(&root, f.legend, &rows)?;
+    root.present().map_err(err)?;
+    Ok(format!(
+        "Each design's samples at {} rows, sorted: percentile across, time per run up (log scale). A flat line means steady runs; a rise at the right end means occasional slow runs. Designs: {}.",
+        size_label(rows_at as f64),
+        design_words(&designs)
+    ))
 }
 
 /// Each design's median over the best median at each size.
-pub fn ratios<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResults) -> Res<()> {
+pub fn ratios<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<String> {
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
     let xs = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).map(|c| c.rows as f64);
     let ys = w.comparisons.iter().flat_map(|c| c.ratios.iter().flat_map(|r| [Some(r.ratio), r.high]).flatten()).chain([1.0]);
+    let title = format!("{} — cost relative to the cheapest design", w.header.workload);
     let (Some((x0, x1)), Some((_, y1))) = (span(xs), span(ys)) else {
-        return root.present().map_err(err);
+        text(&root, &title, (18, 12), 20.0, TEXT)?;
+        return root.present().map(|_| "No sizes with two or more designs compared.".to_string()).map_err(err);
     };
-    let title = format!("{} — cost relative to the best design", w.header.workload);
-    let chart = log_chart!(&root, title, (x0..x1), (0.8..y1.max(2.0)), "× the best", &|v: &f64| format!("×{}", crate::present::units::short(*v)));
-    let area = chart.plotting_area().strip_coord_spec();
-    let (ox, oy) = area.get_base_pixel();
+    let rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    let f = frame(&root, &title, &rows, 0)?;
+    let chart_area = sub(&root, f.chart);
+    let chart = log_chart(&chart_area, (x0, x1), (0.8, y1.max(2.0)), "× the cheapest", false, &|v: &f64| format!("×{}", crate::present::units::short(*v)))?;
     for (i, d) in designs.iter().enumerate() {
         let pts: Vec<(i32, i32)> = w
             .comparisons
             .iter()
             .filter(|c| c.ratios.len() >= 2)
             .filter_map(|c| c.ratios.iter().find(|r| &r.design == d).map(|r| (c.rows as f64, r.ratio)))
-            .map(|(n, r)| {
-                let p = chart.backend_coord(&(n, r));
-                (p.0 - ox, p.1 - oy)
-            })
+            .map(|(n, r)| chart.backend_coord(&(n, r)))
             .collect();
-        pattern_line(&area, &pts, i, 2, false)?;
+        design_line(&root, &pts, i, 2, 1.0)?;
         for p in &pts {
-            mark(&area, *p, i, true)?;
+            mark(&root, *p, i, true)?;
         }
     }
-    legend(&root, &designs, &[])?;
-    root.present().map_err(err)
+    legend(&root, f.legend, &rows)?;
+    root.present().map_err(err)?;
+    Ok(format!(
+        "Log-log chart of each design's median time over the cheapest design's at each size (×1 is the cheapest). Designs: {}.",
+        design_words(&designs)
+    ))
 }
 
-/// The pictures of one workload, each as SVG and PNG in `dir`. Returns the SVG paths.
+/// Draw one picture as SVG (with its title and description) and PNG.
+fn both(dir: &Path, stem: &str, size: (u32, u32), title: &str, draw: impl Fn(Area<SVGBackend<'_>>) -> Res<String>, draw_png: impl Fn(Area<BitMapBackend<'_>>) -> Res<String>) -> Res<PathBuf> {
+    let svg_path = dir.join(format!("{stem}.svg"));
+    let png_path = dir.join(format!("{stem}.png"));
+    let mut text = String::new();
+    let desc = {
+        let root = SVGBackend::with_string(&mut text, size).into_drawing_area();
+        draw(root)?
+    };
+    write_svg(&svg_path, &titled_svg(&text, title, &desc))?;
+    write_png(&png_path, size, |root| draw_png(root).map(|_| ()))?;
+    Ok(svg_path)
+}
+
+/// The pictures of one workload, each as SVG and PNG in `dir`. Returns (title, SVG path).
 pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Vec<(String, PathBuf)>> {
     ensure_font();
     std::fs::create_dir_all(dir).map_err(err)?;
@@ -419,145 +460,20 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
     let all = w.header.designs.len();
     let count = |n: u64| w.header.designs.iter().filter(|d| w.point(&d.name, n).is_some_and(|p| p.measured.is_some())).count();
     let dist_rows = w.header.sizes.iter().rev().copied().find(|&n| count(n) == all).or_else(|| w.header.sizes.iter().rev().copied().find(|&n| count(n) >= 2));
+    let workload = crate::present::units::escaped(&w.header.workload).into_owned();
     let mut out = Vec::new();
-    macro_rules! both {
-        ($kind:expr, $title:expr, $f:expr) => {{
-            let svg_path = dir.join(format!("{name}-{}.svg", $kind));
-            let png_path = dir.join(format!("{name}-{}.png", $kind));
-            let mut text = String::new();
-            {
-                let root = SVGBackend::with_string(&mut text, SIZE).into_drawing_area();
-                $f(root)?;
-            }
-            write_svg(&svg_path, &text)?;
-            write_png(&png_path, SIZE, |root| $f(root))?;
-            out.push(($title.to_string(), svg_path));
-        }};
-    }
-    both!("scaling", "Time per run as the rows grow", |r| scaling(r, w, a));
-    both!("memory", "Allocated and peak live bytes", |r| memory(r, w));
+    let mut one = |kind: &str, title: String, svg: &dyn Fn(Area<SVGBackend<'_>>) -> Res<String>, png: &dyn Fn(Area<BitMapBackend<'_>>) -> Res<String>| -> Res<()> {
+        let p = both(dir, &format!("{name}-{kind}"), SIZE, &format!("{workload}: {title}"), svg, png)?;
+        out.push((title, p));
+        Ok(())
+    };
+    one("scaling", "Time per run as the rows grow".into(), &|r| scaling(r, w, a), &|r| scaling(r, w, a))?;
+    one("memory", "Allocated and peak live bytes".into(), &|r| memory(r, w), &|r| memory(r, w))?;
     if let Some(n) = dist_rows {
-        both!("distribution", format!("Time by percentile at {} rows", rows_label_f(n as f64)), |r| distribution(r, w, n));
+        one("distribution", format!("Time by percentile at {} rows", size_label(n as f64)), &|r| distribution(r, w, n), &|r| distribution(r, w, n))?;
     }
-    both!("ratios", "Cost relative to the best design", |r| ratios(r, w));
+    one("ratios", "Cost relative to the cheapest design".into(), &|r| ratios(r, w), &|r| ratios(r, w))?;
     Ok(out)
-}
-
-/// One workload across many runs: a panel per design, a line per size (darker for larger
-/// sizes), x = the runs in time order; ▲/▼ where the gate between consecutive runs found a
-/// regression or an improvement at that size.
-pub fn history<DB: DrawingBackend>(
-    root: DrawingArea<DB, Shift>,
-    workload: &str,
-    runs: &[(String, &WorkloadResults)],
-    changes: &[(usize, String, u64, bool)],
-) -> Res<()> {
-    ensure_font();
-    root.fill(&PAPER).map_err(err)?;
-    let mut designs: Vec<String> = Vec::new();
-    for (_, w) in runs {
-        for d in &w.header.designs {
-            if !designs.contains(&d.name) {
-                designs.push(d.name.clone());
-            }
-        }
-    }
-    let (title_area, body) = root.split_vertically(40);
-    title_area
-        .draw(&Text::new(format!("{workload} — time per run across {} runs", runs.len()), (18, 10), (FONT, 22).into_font().color(&TEXT)))
-        .map_err(err)?;
-    let cols = if designs.len() > 2 { 2 } else { 1 };
-    let rows = designs.len().div_ceil(cols).max(1);
-    let panels = body.split_evenly((rows, cols));
-    for (i, d) in designs.iter().enumerate() {
-        let Some(panel) = panels.get(i) else { break };
-        let mut sizes: Vec<u64> = runs.iter().flat_map(|(_, w)| w.design_points(d).into_iter().filter(|p| p.measured.is_some()).map(|p| p.rows)).collect();
-        sizes.sort_unstable();
-        sizes.dedup();
-        let ys = runs.iter().flat_map(|(_, w)| w.design_points(d).into_iter().filter_map(|p| p.measured.as_ref().map(|m| m.median_ns)));
-        let Some((y0, y1)) = span(ys) else { continue };
-        let n = runs.len().max(2) as f64;
-        let labels: Vec<String> = runs.iter().map(|(id, _)| id.clone()).collect();
-        let mut chart = ChartBuilder::on(panel)
-            .caption(d.clone(), (FONT, 15).into_font().color(&ink(i)))
-            .margin(10)
-            .x_label_area_size(30)
-            .y_label_area_size(64)
-            .build_cartesian_2d(-0.3f64..(n - 0.7), (y0..y1).log_scale())
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .light_line_style(RULE.mix(0.4))
-            .bold_line_style(RULE)
-            .axis_style(MUTED)
-            .label_style((FONT, 11).into_font().color(&TEXT))
-            .x_labels(runs.len().min(8))
-            .x_label_formatter(&|v| {
-                let k = v.round() as usize;
-                if (v - k as f64).abs() < 1e-6 { labels.get(k).map(|l| l.chars().skip(4).collect()).unwrap_or_default() } else { String::new() }
-            })
-            .y_label_formatter(&|v| time_ns(*v))
-            .draw()
-            .map_err(err)?;
-        let area = chart.plotting_area().strip_coord_spec();
-        let (ox, oy) = area.get_base_pixel();
-        for (k, &size) in sizes.iter().enumerate() {
-            let shade = 0.35 + 0.65 * (k + 1) as f64 / sizes.len() as f64;
-            let base = ink(i);
-            let c = RGBColor(
-                (255.0 - (255.0 - base.0 as f64) * shade) as u8,
-                (255.0 - (255.0 - base.1 as f64) * shade) as u8,
-                (255.0 - (255.0 - base.2 as f64) * shade) as u8,
-            );
-            let pts: Vec<(i32, i32)> = runs
-                .iter()
-                .enumerate()
-                .filter_map(|(r, (_, w))| w.point(d, size).and_then(|p| p.measured.as_ref()).map(|m| (r as f64, m.median_ns)))
-                .map(|(x, y)| {
-                    let p = chart.backend_coord(&(x, y));
-                    (p.0 - ox, p.1 - oy)
-                })
-                .collect();
-            area.draw(&PathElement::new(pts.clone(), c.stroke_width(2))).map_err(err)?;
-            for p in &pts {
-                area.draw(&Circle::new(*p, 3, c.filled())).map_err(err)?;
-            }
-            if let Some(last) = pts.last() {
-                area.draw(&Text::new(crate::spec::units::rows_label(size), (last.0 + 5, last.1 - 6), (FONT, 10).into_font().color(&MUTED)))
-                    .map_err(err)?;
-            }
-            for (r, _, _, worse) in changes.iter().filter(|c| &c.1 == d && c.2 == size) {
-                if let Some(m) = runs.get(*r).and_then(|(_, w)| w.point(d, size)).and_then(|p| p.measured.as_ref()) {
-                    let p = chart.backend_coord(&(*r as f64, m.median_ns));
-                    let (x, y) = (p.0 - ox, p.1 - oy);
-                    let (col, tri) = if *worse {
-                        (INKS[1], vec![(x, y - 14), (x + 7, y - 4), (x - 7, y - 4)])
-                    } else {
-                        (INKS[2], vec![(x, y + 14), (x + 7, y + 4), (x - 7, y + 4)])
-                    };
-                    area.draw(&Polygon::new(tri, col.filled())).map_err(err)?;
-                }
-            }
-        }
-    }
-    root.present().map_err(err)
-}
-
-/// Draw a history picture as SVG and PNG; returns the SVG path.
-pub fn draw_history(dir: &Path, workload: &str, runs: &[(String, &WorkloadResults)], changes: &[(usize, String, u64, bool)]) -> Res<PathBuf> {
-    ensure_font();
-    std::fs::create_dir_all(dir).map_err(err)?;
-    let stem = crate::results::writer::file_stem(workload);
-    let svg_path = dir.join(format!("{stem}-history.svg"));
-    let png_path = dir.join(format!("{stem}-history.png"));
-    let mut text = String::new();
-    {
-        let root = SVGBackend::with_string(&mut text, (1000, 720)).into_drawing_area();
-        history(root, workload, runs, changes)?;
-    }
-    write_svg(&svg_path, &text)?;
-    write_png(&png_path, (1000, 720), |root| history(root, workload, runs, changes))?;
-    Ok(svg_path)
 }
 
 /// Write an SVG by temp file and rename (never through an existing file or symlink).
@@ -566,7 +482,7 @@ fn write_svg(path: &Path, text: &str) -> Res<()> {
 }
 
 /// Draw a PNG into a fresh temp file beside `path`, then rename it over `path`.
-fn write_png(path: &Path, size: (u32, u32), draw: impl FnOnce(DrawingArea<BitMapBackend<'_>, plotters::coord::Shift>) -> Res<()>) -> Res<()> {
+fn write_png(path: &Path, size: (u32, u32), draw: impl FnOnce(DrawingArea<BitMapBackend<'_>, Shift>) -> Res<()>) -> Res<()> {
     let mut drawn: Res<()> = Ok(());
     let written = crate::results::writer::replace_with(path, |tmp| {
         drawn = draw(BitMapBackend::new(tmp, size).into_drawing_area());
