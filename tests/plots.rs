@@ -67,8 +67,8 @@ fn text_boxes(svg: &str) -> (Vec<TextBox>, f64, f64) {
     let (w, h) = (num(root.attribute("width")), num(root.attribute("height")));
     let mut out = Vec::new();
     for n in doc.descendants().filter(|n| n.has_tag_name("text")) {
-        let t = n.text().unwrap_or("").to_string();
-        if t.trim().is_empty() {
+        let t = n.text().unwrap_or("").trim().to_string();
+        if t.is_empty() {
             continue;
         }
         let em = num(n.attribute("font-size"));
@@ -145,13 +145,15 @@ fn points_of(n: roxmltree::Node<'_, '_>) -> Vec<(f64, f64)> {
         .collect()
 }
 
-/// The pieces (polylines) drawn in `ink` at `width`, in document order.
+/// The pieces (polylines) drawn in `ink` at `width`, in document order, leaving out the
+/// short level caps of interval bars.
 fn pieces(svg: &str, ink: &str, width: &str) -> Vec<Vec<(f64, f64)>> {
     let doc = roxmltree::Document::parse(svg).expect("svg");
     doc.descendants()
         .filter(|n| n.has_tag_name("polyline") && n.attribute("stroke").is_some_and(|s| s.eq_ignore_ascii_case(ink)) && n.attribute("stroke-width") == Some(width))
         .map(points_of)
         .filter(|p| p.len() >= 2)
+        .filter(|p| !(p.len() == 2 && p[0].1 == p[1].1 && (p[0].0 - p[1].0).abs() <= 8.0))
         .collect()
 }
 

@@ -369,10 +369,13 @@ pub fn legend<DB: DrawingBackend>(area: &Area<DB>, band: Zone, rows: &[(Sample, 
     Ok(())
 }
 
-/// The crossover mark: a dark ring on the paper.
-pub fn ring<DB: DrawingBackend>(area: &Area<DB>, at: (i32, i32)) -> Res<()> {
-    area.draw(&Circle::new(at, 7, TEXT.stroke_width(2))).map_err(err)?;
-    area.draw(&Circle::new(at, 2, TEXT.filled())).map_err(err)
+/// The crossover mark: a sight (a thin ring with four ticks), unlike any design's mark.
+pub fn ring<DB: DrawingBackend>(area: &Area<DB>, (x, y): (i32, i32)) -> Res<()> {
+    area.draw(&Circle::new((x, y), 7, TEXT.stroke_width(1))).map_err(err)?;
+    for (dx, dy) in [(1, 0), (-1, 0), (0, 1), (0, -1)] {
+        area.draw(&PathElement::new(vec![(x + 4 * dx, y + 4 * dy), (x + 11 * dx, y + 11 * dy)], TEXT.stroke_width(2))).map_err(err)?;
+    }
+    Ok(())
 }
 
 /// The widest words of a legend, so the band can be sized to them (within limits).

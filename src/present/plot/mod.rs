@@ -259,7 +259,7 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
         let y = fit_of(&c.faster_above).and_then(|da| da.time.as_ref()).and_then(|g| g.cost_at(c.rows)).filter(|v| v.is_finite()).unwrap_or(y0);
         let at = px(c.rows, y.clamp(y0, y1));
         ring(&root, at)?;
-        placer.reserve_point(at, 9);
+        placer.reserve_point(at, 12);
         numbers.push((format!("{}", k + 1), at));
     }
     for (s, at) in numbers {
