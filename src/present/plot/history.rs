@@ -43,6 +43,23 @@ pub fn short_run_id(id: &str) -> String {
     escaped(id).into_owned()
 }
 
+/// Axis labels for the runs: `12-02 10:30`, or `10:30:12` when two runs share a minute.
+fn run_labels(runs: &[(String, &WorkloadResults)]) -> Vec<String> {
+    let short: Vec<String> = runs.iter().map(|(id, _)| short_run_id(id)).collect();
+    let mut sorted = short.clone();
+    sorted.sort();
+    sorted.dedup();
+    if sorted.len() == short.len() {
+        return short;
+    }
+    runs.iter()
+        .map(|(id, _)| match id.split_once('-') {
+            Some((_, t)) if t.len() == 6 && t.bytes().all(|c| c.is_ascii_digit()) => format!("{}:{}:{}", &t[0..2], &t[2..4], &t[4..6]),
+            _ => escaped(id).into_owned(),
+        })
+        .collect()
+}
+
 const WIDTH: u32 = 1000;
 const LANE: i32 = 150;
 
@@ -100,14 +117,14 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
         let all: Vec<f64> = sizes.iter().flat_map(|&s| runs.iter().filter_map(move |(_, r)| rel(r, s))).collect();
         let lo = all.iter().copied().fold(1.0, f64::min).min(0.8) / 1.15;
         let hi = all.iter().copied().fold(1.0, f64::max).max(1.25) * 1.15;
-        let labels: Vec<String> = runs.iter().map(|(id, _)| short_run_id(id)).collect();
+        let labels = run_labels(runs);
         let mut chart = ChartBuilder::on(&lane)
-            .margin_top(10)
+            .margin_top(28)
             .margin_bottom(6)
             .margin_left(10)
             .margin_right(10)
             .x_label_area_size(if last_lane { 40 } else { 0 })
-            .y_label_area_size(150)
+            .y_label_area_size(70)
             .build_cartesian_2d(-0.4f64..(n - 0.6), log_axis(lo, hi, ticks::decimal(lo, hi)))
             .map_err(err)?;
         chart
@@ -126,10 +143,10 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
             .map_err(err)?;
         let (xr, yr) = chart.plotting_area().get_pixel_range();
         plot_x = (xr.start, xr.end);
-        // The lane's name, with the design's mark, left of the axis labels.
-        let name_box = Zone { x0: 12, y0: yr.start, x1: xr.start - 56, y1: yr.end };
-        mark(&root, (name_box.x0 + 8, name_box.y0 + 12), i, true)?;
-        text(&root, &fit_text(&root, &escaped(d), 14.0, name_box.x1 - name_box.x0 - 22), (name_box.x0 + 20, name_box.y0 + 4), 14.0, TEXT)?;
+        // The lane's name, with the design's mark, in the lane's head.
+        let head = top + LANE * i as i32 + 6;
+        mark(&root, (26, head + 8), i, true)?;
+        text(&root, &fit_text(&root, &escaped(d), 14.0, w - right - 60), (40, head), 14.0, TEXT)?;
         let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
         let mut latest = Vec::new();
         for (k, &size) in sizes.iter().enumerate() {

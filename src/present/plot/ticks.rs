@@ -42,7 +42,7 @@ pub fn decimal(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
 }
 
 /// Powers of two within `[lo, hi]`, every `step`-th (aligned so the steps land on 1 KiB,
-/// 1 MiB...), at most eight. Returns (labelled ticks, grid-only ticks).
+/// 1 MiB...), at most ten. Returns (labelled ticks, grid-only ticks).
 pub fn binary(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
     if !(lo > 0.0 && hi > lo && lo.is_finite() && hi.is_finite()) {
         return (vec![], vec![]);
@@ -50,9 +50,9 @@ pub fn binary(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
     let k0 = lo.log2().ceil() as i32;
     let k1 = hi.log2().floor() as i32;
     let grid: Vec<f64> = (k0..=k1).map(|k| 2f64.powi(k)).collect();
-    for step in [1, 2, 5, 10, 20] {
+    for step in [1, 2, 3, 5, 10, 20] {
         let t: Vec<f64> = (k0..=k1).filter(|k| k.rem_euclid(step) == 0).map(|k| 2f64.powi(k)).collect();
-        if t.len() <= 8 && !t.is_empty() {
+        if t.len() <= 10 && !t.is_empty() {
             return (t, grid);
         }
     }
