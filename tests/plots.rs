@@ -134,6 +134,30 @@ fn text_never_overlaps_and_stays_inside() {
     }
 }
 
+#[test]
+fn long_design_names_stay_apart_too() {
+    // The same run with every design renamed to a long name: the legend and the key shorten
+    // what does not fit ("…") instead of running into the plot or off the picture.
+    let tmp = tempfile::tempdir().expect("tempdir");
+    let run = tmp.path().join("long");
+    std::fs::create_dir_all(&run).expect("dir");
+    let mut text = std::fs::read_to_string("tests/data/plots/row-growth/points.jsonl").expect("fixture");
+    for d in ["one-at-a-time", "batches-of-256", "chunks-merged-once", "chunks-left", "extend-in-place", "build-once"] {
+        text = text.replace(&format!("\"{d}\""), &format!("\"{d}-with-a-name-far-longer-than-a-legend-has-room-for\""));
+    }
+    std::fs::write(run.join("points.jsonl"), text).expect("write");
+    let out = tmp.path().join("report");
+    let o = framecost().arg("report").arg(&run).arg("--out").arg(&out).output().expect("runs");
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let all = svgs(&out.join("pictures"));
+    assert_eq!(all.len(), 4);
+    for p in &all {
+        assert_text_apart(p);
+        let svg = std::fs::read_to_string(p).expect("svg");
+        assert!(svg.contains('…'), "{}: nothing was shortened", p.display());
+    }
+}
+
 // ---------------------------------------------------------------------------------------
 // Dashes.
 

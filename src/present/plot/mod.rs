@@ -23,7 +23,7 @@ pub use history::{draw_history, history, short_run_id, spec_changes, RunMark};
 pub use look::INKS;
 
 use crate::analyse::WorkloadAnalysis;
-use crate::present::units::{bytes_tick, size_label, time_tick};
+use crate::present::units::{bytes_tick, escaped, size_label, time_tick};
 use crate::results::reader::WorkloadResults;
 use look::*;
 use plotters::coord::combinators::BindKeyPoints;
@@ -141,7 +141,7 @@ fn plot_rect<DB: DrawingBackend, CT: CoordTranslate>(c: &ChartContext<'_, DB, CT
 }
 
 fn design_words(names: &[String]) -> String {
-    names.iter().enumerate().map(|(i, n)| format!("{n} ({})", look_words(i))).collect::<Vec<_>>().join("; ")
+    names.iter().enumerate().map(|(i, n)| format!("{} ({})", escaped(n), look_words(i))).collect::<Vec<_>>().join("; ")
 }
 
 /// Scaling curves: one picture per workload. Returns the picture's description.
@@ -160,7 +160,7 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
         })
         .flatten()
         .chain(a.designs.iter().filter_map(|d| d.prediction.as_ref().map(|p| p.median)));
-    let title = format!("{} — time per run as the rows grow", w.header.workload);
+    let title = format!("{} — time per run as the rows grow", escaped(&w.header.workload));
     let (Some((x0, x1)), Some((y0, y1))) = (span(xs), span(ys)) else {
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No measured points to draw.".to_string()).map_err(err);
@@ -169,18 +169,19 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
     let key_lines: Vec<String> = crossings
         .iter()
         .map(|c| {
+            // The size first, so a line shortened to fit still says where.
             format!(
-                "{} becomes cheaper than {} at about {} rows (between {} and {})",
-                c.faster_above,
-                c.faster_below,
+                "at about {} rows (between {} and {}), {} becomes cheaper than {}",
                 size_label(c.rows),
                 size_label(c.rows_low),
-                size_label(c.rows_high)
+                size_label(c.rows_high),
+                escaped(&c.faster_above),
+                escaped(&c.faster_below)
             )
         })
         .collect();
     let has_skipped = w.points.iter().any(|p| p.skipped.as_ref().is_some_and(|s| s.predicted_ns.is_some()));
-    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "measured median".into()));
     rows.push((Sample::Interval, "its 95% interval".into()));
     rows.push((Sample::Line { pattern: &[], width: 1, ink: TEXT, mark: None }, "fitted growth".into()));
@@ -299,13 +300,13 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
         .filter_map(|p| p.measured.as_ref())
         .flat_map(|m| [m.alloc.bytes as f64, m.alloc.peak_live as f64])
         .chain(w.tables.iter().map(|t| t.table_bytes_estimate));
-    let title = format!("{} — memory per run", w.header.workload);
+    let title = format!("{} — memory per run", escaped(&w.header.workload));
     let (Some((x0, x1)), Some((y0, y1))) = (span(xs), span(ys)) else {
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No measured points to draw.".to_string()).map_err(err);
     };
     let table_ink = tint(MUTED, 0.45);
-    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "allocated per run".into()));
     rows.push((Sample::Line { pattern: &[], width: 1, ink: tint(TEXT, 0.5), mark: Some(false) }, "peak live".into()));
     rows.push((Sample::Line { pattern: &[], width: 6, ink: table_ink, mark: None }, "the table's own size".into()));
@@ -344,12 +345,12 @@ pub fn distribution<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, row
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
     let ys = designs.iter().filter_map(|d| w.point(d, rows_at).and_then(|p| p.measured.as_ref())).flat_map(|m| m.samples_ns.iter().copied());
-    let title = format!("{} — time per run by percentile at {} rows", w.header.workload, size_label(rows_at as f64));
+    let title = format!("{} — time per run by percentile at {} rows", escaped(&w.header.workload), size_label(rows_at as f64));
     let Some((y0, y1)) = span(ys) else {
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No samples to draw.".to_string()).map_err(err);
     };
-    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     rows.push((Sample::Mark(true), "every twelfth sample".into()));
     let f = frame(&root, &title, &rows, 0)?;
     let chart_area = sub(&root, f.chart);
@@ -405,12 +406,12 @@ pub fn ratios<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
     let xs = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).map(|c| c.rows as f64);
     let ys = w.comparisons.iter().flat_map(|c| c.ratios.iter().flat_map(|r| [Some(r.ratio), r.high]).flatten()).chain([1.0]);
-    let title = format!("{} — cost relative to the cheapest design", w.header.workload);
+    let title = format!("{} — cost relative to the cheapest design", escaped(&w.header.workload));
     let (Some((x0, x1)), Some((_, y1))) = (span(xs), span(ys)) else {
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No sizes with two or more designs compared.".to_string()).map_err(err);
     };
-    let rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), d.clone())).collect();
+    let rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     let f = frame(&root, &title, &rows, 0)?;
     let chart_area = sub(&root, f.chart);
     let chart = log_chart(&chart_area, (x0, x1), (0.8, y1.max(2.0)), "× the cheapest", false, &|v: &f64| format!("×{}", crate::present::units::short(*v)))?;
