@@ -2,13 +2,13 @@
 //! shared axis of runs (in time order). In a lane each measured size is a line of the design's
 //! ink, paler for smaller sizes, showing time per run relative to that size's first run (×1),
 //! so a change at any size shows as a step whatever its absolute cost; a column at the right
-//! of each lane gives each size's latest time. ▲ above a point: the gate between that run
+//! of each lane gives each size's first and latest time. ▲ above a point: the gate between that run
 //! and the one before called this size slower; ▽ below: faster. A numbered rule between two
 //! runs: the workload file changed there (its spec hash differs), listed in a key below.
 
 use super::look::*;
 use super::{ensure_font, key, log_axis, ticks, write_png, write_svg};
-use crate::present::units::{escaped, size_label, time_ns, time_tick};
+use crate::present::units::{escaped, size_label, time_ns};
 use crate::results::reader::WorkloadResults;
 use plotters::prelude::*;
 use std::path::{Path, PathBuf};
@@ -95,9 +95,9 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
         .collect();
     let key_h = if key_lines.is_empty() { 0 } else { 14 + 18 * key_lines.len() as i32 };
     text(&root, &fit_text(&root, &format!("{} — time per run across {} runs", escaped(workload), runs.len()), 20.0, w - 36), (18, 12), 20.0, TEXT)?;
-    text(&root, "each line is one size, relative to its first run (×1); latest times at the right", (18, 44), 12.0, MUTED)?;
+    text(&root, "each line is one size, relative to its first run (×1); first → latest time at the right", (18, 44), 12.0, MUTED)?;
     let top = 68;
-    let right = 170; // the column of latest times
+    let right = 200; // the column of first and latest times
     let n = runs.len().max(2) as f64;
     let lanes_bottom = top + LANE * designs.len().max(1) as i32;
     let mut plot_x = (0, 0);
@@ -169,23 +169,24 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
                 }
             }
             if let Some(m) = runs.iter().rev().find_map(|(_, r)| r.point(d, size).and_then(|p| p.measured.as_ref())) {
-                latest.push((size, m.median_ns, c));
+                latest.push((size, first_of(size).unwrap_or(m.median_ns), m.median_ns, c));
             }
         }
         // The column of latest times, largest size first; as many as fit the lane.
         let col_x = w - right + 8;
         let fits = ((yr.end - yr.start) / 16).max(1) as usize;
-        let shown: Vec<&(u64, f64, RGBColor)> = latest.iter().rev().take(fits).collect();
-        for (k, (size, ns, c)) in shown.iter().enumerate() {
+        let shown: Vec<&(u64, f64, f64, RGBColor)> = latest.iter().rev().take(fits).collect();
+        for (k, (size, first, ns, c)) in shown.iter().enumerate() {
             let y = yr.start + 16 * k as i32;
             root.draw(&Rectangle::new([(col_x, y + 3), (col_x + 14, y + 11)], c.filled())).map_err(err)?;
-            text(&root, &format!("{}: {}", size_label(*size as f64), time_ns(*ns)), (col_x + 20, y), 12.0, TEXT)?;
+            let words = format!("{}: {} → {}", size_label(*size as f64), time_ns(*first), time_ns(*ns));
+            text(&root, &fit_text(&root, &words, 12.0, right - 32), (col_x + 20, y), 12.0, TEXT)?;
         }
         desc_lanes.push(format!(
             "{} ({}): {}",
             escaped(d),
             look_words(i),
-            latest.iter().rev().map(|(s, ns, _)| format!("{} rows {}", size_label(*s as f64), time_tick(*ns))).collect::<Vec<_>>().join(", ")
+            latest.iter().rev().map(|(s, first, ns, _)| format!("{} rows {} first, {} latest", size_label(*s as f64), time_ns(*first), time_ns(*ns))).collect::<Vec<_>>().join(", ")
         ));
         // Lane separator.
         if !last_lane {
@@ -218,7 +219,7 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
     key(&root, Zone { x0: 18, y0: h - key_h, x1: w - 18, y1: h - 4 }, &key_lines)?;
     root.present().map_err(err)?;
     let mut desc = format!(
-        "Time per run of workload {} across {} runs, one lane per design; each line is one size relative to its first run. Latest times: {}.",
+        "Time per run of workload {} across {} runs, one lane per design; each line is one size relative to its first run. Times: {}.",
         escaped(workload),
         runs.len(),
         desc_lanes.join("; ")
