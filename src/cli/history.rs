@@ -5,9 +5,8 @@
 //! (the spec hash in the workload header differs from the run before) are marked in both.
 
 use crate::present::plot::{spec_changes, RunMark};
-use crate::present::units::escaped;
+use crate::present::units::{escaped, size_label};
 use crate::results::reader::RunResults;
-use crate::spec::units::rows_label;
 use crate::track::gate::{compare, Call, GateOptions};
 use std::path::PathBuf;
 
@@ -99,7 +98,7 @@ pub fn run(a: Args) -> i32 {
                 );
             }
             for m in marks.iter().filter(|m| m.run == k) {
-                println!("  run {}: {} at {} rows {}", escaped(&series[k].0), escaped(&m.design), rows_label(m.rows), if m.worse { "got slower" } else { "got faster" });
+                println!("  run {}: {} at {} rows {}", escaped(&series[k].0), escaped(&m.design), size_label(m.rows as f64), if m.worse { "got slower" } else { "got faster" });
             }
         }
     }

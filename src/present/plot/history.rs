@@ -61,12 +61,16 @@ fn run_labels(runs: &[(String, &WorkloadResults)]) -> Vec<String> {
 }
 
 const WIDTH: u32 = 1000;
-const LANE: i32 = 150;
+/// Lanes are at least this tall; the picture is at least 720 pixels tall (lanes share it).
+const MIN_LANE: i32 = 110;
+const MIN_HEIGHT: i32 = 720;
+/// Everything but the lanes: title and subtitle (68), the run axis (40), the note line (44).
+const FIXED: i32 = 68 + 40 + 44;
 
 /// The picture's height for `designs` lanes and `changes` key lines.
 pub fn history_size(designs: usize, changes: usize) -> (u32, u32) {
     let key_h = if changes == 0 { 0 } else { 14 + 18 * changes as i32 };
-    (WIDTH, (44 + 24 + LANE * designs.max(1) as i32 + 40 + 44 + key_h) as u32)
+    (WIDTH, (FIXED + MIN_LANE * designs.max(1) as i32 + key_h).max(MIN_HEIGHT) as u32)
 }
 
 fn designs_of(runs: &[(String, &WorkloadResults)]) -> Vec<String> {
@@ -99,12 +103,13 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
     let top = 68;
     let right = 200; // the column of first and latest times
     let n = runs.len().max(2) as f64;
-    let lanes_bottom = top + LANE * designs.len().max(1) as i32;
+    let lane_h = ((h - FIXED - key_h) / designs.len().max(1) as i32).max(MIN_LANE);
+    let lanes_bottom = top + lane_h * designs.len().max(1) as i32;
     let mut plot_x = (0, 0);
     let mut desc_lanes = Vec::new();
     for (i, d) in designs.iter().enumerate() {
         let last_lane = i + 1 == designs.len();
-        let lane = root.clone().shrink((0, top + LANE * i as i32), ((w - right) as u32, (LANE + if last_lane { 40 } else { 0 }) as u32));
+        let lane = root.clone().shrink((0, top + lane_h * i as i32), ((w - right) as u32, (lane_h + if last_lane { 40 } else { 0 }) as u32));
         let mut sizes: Vec<u64> = runs.iter().flat_map(|(_, r)| r.design_points(d).into_iter().filter(|p| p.measured.is_some()).map(|p| p.rows)).collect();
         sizes.sort_unstable();
         sizes.dedup();
@@ -144,7 +149,7 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
         let (xr, yr) = chart.plotting_area().get_pixel_range();
         plot_x = (xr.start, xr.end);
         // The lane's name, with the design's mark, in the lane's head.
-        let head = top + LANE * i as i32 + 6;
+        let head = top + lane_h * i as i32 + 6;
         mark(&root, (26, head + 8), i, true)?;
         text(&root, &fit_text(&root, &escaped(d), 14.0, w - right - 60), (40, head), 14.0, TEXT)?;
         let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
@@ -190,7 +195,7 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
         ));
         // Lane separator.
         if !last_lane {
-            root.draw(&PathElement::new(vec![(12, top + LANE * (i as i32 + 1)), (w - 12, top + LANE * (i as i32 + 1))], RULE.stroke_width(1))).map_err(err)?;
+            root.draw(&PathElement::new(vec![(12, top + lane_h * (i as i32 + 1)), (w - 12, top + lane_h * (i as i32 + 1))], RULE.stroke_width(1))).map_err(err)?;
         }
     }
     // Workload-file changes: a numbered rule between the two runs, across every lane.

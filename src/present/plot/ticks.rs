@@ -3,7 +3,7 @@
 //! so every label reads as a round number.
 
 /// 1, 2, 5 × 10^k within `[lo, hi]`; only 1 × 10^k when that gives too many, and 1-2-3-5
-/// when the range is under a decade. Returns (labelled ticks, grid-only ticks).
+/// or finer round steps when the range is under a decade. Returns (labelled ticks, grid-only ticks).
 pub fn decimal(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
     if !(lo > 0.0 && hi > lo && lo.is_finite() && hi.is_finite()) {
         return (vec![], vec![]);
@@ -38,7 +38,12 @@ pub fn decimal(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
         let t: Vec<f64> = ones.iter().copied().enumerate().filter(|(k, _)| k % step == 0).map(|(_, v)| v).collect();
         return (t, ones);
     }
-    (all(&[1.0, 2.0, 3.0, 5.0]), grid)
+    let t = all(&[1.0, 2.0, 3.0, 5.0]);
+    if t.len() >= 2 {
+        return (t, grid);
+    }
+    // Under a factor of about three: finer steps, still round (0.8, 0.9, 1, 1.2, 1.5).
+    (all(&[1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0]), grid)
 }
 
 /// Powers of two within `[lo, hi]`, every `step`-th (aligned so the steps land on 1 KiB,
