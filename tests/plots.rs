@@ -277,6 +277,43 @@ fn ticks_are_round_in_the_unit_printed() {
 }
 
 #[test]
+fn tick_choice_is_round_for_any_range() {
+    use framecost::present::plot::ticks::{binary, decimal};
+    use framecost::present::units::{bytes_tick, time_tick};
+    // Byte ranges from a few hundred bytes to terabytes: every tick a power of two, so its
+    // binary label is a whole number (IEC 80000-13 prefixes: KiB = 2^10 B, MiB = 2^20 B).
+    let mut lo = 300.0;
+    while lo < 1e12 {
+        for spread in [3.0, 40.0, 1e3, 1e6] {
+            let (t, _) = binary(lo, lo * spread);
+            assert!(!t.is_empty() && t.len() <= 10, "{lo} ×{spread}: {t:?}");
+            for v in &t {
+                assert!(v.log2().fract() == 0.0, "{v} is not a power of two");
+                let label = bytes_tick(*v);
+                let number: f64 = label.split(' ').next().unwrap().parse().expect("number");
+                assert!(number.fract() == 0.0, "{v} prints as {label}");
+            }
+        }
+        lo *= 7.3;
+    }
+    // Time ranges from nanoseconds to hours: 1-2-5 steps (or finer round ones), printed
+    // with at most one decimal.
+    let mut lo = 3.0;
+    while lo < 1e11 {
+        for spread in [1.5, 4.0, 90.0, 1e5] {
+            let (t, _) = decimal(lo, lo * spread);
+            assert!(t.len() >= 2 && t.len() <= 12, "{lo} ×{spread}: {t:?}");
+            for v in &t {
+                let label = time_tick(*v);
+                let number: f64 = label.split(' ').next().unwrap().parse().expect("number");
+                assert!(((number * 10.0).round() - number * 10.0).abs() < 1e-9, "{v} prints as {label}");
+            }
+        }
+        lo *= 5.9;
+    }
+}
+
+#[test]
 fn every_picture_has_a_title_and_a_description() {
     let tmp = tempfile::tempdir().expect("tempdir");
     let pics = recorded_pictures(tmp.path());

@@ -183,9 +183,17 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
     let has_skipped = w.points.iter().any(|p| p.skipped.as_ref().is_some_and(|s| s.predicted_ns.is_some()));
     let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "measured median".into()));
-    rows.push((Sample::Interval, "its 95% interval".into()));
-    rows.push((Sample::Line { pattern: &[], width: 1, ink: TEXT, mark: None }, "fitted growth".into()));
-    if let Some(t) = target {
+    // Only what the picture shows gets a legend row.
+    let has_interval = w.points.iter().filter_map(|p| p.measured.as_ref()).any(|m| m.ci_low_ns.is_some() && m.ci_high_ns.is_some());
+    let fitted = |d: &str| fit_of(d).is_some_and(|da| da.time.is_some()) && w.design_points(d).iter().filter(|p| p.measured.is_some()).count() >= 1;
+    let has_fit = designs.iter().any(|d| fitted(d));
+    if has_interval {
+        rows.push((Sample::Interval, "its 95% interval".into()));
+    }
+    if has_fit {
+        rows.push((Sample::Line { pattern: &[], width: 1, ink: TEXT, mark: None }, "fitted growth".into()));
+    }
+    if let Some(t) = target.filter(|_| has_fit) {
         rows.push((Sample::Line { pattern: &[], width: 2, ink: tint(TEXT, 0.4), mark: Some(false) }, format!("fit continued to {}", size_label(t as f64))));
     }
     if has_skipped {

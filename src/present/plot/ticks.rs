@@ -42,8 +42,16 @@ pub fn decimal(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
     if t.len() >= 2 {
         return (t, grid);
     }
-    // Under a factor of about three: finer steps, still round (0.8, 0.9, 1, 1.2, 1.5).
-    (all(&[1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0]), grid)
+    // Under a factor of about three: finer steps, still round (0.8, 0.9, 1, 1.2, 1.5), and
+    // for a very narrow range steps of a tenth of the leading digit (1.3, 1.4, 1.5).
+    let t = all(&[1.0, 1.2, 1.5, 2.0, 2.5, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0]);
+    if t.len() >= 2 {
+        return (t, grid);
+    }
+    let tenths: Vec<f64> = (10..100).map(|k| k as f64 / 10.0).collect();
+    let t = all(&tenths);
+    let step = t.len().div_ceil(10).max(1);
+    (t.into_iter().enumerate().filter(|(k, _)| k % step == 0).map(|(_, v)| v).collect(), grid)
 }
 
 /// Powers of two within `[lo, hi]`, every `step`-th (aligned so the steps land on 1 KiB,
