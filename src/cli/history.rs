@@ -88,17 +88,17 @@ pub fn run(a: Args) -> i32 {
         // In run order: where the workload file changed (its spec hash differs from the run
         // before), then what the gate found at that run.
         let edits = spec_changes(&series);
-        for k in 1..series.len() {
+        for (k, (id, _)) in series.iter().enumerate().skip(1) {
             if let Some((_, old, new)) = edits.iter().find(|e| e.0 == k) {
                 println!(
                     "  run {}: workload file changed (spec {} → {}); changes across it may come from the edit",
-                    escaped(&series[k].0),
+                    escaped(id),
                     escaped(&old.chars().take(8).collect::<String>()),
                     escaped(&new.chars().take(8).collect::<String>())
                 );
             }
             for m in marks.iter().filter(|m| m.run == k) {
-                println!("  run {}: {} at {} rows {}", escaped(&series[k].0), escaped(&m.design), size_label(m.rows as f64), if m.worse { "got slower" } else { "got faster" });
+                println!("  run {}: {} at {} rows {}", escaped(id), escaped(&m.design), size_label(m.rows as f64), if m.worse { "got slower" } else { "got faster" });
             }
         }
     }

@@ -233,7 +233,8 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
             let curve = |from: f64, to: f64| -> Vec<(i32, i32)> {
                 (0..=60)
                     .map(|k| from * (to / from).powf(k as f64 / 60.0))
-                    .filter_map(|n| f(n).is_finite().then(|| (n, f(n).clamp(y0, y1))))
+                    .filter(|n| f(*n).is_finite())
+                    .map(|n| (n, f(n).clamp(y0, y1)))
                     .map(|(n, y)| px(n, y))
                     .collect()
             };
