@@ -655,11 +655,12 @@ fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weights: &[f64],
     let max_n = sizes.iter().copied().fold(f64::MIN, f64::max);
     let total = curve_at(&terms, max_n);
     let share = terms.last().map_or(0.0, |(t, c)| c * t.at(max_n)) / total;
-    // A large fixed cost (a process's start-up, say) flattens the top of a growing curve
+    // A large fixed cost (a process's start-up, say) flattens the top of a linear curve
     // below the class's usual slopes: such a fit is still admitted when its own curve
-    // bends the same way over the same sizes and its leading term carries a real share.
+    // bends the same way over the same sizes and its per-row term carries a real share.
+    // Only for n: a constant plus a steeper term could mimic any late jump.
     let flattened = top_slope < lo
-        && class.rank() >= GrowthClass::Linear.rank()
+        && class == GrowthClass::Linear
         && a > 0.0
         && share >= LEADING_SHARE_MIN
         && model_top_slope(&terms, sizes).is_some_and(|m| (m - top_slope).abs() <= MODEL_SLOPE_TOLERANCE);

@@ -125,7 +125,7 @@ pub fn number_first(s: &str) -> String {
 /// none at all; every built-in or SQL design allocates at least its output table.
 pub fn counts_allocations(w: &WorkloadResults, design: &str) -> bool {
     let pts: Vec<_> = w.design_points(design).into_iter().filter_map(|p| p.measured.as_ref()).collect();
-    pts.is_empty() || pts.iter().any(|m| m.alloc.count > 0 || m.alloc.bytes > 0 || m.alloc.peak_live > 0)
+    pts.is_empty() || pts.iter().any(|m| m.alloc_counted && (m.alloc.count > 0 || m.alloc.bytes > 0 || m.alloc.peak_live > 0))
 }
 
 /// Allocated bytes that are the same at every measured size (two or more): constant, with no

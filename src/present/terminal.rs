@@ -351,6 +351,36 @@ fn alloc_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
     grid(&head, &rows, o.width, "  ")
 }
 
+/// Memory of the designs that are programs (no allocation counts): the resident size their
+/// runs added on top of what was resident before them (a whole process: its whole peak).
+fn resident_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
+    let sizes = &w.header.sizes;
+    let mut head = vec!["resident memory added".to_string()];
+    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    let mut rows = Vec::new();
+    for d in w.header.designs.iter().filter(|d| d.program.is_some()) {
+        let cells = sizes
+            .iter()
+            .map(|&n| match w.point(&d.name, n).and_then(|p| p.measured.as_ref()).and_then(|m| m.program) {
+                Some(p) => {
+                    let mut v = vec![bytes(p.working_bytes() as f64)];
+                    if o.long {
+                        v.push(format!("peak {}", bytes(p.peak_resident_bytes as f64)));
+                    }
+                    v
+                }
+                None if w.point(&d.name, n).is_some() => vec!["—".into()],
+                None => vec![String::new()],
+            })
+            .collect();
+        rows.push((d.name.clone(), cells));
+    }
+    if rows.is_empty() {
+        return Vec::new();
+    }
+    grid(&head, &rows, o.width, "  ")
+}
+
 /// How each cost grows, beside the expectations, and the prediction at the target.
 fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
     let w = p.w;
@@ -441,11 +471,12 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
     for l in times_lines {
         let _ = writeln!(s, "{l}");
     }
-    let alloc = alloc_grid(w, o);
-    if !alloc.is_empty() {
-        s.push('\n');
-        for l in alloc {
-            let _ = writeln!(s, "{l}");
+    for block in [alloc_grid(w, o), resident_grid(w, o)] {
+        if !block.is_empty() {
+            s.push('\n');
+            for l in block {
+                let _ = writeln!(s, "{l}");
+            }
         }
     }
     s.push('\n');

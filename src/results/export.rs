@@ -54,6 +54,7 @@ fn points_frame_with(r: &RunResults, text: fn(&str) -> String) -> PolarsResult<D
     let ms = |f: &dyn Fn(&super::Measured) -> f64| -> Vec<Option<f64>> { pts.iter().map(|(_, p)| p.measured.as_ref().map(f)).collect() };
     let mo = |f: &dyn Fn(&super::Measured) -> Option<f64>| -> Vec<Option<f64>> { pts.iter().map(|(_, p)| p.measured.as_ref().and_then(f)).collect() };
     let mu = |f: &dyn Fn(&super::Measured) -> u64| -> Vec<Option<u64>> { pts.iter().map(|(_, p)| p.measured.as_ref().map(f)).collect() };
+    let mou = |f: &dyn Fn(&super::Measured) -> Option<u64>| -> Vec<Option<u64>> { pts.iter().map(|(_, p)| p.measured.as_ref().and_then(f)).collect() };
     let ratio = |p: &PointRecord, w: &WorkloadResults| w.comparison(p.rows).and_then(|c| c.ratios.iter().find(|r| r.design == p.design).cloned());
     let ratios: Vec<Option<super::Ratio>> = pts.iter().map(|(w, p)| if p.measured.is_some() { ratio(p, w) } else { None }).collect();
     let cols = vec![
@@ -77,9 +78,13 @@ fn points_frame_with(r: &RunResults, text: fn(&str) -> String) -> PolarsResult<D
         Column::new("samples".into(), mu(&|m| m.samples_ns.len() as u64)),
         Column::new("batch".into(), mu(&|m| m.batch)),
         Column::new("warmup_runs".into(), mu(&|m| m.warmup_runs)),
-        Column::new("alloc_bytes".into(), mu(&|m| m.alloc.bytes)),
-        Column::new("alloc_count".into(), mu(&|m| m.alloc.count)),
-        Column::new("peak_live_bytes".into(), mu(&|m| m.alloc.peak_live)),
+        // Empty for a program design: it has no allocation counts (not zero allocations).
+        Column::new("alloc_bytes".into(), mou(&|m| m.alloc_counted.then_some(m.alloc.bytes))),
+        Column::new("alloc_count".into(), mou(&|m| m.alloc_counted.then_some(m.alloc.count))),
+        Column::new("peak_live_bytes".into(), mou(&|m| m.alloc_counted.then_some(m.alloc.peak_live))),
+        Column::new("peak_resident_bytes".into(), mou(&|m| m.program.map(|p| p.peak_resident_bytes))),
+        Column::new("resident_before_bytes".into(), mou(&|m| m.program.and_then(|p| p.resident_before_bytes))),
+        Column::new("child_cpu_ns".into(), mo(&|m| m.program.and_then(|p| p.child_cpu_ns))),
         Column::new("alloc_exact".into(), pts.iter().map(|(_, p)| p.measured.as_ref().map(|m| m.alloc_exact)).collect::<Vec<_>>()),
         Column::new("output_rows".into(), pts.iter().map(|(_, p)| p.measured.as_ref().and_then(|m| m.output.as_ref()).map(|o| o.rows)).collect::<Vec<_>>()),
         Column::new(

@@ -307,7 +307,7 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
         .points
         .iter()
         .filter_map(|p| p.measured.as_ref())
-        .flat_map(|m| [m.alloc.bytes as f64, m.alloc.peak_live as f64])
+        .flat_map(|m| [m.alloc.bytes as f64, m.peak_bytes() as f64])
         .chain(w.tables.iter().map(|t| t.table_bytes_estimate));
     let title = format!("{} — memory per run", escaped(&w.header.workload));
     let (Some((x0, x1)), Some((y0, y1))) = (span(xs), span(ys)) else {
@@ -317,7 +317,9 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     let table_ink = tint(MUTED, 0.45);
     let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "allocated per run".into()));
-    rows.push((Sample::Line { pattern: &[], width: 1, ink: tint(TEXT, 0.5), mark: Some(false) }, "peak live".into()));
+    let programs = w.header.designs.iter().any(|d| d.program.is_some());
+    let peak_label = if programs { "peak live (programs: resident added)" } else { "peak live" };
+    rows.push((Sample::Line { pattern: &[], width: 1, ink: tint(TEXT, 0.5), mark: Some(false) }, peak_label.into()));
     rows.push((Sample::Line { pattern: &[], width: 6, ink: table_ink, mark: None }, "the table's own size".into()));
     let f = frame(&root, &title, &rows, 0)?;
     let chart_area = sub(&root, f.chart);
@@ -331,7 +333,8 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     for (i, d) in designs.iter().enumerate() {
         let pts: Vec<(f64, &crate::results::Measured)> = w.design_points(d).iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m))).collect();
         let alloc: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.alloc.bytes > 0).map(|(n, m)| px(*n, m.alloc.bytes as f64)).collect();
-        let peak: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.alloc.peak_live > 0).map(|(n, m)| px(*n, m.alloc.peak_live as f64)).collect();
+        // A program has no allocation counts: its peak is the resident memory its runs added.
+        let peak: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.peak_bytes() > 0).map(|(n, m)| px(*n, m.peak_bytes() as f64)).collect();
         design_line(&root, &peak, i, 1, 0.5)?;
         for p in &peak {
             draw_mark(&root, *p, mark_of(i), tint(ink(i), 0.7), false)?;
