@@ -365,7 +365,12 @@ fn svg_inline(p: &Picture) -> Result<String, String> {
         None => svg.as_str(),
     }
     .replacen(" xmlns=\"http://www.w3.org/2000/svg\"", "", 1);
-    Ok(compact_svg(&svg).replacen("<svg", &format!("<svg role=\"img\" aria-label=\"{}\"", esc(&p.alt)), 1))
+    // The picture carries its own `role="img"`, `<title>` and `<desc>`; the page adds the
+    // description written from the numbers as its accessible name.
+    let svg = compact_svg(&svg);
+    let open_end = svg.find('>').unwrap_or(0);
+    let role = if svg[..open_end].contains(" role=") { "" } else { " role=\"img\"" };
+    Ok(svg.replacen("<svg", &format!("<svg{role} aria-label=\"{}\"", esc(&p.alt)), 1))
 }
 
 /// The HTML page.
