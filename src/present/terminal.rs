@@ -321,60 +321,49 @@ fn time_grid(w: &WorkloadResults, o: Options) -> (Vec<String>, bool, bool) {
 
 /// Allocated bytes per run, for the designs that count them.
 fn alloc_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
-    let sizes = &w.header.sizes;
-    let mut head = vec!["allocated per run".to_string()];
-    head.extend(sizes.iter().map(|n| rows_label(*n)));
-    let mut rows = Vec::new();
-    for d in w.header.designs.iter().filter(|d| counts_allocations(w, &d.name)) {
-        let cells = sizes
-            .iter()
-            .map(|&n| match w.point(&d.name, n).and_then(|p| p.measured.as_ref()) {
-                Some(m) => {
-                    let mut v = vec![bytes(m.alloc.bytes as f64)];
-                    if o.long {
-                        v.push(format!("peak {}", bytes(m.alloc.peak_live as f64)));
-                        if let Some(out) = m.output.as_ref().filter(|x| x.chunks > 1) {
-                            v.push(format!("{} chunks", out.chunks));
-                        }
-                    }
-                    v
-                }
-                None if w.point(&d.name, n).is_some() => vec!["—".into()],
-                None => vec![String::new()],
-            })
-            .collect();
-        rows.push((d.name.clone(), cells));
-    }
-    if rows.is_empty() {
-        return Vec::new();
-    }
-    grid(&head, &rows, o.width, "  ")
+    let designs: Vec<&str> = w.header.designs.iter().filter(|d| counts_allocations(w, &d.name)).map(|d| d.name.as_str()).collect();
+    memory_grid(w, o, "allocated per run", &designs, &|m| {
+        let mut v = vec![bytes(m.alloc.bytes as f64)];
+        if o.long {
+            v.push(format!("peak {}", bytes(m.alloc.peak_live as f64)));
+            if let Some(out) = m.output.as_ref().filter(|x| x.chunks > 1) {
+                v.push(format!("{} chunks", out.chunks));
+            }
+        }
+        v
+    })
 }
 
 /// Memory of the designs that are programs (no allocation counts): the resident size their
 /// runs added on top of what was resident before them (a whole process: its whole peak).
 fn resident_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
+    let designs: Vec<&str> = w.header.designs.iter().filter(|d| d.program.is_some()).map(|d| d.name.as_str()).collect();
+    memory_grid(w, o, "resident memory added", &designs, &|m| match m.program {
+        Some(p) if o.long => vec![bytes(p.working_bytes() as f64), format!("peak {}", bytes(p.peak_resident_bytes as f64))],
+        Some(p) => vec![bytes(p.working_bytes() as f64)],
+        None => vec!["—".into()],
+    })
+}
+
+/// One memory figure per design and size, the cells made by `cell`.
+fn memory_grid(w: &WorkloadResults, o: Options, title: &str, designs: &[&str], cell: &dyn Fn(&crate::results::Measured) -> Vec<String>) -> Vec<String> {
     let sizes = &w.header.sizes;
-    let mut head = vec!["resident memory added".to_string()];
+    let mut head = vec![title.to_string()];
     head.extend(sizes.iter().map(|n| rows_label(*n)));
-    let mut rows = Vec::new();
-    for d in w.header.designs.iter().filter(|d| d.program.is_some()) {
-        let cells = sizes
-            .iter()
-            .map(|&n| match w.point(&d.name, n).and_then(|p| p.measured.as_ref()).and_then(|m| m.program) {
-                Some(p) => {
-                    let mut v = vec![bytes(p.working_bytes() as f64)];
-                    if o.long {
-                        v.push(format!("peak {}", bytes(p.peak_resident_bytes as f64)));
-                    }
-                    v
-                }
-                None if w.point(&d.name, n).is_some() => vec!["—".into()],
-                None => vec![String::new()],
-            })
-            .collect();
-        rows.push((d.name.clone(), cells));
-    }
+    let rows: Vec<(String, Vec<Vec<String>>)> = designs
+        .iter()
+        .map(|&d| {
+            let cells = sizes
+                .iter()
+                .map(|&n| match w.point(d, n).and_then(|p| p.measured.as_ref()) {
+                    Some(m) => cell(m),
+                    None if w.point(d, n).is_some() => vec!["—".into()],
+                    None => vec![String::new()],
+                })
+                .collect();
+            (d.to_string(), cells)
+        })
+        .collect();
     if rows.is_empty() {
         return Vec::new();
     }

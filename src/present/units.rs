@@ -26,22 +26,27 @@ pub fn escaped(name: &str) -> std::borrow::Cow<'_, str> {
     std::borrow::Cow::Owned(out)
 }
 
-/// `812 ns`, `4.20 µs`, `13.1 ms`, `2.05 s`, `3.4 min`.
-pub fn time_ns(ns: f64) -> String {
-    if !ns.is_finite() {
-        return "—".into();
-    }
-    let (v, u) = if ns < 1e3 {
+/// A time in the unit it reads best in; from two minutes on in minutes when `minutes`.
+fn time_unit(ns: f64, minutes: bool) -> (f64, &'static str) {
+    if ns < 1e3 {
         (ns, "ns")
     } else if ns < 1e6 {
         (ns / 1e3, "µs")
     } else if ns < 1e9 {
         (ns / 1e6, "ms")
-    } else if ns < 120e9 {
+    } else if ns < 120e9 || !minutes {
         (ns / 1e9, "s")
     } else {
         (ns / 60e9, "min")
-    };
+    }
+}
+
+/// `812 ns`, `4.20 µs`, `13.1 ms`, `2.05 s`, `3.4 min`.
+pub fn time_ns(ns: f64) -> String {
+    if !ns.is_finite() {
+        return "—".into();
+    }
+    let (v, u) = time_unit(ns, true);
     format!("{} {u}", three_digits(v))
 }
 
@@ -85,15 +90,7 @@ pub fn time_tick(ns: f64) -> String {
     if !ns.is_finite() {
         return "—".into();
     }
-    let (v, u) = if ns < 1e3 {
-        (ns, "ns")
-    } else if ns < 1e6 {
-        (ns / 1e3, "µs")
-    } else if ns < 1e9 {
-        (ns / 1e6, "ms")
-    } else {
-        (ns / 1e9, "s")
-    };
+    let (v, u) = time_unit(ns, false);
     format!("{} {u}", short(v))
 }
 
