@@ -84,6 +84,9 @@ fn write_failed(msg: impl std::fmt::Display) -> i32 {
 /// Apply command-line overrides to a plan.
 fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
     if let Some(list) = &a.sizes {
+        if let Some(ax) = &plan.axis {
+            return Err(format!("--sizes: `{}` sweeps {} at {} rows; change its `sweep: values:` instead", plan.name, ax.name, rows_label(ax.rows)));
+        }
         let mut v = Vec::new();
         for s in list {
             v.push(parse_rows(s).map_err(|e| format!("--sizes: expected {e}"))?);
@@ -259,7 +262,7 @@ pub fn run(a: Args) -> i32 {
             println!("{} ({} designs):", p.name, p.designs.len());
             for &n in &p.sizes {
                 for line in plan_lines(p, n) {
-                    println!("  {:>8} rows  {line}", rows_label(n));
+                    println!("  {:>8} {}  {line}", crate::results::Axis(p.axis.as_ref()).value(n), crate::results::Axis(p.axis.as_ref()).name());
                 }
             }
             println!(

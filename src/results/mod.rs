@@ -15,7 +15,7 @@ pub mod schema;
 pub mod summary;
 pub mod writer;
 
-pub use schema::{AllocStats, Budget, ClockInfo, ColumnKind, ColumnPlan, MachineFingerprint, Order, OutputFacts, RangePlan, Yardstick};
+pub use schema::{AllocStats, Axis, AxisPlan, AxisSet, Budget, ClockInfo, ColumnKind, ColumnPlan, MachineFingerprint, Order, OutputFacts, RangePlan, Yardstick};
 use serde::{Deserialize, Serialize};
 
 /// Schema name and version written into every run.
@@ -73,6 +73,17 @@ pub struct WorkloadHeader {
     pub gate_threshold: Option<f64>,
     /// The workload file as it was when the run started.
     pub spec_text: String,
+    /// What was swept when it was not the row count (`sizes` then holds its values);
+    /// absent in older runs and in row sweeps.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<AxisPlan>,
+}
+
+impl WorkloadHeader {
+    /// The swept axis, for labels ("4k rows", "100 groups").
+    pub fn axis(&self) -> Axis<'_> {
+        Axis(self.axis.as_ref())
+    }
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
