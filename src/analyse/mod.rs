@@ -33,7 +33,10 @@ pub struct Analysis {
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct WorkloadAnalysis {
     pub workload: String,
-    /// Where predictions are made (rows), if anywhere.
+    /// What x is in every fit: rows when absent, else the swept axis ("groups", "columns").
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<crate::results::AxisPlan>,
+    /// Where predictions are made (swept values: rows, or the axis's), if anywhere.
     pub predict_at: Option<u64>,
     pub designs: Vec<DesignAnalysis>,
     pub crossovers: Vec<CrossoverOut>,
@@ -467,5 +470,12 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
             }
         }
     }
-    WorkloadAnalysis { workload: w.header.workload.clone(), predict_at, designs, crossovers }
+    WorkloadAnalysis { workload: w.header.workload.clone(), axis: w.header.axis.clone(), predict_at, designs, crossovers }
+}
+
+impl WorkloadAnalysis {
+    /// The swept axis, for labels ("4k rows", "100 groups").
+    pub fn axis(&self) -> crate::results::Axis<'_> {
+        crate::results::Axis(self.axis.as_ref())
+    }
 }

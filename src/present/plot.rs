@@ -12,7 +12,7 @@
 //! same files (no clock, no randomness).
 
 use crate::analyse::WorkloadAnalysis;
-use crate::present::units::{bytes, rows_label_f, time_ns};
+use crate::present::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
 use plotters::coord::Shift;
 use plotters::prelude::*;
@@ -102,7 +102,7 @@ fn pattern_line<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, pts: &[(i32, 
 /// One chart: log-log axes over rows × value, with its frame, grid and labels. Returns the
 /// plotting area's mapping closure inputs (ranges) via the chart context.
 macro_rules! log_chart {
-    ($root:expr, $title:expr, $x:expr, $y:expr, $ylabel:expr, $yfmt:expr) => {{
+    ($root:expr, $title:expr, $x:expr, $y:expr, $ylabel:expr, $yfmt:expr, $axis:expr) => {{
         let mut chart = ChartBuilder::on($root)
             .caption($title, (FONT, 22).into_font().color(&TEXT))
             .margin(18)
@@ -116,10 +116,10 @@ macro_rules! log_chart {
             .bold_line_style(RULE)
             .axis_style(MUTED)
             .label_style((FONT, 14).into_font().color(&TEXT))
-            .x_desc("rows")
+            .x_desc($axis.name())
             .y_desc($ylabel)
             .axis_desc_style((FONT, 15).into_font().color(&TEXT))
-            .x_label_formatter(&|v| rows_label_f(*v))
+            .x_label_formatter(&|v| $axis.value_f(*v))
             .y_label_formatter($yfmt)
             .draw()
             .map_err(err)?;
@@ -190,7 +190,7 @@ pub fn scaling<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadRes
         return root.present().map_err(err);
     };
     let title = format!("{} — time per run", w.header.workload);
-    let chart = log_chart!(&root, title, (x0..x1), (y0..y1), "time per run", &|v: &f64| time_ns(*v));
+    let chart = log_chart!(&root, title, (x0..x1), (y0..y1), "time per run", &|v: &f64| time_ns(*v), w.header.axis());
     let area = chart.plotting_area().strip_coord_spec();
     let to_px = |c: &ChartContext<DB, _>, x: f64, y: f64| c.backend_coord(&(x, y));
     let to_local = |p: (i32, i32)| {
@@ -259,13 +259,13 @@ pub fn scaling<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadRes
                 area.draw(&PathElement::new(vec![(top.0, y), (top.0, (y + 3).min(bottom.1))], MUTED.stroke_width(1))).map_err(err)?;
                 y += 7;
             }
-            let label = format!("{} overtakes {} ≈ {}", c.faster_above, c.faster_below, rows_label_f(c.rows));
+            let label = format!("{} overtakes {} ≈ {}", c.faster_above, c.faster_below, w.header.axis().value_f(c.rows));
             area.draw(&Text::new(label, (top.0 + 6, top.1 + 6), (FONT, 12).into_font().color(&TEXT))).map_err(err)?;
         }
     }
     if let Some(t) = target {
         let top = to_local(to_px(&chart, t as f64, y1));
-        area.draw(&Text::new(format!("target {}", rows_label_f(t as f64)), (top.0 - 80, top.1 + 6), (FONT, 12).into_font().color(&MUTED)))
+        area.draw(&Text::new(format!("target {}", w.header.axis().value_f(t as f64)), (top.0 - 80, top.1 + 6), (FONT, 12).into_font().color(&MUTED)))
             .map_err(err)?;
     }
     let extra: Vec<(&str, RGBColor, bool)> = if target.is_some() { vec![("prediction to the target", MUTED, true)] } else { vec![] };
@@ -289,7 +289,7 @@ pub fn memory<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResu
         return root.present().map_err(err);
     };
     let title = format!("{} — memory", w.header.workload);
-    let chart = log_chart!(&root, title, (x0..x1), (y0..y1), "bytes", &|v: &f64| bytes(*v));
+    let chart = log_chart!(&root, title, (x0..x1), (y0..y1), "bytes", &|v: &f64| bytes(*v), w.header.axis());
     let area = chart.plotting_area().strip_coord_spec();
     let (ox, oy) = area.get_base_pixel();
     let px = |c: &ChartContext<DB, _>, x: f64, y: f64| {
@@ -331,7 +331,7 @@ pub fn distribution<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &Worklo
         .flat_map(|m| m.samples_ns.iter().copied());
     let Some((y0, y1)) = span(ys) else { return root.present().map_err(err) };
     let mut chart = ChartBuilder::on(&root)
-        .caption(format!("{} — time per run by percentile at {} rows", w.header.workload, rows_label_f(rows as f64)), (FONT, 22).into_font().color(&TEXT))
+        .caption(format!("{} — time per run by percentile at {}", w.header.workload, w.header.axis().point(rows)), (FONT, 22).into_font().color(&TEXT))
         .margin(18)
         .x_label_area_size(46)
         .y_label_area_size(78)
@@ -385,7 +385,7 @@ pub fn ratios<DB: DrawingBackend>(root: DrawingArea<DB, Shift>, w: &WorkloadResu
         return root.present().map_err(err);
     };
     let title = format!("{} — cost relative to the best design", w.header.workload);
-    let chart = log_chart!(&root, title, (x0..x1), (0.8..y1.max(2.0)), "× the best", &|v: &f64| format!("×{}", crate::present::units::short(*v)));
+    let chart = log_chart!(&root, title, (x0..x1), (0.8..y1.max(2.0)), "× the best", &|v: &f64| format!("×{}", crate::present::units::short(*v)), w.header.axis());
     let area = chart.plotting_area().strip_coord_spec();
     let (ox, oy) = area.get_base_pixel();
     for (i, d) in designs.iter().enumerate() {
@@ -437,7 +437,7 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
     both!("scaling", "Time per run as the rows grow", |r| scaling(r, w, a));
     both!("memory", "Allocated and peak live bytes", |r| memory(r, w));
     if let Some(n) = dist_rows {
-        both!("distribution", format!("Time by percentile at {} rows", rows_label_f(n as f64)), |r| distribution(r, w, n));
+        both!("distribution", format!("Time by percentile at {}", w.header.axis().point(n)), |r| distribution(r, w, n));
     }
     both!("ratios", "Cost relative to the best design", |r| ratios(r, w));
     Ok(out)

@@ -12,7 +12,6 @@ use crate::analyse::{analyse, AnalyseOptions, WorkloadAnalysis};
 use crate::explain::{explain, Explanation};
 use crate::present::units::{bytes, ratio, time_ns};
 use crate::results::reader::{RunResults, WorkloadResults};
-use crate::spec::units::rows_label;
 use std::fmt::Write;
 use std::path::{Path, PathBuf};
 
@@ -48,7 +47,7 @@ fn size_rows(w: &WorkloadResults) -> Vec<[String; 9]> {
             let r = w.comparison(n).and_then(|c| c.ratios.iter().find(|r| r.design == d.name));
             let row = match (&p.measured, &p.skipped) {
                 (Some(m), _) => [
-                    rows_label(n),
+                    w.header.axis().value(n),
                     d.name.clone(),
                     time_ns(m.median_ns),
                     match (m.ci_low_ns, m.ci_high_ns) {
@@ -66,7 +65,7 @@ fn size_rows(w: &WorkloadResults) -> Vec<[String; 9]> {
                     format!("{} ({} samples)", m.stop.label(), m.samples_ns.len()),
                 ],
                 (None, Some(s)) => [
-                    rows_label(n),
+                    w.header.axis().value(n),
                     d.name.clone(),
                     s.predicted_ns.map(|p| format!("~{} predicted", time_ns(p))).unwrap_or_else(|| "—".into()),
                     String::new(),
@@ -187,7 +186,7 @@ fn markdown(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Expl
             let _ = writeln!(s, "- **{who}** — {}: {}.{action}", f.measured, f.implies);
         }
         let _ = writeln!(s, "\n### Per size\n");
-        let _ = writeln!(s, "| {} |", HEAD.join(" | "));
+        let _ = writeln!(s, "| {} | {} |", w.header.axis().name(), HEAD[1..].join(" | "));
         let _ = writeln!(s, "|{}|", HEAD.iter().map(|_| "---").collect::<Vec<_>>().join("|"));
         for row in size_rows(w) {
             let _ = writeln!(s, "| {} |", row.join(" | "));
@@ -260,7 +259,7 @@ fn html(r: &RunResults, parts: &[(&WorkloadResults, &WorkloadAnalysis, &Explanat
             let _ = writeln!(s, "<li><strong>{}</strong> — {}: {}.{action}</li>", esc(who), esc(&f.measured), esc(&f.implies));
         }
         let _ = writeln!(s, "</ul><h3>Per size</h3><table><thead><tr>");
-        for h in HEAD {
+        for h in std::iter::once(w.header.axis().name()).chain(HEAD[1..].iter().copied()) {
             let _ = write!(s, "<th>{}</th>", esc(h));
         }
         let _ = writeln!(s, "</tr></thead><tbody>");

@@ -97,11 +97,15 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
         let _ = writeln!(s, "  {}", first.trim_end_matches('.'));
     }
     let sizes: Vec<u64> = h.sizes.clone();
+    let ax = h.axis();
+    if let Some(a) = &h.axis {
+        let _ = writeln!(s, "  swept: {} ({}{}) with {} rows at every point", a.name, a.set.label(), a.column.as_ref().map(|c| format!(" of `{c}`")).unwrap_or_default(), rows_label(a.rows));
+    }
 
     // Time table.
     let mut t = grid();
     let mut head = vec!["time per run".to_string()];
-    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    head.extend(sizes.iter().map(|n| ax.value(*n)));
     t.set_header(head);
     let mut any_marks = false;
     for d in &h.designs {
@@ -147,7 +151,7 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
     // Allocation table.
     let mut a = grid();
     let mut head = vec!["allocated per run".to_string()];
-    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    head.extend(sizes.iter().map(|n| ax.value(*n)));
     a.set_header(head);
     for d in &h.designs {
         let mut row = vec![d.name.clone()];
@@ -202,7 +206,7 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
             let _ = write!(line, "   expected: {}", exp.join(", "));
         }
         if let Some(p) = &da.prediction {
-            let _ = write!(line, "   at {}: ~{}", rows_label(p.rows), time_ns(p.median));
+            let _ = write!(line, "   at {}: ~{}", ax.point(p.rows), time_ns(p.median));
         }
         let _ = writeln!(s, "{}", line.trim_end());
     }
@@ -215,7 +219,7 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
         let made: Vec<String> = w
             .design_points(&d.name)
             .iter()
-            .filter_map(|p| p.setup_ns.map(|ns| format!("{} at {}", crate::present::units::time_ns(ns), rows_label(p.rows))))
+            .filter_map(|p| p.setup_ns.map(|ns| format!("{} at {}", crate::present::units::time_ns(ns), w.header.axis().point(p.rows))))
             .collect();
         if !made.is_empty() {
             let _ = writeln!(s, "  set-up of `{}` (once per size, not in the samples): {}", d.name, made.join(", "));
@@ -227,7 +231,7 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
         .points
         .iter()
         .filter_map(|p| {
-            p.skipped.as_ref().map(|sk| format!("    {} at {} rows: {} — {}", p.design, rows_label(p.rows), sk.reason.label(), sk.detail))
+            p.skipped.as_ref().map(|sk| format!("    {} at {}: {} — {}", p.design, w.header.axis().point(p.rows), sk.reason.label(), sk.detail))
         })
         .collect();
     if !skips.is_empty() {
@@ -256,7 +260,7 @@ pub fn render_workload(w: &WorkloadResults, style: Style) -> String {
     s.push('\n');
     if !mismatches.is_empty() {
         for c in mismatches {
-            let _ = writeln!(s, "  {} at {} rows: {}", style.alarm("OUTPUTS DIFFER"), rows_label(c.rows), c.equivalence.note);
+            let _ = writeln!(s, "  {} at {}: {}", style.alarm("OUTPUTS DIFFER"), w.header.axis().point(c.rows), c.equivalence.note);
         }
     } else if w.comparisons.iter().any(|c| c.equivalence.status == EquivalenceStatus::DifferAsDeclared) {
         let _ = writeln!(s, "  outputs: differ between designs, as the workload declares ({})", h.outputs_differ.clone().unwrap_or_default());
@@ -286,7 +290,7 @@ pub fn one_liners(summary: &Summary) -> Vec<String> {
                     .min_by(|a, b| a.1.total_cmp(&b.1))
             });
             match (largest, best) {
-                (Some(n), Some((d, m))) => format!("{}: fastest at {} rows is {} ({})", w.workload, rows_label(*n), d, time_ns(m)),
+                (Some(n), Some((d, m))) => format!("{}: fastest at {} is {} ({})", w.workload, crate::results::Axis(w.axis.as_ref()).point(*n), d, time_ns(m)),
                 _ => format!("{}: no size with two designs measured", w.workload),
             }
         })

@@ -276,6 +276,15 @@ impl Axis<'_> {
     pub fn name(&self) -> &str {
         self.0.map_or("rows", |a| a.name.as_str())
     }
+    /// One unit of a count axis, for "per …" wording ("row", "group", "column"); None for
+    /// shares and exponents, which have no units to divide by.
+    pub fn unit(&self) -> Option<String> {
+        match self.0 {
+            None => Some("row".into()),
+            Some(a) if a.set.scale() != 1 => None,
+            Some(a) => Some(a.name.strip_suffix('s').filter(|s| !s.is_empty()).unwrap_or(&a.name).to_string()),
+        }
+    }
     /// True when the sweep is over rows.
     pub fn is_rows(&self) -> bool {
         self.0.is_none()
