@@ -434,7 +434,7 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
             out.push(($title.to_string(), svg_path));
         }};
     }
-    both!("scaling", "Time per run as the rows grow", |r| scaling(r, w, a));
+    both!("scaling", format!("Time per run as the {} grow", w.header.axis().name()), |r| scaling(r, w, a));
     both!("memory", "Allocated and peak live bytes", |r| memory(r, w));
     if let Some(n) = dist_rows {
         both!("distribution", format!("Time by percentile at {}", w.header.axis().point(n)), |r| distribution(r, w, n));
