@@ -206,3 +206,30 @@ fn a_bad_axis_is_located_at_its_line_and_column() {
     let all = format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr));
     assert!(all.contains(&format!("bad.yaml:{line}:{}", at(&text, "crow"))), "{all}");
 }
+
+#[test]
+fn a_saved_columns_run_is_explained_in_columns_and_never_against_its_measurements() {
+    // A recorded run (tests/data/README.md): `all-at-once-read-after` is measured fastest at
+    // every size, but its fitted curve crosses `one-at-a-time-read-after`'s at about 10
+    // columns. The verdict may not say the other design is cheaper below that.
+    let dir = tempfile::tempdir().expect("tempdir");
+    for f in ["points.jsonl", "spec-column-growth.yaml"] {
+        std::fs::copy(format!("tests/data/columns-run/{f}"), dir.path().join(f)).expect("copy");
+    }
+    let r = RunResults::read(dir.path()).expect("readable");
+    let w = &r.workloads[0];
+    assert_eq!(w.header.axis.as_ref().map(|a| (a.set, a.rows)), Some((AxisSet::Columns, 8000)));
+    for c in w.comparisons.iter() {
+        let ratio = |d: &str| c.ratios.iter().find(|x| x.design == d).map(|x| x.ratio);
+        if let (Some(a), Some(b)) = (ratio("all-at-once-read-after"), ratio("one-at-a-time-read-after")) {
+            assert!(a < b, "the recorded run has all-at-once ahead at {} columns", c.rows);
+        }
+    }
+    let out = Command::cargo_bin("framecost").expect("binary").arg("explain").arg(dir.path()).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "{text}");
+    let verdict = text.lines().find(|l| l.contains("verdict")).expect("a verdict line");
+    assert!(!verdict.contains("`one-at-a-time-read-after` is cheaper"), "{verdict}");
+    assert!(verdict.contains("at 128 columns"), "{verdict}");
+    assert!(!text.contains(" rows:") && !text.contains("k rows"), "{text}");
+}
