@@ -233,3 +233,23 @@ fn a_saved_columns_run_is_explained_in_columns_and_never_against_its_measurement
     assert!(verdict.contains("at 128 columns"), "{verdict}");
     assert!(!text.contains(" rows:") && !text.contains("k rows"), "{text}");
 }
+
+#[test]
+fn a_null_share_axis_sets_the_columns_share_of_nulls() {
+    let text = with_sweep("sweep: {column: grams, set: nulls, values: [1%, 50%]}");
+    let plan = framecost::spec::load_str("nulls.yaml", &text).expect("lints");
+    assert_eq!(plan.sizes, vec![10_000, 500_000], "shares are kept in millionths");
+    assert_eq!(plan.axis.as_ref().map(|a| a.name.as_str()), Some("null share"));
+    for (x, p) in [(10_000u64, 0.01f64), (500_000, 0.5)] {
+        let df = &SizeInputs::prepare(&plan, x, true, false).expect("tables").tables[0].1;
+        let nulls = df.column("grams").expect("col").null_count() as f64;
+        // Each row is null with probability p: a binomial count, mean n·p and variance
+        // n·p·(1−p) (any probability text, e.g. Feller vol. I ch. VI).
+        let n = df.height() as f64;
+        let (mean, sd) = (n * p, (n * p * (1.0 - p)).sqrt());
+        assert!((nulls - mean).abs() < 5.0 * sd, "{nulls} nulls at share {p}, expected {mean} ± {sd:.0}");
+        assert_eq!(df.column("crew").expect("col").null_count(), 0, "only the axis's column changes");
+    }
+    let labels = framecost::results::Axis(plan.axis.as_ref());
+    assert_eq!((labels.point(500_000), labels.value(10_000)), ("null share 50%".to_string(), "1%".to_string()));
+}
