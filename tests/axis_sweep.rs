@@ -253,3 +253,32 @@ fn a_null_share_axis_sets_the_columns_share_of_nulls() {
     let labels = framecost::results::Axis(plan.axis.as_ref());
     assert_eq!((labels.point(500_000), labels.value(10_000)), ("null share 50%".to_string(), "1%".to_string()));
 }
+
+#[test]
+fn time_that_fits_cubic_while_bytes_grow_quadratically_is_read_as_a_pair() {
+    use framecost::fit::growth::{fit_growth, GrowthClass};
+    // A columns sweep of workloads/column-growth.yaml (8k rows, 4 to 128 columns, this
+    // machine): `reads-between` allocated 2.07, 6.93, 26.8, 104, 414 and 1628 MiB (×4 per
+    // doubling of the columns), and its time quartiles were fitted best by
+    // 3.54e4 + 7.57e3·n² + 27.5·n³ ns (slope 2.11 over the largest sizes) while the measured
+    // medians rose ×3.4 to ×4.6 per doubling. That curve, evaluated at the sizes:
+    let columns = [4.0, 8.0, 16.0, 32.0, 64.0, 128.0];
+    let time_ns: Vec<f64> = columns.iter().map(|n| 3.54e4 + 7.57e3 * n * n + 27.5 * n * n * n).collect();
+    let bytes: Vec<f64> = [2.07, 6.93, 26.8, 104.0, 414.0, 1628.0].iter().map(|m| m * 1048576.0).collect();
+    let time = fit_growth(&columns, &time_ns).expect("time fit");
+    let bytes = fit_growth(&columns, &bytes).expect("bytes fit");
+    assert_eq!((time.best, bytes.best), (GrowthClass::Cubic, GrowthClass::Quadratic), "slope {}", time.top_slope);
+    let (f, note) = framecost::analyse::bounded_by_bytes(&time, Some(&bytes)).expect("read as a pair");
+    assert_eq!((f.best, f.alternative), (GrowthClass::Quadratic, Some(GrowthClass::Cubic)));
+    assert!(note.contains("read as n² or n³"), "{note}");
+    // Bytes growing as fast as the time leave a cubic class alone.
+    let cubic: Vec<f64> = columns.iter().map(|n| 1e3 * n * n * n).collect();
+    let t3 = fit_growth(&columns, &cubic).expect("fit");
+    assert_eq!(t3.best, GrowthClass::Cubic);
+    assert!(framecost::analyse::bounded_by_bytes(&t3, Some(&t3)).is_none());
+    // And so does a steep cubic (slope 2.5 or more) whatever the bytes.
+    let steep: Vec<f64> = columns.iter().map(|n| 1e4 * n * n + 2e3 * n * n * n).collect();
+    let ts = fit_growth(&columns, &steep).expect("fit");
+    assert!(ts.top_slope >= 2.5 && ts.best == GrowthClass::Cubic, "{} {:?}", ts.top_slope, ts.best);
+    assert!(framecost::analyse::bounded_by_bytes(&ts, Some(&bytes)).is_none());
+}
