@@ -282,3 +282,20 @@ fn time_that_fits_cubic_while_bytes_grow_quadratically_is_read_as_a_pair() {
     assert!(ts.top_slope >= 2.5 && ts.best == GrowthClass::Cubic, "{} {:?}", ts.top_slope, ts.best);
     assert!(framecost::analyse::bounded_by_bytes(&ts, Some(&bytes)).is_none());
 }
+
+#[test]
+fn allocation_counts_are_fitted_over_busy_sizes_too() {
+    // The recorded columns run (tests/data/columns-run) had 3 of its 6 sizes measured on a
+    // busy machine: they are left out of the time fits, but allocation counts are exact
+    // whatever the load, so the class of bytes uses all six (×4 per doubling of the
+    // columns for `reads-between`, ×2 for a design that copies each column once).
+    let r = RunResults::read(std::path::Path::new("tests/data/columns-run")).expect("readable");
+    let a = framecost::analyse::analyse(&r, &framecost::analyse::AnalyseOptions::default());
+    let d = |name: &str| a.workloads[0].designs.iter().find(|d| d.design == name).expect("design");
+    let between = d("reads-between");
+    assert!(between.notes.iter().any(|n| n.contains("3 size(s) measured on a busy machine were left out")), "{:?}", between.notes);
+    assert_eq!(between.time.as_ref().map(|t| t.sizes), Some(3));
+    assert_eq!(between.bytes.as_ref().map(|b| (b.class.as_str(), b.sizes)), Some(("n²", 6)));
+    let after = d("all-at-once-read-after");
+    assert_eq!(after.bytes.as_ref().map(|b| (b.class.as_str(), b.sizes)), Some(("n", 6)));
+}

@@ -370,6 +370,9 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
     for d in &w.header.designs {
         let pts: Vec<_> = w.design_points(&d.name).into_iter().filter(|p| p.measured.is_some()).collect();
         let mut used: Vec<_> = pts.iter().filter(|p| p.rows <= limit).collect();
+        // Allocation counts do not depend on how busy the machine was: they are fitted over
+        // every measured size, so the class of bytes is the same in every run.
+        let mut counted = used.clone();
         let mut notes = Vec::new();
         // Points measured on a busy machine never decide a class, as long as enough clean
         // sizes remain to fit one.
@@ -385,6 +388,12 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         if let Some(k) = opts.top_sizes {
             let drop = used.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
             used.drain(..drop);
+            let drop = counted.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
+            counted.drain(..drop);
+        }
+        if counted.iter().any(|p| p.measured.as_ref().is_some_and(|m| !m.alloc_counted)) {
+            // A program's memory is its resident size, which another process can disturb.
+            counted = used.clone();
         }
         let measured: Vec<(u64, &crate::results::Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
         let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
@@ -398,16 +407,16 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         } else {
             vec![]
         };
-        let metric = |get: &dyn Fn(&crate::results::Measured) -> f64| -> (Result<GrowthFit, FitError>, Option<f64>) {
+        let metric = |points: &[&&crate::results::PointRecord], get: &dyn Fn(&crate::results::Measured) -> f64| -> (Result<GrowthFit, FitError>, Option<f64>) {
             let v: Vec<(f64, f64)> =
-                used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
+                points.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
             let (x, y): (Vec<f64>, Vec<f64>) = v.iter().copied().unzip();
             let slope = crate::fit::growth::loglog_slope(&x, &y).ok();
             (fit_growth(&x, &y), slope)
         };
-        let (bytes_res, bytes_exponent) = metric(&|m| m.alloc.bytes as f64);
-        let (peak_res, peak_exponent) = metric(&|m| m.peak_bytes() as f64);
-        let (bytes_out, peak_out) = (growth_out(&bytes_res, measured.len()).ok(), growth_out(&peak_res, measured.len()).ok());
+        let (bytes_res, bytes_exponent) = metric(&counted, &|m| m.alloc.bytes as f64);
+        let (peak_res, peak_exponent) = metric(&used, &|m| m.peak_bytes() as f64);
+        let (bytes_out, peak_out) = (growth_out(&bytes_res, counted.len()).ok(), growth_out(&peak_res, measured.len()).ok());
         let bytes_fit = bytes_res.ok();
         let time_fit = time_fit.map(|t| match bounded_by_bytes(&t, bytes_fit.as_ref()) {
             Some((f, note)) => {
