@@ -98,6 +98,8 @@ fn a_group_sweep_records_the_axis_and_every_output_says_groups() {
     assert_eq!(out.status.code(), Some(0), "stdout:\n{stdout}\nstderr:\n{}", String::from_utf8_lossy(&out.stderr));
 
     let r = RunResults::read(&run).expect("readable");
+    // A reader that does not know `axis` would label the groups as rows: the run says so.
+    assert_eq!(r.run.as_ref().map(|h| h.schema.as_str()), Some(framecost::results::AXIS_SCHEMA));
     let w = &r.workloads[0];
     let axis = w.header.axis.as_ref().expect("the header records the axis");
     assert_eq!((axis.name.as_str(), axis.set, axis.column.as_deref(), axis.rows), ("crews", AxisSet::Distinct, Some("crew"), 20_000));

@@ -336,7 +336,10 @@ pub fn run(a: Args) -> i32 {
     crate::measure::watchdog::start(dir.join("points.jsonl"));
     let started = Instant::now();
     let clock = crate::measure::clock::calibrate();
-    let header = runner::run_header(std::env::args().collect(), clock, a.force);
+    let mut header = runner::run_header(std::env::args().collect(), clock, a.force);
+    if plans.iter().any(|p| p.axis.is_some()) {
+        header.schema = crate::results::AXIS_SCHEMA.to_string();
+    }
     if let Err(e) = out.write(Record::Run(header)) {
         return write_failed(e);
     }

@@ -24,7 +24,13 @@ pub const SCHEMA: &str = "framecost.results/2";
 /// Older versions this build still reads. Version 1 lacks the machine-disturbance fields
 /// (read as absent) and stored wrong percentiles (every one 2 ns): the reader recomputes
 /// them from the samples.
-pub const READABLE_SCHEMAS: &[&str] = &["framecost.results/1"];
+pub const READABLE_SCHEMAS: &[&str] = &["framecost.results/1", AXIS_SCHEMA];
+
+/// Written instead of [`SCHEMA`] by a run holding a workload swept over another axis
+/// (`WorkloadHeader::axis`): its points' `rows` are that axis's values, which a reader
+/// that does not know `axis` would label as rows, so such a reader refuses the run.
+/// Otherwise the same as version 2.
+pub const AXIS_SCHEMA: &str = "framecost.results/3";
 
 /// One line of `points.jsonl`.
 #[derive(Debug, Clone, Serialize, Deserialize)]
