@@ -301,3 +301,27 @@ fn allocation_counts_are_fitted_over_busy_sizes_too() {
     let after = d("all-at-once-read-after");
     assert_eq!(after.bytes.as_ref().map(|b| (b.class.as_str(), b.sizes)), Some(("n", 6)));
 }
+
+#[test]
+fn the_gate_refuses_to_match_points_of_different_axes() {
+    // The same workload swept over rows, then over groups: its point "1000" means 1000 rows
+    // in one run and 1000 groups in the other, so nothing may be compared.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let by_rows = SPEC
+        .replace("rows: 20k\n", "")
+        .replace("sweep: {axis: crews, column: crew, set: distinct, values: [10, 100, 1k]}", "sizes: [100, 1k]");
+    let by_crews = SPEC.replace("values: [10, 100, 1k]", "values: [100, 1k]");
+    let mut runs = Vec::new();
+    for (name, text) in [("rows", by_rows), ("crews", by_crews)] {
+        let spec = dir.path().join(format!("{name}.yaml"));
+        std::fs::write(&spec, text).expect("write");
+        let run = dir.path().join(format!("run-{name}"));
+        let out = Command::cargo_bin("framecost").expect("binary").arg("sweep").arg(&spec).arg("--out").arg(&run).arg("--quiet").output().expect("runs");
+        assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+        runs.push(run);
+    }
+    let out = Command::cargo_bin("framecost").expect("binary").arg("gate").arg(&runs[0]).arg(&runs[1]).output().expect("runs");
+    let all = format!("{}{}", String::from_utf8_lossy(&out.stdout), String::from_utf8_lossy(&out.stderr));
+    assert_eq!(out.status.code(), Some(2), "{all}");
+    assert!(all.contains("swept over different axes") && all.contains("crews-by-count (rows → crews)"), "{all}");
+}
