@@ -198,6 +198,13 @@ fn a_bad_axis_is_located_at_its_line_and_column() {
     let p = problems(&SPEC.replace("rows: 20k\n", ""));
     assert!(p.iter().any(|x| x.2.contains("needs `rows:`")), "{p:?}");
 
+    // A step parameter bounded by the table's rows is checked against the fixed rows, not
+    // against the swept values (a thousand crews is not a thousand rows).
+    let text = SPEC.replace("steps: [{group_shares: {by: 0, value: 1, method: window}}]", "setup: [{split_storage: {pieces: 20000}}]\n    steps: [{group_shares: {by: 0, value: 1, method: window}}]");
+    assert!(problems(&text).is_empty(), "{:?}", problems(&text));
+    let p = problems(&text.replace("pieces: 20000", "pieces: 20001"));
+    assert!(p.len() == 1 && p[0].2.contains("from 1 to 20000 (the largest size has 20000 rows), found 20001"), "{p:?}");
+
     // The command prints file:line:column.
     let dir = tempfile::tempdir().expect("tempdir");
     let f = dir.path().join("bad.yaml");
