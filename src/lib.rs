@@ -7,6 +7,7 @@
 //! stages read saved results only.
 
 pub mod analyse;
+pub mod builtin;
 pub mod cli;
 pub mod explain;
 pub mod fit;
@@ -34,4 +35,14 @@ pub mod exit {
     /// The sweep was interrupted (Ctrl-C or SIGTERM); finished points were kept
     /// (128 + SIGINT, as shells report it).
     pub const INTERRUPTED: i32 = 130;
+
+    /// Every code with what it means, for `--help` and the man page.
+    pub const ALL: &[(i32, &str)] = &[
+        (OK, "success (for `gate`: no regression)"),
+        (REGRESSION, "`gate` found a regression"),
+        (BAD_INPUT, "bad input or usage: a workload file, an option, a run, a partial gate"),
+        (RUN_FAILED, "a run failed: a step failed or overran, or outputs that should agree did not"),
+        (WRITE_FAILED, "results or reports could not be written (disk full, no permission)"),
+        (INTERRUPTED, "the sweep was interrupted (Ctrl-C, SIGTERM); finished points were kept"),
+    ];
 }

@@ -129,7 +129,8 @@ fn a_group_sweep_records_the_axis_and_every_output_says_groups() {
     let report = Command::cargo_bin("framecost").expect("binary").arg("report").arg(&run).output().expect("runs");
     assert!(report.status.success(), "{}", String::from_utf8_lossy(&report.stderr));
     let md = std::fs::read_to_string(run.join("report.md")).expect("report.md");
-    assert!(md.contains("| crews | design |"), "{md}");
+    assert!(md.contains("| time per run | 10 crews | 100 crews | 1k crews |"), "{md}");
+    assert!(!md.contains("rows against") && !md.contains("number of rows"), "{md}");
     let svg = std::fs::read_dir(run.join("pictures"))
         .expect("run folder")
         .filter_map(|e| e.ok())

@@ -370,17 +370,17 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
     for d in &w.header.designs {
         let pts: Vec<_> = w.design_points(&d.name).into_iter().filter(|p| p.measured.is_some()).collect();
         let mut used: Vec<_> = pts.iter().filter(|p| p.rows <= limit).collect();
-        // Allocation counts do not depend on how busy the machine was: they are fitted over
-        // every measured size, so the class of bytes is the same in every run.
-        let mut counted = used.clone();
         let mut notes = Vec::new();
+        // Memory is counted, not timed: a busy machine does not change it, so its fits keep
+        // every size.
+        let mut for_memory = used.clone();
         // Points measured on a busy machine never decide a class, as long as enough clean
         // sizes remain to fit one.
         let busy = used.iter().filter(|p| p.measured.as_ref().is_some_and(|m| m.is_contaminated())).count();
         if busy > 0 {
             if used.len() - busy >= crate::fit::growth::MIN_SIZES {
                 used.retain(|p| !p.measured.as_ref().is_some_and(|m| m.is_contaminated()));
-                notes.push(format!("{busy} size(s) measured on a busy machine were left out of the fits"));
+                notes.push(format!("{busy} size(s) measured on a busy machine were left out of the time fits"));
             } else {
                 notes.push(format!("{busy} size(s) were measured on a busy machine and too few clean ones remain: the fits include them"));
             }
@@ -388,12 +388,8 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         if let Some(k) = opts.top_sizes {
             let drop = used.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
             used.drain(..drop);
-            let drop = counted.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
-            counted.drain(..drop);
-        }
-        if counted.iter().any(|p| p.measured.as_ref().is_some_and(|m| !m.alloc_counted)) {
-            // A program's memory is its resident size, which another process can disturb.
-            counted = used.clone();
+            let drop = for_memory.len().saturating_sub(k.max(crate::fit::growth::MIN_SIZES));
+            for_memory.drain(..drop);
         }
         let measured: Vec<(u64, &crate::results::Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
         let seed = xxhash_rust::xxh3::xxh3_64(d.name.as_bytes());
@@ -407,16 +403,17 @@ pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadA
         } else {
             vec![]
         };
-        let metric = |points: &[&&crate::results::PointRecord], get: &dyn Fn(&crate::results::Measured) -> f64| -> (Result<GrowthFit, FitError>, Option<f64>) {
+        let metric = |get: &dyn Fn(&crate::results::Measured) -> f64| -> (Result<GrowthFit, FitError>, Option<f64>) {
             let v: Vec<(f64, f64)> =
-                points.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
+                for_memory.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
             let (x, y): (Vec<f64>, Vec<f64>) = v.iter().copied().unzip();
             let slope = crate::fit::growth::loglog_slope(&x, &y).ok();
             (fit_growth(&x, &y), slope)
         };
-        let (bytes_res, bytes_exponent) = metric(&counted, &|m| m.alloc.bytes as f64);
-        let (peak_res, peak_exponent) = metric(&used, &|m| m.peak_bytes() as f64);
-        let (bytes_out, peak_out) = (growth_out(&bytes_res, counted.len()).ok(), growth_out(&peak_res, measured.len()).ok());
+        let (bytes_res, bytes_exponent) = metric(&|m| m.alloc.bytes as f64);
+        let (peak_res, peak_exponent) = metric(&|m| m.peak_bytes() as f64);
+        // Sizes the memory fits used (all of them, busy or not), not the time fits'.
+        let (bytes_out, peak_out) = (growth_out(&bytes_res, for_memory.len()).ok(), growth_out(&peak_res, for_memory.len()).ok());
         let bytes_fit = bytes_res.ok();
         let time_fit = time_fit.map(|t| match bounded_by_bytes(&t, bytes_fit.as_ref()) {
             Some((f, note)) => {

@@ -1,45 +1,120 @@
-//! `framecost catalog [--long] [FOLDER]` — the built-in workloads, one line each, and the
-//! steps designs are made of. `--long` adds each step's parameters and cost-model note.
+//! `framecost catalog [--long] [--json] [FOLDER]` — the workloads, one line each, and the
+//! steps designs are made of. Without FOLDER, the built-in workloads embedded in the binary
+//! (so it works from any folder); `--long` adds each step's parameters and cost-model note;
+//! `--json` prints one document (`framecost.catalog/1`, see docs/results.md).
 
+use crate::plan::Plan;
 use std::path::PathBuf;
 
-/// List the built-in workloads and the steps designs are made of.
+/// Schema of the `--json` document.
+pub const SCHEMA: &str = "framecost.catalog/1";
+
+/// List the built-in workloads (or a folder's) and the steps designs are made of.
 #[derive(Debug, clap::Args)]
 pub struct Args {
-    /// Folder of workload files.
-    #[arg(default_value = "workloads")]
-    pub folder: PathBuf,
+    /// A folder of workload files to list instead of the built-in workloads.
+    pub folder: Option<PathBuf>,
     /// Also show every step's parameters and cost-model note.
     #[arg(long)]
     pub long: bool,
+    /// Print one JSON document instead of text.
+    #[arg(long)]
+    pub json: bool,
 }
 
-pub fn run(args: Args) -> i32 {
-    let mut code = crate::exit::OK;
-    println!("workloads in {}:", args.folder.display());
-    match super::expand_paths(std::slice::from_ref(&args.folder)) {
-        Ok(files) => {
-            for f in files {
-                match crate::spec::load(&f) {
-                    Ok(p) => {
-                        let first = p.about.split(". ").next().unwrap_or("").trim_end_matches('.').to_string();
-                        println!("  {:<22} {}", p.name, first);
-                        if args.long {
-                            for d in &p.designs {
-                                println!("      {:<20} {}", d.name, d.recipe());
-                            }
-                        }
-                    }
+/// The workloads to list: (label, plan) for each that loads; problems go to stderr.
+fn workloads(args: &Args) -> (Vec<(String, Plan)>, bool) {
+    let mut ok = Vec::new();
+    let mut bad = false;
+    match &args.folder {
+        None => {
+            for name in crate::builtin::names() {
+                match crate::builtin::load(name) {
+                    Ok(p) => ok.push((crate::builtin::label(name), p)),
                     Err(e) => {
-                        println!("  {:<22} (does not load: {})", f.display(), e.0.first().map(|i| i.message.clone()).unwrap_or_default());
-                        code = crate::exit::BAD_INPUT;
+                        eprintln!("framecost catalog: built-in `{name}` does not load: {e}");
+                        bad = true;
                     }
                 }
             }
         }
-        Err(e) => {
-            println!("  {e}");
-            code = crate::exit::BAD_INPUT;
+        Some(folder) => match super::expand_paths(std::slice::from_ref(folder)) {
+            Ok(files) => {
+                for f in files {
+                    match crate::spec::load(&f) {
+                        Ok(p) => ok.push((f.display().to_string(), p)),
+                        Err(e) => {
+                            eprintln!("{e}");
+                            eprintln!("framecost catalog: {} does not load (left out of the list)", f.display());
+                            bad = true;
+                        }
+                    }
+                }
+            }
+            Err(e) => {
+                eprintln!("framecost catalog: {e}");
+                bad = true;
+            }
+        },
+    }
+    (ok, bad)
+}
+
+fn json(args: &Args, list: &[(String, Plan)]) -> serde_json::Value {
+    let workloads: Vec<_> = list
+        .iter()
+        .map(|(file, p)| {
+            serde_json::json!({
+                "name": p.name,
+                "file": file,
+                "about": p.about,
+                "designs": p.designs.iter().map(|d| serde_json::json!({ "name": d.name, "recipe": d.recipe() })).collect::<Vec<_>>(),
+            })
+        })
+        .collect();
+    let steps: Vec<_> = crate::patterns::all_steps()
+        .map(|(family, s)| {
+            serde_json::json!({
+                "name": s.name,
+                "family": family,
+                "summary": s.summary,
+                "takes": s.takes.label(),
+                "gives": s.gives.label(),
+                "cost_note": s.cost_note,
+                "params": s.params.iter().map(|p| serde_json::json!({
+                    "name": p.name, "kind": p.kind.describe(), "default": p.default, "doc": p.doc,
+                })).collect::<Vec<_>>(),
+            })
+        })
+        .collect();
+    let source = args.folder.as_ref().map(|f| f.display().to_string()).unwrap_or_else(|| "built-in".into());
+    serde_json::json!({ "schema": SCHEMA, "source": source, "workloads": workloads, "steps": steps })
+}
+
+pub fn run(args: Args) -> i32 {
+    if let Some(folder) = &args.folder {
+        if let Err(e) = super::expand_paths(std::slice::from_ref(folder)) {
+            eprintln!("framecost catalog: {e}");
+            return crate::exit::BAD_INPUT;
+        }
+    }
+    let (list, bad) = workloads(&args);
+    let code = if bad { crate::exit::BAD_INPUT } else { crate::exit::OK };
+    if args.json {
+        println!("{}", serde_json::to_string_pretty(&json(&args, &list)).unwrap_or_default());
+        return code;
+    }
+    match &args.folder {
+        None => println!("built-in workloads (sweep one with `framecost sweep --builtin NAME`):"),
+        Some(f) => println!("workloads in {}:", f.display()),
+    }
+    for (_, p) in &list {
+        let first = p.about.split(". ").next().unwrap_or("").trim_end_matches('.').to_string();
+        println!("  {:<22} {}", p.name, first);
+        if args.long {
+            for d in &p.designs {
+                println!("      {:<20} {}", d.name, d.recipe());
+            }
         }
     }
     println!("\nsteps:");

@@ -7,6 +7,9 @@ use crate::analyse::{analyse, AnalyseOptions};
 use crate::spec::units::parse_rows;
 use std::path::PathBuf;
 
+/// Schema of the `--json` document (docs/results.md).
+pub const SCHEMA: &str = "framecost.explain/1";
+
 /// Explain a saved run: growth, predictions, crossovers, causes and a verdict.
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -55,7 +58,7 @@ pub fn run(a: Args) -> i32 {
     let explanations: Vec<_> =
         r.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
     if a.json {
-        let doc = serde_json::json!({ "analysis": analysis, "explanations": explanations });
+        let doc = serde_json::json!({ "schema": SCHEMA, "analysis": analysis, "explanations": explanations });
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
         return crate::exit::OK;
     }

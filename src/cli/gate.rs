@@ -10,6 +10,9 @@ use crate::track::gate::{compare, Call, GateOptions, GateReport};
 use comfy_table::{presets, CellAlignment, ContentArrangement, Table};
 use std::path::{Path, PathBuf};
 
+/// Schema of the `--json` document (docs/results.md).
+pub const SCHEMA: &str = "framecost.gate/1";
+
 /// Compare a baseline run with a new run; exit 1 on a regression.
 #[derive(Debug, clap::Args)]
 pub struct Args {
@@ -99,7 +102,12 @@ pub fn run(a: Args) -> i32 {
         return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
     }
     if a.json {
-        println!("{}", serde_json::to_string_pretty(&report).unwrap_or_default());
+        // The report's own fields, with the schema beside them (docs/results.md).
+        let mut doc = serde_json::to_value(&report).unwrap_or_default();
+        if let Some(o) = doc.as_object_mut() {
+            o.insert("schema".into(), SCHEMA.into());
+        }
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
     } else {
         print!("{}", render(&report));
     }

@@ -1,10 +1,12 @@
 //! `framecost history DIR` — every run found in DIR (folders holding `points.jsonl`, saved
 //! baselines included), in the order they were made: per workload a picture of each design's
 //! cost at each size across the runs, with the places where the gate between consecutive
-//! runs found a change marked, and the same changes listed.
+//! runs found a change marked, and the same changes listed. Runs whose workload file changed
+//! (the spec hash in the workload header differs from the run before) are marked in both.
 
+use crate::present::plot::{spec_changes, RunMark};
+use crate::present::units::{escaped, size_label};
 use crate::results::reader::RunResults;
-use crate::spec::units::rows_label;
 use crate::track::gate::{compare, Call, GateOptions};
 use std::path::PathBuf;
 
@@ -67,24 +69,37 @@ pub fn run(a: Args) -> i32 {
                 r.workloads.iter().find(|w| &w.header.workload == name).map(|w| (id, w))
             })
             .collect();
-        let marks: Vec<(usize, String, u64, bool)> = changes
+        let marks: Vec<RunMark> = changes
             .iter()
             .filter(|c| &c.0 == name)
             .filter_map(|c| {
                 // Index within this workload's series.
                 let id = runs[c.1].run.as_ref().map(|h| h.run_id.clone())?;
-                series.iter().position(|s| s.0 == id).map(|k| (k, c.2.clone(), c.3, c.4))
+                series.iter().position(|s| s.0 == id).map(|k| RunMark { run: k, design: c.2.clone(), rows: c.3, worse: c.4 })
             })
             .collect();
         match crate::present::plot::draw_history(&out, name, &series, &marks) {
-            Ok(p) => println!("{name}: {} runs → {}", series.len(), p.display()),
+            Ok(p) => println!("{}: {} runs → {}", escaped(name), series.len(), p.display()),
             Err(e) => {
-                eprintln!("framecost history: {name}: {e}");
+                eprintln!("framecost history: {}: {e}", escaped(name));
                 return crate::exit::RUN_FAILED;
             }
         }
-        for (k, d, n, worse) in &marks {
-            println!("  run {}: {d} at {} rows {}", series[*k].0, rows_label(*n), if *worse { "got slower" } else { "got faster" });
+        // In run order: where the workload file changed (its spec hash differs from the run
+        // before), then what the gate found at that run.
+        let edits = spec_changes(&series);
+        for (k, (id, _)) in series.iter().enumerate().skip(1) {
+            if let Some((_, old, new)) = edits.iter().find(|e| e.0 == k) {
+                println!(
+                    "  run {}: workload file changed (spec {} → {}); changes across it may come from the edit",
+                    escaped(id),
+                    escaped(&old.chars().take(8).collect::<String>()),
+                    escaped(&new.chars().take(8).collect::<String>())
+                );
+            }
+            for m in marks.iter().filter(|m| m.run == k) {
+                println!("  run {}: {} at {} rows {}", escaped(id), escaped(&m.design), size_label(m.rows as f64), if m.worse { "got slower" } else { "got faster" });
+            }
         }
     }
     crate::exit::OK

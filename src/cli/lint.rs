@@ -1,10 +1,14 @@
 //! `framecost lint FILE...` — check workload files without running anything.
 //!
 //! Prints every problem as `file:line:column: path: what was expected, what was found`,
-//! with a did-you-mean for unknown keys, steps and values. Exit 0 when all files are
-//! sound, 2 otherwise.
+//! with a did-you-mean for unknown keys, steps and values (on stderr; the `ok` lines on
+//! stdout). `--json` prints one document instead (`framecost.lint/1`, see docs/results.md).
+//! Exit 0 when all files are sound, 2 otherwise.
 
 use std::path::PathBuf;
+
+/// Schema of the `--json` document.
+pub const SCHEMA: &str = "framecost.lint/1";
 
 /// Check workload files without running them.
 #[derive(Debug, clap::Args)]
@@ -12,6 +16,9 @@ pub struct Args {
     /// Workload files or folders of them.
     #[arg(required = true)]
     pub paths: Vec<PathBuf>,
+    /// Print one JSON document (every file, every located problem) instead of text.
+    #[arg(long)]
+    pub json: bool,
 }
 
 pub fn run(args: Args) -> i32 {
@@ -23,23 +30,47 @@ pub fn run(args: Args) -> i32 {
         }
     };
     let mut bad = 0;
+    let mut docs = Vec::new();
     for f in &files {
         match crate::spec::load(f) {
             Ok(plan) => {
-                println!("{}: ok — {} with {} designs over {} sizes", f.display(), plan.name, plan.designs.len(), plan.sizes.len());
-                // Programs run with the user's permissions: say what `sweep --allow-programs` would run.
-                for c in super::sweep::program_commands(std::slice::from_ref(&plan)) {
-                    println!("  runs a program (needs sweep --allow-programs): {c}");
+                let programs = super::sweep::program_commands(std::slice::from_ref(&plan));
+                if args.json {
+                    docs.push(serde_json::json!({
+                        "file": f.display().to_string(), "ok": true, "workload": plan.name,
+                        "designs": plan.designs.len(), "sizes": plan.sizes, "problems": [],
+                        "programs": programs,
+                    }));
+                } else {
+                    println!("{}: ok — {} with {} designs over {} sizes", f.display(), plan.name, plan.designs.len(), plan.sizes.len());
+                    // Programs run with the user's permissions: say what `sweep --allow-programs` would run.
+                    for c in &programs {
+                        println!("  runs a program (needs sweep --allow-programs): {c}");
+                    }
                 }
             }
             Err(errs) => {
                 bad += 1;
-                eprintln!("{errs}");
+                if args.json {
+                    let problems: Vec<_> = errs
+                        .0
+                        .iter()
+                        .map(|i| serde_json::json!({ "line": i.line, "column": i.column, "message": i.message, "hint": i.hint }))
+                        .collect();
+                    docs.push(serde_json::json!({ "file": f.display().to_string(), "ok": false, "problems": problems }));
+                } else {
+                    eprintln!("{errs}");
+                }
             }
         }
     }
-    if bad > 0 {
+    if args.json {
+        let doc = serde_json::json!({ "schema": SCHEMA, "files": docs, "files_with_problems": bad });
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+    } else if bad > 0 {
         eprintln!("framecost lint: {bad} of {} file(s) have problems", files.len());
+    }
+    if bad > 0 {
         crate::exit::BAD_INPUT
     } else {
         crate::exit::OK

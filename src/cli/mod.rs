@@ -2,24 +2,86 @@
 
 pub mod baseline;
 pub mod catalog;
+pub mod completions;
 pub mod explain;
 pub mod gate;
 pub mod history;
 pub mod lint;
+pub mod manual;
 pub mod recap;
 pub mod report;
 pub mod shape;
 pub mod sweep;
 pub mod table;
 
-use clap::{Parser, Subcommand};
+use clap::{CommandFactory, FromArgMatches, Parser, Subcommand};
 
 /// How the cost of table-pipeline designs grows with the data.
 #[derive(Debug, Parser)]
 #[command(name = "framecost", version, about, long_about = None, propagate_version = true)]
 pub struct Cli {
+    /// When to colour output; `auto`: on a terminal, unless NO_COLOR is set.
+    #[arg(long, global = true, value_name = "WHEN", default_value = "auto")]
+    pub color: ColorWhen,
     #[command(subcommand)]
     pub command: Command,
+}
+
+/// The `--color` choices.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum ColorWhen {
+    Auto,
+    Always,
+    Never,
+}
+
+impl ColorWhen {
+    /// The choice in `args`, read before parsing so that clap's own help and errors follow
+    /// it too (the last `--color` wins, as clap would decide).
+    pub fn from_args(args: &[std::ffi::OsString]) -> ColorWhen {
+        let mut when = ColorWhen::Auto;
+        let mut it = args.iter().skip(1).map(|a| a.to_string_lossy());
+        while let Some(a) = it.next() {
+            if a == "--" {
+                break;
+            }
+            let value = if a == "--color" { it.next().map(|v| v.into_owned()) } else { a.strip_prefix("--color=").map(str::to_string) };
+            match value.as_deref() {
+                Some("always") => when = ColorWhen::Always,
+                Some("never") => when = ColorWhen::Never,
+                Some("auto") => when = ColorWhen::Auto,
+                _ => {}
+            }
+        }
+        when
+    }
+
+    /// Make the choice the process's own: anstream (and so every styled print) and clap.
+    fn apply(self, cmd: clap::Command) -> clap::Command {
+        let (stream, help) = match self {
+            ColorWhen::Auto => (anstream::ColorChoice::Auto, clap::ColorChoice::Auto),
+            ColorWhen::Always => (anstream::ColorChoice::Always, clap::ColorChoice::Always),
+            ColorWhen::Never => (anstream::ColorChoice::Never, clap::ColorChoice::Never),
+        };
+        stream.write_global();
+        cmd.color(help)
+    }
+}
+
+/// The exit codes as `--help` lists them (from [`crate::exit::ALL`]).
+pub fn exit_codes_help() -> String {
+    let mut s = String::from("Exit codes:\n");
+    for (code, what) in crate::exit::ALL {
+        s.push_str(&format!("  {code:>3}  {what}\n"));
+    }
+    s
+}
+
+/// The whole command line as clap sees it, exit codes under every command's help.
+pub fn command() -> clap::Command {
+    let codes = exit_codes_help();
+    let with = codes.clone();
+    Cli::command().after_help(codes).mut_subcommands(move |s| s.after_help(with.clone()))
 }
 
 #[derive(Debug, Subcommand)]
@@ -35,11 +97,15 @@ pub enum Command {
     Report(report::Args),
     Table(table::Args),
     Shape(shape::Args),
+    Completions(completions::Args),
+    Manual(manual::Args),
 }
 
 /// Run the command line; returns the process exit code.
 pub fn main() -> i32 {
-    let cli = match Cli::try_parse() {
+    let args: Vec<std::ffi::OsString> = std::env::args_os().collect();
+    let cmd = ColorWhen::from_args(&args).apply(command());
+    let cli = match cmd.try_get_matches_from(args).and_then(|m| Cli::from_arg_matches(&m)) {
         Ok(c) => c,
         Err(e) => {
             let code = if e.use_stderr() { crate::exit::BAD_INPUT } else { crate::exit::OK };
@@ -59,6 +125,8 @@ pub fn main() -> i32 {
         Command::Report(a) => report::run(a),
         Command::Table(a) => table::run(a),
         Command::Shape(a) => shape::run(a),
+        Command::Completions(a) => completions::run(a),
+        Command::Manual(a) => manual::run(a),
     }
 }
 

@@ -1,19 +1,56 @@
 //! `framecost recap RUN` — print a saved run's terminal summary again, from its results
-//! file alone (also works on a run that was interrupted).
+//! file alone (also works on a run that was interrupted). `--json` prints the run's summary
+//! and verdicts as one document (`framecost.recap/1`, see docs/results.md).
 
+use crate::results::reader::RunResults;
 use std::path::PathBuf;
+
+/// Schema of the `--json` document.
+pub const SCHEMA: &str = "framecost.recap/1";
 
 /// Show a saved run's summary again, from its results alone.
 #[derive(Debug, clap::Args)]
 pub struct Args {
     /// A run folder (or its points.jsonl).
     pub run: PathBuf,
+    /// Print everything: all findings, cost-model notes, intervals, chunks.
+    #[arg(long)]
+    pub long: bool,
+    /// Print one JSON document (summary and verdicts) instead of text.
+    #[arg(long)]
+    pub json: bool,
+}
+
+/// A run as one JSON document: its summary (as in `summary.json`) and each workload's
+/// verdict. `sweep --json` prints the same with a few fields more.
+pub fn document(schema: &str, r: &RunResults) -> serde_json::Value {
+    let analysis = crate::analyse::analyse(r, &crate::analyse::AnalyseOptions::default());
+    let verdicts: Vec<_> = r
+        .workloads
+        .iter()
+        .zip(&analysis.workloads)
+        .map(|(w, wa)| serde_json::json!({ "workload": w.header.workload, "verdict": crate::explain::explain(w, wa).verdict }))
+        .collect();
+    serde_json::json!({
+        "schema": schema,
+        "complete": r.complete(),
+        "damaged_lines": r.damaged_lines,
+        "summary": crate::results::summary::Summary::from_results(r),
+        "verdicts": verdicts,
+    })
 }
 
 pub fn run(args: Args) -> i32 {
-    match crate::results::reader::RunResults::read(&args.run) {
+    match RunResults::read(&args.run) {
+        Ok(r) if args.json => {
+            let mut doc = document(SCHEMA, &r);
+            doc["run"] = args.run.display().to_string().into();
+            println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+            crate::exit::OK
+        }
         Ok(r) => {
-            print!("{}", crate::present::terminal::render(&r, crate::present::terminal::Style::detect()));
+            use crate::present::terminal::{render_with, Options, Style};
+            print!("{}", render_with(&r, Style::detect(), Options::detect(args.long)));
             crate::exit::OK
         }
         Err(e) => {

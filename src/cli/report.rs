@@ -1,6 +1,7 @@
 //! `framecost report RUN` — redraw a saved run's pictures and reports without running
-//! anything: `pictures/*.svg|png`, `report.md`, `report.html` (self-contained) and
-//! `points.csv`, written into the run folder (or `--out DIR`).
+//! anything: `pictures/*.svg|png`, `report.md`, `report.html` (self-contained) and the
+//! tables `points.parquet`, `samples.parquet` and `points.csv`, written into the run folder
+//! (or `--out DIR`).
 
 use crate::analyse::AnalyseOptions;
 use crate::spec::units::parse_rows;
@@ -37,7 +38,16 @@ pub fn run(a: Args) -> i32 {
     let dir = a.out.clone().unwrap_or_else(|| if a.run.is_dir() { a.run.clone() } else { a.run.parent().map(PathBuf::from).unwrap_or_default() });
     match crate::present::report::write(&dir, &r, &AnalyseOptions { at, ..AnalyseOptions::default() }) {
         Ok(w) => {
-            println!("report: {}\n        {}\ntable:  {}\npictures: {} files in {}", w.html.display(), w.markdown.display(), w.csv.display(), w.pictures.len(), dir.join("pictures").display());
+            println!(
+                "report: {}\n        {}\ntables: {}\n        {}\n        {}\npictures: {} files in {}",
+                w.html.display(),
+                w.markdown.display(),
+                dir.join("points.parquet").display(),
+                dir.join("samples.parquet").display(),
+                w.csv.display(),
+                w.pictures.len(),
+                dir.join("pictures").display()
+            );
             crate::exit::OK
         }
         Err(e) => {

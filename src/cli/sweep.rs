@@ -9,7 +9,7 @@
 
 use crate::measure::runner::{self, Progress, SweepOptions};
 use crate::plan::Plan;
-use crate::present::terminal::{render, Style};
+use crate::present::terminal::{render_with, Options, Style};
 use crate::results::writer::RunWriter;
 use crate::results::Record;
 use crate::spec::units::{parse_rows, parse_seconds, parse_share, rows_label};
@@ -20,8 +20,11 @@ use std::time::Instant;
 #[derive(Debug, clap::Args)]
 pub struct Args {
     /// Workload files, or folders of them.
-    #[arg(required = true)]
+    #[arg(required_unless_present = "builtin")]
     pub paths: Vec<PathBuf>,
+    /// Also sweep this built-in workload (repeatable; `framecost catalog` lists them).
+    #[arg(long, value_name = "NAME", value_parser = clap::builder::PossibleValuesParser::new(crate::builtin::names()), hide_possible_values = true)]
+    pub builtin: Vec<String>,
     /// Run folder to write (default: reports/<workload>-<date>-<time>).
     #[arg(long, value_name = "DIR")]
     pub out: Option<PathBuf>,
@@ -56,7 +59,24 @@ pub struct Args {
     /// commands first; without this flag such a workload is refused and its commands listed).
     #[arg(long)]
     pub allow_programs: bool,
+    /// At the end, print one JSON document (`framecost.sweep/1`) instead of the summary.
+    #[arg(long)]
+    pub json: bool,
+    /// Print everything in the summary: all findings, cost-model notes, intervals, chunks.
+    #[arg(long)]
+    pub long: bool,
 }
+
+/// The decision for one finished workload, in a few words, for the piped progress line.
+fn workload_answer(r: &crate::results::reader::RunResults, name: &str) -> String {
+    let Some(w) = r.workloads.iter().find(|w| w.header.workload == name) else { return String::new() };
+    let a = crate::analyse::analyse_workload(w, &crate::analyse::AnalyseOptions::default());
+    let e = crate::explain::explain(w, &a);
+    crate::present::digest::digest(w, &a, &e).answer
+}
+
+/// Schema of the `--json` document (docs/results.md).
+pub const SCHEMA: &str = "framecost.sweep/1";
 
 fn fail(msg: impl std::fmt::Display) -> i32 {
     eprintln!("framecost sweep: {msg}");
@@ -185,32 +205,146 @@ pub fn program_commands(plans: &[Plan]) -> Vec<String> {
         .collect()
 }
 
-/// A progress bar on stderr, only when stderr is a terminal.
-struct Bar(Option<indicatif::ProgressBar>);
+/// Progress on stderr: on a terminal a bar with the elapsed time and an estimate of what is
+/// left; otherwise one plain line per finished workload (and per finished size once a
+/// workload has run for [`LONG_WORKLOAD_S`]), so a CI log shows the sweep moving. Drawn
+/// only from the runner's calls between samples (never from a timer thread: the
+/// allocation counter is process-wide).
+struct Bar {
+    pb: Option<indicatif::ProgressBar>,
+    state: std::sync::Mutex<BarState>,
+}
+
+/// A workload that has run this long reports each finished size when piped.
+const LONG_WORKLOAD_S: f64 = 20.0;
+
+#[derive(Default)]
+struct BarState {
+    /// (name, sizes, designs, run budget in seconds) of every workload, in sweep order.
+    plans: Vec<(String, Vec<u64>, usize, f64)>,
+    /// Index of the current workload.
+    current: usize,
+    /// Points finished in the current workload.
+    done_here: usize,
+    /// Work finished (Σ rows of finished points) and in all, for the estimate.
+    work_done: f64,
+    work_total: f64,
+    points_done: u64,
+    started: Option<Instant>,
+    workload_started: Option<Instant>,
+    size_started: Option<Instant>,
+}
+
+fn hms(s: f64) -> String {
+    let s = s.max(0.0).round() as u64;
+    if s >= 3600 {
+        format!("{}h{:02}m", s / 3600, (s % 3600) / 60)
+    } else if s >= 60 {
+        format!("{}m{:02}s", s / 60, s % 60)
+    } else {
+        format!("{s}s")
+    }
+}
 
 impl Bar {
-    fn new(total: u64) -> Bar {
+    fn new(plans: &[Plan]) -> Bar {
         use std::io::IsTerminal;
-        if !std::io::stderr().is_terminal() {
-            return Bar(None);
+        let total: u64 = plans.iter().map(|p| (p.sizes.len() * p.designs.len()) as u64).sum();
+        let state = BarState {
+            plans: plans.iter().map(|p| (p.name.clone(), p.sizes.clone(), p.designs.len(), p.budget.whole_run_s)).collect(),
+            work_total: plans.iter().map(|p| p.sizes.iter().map(|&n| n as f64).sum::<f64>() * p.designs.len() as f64).sum(),
+            started: Some(Instant::now()),
+            ..BarState::default()
+        };
+        let pb = std::io::stderr().is_terminal().then(|| {
+            let pb = indicatif::ProgressBar::with_draw_target(Some(total), indicatif::ProgressDrawTarget::stderr());
+            if let Ok(st) = indicatif::ProgressStyle::with_template("{bar:20} {pos}/{len} points · {wide_msg}") {
+                pb.set_style(st);
+            }
+            pb
+        });
+        Bar { pb, state: std::sync::Mutex::new(state) }
+    }
+
+    /// A workload starts (called by `run` before the runner).
+    fn begin(&self, index: usize) {
+        if let Ok(mut st) = self.state.lock() {
+            st.current = index;
+            st.done_here = 0;
+            st.workload_started = Some(Instant::now());
+            st.size_started = Some(Instant::now());
         }
-        let pb = indicatif::ProgressBar::with_draw_target(Some(total), indicatif::ProgressDrawTarget::stderr());
-        if let Ok(st) = indicatif::ProgressStyle::with_template("{bar:24} {pos}/{len} points · {msg}") {
-            pb.set_style(st);
+    }
+
+    /// A workload ended: one plain line when piped.
+    fn end(&self, summary: &str) {
+        if self.pb.is_some() {
+            return;
         }
-        Bar(Some(pb))
+        if let Ok(st) = self.state.lock() {
+            let Some((name, ..)) = st.plans.get(st.current) else { return };
+            let took = st.workload_started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
+            let all = st.started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
+            eprintln!(
+                "framecost: {name} done in {} ({}/{} workloads, {} elapsed){}",
+                hms(took),
+                st.current + 1,
+                st.plans.len(),
+                hms(all),
+                if summary.is_empty() { String::new() } else { format!(": {summary}") }
+            );
+        }
+    }
+
+    /// Seconds left: the pace so far (by rows, as cost grows at least with the rows), but
+    /// never more than what the run budgets still allow.
+    fn left(st: &BarState) -> Option<f64> {
+        let elapsed = st.started?.elapsed().as_secs_f64();
+        if st.work_done <= 0.0 {
+            return None;
+        }
+        let by_pace = elapsed / st.work_done * (st.work_total - st.work_done);
+        let here = st.workload_started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
+        let budget: f64 = st.plans.get(st.current).map(|p| (p.3 - here).max(0.0)).unwrap_or(0.0)
+            + st.plans.iter().skip(st.current + 1).map(|p| p.3).sum::<f64>();
+        Some(by_pace.min(budget))
     }
 }
 
 impl Progress for Bar {
     fn point(&self, workload: &str, rows: u64, design: &str, samples: usize) {
-        if let Some(pb) = &self.0 {
-            pb.set_message(format!("{workload} · {} rows · {design} · {samples} samples", rows_label(rows)));
-        }
+        let Some(pb) = &self.pb else { return };
+        let Ok(st) = self.state.lock() else { return };
+        let elapsed = st.started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
+        let left = Bar::left(&st).map(|s| format!(" · about {} left", hms(s))).unwrap_or_default();
+        pb.set_message(format!("{} elapsed{left} · {workload} · {} rows · {design} · {samples} samples", hms(elapsed), rows_label(rows)));
     }
     fn point_done(&self) {
-        if let Some(pb) = &self.0 {
+        let Ok(mut st) = self.state.lock() else { return };
+        st.points_done += 1;
+        st.done_here += 1;
+        let Some((name, sizes, designs, _)) = st.plans.get(st.current).cloned() else { return };
+        let k = (st.done_here - 1) / designs.max(1);
+        st.work_done += sizes.get(k).copied().unwrap_or(0) as f64;
+        if let Some(pb) = &self.pb {
             pb.inc(1);
+            return;
+        }
+        // Piped: one line per finished size of a long workload.
+        if designs > 0 && st.done_here % designs == 0 && st.done_here < designs * sizes.len() {
+            let here = st.workload_started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
+            let size_took = st.size_started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
+            st.size_started = Some(Instant::now());
+            if here >= LONG_WORKLOAD_S {
+                let left = Bar::left(&st).map(|s| format!(", about {} left", hms(s))).unwrap_or_default();
+                eprintln!(
+                    "framecost: {name} · {} rows done in {} (size {}/{}{left})",
+                    rows_label(sizes[k]),
+                    hms(size_took),
+                    k + 1,
+                    sizes.len()
+                );
+            }
         }
     }
 }
@@ -228,6 +362,15 @@ pub fn run(a: Args) -> i32 {
             Ok(p) => plans.push(p),
             Err(e) => {
                 eprintln!("{e}");
+                bad = true;
+            }
+        }
+    }
+    for name in &a.builtin {
+        match crate::builtin::load(name) {
+            Ok(p) => plans.push(p),
+            Err(e) => {
+                eprintln!("framecost sweep: --builtin: {e}");
                 bad = true;
             }
         }
@@ -344,15 +487,15 @@ pub fn run(a: Args) -> i32 {
         return write_failed(e);
     }
     eprintln!("framecost: writing {}", dir.display());
-    let total: u64 = plans.iter().map(|p| (p.sizes.len() * p.designs.len()) as u64).sum();
-    let bar = Bar::new(total);
+    let bar = Bar::new(&plans);
     let mut failures = 0;
     let mut mismatches = 0;
-    for p in &plans {
+    for (k, p) in plans.iter().enumerate() {
         let _ = out.side_file(&format!("spec-{}.yaml", p.name), &p.spec_text);
+        bar.begin(k);
         match runner::sweep(p, &opts, &clock, &mut out, &bar) {
             Ok(o) if o.interrupted || crate::measure::interrupt::requested() => {
-                if let Some(pb) = &bar.0 {
+                if let Some(pb) = &bar.pb {
                     pb.finish_and_clear();
                 }
                 return interrupted(&out);
@@ -360,9 +503,10 @@ pub fn run(a: Args) -> i32 {
             Ok(o) => {
                 failures += o.failures;
                 mismatches += o.mismatches;
+                bar.end(&workload_answer(&out.results, &p.name));
             }
             Err(e) => {
-                if let Some(pb) = &bar.0 {
+                if let Some(pb) = &bar.pb {
                     pb.finish_and_clear();
                 }
                 return match e {
@@ -375,7 +519,7 @@ pub fn run(a: Args) -> i32 {
             }
         }
     }
-    if let Some(pb) = &bar.0 {
+    if let Some(pb) = &bar.pb {
         pb.finish_and_clear();
     }
     if let Err(e) = out.write(Record::End(runner::end_record(started, mismatches))) {
@@ -392,7 +536,7 @@ pub fn run(a: Args) -> i32 {
     let analysis = crate::analyse::analyse(&saved, &crate::analyse::AnalyseOptions::default());
     let explanations: Vec<_> =
         saved.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
-    let doc = serde_json::json!({ "schema": crate::results::SCHEMA, "analysis": analysis, "explanations": explanations });
+    let doc = serde_json::json!({ "schema": super::explain::SCHEMA, "analysis": analysis, "explanations": explanations });
     if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
         return write_failed(e);
     }
@@ -400,19 +544,31 @@ pub fn run(a: Args) -> i32 {
     if let Err(e) = &report {
         eprintln!("framecost sweep: could not write results: the pictures and reports: {e} (the measurements are kept; `framecost report` redraws them)");
     }
-    if !a.quiet {
-        print!("{}", render(&saved, Style::detect()));
-        if plans.len() > 1 {
-            let s = crate::results::summary::Summary::from_results(&saved);
-            println!();
-            for l in crate::present::terminal::one_liners(&s) {
-                println!("{l}");
-            }
-        }
+    if a.json {
+        let mut doc = super::recap::document(SCHEMA, &saved);
+        doc["run"] = dir.display().to_string().into();
+        doc["report"] = report.as_ref().ok().map(|w| w.html.display().to_string()).into();
+        let tables: Vec<String> = ["points.parquet", "samples.parquet", "points.csv"]
+            .iter()
+            .map(|f| dir.join(f))
+            .filter(|p| p.is_file())
+            .map(|p| p.display().to_string())
+            .collect();
+        doc["tables"] = tables.into();
+        doc["failed_points"] = failures.into();
+        doc["mismatched_sizes"] = mismatches.into();
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+    } else if !a.quiet {
+        print!("{}", render_with(&saved, Style::detect(), Options::detect(a.long)));
     }
-    println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());
-    if let Ok(w) = &report {
-        println!("report:  {} ({} pictures)", w.html.display(), w.pictures.len());
+    if !a.json {
+        println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());
+        if let Ok(w) = &report {
+            println!("report:  {} ({} pictures)", w.html.display(), w.pictures.len());
+        }
+        if dir.join("points.parquet").is_file() {
+            println!("tables:  {} (also samples.parquet, points.csv)", dir.join("points.parquet").display());
+        }
     }
     if failures > 0 || mismatches > 0 {
         eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");

@@ -183,7 +183,10 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 ));
             }
             // Peak live memory against the table.
-            if let Some(t) = table_bytes(n1) {
+            // A whole process's peak includes its own start-up (an interpreter, a library),
+            // which is not the design holding tables: no multiple of the table is claimed.
+            let whole_process = m1.program.is_some_and(|p| p.resident_before_bytes.is_none());
+            if let Some(t) = table_bytes(n1).filter(|_| !whole_process) {
                 let peak = m1.peak_bytes() as f64;
                 let copies = peak / t.max(1.0);
                 // For a program: what its runs added to its resident size, as its process showed it.

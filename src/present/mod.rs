@@ -1,5 +1,8 @@
 //! Presentation: everything people read. Works from saved results only.
 
+pub mod color;
+pub mod digest;
+pub mod page;
 pub mod plot;
 pub mod report;
 pub mod terminal;

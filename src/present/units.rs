@@ -79,6 +79,47 @@ fn three_digits(v: f64) -> String {
     }
 }
 
+/// A time tick: round values print without trailing zeros (`500 µs`, `2 ms`, `1 s`,
+/// `200 s`); seconds stay seconds on an axis.
+pub fn time_tick(ns: f64) -> String {
+    if !ns.is_finite() {
+        return "—".into();
+    }
+    let (v, u) = if ns < 1e3 {
+        (ns, "ns")
+    } else if ns < 1e6 {
+        (ns / 1e3, "µs")
+    } else if ns < 1e9 {
+        (ns / 1e6, "ms")
+    } else {
+        (ns / 1e9, "s")
+    };
+    format!("{} {u}", short(v))
+}
+
+/// A byte tick in binary units without trailing zeros: `512 B`, `4 KiB`, `1 MiB`, `1.5 GiB`.
+pub fn bytes_tick(b: f64) -> String {
+    let full = bytes(b);
+    match full.split_once(' ') {
+        Some((v, u)) if u != "B" => format!("{} {u}", v.parse::<f64>().map(short).unwrap_or_else(|_| v.to_string())),
+        _ => full,
+    }
+}
+
+/// A size on an axis or in a label: exact sizes as the rest of the tool writes them
+/// (`spec::units::rows_label`: 500, 64k, 2M) when that is short, otherwise three digits
+/// (1.02M, never 1024k).
+pub fn size_label(n: f64) -> String {
+    if n.is_finite() && n >= 1.0 && n.fract() == 0.0 && n < 1e15 {
+        let exact = crate::spec::units::rows_label(n as u64);
+        let digits = exact.chars().filter(|c| c.is_ascii_digit()).count();
+        if digits <= 3 {
+            return exact;
+        }
+    }
+    rows_label_f(n)
+}
+
 /// A row count on an axis: 500, 1k, 2.5M (any positive number).
 pub fn rows_label_f(n: f64) -> String {
     if !n.is_finite() || n <= 0.0 {
@@ -134,5 +175,15 @@ mod tests {
         assert_eq!(bytes(3.0 * 1024.0), "3.00 KiB");
         assert_eq!(bytes(1.5 * 1024.0 * 1024.0 * 1024.0), "1.50 GiB");
         assert_eq!(ratio(12.34), "×12.3");
+        assert_eq!(time_tick(5e5), "500 µs");
+        assert_eq!(time_tick(2e6), "2 ms");
+        assert_eq!(time_tick(2e11), "200 s");
+        assert_eq!(bytes_tick(4096.0), "4 KiB");
+        assert_eq!(bytes_tick(1024.0 * 1024.0), "1 MiB");
+        assert_eq!(bytes_tick(512.0), "512 B");
+        assert_eq!(size_label(64_000.0), "64k");
+        assert_eq!(size_label(2_000_000.0), "2M");
+        assert_eq!(size_label(1_024_000.0), "1.02M");
+        assert_eq!(size_label(1500.0), "1.5k");
     }
 }

@@ -9,6 +9,7 @@
 //! add fields with `#[serde(default)]` so older files still read; anything else is a new
 //! schema version.
 
+pub mod export;
 pub mod reader;
 pub mod sane;
 pub mod schema;

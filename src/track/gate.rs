@@ -114,7 +114,7 @@ pub struct PointGate {
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct GrowthGate {
     pub design: String,
-    /// "time" or "bytes".
+    /// "time", "bytes" (counted allocations) or "resident" (a program's resident memory).
     pub metric: String,
     pub base_class: Option<String>,
     pub new_class: Option<String>,
@@ -422,20 +422,25 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
                     call: if worse { Call::Regression } else if better { Call::Improvement } else { Call::Same },
                 });
             }
+            // Memory: counted allocations for steps; for a program (no counts) the resident
+            // memory its runs added, page-grained and noisier, so it must rise twice as far.
+            let program = bpts.iter().chain(&npts).any(|(_, m)| !m.alloc_counted);
+            let memory = |m: &Measured| if m.alloc_counted { m.alloc.bytes as f64 } else { m.peak_bytes() as f64 };
+            let (metric, rise_needed) = if program { ("resident", 2.0 * BYTES_EXPONENT_RISE) } else { ("bytes", BYTES_EXPONENT_RISE) };
             let slope = |pts: &[(u64, &Measured)]| {
-                let v: Vec<(f64, f64)> = pts.iter().map(|(n, m)| (*n as f64, m.alloc.bytes as f64)).filter(|p| p.1 > 0.0).collect();
+                let v: Vec<(f64, f64)> = pts.iter().map(|(n, m)| (*n as f64, memory(m))).filter(|p| p.1 > 0.0).collect();
                 let (x, y): (Vec<f64>, Vec<f64>) = v.into_iter().unzip();
                 if x.len() >= 3 { crate::fit::growth::loglog_slope(&x, &y).ok() } else { None }
             };
             if let (Some(bs), Some(ns)) = (slope(&bpts), slope(&npts)) {
                 let bytes_class = |pts: &[(u64, &Measured)]| {
-                    let v: Vec<(f64, f64)> = pts.iter().map(|(n, m)| (*n as f64, m.alloc.bytes as f64)).filter(|p| p.1 > 0.0).collect();
+                    let v: Vec<(f64, f64)> = pts.iter().map(|(n, m)| (*n as f64, memory(m))).filter(|p| p.1 > 0.0).collect();
                     let (x, y): (Vec<f64>, Vec<f64>) = v.into_iter().unzip();
                     crate::fit::growth::fit_growth(&x, &y).ok().map(|f| f.label())
                 };
                 wg.growth.push(GrowthGate {
                     design: d.name.clone(),
-                    metric: "bytes".into(),
+                    metric: metric.into(),
                     base_class: bytes_class(&bpts),
                     new_class: bytes_class(&npts),
                     base_exponent: Some(bs),
@@ -443,9 +448,9 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
                     base_interval: None,
                     new_interval: None,
                     sizes,
-                    call: if ns - bs >= BYTES_EXPONENT_RISE {
+                    call: if ns - bs >= rise_needed {
                         Call::Regression
-                    } else if bs - ns >= BYTES_EXPONENT_RISE {
+                    } else if bs - ns >= rise_needed {
                         Call::Improvement
                     } else {
                         Call::Same
