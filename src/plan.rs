@@ -5,7 +5,7 @@
 use crate::patterns::{Params, Step, StepDef};
 use crate::spec::model::{ColumnKind, EngineChoice, Feed, InputFormat, ProgramMode};
 use std::sync::Arc;
-pub use crate::results::schema::{Budget, ColumnPlan, RangePlan};
+pub use crate::results::schema::{AxisPlan, AxisSet, Budget, ColumnPlan, RangePlan};
 
 /// A workload ready to run.
 #[derive(Clone)]
@@ -25,8 +25,10 @@ pub struct Plan {
     /// True when the spec used `tables:` (each table's values are then drawn with a seed
     /// mixed with its name, so equal column names in two tables differ).
     pub related: bool,
-    /// Increasing row counts.
+    /// Increasing swept values: row counts, or the values of `axis` (see [`Plan::rows_at`]).
     pub sizes: Vec<u64>,
+    /// Set when the sweep is over another shape parameter with the rows fixed.
+    pub axis: Option<AxisPlan>,
     pub target: Option<u64>,
     pub budget: Budget,
     pub designs: Vec<DesignPlan>,
@@ -189,8 +191,85 @@ impl ColumnPlan {
 }
 
 impl Plan {
-    /// Estimated in-memory bytes of every table at swept size `rows`.
+    /// Estimated in-memory bytes of every table at swept size `rows` (of a row sweep; see
+    /// [`Plan::table_bytes_at`] for any sweep).
     pub fn table_bytes(&self, rows: u64) -> f64 {
         self.tables.iter().map(|t| t.bytes(rows)).sum()
     }
+
+    /// The row count tables follow at swept value `x`: `x` itself, or the axis's fixed rows.
+    pub fn rows_at(&self, x: u64) -> u64 {
+        self.axis.as_ref().map_or(x, |a| a.rows)
+    }
+
+    /// The tables at swept value `x`: the declared ones, with the axis's parameter set.
+    pub fn tables_at(&self, x: u64) -> Vec<TablePlan> {
+        let mut tables = self.tables.clone();
+        if let (Some(a), Some(first)) = (&self.axis, tables.first_mut()) {
+            shape_table(first, a, x);
+        }
+        tables
+    }
+
+    /// The first table's columns at swept value `x`.
+    pub fn columns_at(&self, x: u64) -> Vec<ColumnPlan> {
+        if self.axis.is_none() {
+            return self.columns.clone();
+        }
+        self.tables_at(x).into_iter().next().map(|t| t.columns).unwrap_or_default()
+    }
+
+    /// Estimated in-memory bytes of every table at swept value `x`.
+    pub fn table_bytes_at(&self, x: u64) -> f64 {
+        let rows = self.rows_at(x);
+        self.tables_at(x).iter().map(|t| t.bytes(rows)).sum()
+    }
+
+    /// A swept value as prose: `4k rows`, `100 groups`.
+    pub fn axis_point(&self, x: u64) -> String {
+        crate::results::Axis(self.axis.as_ref()).point(x)
+    }
+
+    /// The largest row count any point has (what per-row step parameters are checked against).
+    pub fn largest_rows(&self) -> u64 {
+        self.sizes.last().map_or(0, |&x| self.rows_at(x))
+    }
+}
+
+/// Set the axis's parameter of `t` (the first table) to swept value `x`.
+pub fn shape_table(t: &mut TablePlan, a: &AxisPlan, x: u64) {
+    let value = a.value(x as f64);
+    let col = a.column.as_deref().and_then(|name| t.columns.iter_mut().find(|c| c.name == name));
+    match (a.set, col) {
+        (AxisSet::Distinct, Some(c)) => c.distinct = Some(x.max(1)),
+        (AxisSet::Nulls, Some(c)) => c.nulls = value.clamp(0.0, 1.0),
+        (AxisSet::Skew, Some(c)) => c.skew = value.max(0.0),
+        (AxisSet::Columns, _) => t.columns = widen(&t.columns, x as usize),
+        _ => {}
+    }
+}
+
+/// The declared columns repeated until there are `k` (or the first `k` of them): the
+/// copies are named `<name>_2`, `<name>_3`… (skipping names already taken) and, being
+/// named differently, hold different values.
+pub fn widen(declared: &[ColumnPlan], k: usize) -> Vec<ColumnPlan> {
+    if declared.is_empty() {
+        return Vec::new();
+    }
+    let mut out: Vec<ColumnPlan> = declared.iter().take(k.max(1)).cloned().collect();
+    let mut taken: std::collections::HashSet<String> = declared.iter().map(|c| c.name.clone()).collect();
+    let mut i = 0;
+    while out.len() < k {
+        let src = &declared[i % declared.len()];
+        let mut copy = 2 + i / declared.len();
+        let mut name = format!("{}_{copy}", src.name);
+        while taken.contains(&name) {
+            copy += 1;
+            name = format!("{}_{copy}", src.name);
+        }
+        taken.insert(name.clone());
+        out.push(ColumnPlan { name, ..src.clone() });
+        i += 1;
+    }
+    out
 }

@@ -80,6 +80,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
         outputs_differ: None,
         gate_threshold: None,
         spec_text: String::new(),
+        axis: None,
     }));
     let st = Stream::new(seed, id, 0);
     for (k, &n) in SIZES.iter().enumerate() {

@@ -4,7 +4,7 @@
 //! alone; `--json` for machines.
 
 use crate::analyse::{analyse, AnalyseOptions};
-use crate::spec::units::{parse_rows, rows_label};
+use crate::spec::units::parse_rows;
 use std::path::PathBuf;
 
 /// Schema of the `--json` document (docs/results.md).
@@ -86,9 +86,9 @@ pub fn run(a: Args) -> i32 {
             println!("  {:<24} {}", d.design, parts.join(" · "));
             if let Some(pr) = &d.prediction {
                 println!(
-                    "  {:<24} predicted at {} rows: {} [{}–{}]{}",
+                    "  {:<24} predicted at {}: {} [{}–{}]{}",
                     "",
-                    rows_label(pr.rows),
+                    wa.axis().point(pr.rows),
                     crate::present::units::time_ns(pr.median),
                     crate::present::units::time_ns(pr.low),
                     crate::present::units::time_ns(pr.high),
@@ -101,9 +101,9 @@ pub fn run(a: Args) -> i32 {
             }
             for h in &d.holdout {
                 println!(
-                    "  {:<24} check at {} rows: predicted {}, measured {} ({:+.1}%{})",
+                    "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{})",
                     "",
-                    rows_label(h.rows),
+                    wa.axis().point(h.rows),
                     crate::present::units::time_ns(h.predicted_ns),
                     crate::present::units::time_ns(h.measured_ns),
                     h.error * 100.0,
@@ -117,14 +117,14 @@ pub fn run(a: Args) -> i32 {
         for c in &wa.crossovers {
             // An interval that runs to the end of the search is no information: say so.
             let range = if c.bounded {
-                format!(" [{}–{}]", crate::present::units::rows_label_f(c.rows_low), crate::present::units::rows_label_f(c.rows_high))
+                format!(" [{}–{}]", wa.axis().value_f(c.rows_low), wa.axis().value_f(c.rows_high))
             } else {
                 " (its interval is unbounded: the curves are too close to place it)".to_string()
             };
             println!(
-                "  crossover of the fitted curves: `{}` is cheaper below about {} rows{range}, `{}` above{}",
+                "  crossover of the fitted curves: `{}` is cheaper below about {}{range}, `{}` above{}",
                 c.faster_below,
-                crate::present::units::rows_label_f(c.rows),
+                wa.axis().point_f(c.rows),
                 c.faster_above,
                 if c.inside_measured { " (inside the measured sizes)" } else { " (predicted beyond them)" }
             );

@@ -104,6 +104,9 @@ fn write_failed(msg: impl std::fmt::Display) -> i32 {
 /// Apply command-line overrides to a plan.
 fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
     if let Some(list) = &a.sizes {
+        if let Some(ax) = &plan.axis {
+            return Err(format!("--sizes: `{}` sweeps {} at {} rows; change its `sweep: values:` instead", plan.name, ax.name, rows_label(ax.rows)));
+        }
         let mut v = Vec::new();
         for s in list {
             v.push(parse_rows(s).map_err(|e| format!("--sizes: expected {e}"))?);
@@ -402,7 +405,7 @@ pub fn run(a: Args) -> i32 {
             println!("{} ({} designs):", p.name, p.designs.len());
             for &n in &p.sizes {
                 for line in plan_lines(p, n) {
-                    println!("  {:>8} rows  {line}", rows_label(n));
+                    println!("  {:>8} {}  {line}", crate::results::Axis(p.axis.as_ref()).value(n), crate::results::Axis(p.axis.as_ref()).name());
                 }
             }
             println!(
@@ -476,7 +479,10 @@ pub fn run(a: Args) -> i32 {
     crate::measure::watchdog::start(dir.join("points.jsonl"));
     let started = Instant::now();
     let clock = crate::measure::clock::calibrate();
-    let header = runner::run_header(std::env::args().collect(), clock, a.force);
+    let mut header = runner::run_header(std::env::args().collect(), clock, a.force);
+    if plans.iter().any(|p| p.axis.is_some()) {
+        header.schema = crate::results::AXIS_SCHEMA.to_string();
+    }
     if let Err(e) = out.write(Record::Run(header)) {
         return write_failed(e);
     }

@@ -13,7 +13,6 @@ use crate::present::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, Measured};
 use crate::spec::model::ColumnKind;
-use crate::spec::units::rows_label;
 use serde::{Deserialize, Serialize};
 
 pub mod payback;
@@ -77,6 +76,9 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
     let verdict = verdict(w, a);
     let better = verdict.design.clone();
     let table_bytes = |rows: u64| w.tables.iter().find(|t| t.rows == rows).map(|t| t.table_bytes_estimate);
+    // What was swept: rows, or another axis ("groups", "columns") with the rows fixed.
+    let ax = w.header.axis();
+    let (axis, at) = (ax.name(), |x: u64| ax.point(x));
 
     for (dh, da) in w.header.designs.iter().zip(&a.designs) {
         let name = &dh.name;
@@ -108,10 +110,10 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 "growth",
                 format!("time grows as {} over {} sizes{runner}{exp}", t.label(), t.sizes),
                 match class_of(&t.class) {
-                    Some(GrowthClass::Quadratic) => "once the n² term dominates, doubling the rows multiplies the time by about 4: fine on a sample, hours on the full data".into(),
-                    Some(GrowthClass::Cubic) => "once the n³ term dominates, doubling the rows multiplies the time by about 8".into(),
-                    Some(GrowthClass::Linear) | Some(GrowthClass::Linearithmic) => "the cost scales with the data (roughly proportional)".into(),
-                    Some(GrowthClass::Constant) | Some(GrowthClass::Log) => "the cost barely depends on the number of rows".into(),
+                    Some(GrowthClass::Quadratic) => format!("once the n² term dominates, doubling the {axis} multiplies the time by about 4: fine on a sample, hours on the full data"),
+                    Some(GrowthClass::Cubic) => format!("once the n³ term dominates, doubling the {axis} multiplies the time by about 8"),
+                    Some(GrowthClass::Linear) | Some(GrowthClass::Linearithmic) => if ax.is_rows() { "the cost scales with the data (roughly proportional)".into() } else { format!("the cost scales with the {axis} (roughly proportional)") },
+                    Some(GrowthClass::Constant) | Some(GrowthClass::Log) => format!("the cost barely depends on the number of {axis}"),
                     None => "no growth class agrees with the measured slope: measure more sizes, or larger ones, before predicting".into(),
                 },
                 String::new(),
@@ -161,20 +163,22 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             let superlinear = da.bytes.as_ref().and_then(|b| class_of(&b.class)).map(|c| rank(c) >= rank(GrowthClass::Quadratic));
             let slope = da.bytes_exponent.unwrap_or(1.0);
             // A program has no allocation counts: no copying is claimed from zeros.
-            if m1.alloc_counted && n1 >= 4 * n0 && per1 > 2.0 * per0 && (superlinear == Some(true) || (superlinear.is_none() && slope >= 1.5)) {
+            // Per unit of the axis: only for counts (rows, groups, columns), not for shares.
+            let unit = ax.unit();
+            if let Some(u) = unit.filter(|_| m1.alloc_counted && n1 >= 4 * n0 && per1 > 2.0 * per0 && (superlinear == Some(true) || (superlinear.is_none() && slope >= 1.5))) {
                 let tb = table_bytes(n1).map(|t| format!(", {:.0}× the table's own {}", m1.alloc.bytes as f64 / t.max(1.0), bytes(t))).unwrap_or_default();
                 findings.push(f(
                     "copying",
                     format!(
-                        "allocates {} per run at {} rows: {} per row, up from {} per row at {} rows{tb}; bytes grow as {}",
+                        "allocates {} per run at {}: {} per {u}, up from {} per {u} at {}{tb}; bytes grow as {}",
                         bytes(m1.alloc.bytes as f64),
-                        rows_label(n1),
+                        at(n1),
                         bytes(per1),
                         bytes(per0),
-                        rows_label(n0),
+                        at(n0),
                         da.bytes.as_ref().map(|b| b.class.clone()).unwrap_or_else(|| format!("n^{slope:.2}"))
                     ),
-                    "each new row costs more than the one before: the data built so far is copied again and again (repeated copying of the growing table)".into(),
+                    format!("each new {u} costs more than the one before: the data built so far is copied again and again (repeated copying of the growing table)"),
                     switch("it copies each value a bounded number of times"),
                 ));
             }
@@ -190,7 +194,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 if copies >= 2.0 {
                     findings.push(f(
                         "peak",
-                        format!("{what} {} at {} rows, {:.1}× the table's size ({})", bytes(peak), rows_label(n1), copies, bytes(t)),
+                        format!("{what} {} at {}, {:.1}× the table's size ({})", bytes(peak), at(n1), copies, bytes(t)),
                         format!("at its peak the design holds the equivalent of about {:.0} tables: memory, not time, may be the limit on the full data", copies.floor()),
                         String::new(),
                     ));
@@ -202,7 +206,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             if c1 > 1 && c1 > c0 {
                 findings.push(f(
                     "chunks",
-                    format!("leaves its output in {c1} chunks at {} rows ({c0} at {})", rows_label(n1), rows_label(n0)),
+                    format!("leaves its output in {c1} chunks at {} ({c0} at {})", at(n1), at(n0)),
                     "storage is fragmented in proportion to the work done; every later operation that needs contiguous storage pays to consolidate it".into(),
                     "consolidate once at the end (or build once) instead of leaving the chunks".into(),
                 ));
@@ -213,14 +217,14 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 if par >= 1.4 {
                     findings.push(f(
                         "parallel",
-                        format!("{} is {par:.1}× wall time at {} rows", if dh.program.is_some() { "the program's CPU time" } else { "CPU time" }, rows_label(n1)),
+                        format!("{} is {par:.1}× wall time at {}", if dh.program.is_some() { "the program's CPU time" } else { "CPU time" }, at(n1)),
                         "the work ran on several cores; on a busier or smaller machine it will be slower".into(),
                         String::new(),
                     ));
                 } else if par <= 0.5 && !m1.is_contaminated() {
                     findings.push(f(
                         "parallel",
-                        format!("CPU time is only {par:.2}× wall time at {} rows", rows_label(n1)),
+                        format!("CPU time is only {par:.2}× wall time at {}", at(n1)),
                         "the design spends time waiting (I/O or the system), not computing".into(),
                         String::new(),
                     ));
@@ -232,8 +236,8 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
                 findings.push(f(
                     "unstable",
                     format!(
-                        "its samples at {} rows fall into two clusters (fastest {}, median {}, slowest {})",
-                        rows_label(n1),
+                        "its samples at {} fall into two clusters (fastest {}, median {}, slowest {})",
+                        at(n1),
                         time_ns(v[0]),
                         time_ns(m1.median_ns),
                         time_ns(v[v.len() - 1])
@@ -249,7 +253,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             if m1.samples_ns.len() >= 20 && m1.p50_ns > 0.0 && m1.p99_ns / m1.p50_ns >= 2.0 {
                 findings.push(f(
                     "tail",
-                    format!("p99 is {:.1}× the median at {} rows ({} vs {})", m1.p99_ns / m1.p50_ns, rows_label(n1), time_ns(m1.p99_ns), time_ns(m1.p50_ns)),
+                    format!("p99 is {:.1}× the median at {} ({} vs {})", m1.p99_ns / m1.p50_ns, at(n1), time_ns(m1.p99_ns), time_ns(m1.p50_ns)),
                     "some runs stall (allocation, page faults or another process); the median is the fairer comparison".into(),
                     String::new(),
                 ));
@@ -290,8 +294,8 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             let pred = sk.predicted_ns.map(|p| format!("; one run was predicted at {}", time_ns(p))).unwrap_or_default();
             findings.push(f(
                 "skipped",
-                format!("not measured at {} of {} sizes, from {} rows: {}{pred}", skipped.len(), w.header.sizes.len(), rows_label(first.rows), sk.reason.label()),
-                "its cost outgrew the budget before the data did".into(),
+                format!("not measured at {} of {} sizes, from {}: {}{pred}", skipped.len(), w.header.sizes.len(), at(first.rows), sk.reason.label()),
+                if ax.is_rows() { "its cost outgrew the budget before the data did".into() } else { format!("its cost outgrew the budget before the {axis} did") },
                 String::new(),
             ));
         }
@@ -299,7 +303,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             if p.far {
                 findings.push(f(
                     "extrapolation",
-                    format!("the prediction at {} rows is {:.1} decades past the largest measured size", rows_label(p.rows), p.extrapolation_decades),
+                    format!("the prediction at {} is {:.1} decades past the largest measured size", at(p.rows), p.extrapolation_decades),
                     "a class fitted on small sizes can change at large ones: read it as an order of magnitude".into(),
                     "measure a size closer to the target if the decision depends on it".into(),
                 ));
@@ -316,7 +320,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             findings.push(Finding {
                 design: None,
                 kind: "mismatch".into(),
-                measured: format!("at {} rows: {}", rows_label(c.rows), c.equivalence.note),
+                measured: format!("at {}: {}", w.header.axis().point(c.rows), c.equivalence.note),
                 implies: "these designs do not compute the same result, so their costs are not comparable".into(),
                 action: "fix the design that is wrong, or declare `outputs_differ:` with the reason".into(),
             });

@@ -9,7 +9,6 @@
 use super::Finding;
 use crate::present::units::time_ns;
 use crate::results::reader::WorkloadResults;
-use crate::spec::units::rows_label;
 
 /// One finding per design with a timed set-up, against the fastest design without one.
 pub fn findings(w: &WorkloadResults) -> Vec<Finding> {
@@ -35,9 +34,9 @@ pub fn findings(w: &WorkloadResults) -> Vec<Finding> {
             let runs = (setup / saved).ceil().max(1.0);
             (
                 format!(
-                    "its set-up took {} at {} rows; each run then saves {} against `{other}` ({} vs {})",
+                    "its set-up took {} at {}; each run then saves {} against `{other}` ({} vs {})",
                     time_ns(setup),
-                    rows_label(rows),
+                    w.header.axis().point(rows),
                     time_ns(saved),
                     time_ns(mine),
                     time_ns(theirs)
@@ -46,7 +45,7 @@ pub fn findings(w: &WorkloadResults) -> Vec<Finding> {
             )
         } else {
             (
-                format!("its set-up took {} at {} rows and its runs are no faster than `{other}`'s ({} vs {})", time_ns(setup), rows_label(rows), time_ns(mine), time_ns(theirs)),
+                format!("its set-up took {} at {} and its runs are no faster than `{other}`'s ({} vs {})", time_ns(setup), w.header.axis().point(rows), time_ns(mine), time_ns(theirs)),
                 "the prepared structure never pays for itself at this size".to_string(),
             )
         };

@@ -23,10 +23,9 @@
 
 use super::Verdict;
 use crate::analyse::{CrossoverOut, DesignAnalysis, WorkloadAnalysis};
-use crate::present::units::{ratio, rows_label_f, time_ns};
+use crate::present::units::{ratio, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{ComparisonRecord, EquivalenceStatus};
-use crate::spec::units::rows_label;
 use serde::{Deserialize, Serialize};
 
 /// A runner-up within this ratio of the fastest design is a tie.
@@ -84,7 +83,7 @@ fn at_target(a: &WorkloadAnalysis, name: &str) -> String {
     let Some(p) = design(a, name).and_then(|d| d.prediction.as_ref()) else { return String::new() };
     let growth = design(a, name).and_then(|d| d.time.as_ref()).map(|t| format!(", time growing as {}", t.label())).unwrap_or_default();
     let rough = if p.rough { ", an order of magnitude only" } else { "" };
-    format!("; at {} rows it is predicted at {} [{}–{}] per run{rough}{growth}", rows_label(p.rows), time_ns(p.median), time_ns(p.low), time_ns(p.high))
+    format!("; at {} it is predicted at {} [{}–{}] per run{rough}{growth}", a.axis().point(p.rows), time_ns(p.median), time_ns(p.low), time_ns(p.high))
 }
 
 /// A loser whose ratio to `winner` shrank at each of the last [`TREND_SIZES`] sizes, with
@@ -139,10 +138,11 @@ fn predicted_overtake<'a>(a: &'a WorkloadAnalysis, winner: &str, loser: &str, la
 
 /// Which design to use, from what size, and why (module doc).
 pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
+    let ax = w.header.axis();
     if let Some(c) = w.comparisons.iter().find(|c| c.equivalence.status == EquivalenceStatus::Mismatch) {
         return undecided(format!(
-            "no verdict: the designs do not compute the same result (first seen at {} rows), so their costs are not comparable; fix the design that is wrong or declare `outputs_differ:`",
-            rows_label(c.rows)
+            "no verdict: the designs do not compute the same result (first seen at {}), so their costs are not comparable; fix the design that is wrong or declare `outputs_differ:`",
+            ax.point(c.rows)
         ));
     }
     if w.header.designs.len() == 1 {
@@ -161,7 +161,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         if total == 0 {
             return undecided("no verdict: no size had two designs measured; lower the sizes or raise the point budget".into());
         }
-        return busy_verdict(&all);
+        return busy_verdict(&all, ax);
     };
     let mut ranked = last.ratios.clone();
     ranked.sort_by(|x, y| x.ratio.total_cmp(&y.ratio));
@@ -171,7 +171,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         (Some(lo), Some(hi)) => format!(" [{}–{}]", ratio(lo), ratio(hi)),
         _ => String::new(),
     };
-    let at = rows_label(last.rows);
+    let at = ax.point(last.rows);
     let busy_note = if cmps.len() < total { format!(" ({} sizes measured on a busy machine were left out)", total - cmps.len()) } else { String::new() };
     let tie = runner.ratio < TIE_RATIO || runner.low.is_some_and(|lo| lo <= 1.05);
     if tie {
@@ -185,7 +185,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
             kind: VerdictKind::Tie,
             design: Some(pick.clone()),
             text: format!(
-                "a tie at {at} rows, the largest size compared: `{best}` and `{}` are within the noise (×{:.2}{interval}); {why}{busy_note}",
+                "a tie at {at}, the largest size compared: `{best}` and `{}` are within the noise (×{:.2}{interval}); {why}{busy_note}",
                 runner.design, runner.ratio
             ),
             decided_at: Some(last.rows),
@@ -206,13 +206,13 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
             kind: VerdictKind::Crossover,
             design: Some(r.design.clone()),
             text: format!(
-                "`{best}` is fastest up to {at} rows, but `{}`'s ratio to it fell at each of the last {} sizes ({}) and the fitted costs cross at about {} rows [{}–{}], beyond the measured sizes: use `{}` from there{}{busy_note}",
+                "`{best}` is fastest up to {at}, but `{}`'s ratio to it fell at each of the last {} sizes ({}) and the fitted costs cross at about {} [{}–{}], beyond the measured sizes: use `{}` from there{}{busy_note}",
                 r.design,
                 TREND_SIZES,
                 steps.join(" → "),
-                rows_label_f(c.rows),
-                rows_label_f(c.rows_low),
-                rows_label_f(c.rows_high),
+                ax.point_f(c.rows),
+                ax.value_f(c.rows_low),
+                ax.value_f(c.rows_high),
                 r.design,
                 at_target(a, &r.design)
             ),
@@ -225,8 +225,16 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         .crossovers
         .iter()
         .filter(|c| c.faster_above == best && c.inside_measured)
+        // Only where a measured size below the crossing shows it: fitted curves alone may
+        // cross where every measurement has `best` ahead (seen on a columns sweep).
+        .filter(|c| {
+            cmps.iter().any(|m| {
+                let r = |d: &str| m.ratios.iter().find(|x| x.design == d).map(|x| x.ratio);
+                (m.rows as f64) < c.rows && matches!((r(&c.faster_below), r(&best)), (Some(lo), Some(hi)) if lo < hi)
+            })
+        })
         .max_by(|x, y| x.rows.total_cmp(&y.rows))
-        .map(|c| format!("; below about {} rows `{}` is cheaper", rows_label_f(c.rows), c.faster_below))
+        .map(|c| format!("; below about {} `{}` is cheaper", ax.point_f(c.rows), c.faster_below))
         .unwrap_or_default();
     let unsupported = a
         .crossovers
@@ -234,9 +242,9 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         .find(|c| c.faster_below == best && !c.inside_measured && a.predict_at.is_some_and(|t| c.rows <= t as f64))
         .map(|c| {
             format!(
-                " (the fitted curves of `{}` cross below the target, at about {} rows, but its measured ratio is not shrinking steadily: measure a larger size before acting on it)",
+                " (the fitted curves of `{}` cross below the target, at about {}, but its measured ratio is not shrinking steadily: measure a larger size before acting on it)",
                 c.faster_above,
-                rows_label_f(c.rows)
+                ax.point_f(c.rows)
             )
         })
         .unwrap_or_default();
@@ -244,7 +252,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         kind: VerdictKind::Winner,
         design: Some(best.clone()),
         text: format!(
-            "use `{best}`: fastest at {at} rows, the largest size compared, {} faster than `{}`{interval}{}{below}{unsupported}{busy_note}",
+            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{}{below}{unsupported}{busy_note}",
             ratio(runner.ratio),
             runner.design,
             at_target(a, &best)
@@ -260,7 +268,7 @@ pub const BUSY_MARGIN: f64 = 1.5;
 
 /// Every compared size was measured on a busy machine: a winner only when the same design
 /// was fastest by at least [`BUSY_MARGIN`] at the two largest sizes, else undecided.
-fn busy_verdict(all: &[&ComparisonRecord]) -> Verdict {
+fn busy_verdict(all: &[&ComparisonRecord], ax: crate::results::Axis) -> Verdict {
     let total = all.len();
     let clear = |c: &ComparisonRecord| -> Option<(String, f64)> {
         let mut r = c.ratios.clone();
@@ -275,8 +283,8 @@ fn busy_verdict(all: &[&ComparisonRecord]) -> Verdict {
                 kind: VerdictKind::Winner,
                 design: Some(a.clone()),
                 text: format!(
-                    "use `{a}`: fastest at the two largest sizes compared, ×{ra:.1} ahead at {} rows — every size was measured on a busy machine, but a margin this wide is beyond what contention explains (designs are sampled in interleaved rounds); measure again on a quiet machine for the exact figures",
-                    rows_label(last.rows)
+                    "use `{a}`: fastest at the two largest sizes compared, ×{ra:.1} ahead at {} — every size was measured on a busy machine, but a margin this wide is beyond what contention explains (designs are sampled in interleaved rounds); measure again on a quiet machine for the exact figures",
+                    ax.point(last.rows)
                 ),
                 decided_at: Some(last.rows),
             }
@@ -308,10 +316,10 @@ fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, tied: &[&str], rows: u64
         return (
             by_bytes.to_string(),
             format!(
-                "`{by_bytes}` is suggested because it allocates less ({} vs {} for `{other}` at {} rows)",
+                "`{by_bytes}` is suggested because it allocates less ({} vs {} for `{other}` at {})",
                 crate::present::units::bytes(bytes(by_bytes) as f64),
                 crate::present::units::bytes(bytes(other) as f64),
-                rows_label(rows)
+                w.header.axis().point(rows)
             ),
         );
     }

@@ -27,15 +27,22 @@ pub struct SizeInputs {
 }
 
 impl SizeInputs {
-    /// Make what the designs at this size need: tables in memory when `memory`, Parquet
-    /// chunks when `streaming`.
-    pub fn prepare(plan: &Plan, rows: u64, memory: bool, streaming: bool) -> Result<SizeInputs, String> {
+    /// Make what the designs at swept value `x` need: tables in memory when `memory`,
+    /// Parquet chunks when `streaming`. `x` is a row count, or a value of the plan's axis
+    /// (the tables then have the axis's rows and its parameter set to `x`).
+    pub fn prepare(plan: &Plan, x: u64, memory: bool, streaming: bool) -> Result<SizeInputs, String> {
+        Self::prepare_rows(plan, x, plan.rows_at(x), memory, streaming)
+    }
+
+    /// As [`SizeInputs::prepare`] with the row count given (the warm-up lap's small tables).
+    pub fn prepare_rows(plan: &Plan, x: u64, rows: u64, memory: bool, streaming: bool) -> Result<SizeInputs, String> {
+        let shaped = plan.tables_at(x);
         let tables = if memory {
-            crate::table::related::generate_tables(&plan.tables, plan.seed, plan.related, rows).map_err(|e| e.to_string())?
+            crate::table::related::generate_tables(&shaped, plan.seed, plan.related, rows).map_err(|e| e.to_string())?
         } else {
             Vec::new()
         };
-        let files = if streaming { Some(write_chunks(plan, rows, &tables)?) } else { None };
+        let files = if streaming { Some(write_chunks(plan, &shaped, rows, &tables)?) } else { None };
         Ok(SizeInputs { tables, files })
     }
 
@@ -67,10 +74,10 @@ impl SizeInputs {
 
 /// Write every table as Parquet chunks of [`CHUNK_ROWS`] rows: sliced from the tables in
 /// memory when they were made, else generated chunk by chunk.
-fn write_chunks(plan: &Plan, rows: u64, in_memory: &[(String, DataFrame)]) -> Result<(TempFolder, Vec<(String, PathBuf)>), String> {
+fn write_chunks(plan: &Plan, shaped: &[crate::plan::TablePlan], rows: u64, in_memory: &[(String, DataFrame)]) -> Result<(TempFolder, Vec<(String, PathBuf)>), String> {
     let folder = TempFolder::create().map_err(|e| format!("could not create a temp folder: {e}"))?;
     let mut dirs = Vec::new();
-    for (ti, t) in plan.tables.iter().enumerate() {
+    for (ti, t) in shaped.iter().enumerate() {
         let dir = folder.path().join(&t.name);
         std::fs::create_dir(&dir).map_err(|e| format!("could not create {}: {e}", dir.display()))?;
         let total = t.rows.at(rows);
@@ -80,7 +87,7 @@ fn write_chunks(plan: &Plan, rows: u64, in_memory: &[(String, DataFrame)]) -> Re
             let len = CHUNK_ROWS.min(total - start);
             let mut chunk = match in_memory.get(ti) {
                 Some((_, df)) => df.slice(start as i64, len as usize),
-                None => crate::table::related::generate_table_span(&plan.tables, t, plan.seed, plan.related, rows, start..start + len)
+                None => crate::table::related::generate_table_span(shaped, t, plan.seed, plan.related, rows, start..start + len)
                     .map_err(|e| format!("could not make rows {start}.. of `{}`: {e}", t.name))?,
             };
             let path = dir.join(format!("part-{part:06}.parquet"));
@@ -97,7 +104,7 @@ fn write_chunks(plan: &Plan, rows: u64, in_memory: &[(String, DataFrame)]) -> Re
     Ok((folder, dirs))
 }
 
-/// For each design, why the memory or disk guard refuses it at this size (None: it may run).
+/// For each design, why the memory or disk guard refuses it at swept value `rows` (None: it may run).
 /// `force` lifts the guard except against a hard limit (a resource limit or a cgroup), past
 /// which an allocation would fail and abort the process.
 pub fn refusals(plan: &Plan, rows: u64, peaks: &[Vec<(u64, f64)>], limit: &memory::MemoryLimit, share: f64, force: bool) -> Vec<Option<SkipInfo>> {

@@ -61,7 +61,7 @@ impl Estimate {
 /// or — when every design streams — the largest streaming design's.
 pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
     let streaming: Vec<usize> = (0..plan.designs.len()).filter(|&i| plan.designs[i].engine == EngineChoice::Streaming).collect();
-    let disk_streaming = if streaming.is_empty() { 0.0 } else { plan.table_bytes(rows) };
+    let disk_streaming = if streaming.is_empty() { 0.0 } else { plan.table_bytes_at(rows) };
     if streaming.len() == plan.designs.len() && !streaming.is_empty() {
         let mut largest = Estimate { table: 0.0, records: 0.0, generator: 0.0, working: 0.0, disk: 0.0 };
         for &i in &streaming {
@@ -78,23 +78,30 @@ pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> E
     e
 }
 
-/// Estimate memory at `rows` for one design, on its own engine.
-pub fn estimate_design(plan: &Plan, design: usize, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
+/// Estimate memory at swept value `x` (a row count, or a value of the plan's axis) for one
+/// design, on its own engine.
+pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
     let d = &plan.designs[design];
     let peaks = measured_peaks.get(design).map(Vec::as_slice).unwrap_or(&[]);
-    let table = plan.table_bytes(rows);
+    let rows = plan.rows_at(x);
+    let table = plan.table_bytes_at(x);
     match d.engine {
         EngineChoice::Memory => {
-            let records = if d.feed == Feed::Records { rows as f64 * plan.columns.len() as f64 * RECORD_VALUE_BYTES } else { 0.0 };
+            let width = plan.columns_at(x).len() as f64;
+            let records = if d.feed == Feed::Records { rows as f64 * width * RECORD_VALUE_BYTES } else { 0.0 };
             // What its parameters make it build (new columns, probe lists, pieces) comes on top
             // of the table-sized working memory, measured or not.
-            let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * table).max(params_bytes(d, rows) + table);
-            Estimate { table, records, generator: generator_bytes(plan, rows), working, disk: d.disk_factor() * table }
+            let working = extrapolate(peaks, x).unwrap_or(d.memory_factor() * table).max(params_bytes(d, rows) + table);
+            Estimate { table, records, generator: generator_bytes_at(plan, x), working, disk: d.disk_factor() * table }
         }
         EngineChoice::Streaming => {
-            let chunks = (2.0 * plan.table_bytes(super::inputs::CHUNK_ROWS)).min(table);
-            let working = extrapolate(peaks, rows).unwrap_or(d.memory_factor() * chunks);
-            Estimate { table: chunks, records: 0.0, generator: generator_bytes(plan, rows), working, disk: table }
+            let chunk = match plan.axis {
+                None => plan.table_bytes(super::inputs::CHUNK_ROWS),
+                Some(_) => table / rows.max(1) as f64 * super::inputs::CHUNK_ROWS as f64,
+            };
+            let chunks = (2.0 * chunk).min(table);
+            let working = extrapolate(peaks, x).unwrap_or(d.memory_factor() * chunks);
+            Estimate { table: chunks, records: 0.0, generator: generator_bytes_at(plan, x), working, disk: table }
         }
     }
 }
@@ -107,19 +114,32 @@ fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f
         .collect();
     let largest = |f: fn(&Estimate) -> f64| per.iter().map(f).fold(0.0, f64::max);
     Estimate {
-        table: plan.table_bytes(rows),
+        table: plan.table_bytes_at(rows),
         records: largest(|e| e.records),
-        generator: generator_bytes(plan, rows),
+        generator: generator_bytes_at(plan, rows),
         working: largest(|e| e.working),
         disk: largest(|e| e.disk),
     }
 }
 
+/// [`generator_bytes`] at swept value `x` of any sweep (the axis may set distinct counts,
+/// skews or the number of columns).
+pub fn generator_bytes_at(plan: &Plan, x: u64) -> f64 {
+    if plan.axis.is_none() {
+        return generator_bytes(plan, x);
+    }
+    generator_bytes_of(&plan.columns_at(x), plan.rows_at(x))
+}
+
 /// Bytes the generator holds besides the table at `rows`: each skewed column's Zipf table
 /// (over all its distinct values, whatever the rows) and each text column's word pool.
 pub fn generator_bytes(plan: &Plan, rows: u64) -> f64 {
+    generator_bytes_of(&plan.columns, rows)
+}
+
+fn generator_bytes_of(columns: &[crate::plan::ColumnPlan], rows: u64) -> f64 {
     use crate::spec::model::ColumnKind;
-    plan.columns
+    columns
         .iter()
         .map(|c| {
             let d = c.distinct.unwrap_or(0) as f64;

@@ -138,7 +138,7 @@ fn finish_point(
     };
     if let Some(err) = &a.error {
         let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: err.clone() };
-        st.blocked = Some(SkipInfo { detail: format!("failed at {rows} rows: {err}"), ..info.clone() });
+        st.blocked = Some(SkipInfo { detail: format!("failed at {}: {err}", plan.axis_point(rows)), ..info.clone() });
         out.write(point(None, Some(info)))?;
         outcome.failures += 1;
         return Ok(());
@@ -155,8 +155,8 @@ fn finish_point(
             predicted_ns: None,
             predicted_bytes: None,
             detail: format!(
-                "at {} rows the {} point budget allowed only {} of {} samples (one run {})",
-                crate::spec::units::rows_label(rows),
+                "at {} the {} point budget allowed only {} of {} samples (one run {})",
+                plan.axis_point(rows),
                 crate::present::units::time_ns(b.per_point_s * 1e9),
                 m.samples_ns.len(),
                 b.min_samples,
@@ -367,6 +367,7 @@ pub fn sweep(
         outputs_differ: plan.outputs_differ.clone(),
         gate_threshold: plan.gate_threshold,
         spec_text: plan.spec_text.clone(),
+        axis: plan.axis.clone(),
     }))?;
 
     let started = Instant::now();
@@ -513,7 +514,7 @@ pub fn sweep(
                 if let Some(p) = programs.get_mut(i).and_then(|p| p.as_mut()) {
                     let _watch = super::watchdog::arm(i, rows, "loading a program's input", super::watchdog::limit_for(b.per_point_s));
                     error = match &program_files {
-                        Some(Ok(files)) => p.start_size(files, rows, program_limit(&b, 0.0)).err(),
+                        Some(Ok(files)) => p.start_size(files, plan.rows_at(rows), program_limit(&b, 0.0)).err(),
                         Some(Err(e)) => Some(e.clone()),
                         None => Some("its input files were not written".into()),
                     };
@@ -731,9 +732,10 @@ fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -
 /// The lap obeys the point budget: once it has taken that long, the remaining designs are
 /// not warmed up (their first measured run warms them instead).
 fn warmup_lap(plan: &Plan) {
-    let rows = plan.sizes.first().copied().unwrap_or(1).min(1000);
+    let first = plan.sizes.first().copied().unwrap_or(1);
+    let rows = plan.rows_at(first).min(1000);
     let streams = plan.designs.iter().any(|d| d.engine == EngineChoice::Streaming);
-    let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| super::inputs::SizeInputs::prepare(plan, rows, true, streams)));
+    let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| super::inputs::SizeInputs::prepare_rows(plan, first, rows, true, streams)));
     let Ok(Ok(inputs)) = prepared else { return };
     let df = inputs.first();
     let records = Records::from_frame(&df).ok().map(Arc::new);

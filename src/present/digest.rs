@@ -9,7 +9,7 @@
 
 use crate::analyse::{DesignAnalysis, PredictionOut, WorkloadAnalysis};
 use crate::explain::{Explanation, Finding, VerdictKind};
-use crate::present::units::{rows_label_f, time_ns};
+use crate::present::units::time_ns;
 use crate::results::reader::WorkloadResults;
 use crate::results::{ComparisonRecord, EquivalenceStatus, SkipReason};
 use crate::spec::units::rows_label;
@@ -36,6 +36,8 @@ pub struct Digest {
     pub warnings: Vec<String>,
     /// The same warnings in a few words each, for one-line overviews.
     pub warning_tags: Vec<String>,
+    /// What was swept when it was not rows, for labels.
+    pub axis: Option<crate::results::AxisPlan>,
 }
 
 /// One design's predicted time per run at the target.
@@ -186,6 +188,8 @@ fn median(w: &WorkloadResults, d: &str, n: u64) -> Option<f64> {
 
 /// Condense one workload's decision.
 pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Digest {
+    let ax = w.header.axis();
+    let axis = ax.name();
     let v = &e.verdict;
     let cmps = clean_comparisons(w);
     let mut why = Vec::new();
@@ -218,8 +222,8 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
                     let t_best = median(w, best, c.rows).map(time_ns).unwrap_or_default();
                     let t_run = median(w, &r.design, c.rows).map(time_ns).unwrap_or_default();
                     why.push(format!(
-                        "At {} rows, the largest size where the designs were compared cleanly, `{best}` takes {t_best} per run and the next best, `{}`, takes {t_run}: `{best}` is {} faster{interval}.",
-                        rows_label(c.rows),
+                        "At {} {axis}, the largest size where the designs were compared cleanly, `{best}` takes {t_best} per run and the next best, `{}`, takes {t_run}: `{best}` is {} faster{interval}.",
+                        ax.value(c.rows),
                         r.design,
                         times(r.ratio / mine)
                     ));
@@ -238,13 +242,13 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
                 }
                 let first = cmps.first().map(|k| k.rows).unwrap_or(lead_from);
                 if lead_from == first {
-                    from = if first == c.rows { format!("at {} rows, the only size compared", rows_label(c.rows)) } else { format!("at every size compared, {} to {} rows", rows_label(first), rows_label(c.rows)) };
+                    from = if first == c.rows { format!("at {} {axis}, the only size compared", ax.value(c.rows)) } else { format!("at every size compared, {} to {} {axis}", ax.value(first), ax.value(c.rows)) };
                 } else {
-                    from = format!("from {} rows (measured up to {})", rows_label(lead_from), rows_label(c.rows));
+                    from = format!("from {} {axis} (measured up to {})", ax.value(lead_from), ax.value(c.rows));
                     let below = a.crossovers.iter().filter(|x| x.faster_above == best && x.inside_measured).max_by(|x, y| x.rows.total_cmp(&y.rows));
                     if let Some(x) = below {
-                        crossover = format!("`{}` below about {} rows", x.faster_below, rows_label_f(x.rows));
-                        why.push(format!("Below about {} rows `{}` is cheaper.", rows_label_f(x.rows), x.faster_below));
+                        crossover = format!("`{}` below about {} {axis}", x.faster_below, ax.value_f(x.rows));
+                        why.push(format!("Below about {} {axis} `{}` is cheaper.", ax.value_f(x.rows), x.faster_below));
                     }
                 }
             } else {
@@ -253,12 +257,12 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
             }
             if let Some(x) = a.crossovers.iter().find(|x| x.faster_below == best && !x.inside_measured && a.predict_at.is_some_and(|t| x.rows <= t as f64)) {
                 why.push(format!(
-                    "The fitted curves of `{}` cross below the target, at about {} rows, but its measured ratio to `{best}` is not shrinking steadily: measure a larger size before acting on it.",
+                    "The fitted curves of `{}` cross below the target, at about {} {axis}, but its measured ratio to `{best}` is not shrinking steadily: measure a larger size before acting on it.",
                     x.faster_above,
-                    rows_label_f(x.rows)
+                    ax.value_f(x.rows)
                 ));
                 if crossover == "none" {
-                    crossover = format!("`{}` fitted at about {} rows (not borne out by the trend)", x.faster_above, rows_label_f(x.rows));
+                    crossover = format!("`{}` fitted at about {} {axis} (not borne out by the trend)", x.faster_above, ax.value_f(x.rows));
                 }
             }
         }
@@ -268,9 +272,9 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
             let x = a.crossovers.iter().find(|x| x.faster_below == best && x.faster_above == to && !x.inside_measured);
             match x {
                 Some(x) => {
-                    answer = format!("use `{to}` from about {} rows, `{best}` below", rows_label_f(x.rows));
-                    from = format!("from about {} rows (between {} and {})", rows_label_f(x.rows), rows_label_f(x.rows_low), rows_label_f(x.rows_high));
-                    crossover = format!("`{to}` from about {} rows", rows_label_f(x.rows));
+                    answer = format!("use `{to}` from about {} {axis}, `{best}` below", ax.value_f(x.rows));
+                    from = format!("from about {} {axis} (between {} and {})", ax.value_f(x.rows), ax.value_f(x.rows_low), ax.value_f(x.rows_high));
+                    crossover = format!("`{to}` from about {} {axis}", ax.value_f(x.rows));
                 }
                 None => {
                     answer = format!("use `{to}` at scale, `{best}` on small tables");
@@ -283,18 +287,18 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
             let tail: Vec<String> = series.iter().rev().take(3).rev().map(|r| times(*r)).collect();
             if let Some(c) = at {
                 why.push(format!(
-                    "`{best}` is the fastest up to {} rows, the largest size compared, but `{to}`'s cost rises more slowly: it took {} as long as `{best}` over the last {} sizes.",
-                    rows_label(c.rows),
+                    "`{best}` is the fastest up to {} {axis}, the largest size compared, but `{to}`'s cost rises more slowly: it took {} as long as `{best}` over the last {} sizes.",
+                    ax.value(c.rows),
                     tail.join(", then "),
                     tail.len()
                 ));
             }
             if let Some(x) = x {
                 why.push(format!(
-                    "The fitted costs cross at about {} rows (between {} and {}), beyond the measured sizes.",
-                    rows_label_f(x.rows),
-                    rows_label_f(x.rows_low),
-                    rows_label_f(x.rows_high)
+                    "The fitted costs cross at about {} {axis} (between {} and {}), beyond the measured sizes.",
+                    ax.value_f(x.rows),
+                    ax.value_f(x.rows_low),
+                    ax.value_f(x.rows_high)
                 ));
             }
         }
@@ -336,15 +340,17 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
     }
 
     let (warnings, warning_tags) = warnings(w, a);
-    Digest { kind: v.kind, design: v.design.clone(), answer, from, crossover, why, target: a.predict_at, costs, warnings, warning_tags }
+    Digest { kind: v.kind, design: v.design.clone(), answer, from, crossover, why, target: a.predict_at, costs, warnings, warning_tags, axis: w.header.axis.clone() }
 }
 
 /// Workload-level warnings, as sentences and as a few words each.
 fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String>, Vec<String>) {
+    let ax = w.header.axis();
+    let axis = ax.name();
     let mut long = Vec::new();
     let mut tags = Vec::new();
     if let Some(c) = w.comparisons.iter().find(|c| c.equivalence.status == EquivalenceStatus::Mismatch) {
-        long.push(sentence(&format!("the designs do not compute the same result (first at {} rows: {}), so their costs are not comparable", rows_label(c.rows), c.equivalence.note)));
+        long.push(sentence(&format!("the designs do not compute the same result (first at {} {axis}: {}), so their costs are not comparable", ax.value(c.rows), c.equivalence.note)));
         tags.push("outputs differ".to_string());
     }
     let measured: Vec<_> = w.points.iter().filter_map(|p| p.measured.as_ref()).collect();
@@ -361,20 +367,20 @@ fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String>, Vec<Stri
         let failed: Vec<_> = pts.iter().filter(|p| p.skipped.as_ref().is_some_and(|s| s.reason == SkipReason::Failed)).collect();
         if let Some(p) = failed.first() {
             let detail = p.skipped.as_ref().map(|s| s.detail.as_str()).unwrap_or("");
-            long.push(sentence(&format!("`{}` failed at {} rows: {detail}", d.name, rows_label(p.rows))));
+            long.push(sentence(&format!("`{}` failed at {} {axis}: {detail}", d.name, ax.value(p.rows))));
             tags.push(format!("`{}` failed", d.name));
         }
         let skipped: Vec<_> = pts.iter().filter(|p| p.skipped.as_ref().is_some_and(|s| s.reason != SkipReason::Failed)).collect();
         if let Some(p) = skipped.first() {
             let reason = p.skipped.as_ref().map(|s| s.reason.label()).unwrap_or("");
             long.push(format!(
-                "`{}` was not run at {} of {} sizes, from {} rows ({reason}).",
+                "`{}` was not run at {} of {} sizes, from {} {axis} ({reason}).",
                 d.name,
                 skipped.len(),
                 w.header.sizes.len(),
-                rows_label(p.rows)
+                ax.value(p.rows)
             ));
-            tags.push(format!("`{}` not run from {} rows", d.name, rows_label(p.rows)));
+            tags.push(format!("`{}` not run from {} {axis}", d.name, ax.value(p.rows)));
         }
     }
     let far: Vec<&PredictionOut> = a.designs.iter().filter_map(|d| d.prediction.as_ref()).filter(|p| p.far).collect();
@@ -384,8 +390,8 @@ fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String>, Vec<Stri
         let span = if hi - lo < 0.05 { format!("{lo:.1} decades") } else { format!("{lo:.1} to {hi:.1} decades") };
         let who = if far.len() == a.designs.len() { "every design".to_string() } else { format!("{} of {} designs", far.len(), a.designs.len()) };
         long.push(format!(
-            "The target, {} rows, is {span} past the largest measured size for {who}: a class fitted on small sizes can change at large ones, so read the predictions there as an order of magnitude, and measure closer to the target if the decision depends on it.",
-            rows_label(first.rows)
+            "The target, {} {axis}, is {span} past the largest measured size for {who}: a class fitted on small sizes can change at large ones, so read the predictions there as an order of magnitude, and measure closer to the target if the decision depends on it.",
+            ax.value(first.rows)
         ));
         tags.push(format!("target {span} past the data"));
     }

@@ -20,7 +20,6 @@ use crate::analyse::WorkloadAnalysis;
 use crate::explain::Explanation;
 use crate::results::reader::{RunResults, WorkloadResults};
 use crate::results::SkipReason;
-use crate::spec::units::rows_label;
 use std::fmt::Write;
 use std::path::{Path, PathBuf};
 
@@ -94,6 +93,8 @@ fn md_anchor(name: &str) -> String {
 
 /// What a picture shows, in words, from the same numbers it is drawn from.
 pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String {
+    let ax = w.header.axis();
+    let axis = ax.name();
     if kind == "distribution" {
         return describe_percentiles(w);
     }
@@ -107,38 +108,38 @@ pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String
         let growth = |g: Option<&crate::analyse::GrowthOut>| g.map(|g| format!(", growing as {}", g.label())).unwrap_or_default();
         let line = match kind {
             "scaling" => format!(
-                "{} from {} at {} rows to {} at {}{}",
+                "{} from {} at {} {axis} to {} at {}{}",
                 d.name,
                 time_ns(first.1.median_ns),
-                rows_label(first.0),
+                ax.value(first.0),
                 time_ns(last.1.median_ns),
-                rows_label(last.0),
+                ax.value(last.0),
                 growth(a.designs.get(i).and_then(|x| x.time.as_ref()))
             ),
             "memory" if !counts_allocations(w, &d.name) => format!("{}: allocations not counted", d.name),
             "memory" => format!(
-                "{} allocates from {} at {} rows to {} at {}{}",
+                "{} allocates from {} at {} {axis} to {} at {}{}",
                 d.name,
                 bytes(first.1.alloc.bytes as f64),
-                rows_label(first.0),
+                ax.value(first.0),
                 bytes(last.1.alloc.bytes as f64),
-                rows_label(last.0),
+                ax.value(last.0),
                 growth(a.designs.get(i).and_then(|x| x.bytes.as_ref()))
             ),
             "ratios" => {
                 let r = |n: u64| w.comparison(n).and_then(|c| c.ratios.iter().find(|r| r.design == d.name)).map(|r| times(r.ratio)).unwrap_or_else(|| "—".into());
-                format!("{} from {} the fastest at {} rows to {} at {}", d.name, r(first.0), rows_label(first.0), r(last.0), rows_label(last.0))
+                format!("{} from {} the fastest at {} {axis} to {} at {}", d.name, r(first.0), ax.value(first.0), r(last.0), ax.value(last.0))
             }
-            _ => format!("{} at {} rows: {}", d.name, rows_label(last.0), time_ns(last.1.median_ns)),
+            _ => format!("{} at {} {axis}: {}", d.name, ax.value(last.0), time_ns(last.1.median_ns)),
         };
         per.push(line);
     }
     let lead = match kind {
         "scaling" => {
-            let t = a.predict_at.map(|t| format!(", with each fitted curve continued to the target of {} rows", rows_label(t))).unwrap_or_default();
-            format!("Median time per run against the number of rows, both on logarithmic scales, one line per design{t}")
+            let t = a.predict_at.map(|t| format!(", with each fitted curve continued to the target of {} {axis}", ax.value(t))).unwrap_or_default();
+            format!("Median time per run against the number of {axis}, both on logarithmic scales, one line per design{t}")
         }
-        "memory" => "Allocated and peak live bytes per run against the number of rows, on logarithmic scales".to_string(),
+        "memory" => format!("Allocated and peak live bytes per run against the number of {axis}, on logarithmic scales"),
         "ratios" => "Each design's time as a multiple of the fastest design's at each size".to_string(),
         _ => "A picture of the workload's measurements".to_string(),
     };
@@ -148,6 +149,8 @@ pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String
 /// The percentile picture in words, at the size `plot::draw_all` draws it (the largest size
 /// with every design measured, else the largest with two or more).
 fn describe_percentiles(w: &WorkloadResults) -> String {
+    let ax = w.header.axis();
+    let axis = ax.name();
     let all = w.header.designs.len();
     let count = |n: u64| w.header.designs.iter().filter(|d| w.point(&d.name, n).is_some_and(|p| p.measured.is_some())).count();
     let Some(n) = w.header.sizes.iter().rev().copied().find(|&n| count(n) == all).or_else(|| w.header.sizes.iter().rev().copied().find(|&n| count(n) >= 2)) else {
@@ -162,7 +165,7 @@ fn describe_percentiles(w: &WorkloadResults) -> String {
             Some(format!("{} median {}, 90th percentile {}, 99th {}", d.name, time_ns(m.p50_ns), time_ns(m.p90_ns), time_ns(m.p99_ns)))
         })
         .collect();
-    format!("Time per run by percentile at {} rows, one line per design. {}.", rows_label(n), per.join("; "))
+    format!("Time per run by percentile at {} {axis}, one line per design. {}.", ax.value(n), per.join("; "))
 }
 
 /// Pictures of a workload as drawn by `plot::draw_all`, with their alternatives.
@@ -180,8 +183,10 @@ pub fn pictures(drawn: Vec<(String, PathBuf)>, w: &WorkloadResults, a: &Workload
 
 /// Overview cells of one workload: answer, kind, crossover, cost at the target, watch.
 fn glance(d: &Digest) -> [String; 5] {
+    let ax = crate::results::Axis(d.axis.as_ref());
+    let axis = ax.name();
     let cost = match d.costs.first() {
-        Some(c) if Some(&c.design) == d.design.as_ref() => format!("{} at {} rows", c.short(), rows_label(c.rows)),
+        Some(c) if Some(&c.design) == d.design.as_ref() => format!("{} at {} {axis}", c.short(), ax.value(c.rows)),
         _ => "—".into(),
     };
     let watch = if d.warning_tags.is_empty() { "—".to_string() } else { d.warning_tags.join("; ") };
@@ -190,12 +195,14 @@ fn glance(d: &Digest) -> [String; 5] {
 
 /// The target line of a section.
 fn target_line(d: &Digest) -> Option<(String, String)> {
+    let ax = crate::results::Axis(d.axis.as_ref());
+    let axis = ax.name();
     let t = d.target?;
     let text = match d.costs.first() {
         Some(c) if Some(&c.design) == d.design.as_ref() => format!("`{}`: {} per run, time growing as {}", c.design, c.phrase(), c.class),
         _ => "no prediction for the decided design".into(),
     };
-    Some((format!("At {} rows", rows_label(t)), text))
+    Some((format!("At {} {axis}", ax.value(t)), text))
 }
 
 /// A grid cell: (main text, second line, shade 0–4, tooltip).
@@ -426,6 +433,8 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
     let _ = writeln!(s, "</tbody></table>");
 
     for (k, p) in parts.iter().enumerate() {
+        let ax = p.w.header.axis();
+        let axis = ax.name();
         let (w, d) = (p.w, &p.d);
         let _ = writeln!(s, "<section id=\"{}\"><h2>{}</h2>", anchor(&w.header.workload, k), esc(&w.header.workload));
         if !w.header.about.is_empty() {
@@ -456,7 +465,7 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
         // The grid.
         let _ = writeln!(s, "<h3>Every design at every size</h3><table class=\"grid\"><thead><tr><th>time per run</th>");
         for &n in &w.header.sizes {
-            let _ = write!(s, "<th>{} rows</th>", rows_label(n));
+            let _ = write!(s, "<th>{} {axis}</th>", ax.value(n));
         }
         let _ = writeln!(s, "</tr></thead><tbody>");
         for dh in &w.header.designs {
@@ -480,7 +489,7 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
         }
 
         // Growth.
-        let target = p.a.predict_at.map(|t| format!("<th>time per run at {} rows</th>", rows_label(t))).unwrap_or_default();
+        let target = p.a.predict_at.map(|t| format!("<th>time per run at {} {axis}</th>", ax.value(t))).unwrap_or_default();
         let _ = writeln!(
             s,
             "<h3>How each cost grows</h3><table class=\"growth\"><thead><tr><th>design</th><th>time grows as</th><th>allocated bytes grow as</th><th>the workload expects</th>{target}</tr></thead><tbody>"
@@ -518,7 +527,7 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
         if !counted.is_empty() {
             let _ = writeln!(s, "<details><summary>Memory: allocated and peak live bytes per run</summary><table class=\"grid\"><thead><tr><th>allocated / peak</th>");
             for &n in &w.header.sizes {
-                let _ = write!(s, "<th>{} rows</th>", rows_label(n));
+                let _ = write!(s, "<th>{} {axis}</th>", ax.value(n));
             }
             let _ = writeln!(s, "</tr></thead><tbody>");
             for dh in &counted {
@@ -624,6 +633,8 @@ pub fn markdown(r: &RunResults, parts: &[Part], dir: &Path, machine: &[(String, 
         );
     }
     for p in parts {
+        let ax = p.w.header.axis();
+        let axis = ax.name();
         let (w, d) = (p.w, &p.d);
         let _ = writeln!(s, "\n## {}\n", w.header.workload);
         if !w.header.about.is_empty() {
@@ -649,7 +660,7 @@ pub fn markdown(r: &RunResults, parts: &[Part], dir: &Path, machine: &[(String, 
         }
         let _ = writeln!(s, "### Every design at every size\n");
         let mut head = vec!["time per run".to_string()];
-        head.extend(w.header.sizes.iter().map(|n| format!("{} rows", rows_label(*n))));
+        head.extend(w.header.sizes.iter().map(|n| format!("{} {axis}", ax.value(*n))));
         let _ = writeln!(s, "| {} |\n|{}|", head.join(" | "), head.iter().enumerate().map(|(i, _)| if i == 0 { "---" } else { "---:" }).collect::<Vec<_>>().join("|"));
         for dh in &w.header.designs {
             let cells: Vec<String> = w
@@ -672,7 +683,7 @@ pub fn markdown(r: &RunResults, parts: &[Part], dir: &Path, machine: &[(String, 
             let rel = pic.svg.strip_prefix(dir).unwrap_or(&pic.svg).display().to_string();
             let _ = writeln!(s, "![{}]({rel} \"{}\")\n", pic.alt.replace(['[', ']'], ""), pic.title.replace('"', "'"));
         }
-        let target = p.a.predict_at.map(|t| format!(" time per run at {} rows |", rows_label(t))).unwrap_or_default();
+        let target = p.a.predict_at.map(|t| format!(" time per run at {} {axis} |", ax.value(t))).unwrap_or_default();
         let _ = writeln!(
             s,
             "### How each cost grows\n\n| design | time grows as | allocated bytes grow as | the workload expects |{target}\n|---|---|---|---|{}",

@@ -16,7 +16,6 @@ use crate::analyse::WorkloadAnalysis;
 use crate::explain::Explanation;
 use crate::results::reader::{RunResults, WorkloadResults};
 use crate::results::{EquivalenceStatus, StopReason};
-use crate::spec::units::rows_label;
 use std::fmt::Write;
 
 /// Styling switches.
@@ -254,12 +253,14 @@ fn overview(all: &[Parts], width: usize, style: Style) -> String {
     let name_w = all.iter().map(|p| cols(&p.w.header.workload)).max().unwrap_or(8).min(24);
     for p in all {
         let d = &p.d;
+        let ax = p.w.header.axis();
+        let axis = ax.name();
         let mut bits = vec![d.answer.clone()];
         if d.crossover != "none" && d.crossover != "—" {
             bits.push(format!("crossover: {}", d.crossover));
         }
         if let Some(c) = d.costs.first() {
-            bits.push(format!("at {} rows {}", rows_label(c.rows), c.short()));
+            bits.push(format!("at {} {axis} {}", ax.value(c.rows), c.short()));
         }
         if !d.warning_tags.is_empty() {
             bits.push(format!("watch: {}", d.warning_tags.join(", ")));
@@ -274,9 +275,10 @@ fn overview(all: &[Parts], width: usize, style: Style) -> String {
 /// The design × size grid of times (median, then its multiple of the fastest and the mark of
 /// what ended sampling).
 fn time_grid(w: &WorkloadResults, o: Options) -> (Vec<String>, bool, bool) {
+    let ax = w.header.axis();
     let sizes = &w.header.sizes;
     let mut head = vec!["time per run".to_string()];
-    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    head.extend(sizes.iter().map(|n| ax.value(*n)));
     let mut any_marks = false;
     let mut any_busy = false;
     let mut rows = Vec::new();
@@ -347,9 +349,10 @@ fn resident_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
 
 /// One memory figure per design and size, the cells made by `cell`.
 fn memory_grid(w: &WorkloadResults, o: Options, title: &str, designs: &[&str], cell: &dyn Fn(&crate::results::Measured) -> Vec<String>) -> Vec<String> {
+    let ax = w.header.axis();
     let sizes = &w.header.sizes;
     let mut head = vec![title.to_string()];
-    head.extend(sizes.iter().map(|n| rows_label(*n)));
+    head.extend(sizes.iter().map(|n| ax.value(*n)));
     let rows: Vec<(String, Vec<Vec<String>>)> = designs
         .iter()
         .map(|&d| {
@@ -373,7 +376,9 @@ fn memory_grid(w: &WorkloadResults, o: Options, title: &str, designs: &[&str], c
 /// How each cost grows, beside the expectations, and the prediction at the target.
 fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
     let w = p.w;
-    let target = p.a.predict_at.map(|t| format!("at {} rows", rows_label(t)));
+    let ax = w.header.axis();
+    let axis = ax.name();
+    let target = p.a.predict_at.map(|t| format!("at {} {axis}", ax.value(t)));
     let mut head = vec!["how it grows".to_string(), "time".to_string(), "bytes".to_string(), "expected".to_string()];
     if let Some(t) = &target {
         head.push(t.clone());
@@ -415,6 +420,8 @@ fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
 /// One workload's block.
 fn workload_block(p: &Parts, style: Style, o: Options) -> String {
     let (w, d) = (p.w, &p.d);
+    let ax = w.header.axis();
+    let axis = ax.name();
     let width = o.width;
     let h = &w.header;
     let mut s = String::new();
@@ -424,6 +431,10 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
     if !h.about.is_empty() {
         let about = if o.long { h.about.trim().to_string() } else { first_sentence(&h.about) };
         push_wrapped(&mut s, &about, width, "", "");
+    }
+    if let Some(a) = &h.axis {
+        let what = format!("swept: {} ({}{}) with {} rows at every point", a.name, a.set.label(), a.column.as_ref().map(|c| format!(" of `{c}`")).unwrap_or_default(), crate::spec::units::rows_label(a.rows));
+        push_wrapped(&mut s, &what, width, "", "");
     }
     s.push('\n');
 
@@ -445,7 +456,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
             Some(c) if Some(&c.design) == d.design.as_ref() => format!("`{}` {} per run; time grows as {}", c.design, c.phrase(), c.class),
             _ => "no prediction for the decided design".into(),
         };
-        field(&mut s, &format!("at {}", rows_label(t)), &text);
+        field(&mut s, &format!("at {}", ax.value(t)), &text);
     }
     if d.crossover != "—" {
         field(&mut s, "crossover", &d.crossover);
@@ -519,7 +530,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
     if o.long {
         // Set-up, skips, cost-model notes, recipes.
         for dh in &h.designs {
-            let made: Vec<String> = w.design_points(&dh.name).iter().filter_map(|p| p.setup_ns.map(|ns| format!("{} at {}", time_ns(ns), rows_label(p.rows)))).collect();
+            let made: Vec<String> = w.design_points(&dh.name).iter().filter_map(|p| p.setup_ns.map(|ns| format!("{} at {}", time_ns(ns), ax.value(p.rows)))).collect();
             if !made.is_empty() {
                 s.push('\n');
                 push_wrapped(&mut s, &format!("set-up of {} (once per size, not in the samples): {}", dh.name, made.join(", ")), width, "  ", "    ");
@@ -528,7 +539,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
         let skips: Vec<String> = w
             .points
             .iter()
-            .filter_map(|p| p.skipped.as_ref().map(|sk| format!("{} at {} rows: {} — {}", p.design, rows_label(p.rows), sk.reason.label(), sk.detail)))
+            .filter_map(|p| p.skipped.as_ref().map(|sk| format!("{} at {} {axis}: {} — {}", p.design, ax.value(p.rows), sk.reason.label(), sk.detail)))
             .collect();
         if !skips.is_empty() {
             let _ = writeln!(s, "\n  {}", style.bold("not run"));
@@ -554,7 +565,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
     s.push('\n');
     if !mismatches.is_empty() {
         for c in mismatches {
-            let text = format!("at {} rows: {}", rows_label(c.rows), c.equivalence.note);
+            let text = format!("at {} {axis}: {}", ax.value(c.rows), c.equivalence.note);
             let lines = wrap(&text, width, "  OUTPUTS DIFFER ", "    ");
             for (i, l) in lines.iter().enumerate() {
                 let l = if i == 0 { format!("  {}{}", style.alarm("OUTPUTS DIFFER"), &l["  OUTPUTS DIFFER".len()..]) } else { l.clone() };

@@ -16,7 +16,7 @@ pub mod schema;
 pub mod summary;
 pub mod writer;
 
-pub use schema::{AllocStats, Budget, ClockInfo, ColumnKind, ColumnPlan, MachineFingerprint, Order, OutputFacts, RangePlan, Yardstick};
+pub use schema::{AllocStats, Axis, AxisPlan, AxisSet, Budget, ClockInfo, ColumnKind, ColumnPlan, MachineFingerprint, Order, OutputFacts, RangePlan, Yardstick};
 use serde::{Deserialize, Serialize};
 
 /// Schema name and version written into every run.
@@ -25,7 +25,13 @@ pub const SCHEMA: &str = "framecost.results/2";
 /// Older versions this build still reads. Version 1 lacks the machine-disturbance fields
 /// (read as absent) and stored wrong percentiles (every one 2 ns): the reader recomputes
 /// them from the samples.
-pub const READABLE_SCHEMAS: &[&str] = &["framecost.results/1"];
+pub const READABLE_SCHEMAS: &[&str] = &["framecost.results/1", AXIS_SCHEMA];
+
+/// Written instead of [`SCHEMA`] by a run holding a workload swept over another axis
+/// (`WorkloadHeader::axis`): its points' `rows` are that axis's values, which a reader
+/// that does not know `axis` would label as rows, so such a reader refuses the run.
+/// Otherwise the same as version 2.
+pub const AXIS_SCHEMA: &str = "framecost.results/3";
 
 /// One line of `points.jsonl`.
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -74,6 +80,17 @@ pub struct WorkloadHeader {
     pub gate_threshold: Option<f64>,
     /// The workload file as it was when the run started.
     pub spec_text: String,
+    /// What was swept when it was not the row count (`sizes` then holds its values);
+    /// absent in older runs and in row sweeps.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<AxisPlan>,
+}
+
+impl WorkloadHeader {
+    /// The swept axis, for labels ("4k rows", "100 groups").
+    pub fn axis(&self) -> Axis<'_> {
+        Axis(self.axis.as_ref())
+    }
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]

@@ -111,7 +111,7 @@ impl RunResults {
                 why: format!("schema `{}`, this framecost reads `{SCHEMA}` and {}", h.schema, READABLE_SCHEMAS.join(", ")),
             }),
             Some(h) => {
-                if h.schema != SCHEMA {
+                if h.schema == "framecost.results/1" {
                     upgrade_percentiles(&mut out);
                 }
                 Ok(out)

@@ -180,3 +180,141 @@ pub enum Order {
     /// Runs of equal values (`run` rows each, default 64).
     Clustered,
 }
+
+/// The shape parameter a sweep sets at each point, when it is not the row count.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum AxisSet {
+    /// A column's number of distinct values (groups, keys).
+    Distinct,
+    /// The first table's number of columns (declared columns repeated to that many).
+    Columns,
+    /// A column's share of nulls.
+    Nulls,
+    /// A column's Zipf exponent.
+    Skew,
+}
+
+impl AxisSet {
+    /// How the swept values are stored as whole numbers: counts as they are, shares and
+    /// exponents in millionths.
+    pub fn scale(self) -> u64 {
+        match self {
+            AxisSet::Distinct | AxisSet::Columns => 1,
+            AxisSet::Nulls | AxisSet::Skew => 1_000_000,
+        }
+    }
+    pub fn label(self) -> &'static str {
+        match self {
+            AxisSet::Distinct => "distinct",
+            AxisSet::Columns => "columns",
+            AxisSet::Nulls => "nulls",
+            AxisSet::Skew => "skew",
+        }
+    }
+    /// The name outputs use when the workload gives none.
+    pub fn default_name(self) -> &'static str {
+        match self {
+            AxisSet::Distinct => "groups",
+            AxisSet::Columns => "columns",
+            AxisSet::Nulls => "null share",
+            AxisSet::Skew => "skew",
+        }
+    }
+}
+
+/// A sweep over something other than rows: the rows stay fixed and `set` takes each swept
+/// value in turn. A point's `rows` field then holds the swept value (in millionths for
+/// shares and exponents, see [`AxisSet::scale`]).
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct AxisPlan {
+    /// What outputs call it: "groups", "columns", "null share".
+    pub name: String,
+    pub set: AxisSet,
+    /// The column whose parameter is set (none for `columns`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub column: Option<String>,
+    /// The first table's rows at every point.
+    pub rows: u64,
+}
+
+impl AxisPlan {
+    /// The swept value a stored whole number stands for.
+    pub fn value(&self, x: f64) -> f64 {
+        x / self.set.scale() as f64
+    }
+    /// The value alone: `10k`, `12.5%`, `0.75`.
+    pub fn value_label(&self, x: f64) -> String {
+        match self.set {
+            AxisSet::Distinct | AxisSet::Columns => crate::present::units::rows_label_f(x),
+            AxisSet::Nulls => format!("{}%", trim_number(self.value(x) * 100.0)),
+            AxisSet::Skew => trim_number(self.value(x)),
+        }
+    }
+    /// A point: `10k groups`, `null share 10%`.
+    pub fn point(&self, x: f64) -> String {
+        match self.set {
+            AxisSet::Distinct | AxisSet::Columns => format!("{} {}", self.value_label(x), self.name),
+            AxisSet::Nulls | AxisSet::Skew => format!("{} {}", self.name, self.value_label(x)),
+        }
+    }
+}
+
+/// A number with at most three decimals and no trailing zeros.
+fn trim_number(v: f64) -> String {
+    let s = format!("{v:.3}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    if s.is_empty() || s == "-" { "0".into() } else { s.to_string() }
+}
+
+/// What a run swept, for labels: rows, or another axis. `Axis::of(header.axis.as_ref())`.
+#[derive(Debug, Clone, Copy)]
+pub struct Axis<'a>(pub Option<&'a AxisPlan>);
+
+impl Axis<'_> {
+    /// "rows", "groups", "columns"…
+    pub fn name(&self) -> &str {
+        self.0.map_or("rows", |a| a.name.as_str())
+    }
+    /// One unit of a count axis, for "per …" wording ("row", "group", "column"); None for
+    /// shares and exponents, which have no units to divide by.
+    pub fn unit(&self) -> Option<String> {
+        match self.0 {
+            None => Some("row".into()),
+            Some(a) if a.set.scale() != 1 => None,
+            Some(a) => Some(a.name.strip_suffix('s').filter(|s| !s.is_empty()).unwrap_or(&a.name).to_string()),
+        }
+    }
+    /// True when the sweep is over rows.
+    pub fn is_rows(&self) -> bool {
+        self.0.is_none()
+    }
+    /// A point as prose: `4k rows`, `100 groups`, `null share 10%`.
+    pub fn point(&self, x: u64) -> String {
+        match self.0 {
+            None => format!("{} rows", crate::spec::units::rows_label(x)),
+            Some(a) if a.set.scale() == 1 => format!("{} {}", crate::spec::units::rows_label(x), a.name),
+            Some(a) => a.point(x as f64),
+        }
+    }
+    pub fn point_f(&self, x: f64) -> String {
+        match self.0 {
+            None => format!("{} rows", crate::present::units::rows_label_f(x)),
+            Some(a) => a.point(x),
+        }
+    }
+    /// The value alone (a table heading or a picture's tick): `4k`, `10%`.
+    pub fn value(&self, x: u64) -> String {
+        match self.0 {
+            None => crate::spec::units::rows_label(x),
+            Some(a) if a.set.scale() == 1 => crate::spec::units::rows_label(x),
+            Some(a) => a.value_label(x as f64),
+        }
+    }
+    pub fn value_f(&self, x: f64) -> String {
+        match self.0 {
+            None => crate::present::units::rows_label_f(x),
+            Some(a) => a.value_label(x),
+        }
+    }
+}

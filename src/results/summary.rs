@@ -27,6 +27,9 @@ pub struct WorkloadSummary {
     pub about: String,
     pub target: Option<u64>,
     pub sizes: Vec<u64>,
+    /// What `sizes` are values of when it is not rows (absent in row sweeps and older runs).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<AxisPlan>,
     pub designs: Vec<DesignSummary>,
     /// Sizes at which outputs differed without the spec allowing it.
     pub mismatches: Vec<u64>,
@@ -153,6 +156,7 @@ fn workload_summary(w: &WorkloadResults) -> WorkloadSummary {
         about: w.header.about.clone(),
         target: w.header.target,
         sizes: w.header.sizes.clone(),
+        axis: w.header.axis.clone(),
         designs,
         outputs_agree: mismatches.is_empty(),
         mismatches,

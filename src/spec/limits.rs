@@ -109,7 +109,7 @@ pub const ROWS_FLOOR: u64 = 1024;
 /// Step parameters whose bound depends on the sizes, checked again after `--sizes` replaced
 /// them. Returns `design: step: message` lines.
 pub fn plan_param_problems(plan: &Plan) -> Vec<String> {
-    let largest = plan.sizes.last().copied().unwrap_or(0);
+    let largest = plan.largest_rows();
     let mut out = Vec::new();
     for d in &plan.designs {
         for s in d.setup.iter().chain(&d.steps) {

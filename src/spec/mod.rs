@@ -6,6 +6,7 @@
 //! (ranges, unknown steps, steps that do not fit together) and builds the plan, locating each
 //! problem through [`locate::Locator`]. Nothing here panics on any input.
 
+pub mod axis;
 pub mod guard;
 pub mod limits;
 pub mod locate;

@@ -33,8 +33,16 @@ pub struct WorkloadSpec {
     /// Several named, related tables; the first is what built-in steps receive.
     #[serde(default)]
     pub tables: Option<Vec<TableSpec>>,
-    /// The sizes (rows) to replay every design at.
-    pub sizes: SizeLadder,
+    /// The sizes (rows) to replay every design at. Give either `sizes:` or `sweep:`.
+    #[serde(default)]
+    pub sizes: Option<SizeLadder>,
+    /// The first table's rows at every point of a `sweep:` over another axis.
+    #[serde(default)]
+    pub rows: Option<RowCount>,
+    /// A sweep over another shape parameter with `rows:` fixed: a column's distinct
+    /// count, the number of columns, a null share or a skew.
+    #[serde(default)]
+    pub sweep: Option<SweepSpec>,
     /// The size that matters: predictions are made for it.
     #[serde(default)]
     pub target: Option<RowCount>,
@@ -50,6 +58,22 @@ pub struct WorkloadSpec {
     /// Settings for comparing runs of this workload with `framecost gate`.
     #[serde(default)]
     pub gate: Option<GateSpec>,
+}
+
+/// `sweep: {axis: groups, column: grower, set: distinct, values: [10, 100, 1k]}`.
+#[derive(Debug, Clone, Deserialize, Serialize)]
+#[serde(deny_unknown_fields)]
+pub struct SweepSpec {
+    /// The name outputs label it with (default: groups, columns, null share, skew).
+    #[serde(default)]
+    pub axis: Option<String>,
+    /// The first table's column whose parameter is set (not for `set: columns`).
+    #[serde(default)]
+    pub column: Option<String>,
+    /// What each value sets: `distinct`, `columns`, `nulls` or `skew`.
+    pub set: crate::results::schema::AxisSet,
+    /// The values, in increasing order: counts (`10`, `1k`), shares (`10%`, `0.1`) or exponents.
+    pub values: Vec<serde_yaml::Value>,
 }
 
 /// How `framecost gate` judges this workload.

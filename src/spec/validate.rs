@@ -88,8 +88,12 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
 
     let tables = super::tables::check_tables(&mut c, spec);
     let columns = tables.first().map(|t| t.columns.clone()).unwrap_or_default();
-    let sizes = check_sizes(&mut c, &spec.sizes, &root.key("sizes"));
-    let largest = sizes.last().copied().unwrap_or(MAX_ROWS);
+    let (sizes, axis) = super::axis::check_sweep(&mut c, spec, &columns);
+    // Per-row step parameters are checked against the rows of the largest point.
+    let largest = match &axis {
+        Some(a) => a.rows,
+        None => sizes.last().copied().unwrap_or(MAX_ROWS),
+    };
     let target = spec.target.map(|t| t.0);
     if let Some(t) = target {
         if t == 0 || t > MAX_ROWS * 1000 {
@@ -136,6 +140,7 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         related: spec.tables.is_some(),
         tables,
         sizes,
+        axis,
         target,
         budget,
         designs,
@@ -319,7 +324,7 @@ fn check_range(c: &mut Checker, col: &ColumnSpec, path: &YamlPath) -> RangePlan 
     r
 }
 
-fn check_sizes(c: &mut Checker, sizes: &SizeLadder, path: &YamlPath) -> Vec<u64> {
+pub(super) fn check_sizes(c: &mut Checker, sizes: &SizeLadder, path: &YamlPath) -> Vec<u64> {
     let mut out: Vec<u64> = match sizes {
         SizeLadder::List(list) => {
             if list.is_empty() {
@@ -488,6 +493,10 @@ fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, colum
         });
     }
     out
+}
+
+pub(super) fn yaml_kind_of(v: &Y) -> &'static str {
+    yaml_kind(v)
 }
 
 fn yaml_kind(v: &Y) -> &'static str {

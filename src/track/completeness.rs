@@ -29,6 +29,10 @@ pub struct Completeness {
     pub comparable_points: usize,
     /// Points measured in the baseline, over the shared workloads.
     pub baseline_points: usize,
+    /// Workloads swept over different axes in the two runs (rows in one, groups in the
+    /// other, say): their points cannot be matched.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub different_axes: Vec<String>,
 }
 
 impl Completeness {
@@ -52,6 +56,9 @@ impl Completeness {
         }
         if self.missing_points > 0 {
             out.push(format!("{} of {} baseline point(s) have no record in the new run", self.missing_points, self.baseline_points));
+        }
+        if !self.different_axes.is_empty() {
+            out.push(format!("swept over different axes in the two runs, not compared: {}", self.different_axes.join(", ")));
         }
         if self.comparable_points == 0 {
             out.push(format!("no point is measured in both runs (0 of {} baseline points can be compared)", self.baseline_points));
@@ -90,6 +97,10 @@ pub fn check(base: &RunResults, new: &RunResults) -> Completeness {
     }
     for bw in &base.workloads {
         let Some(nw) = new.workloads.iter().find(|w| w.header.workload == bw.header.workload) else { continue };
+        if bw.header.axis != nw.header.axis {
+            c.different_axes.push(format!("{} ({} → {})", bw.header.workload, bw.header.axis().name(), nw.header.axis().name()));
+            continue;
+        }
         let names = |w: &WorkloadResults| -> BTreeSet<String> { w.points.iter().map(|p| p.design.clone()).collect() };
         let (bd, nd) = (names(bw), names(nw));
         for d in bd.symmetric_difference(&nd) {

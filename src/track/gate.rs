@@ -309,6 +309,11 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
             report.unmatched_workloads.push(format!("{} (baseline only)", bw.header.workload));
             continue;
         };
+        if bw.header.axis != nw.header.axis {
+            // Swept over different axes (say rows, then columns): equal numbers mean different points.
+            report.unmatched_workloads.push(format!("{} (swept over {} in the baseline, {} in the new run)", bw.header.workload, bw.header.axis().name(), nw.header.axis().name()));
+            continue;
+        }
         let threshold = opts.threshold.or(nw.header.gate_threshold).unwrap_or(DEFAULT_THRESHOLD);
         let mut wg = WorkloadGate {
             workload: bw.header.workload.clone(),

@@ -109,6 +109,7 @@ fn log_chart<'a, DB: DrawingBackend>(
     y_desc: &str,
     y_binary: bool,
     y_fmt: &dyn Fn(&f64) -> String,
+    x_axis: crate::results::Axis,
 ) -> Res<ChartContext<'a, DB, LogLog>> {
     let yt = if y_binary { ticks::binary(y.0, y.1) } else { ticks::decimal(y.0, y.1) };
     let mut chart = ChartBuilder::on(area)
@@ -125,10 +126,10 @@ fn log_chart<'a, DB: DrawingBackend>(
         .bold_line_style(RULE)
         .axis_style(MUTED)
         .label_style((FONT, 14).into_font().color(&TEXT))
-        .x_desc("rows")
+        .x_desc(x_axis.name())
         .y_desc(y_desc)
         .axis_desc_style((FONT, 15).into_font().color(&TEXT))
-        .x_label_formatter(&|v| size_label(*v))
+        .x_label_formatter(&|v| if x_axis.0.is_some_and(|a| a.set.scale() != 1) { x_axis.value_f(*v) } else { size_label(*v) })
         .y_label_formatter(y_fmt)
         .draw()
         .map_err(err)?;
@@ -146,6 +147,8 @@ fn design_words(names: &[String]) -> String {
 
 /// Scaling curves: one picture per workload. Returns the picture's description.
 pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<String> {
+    let ax = w.header.axis();
+    let axis = ax.name();
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
     let fit_of = |d: &str| a.designs.iter().find(|x| x.design == d);
@@ -160,7 +163,7 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
         })
         .flatten()
         .chain(a.designs.iter().filter_map(|d| d.prediction.as_ref().map(|p| p.median)));
-    let title = format!("{} — time per run as the rows grow", escaped(&w.header.workload));
+    let title = format!("{} — time per run as the {} grow", escaped(&w.header.workload), w.header.axis().name());
     let (Some((x0, x1)), Some((y0, y1))) = (span(xs), span(ys)) else {
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No measured points to draw.".to_string()).map_err(err);
@@ -171,7 +174,7 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
         .map(|c| {
             // The size first, so a line shortened to fit still says where.
             format!(
-                "at about {} rows (between {} and {}), {} becomes cheaper than {}",
+                "at about {} {axis} (between {} and {}), {} becomes cheaper than {}",
                 size_label(c.rows),
                 size_label(c.rows_low),
                 size_label(c.rows_high),
@@ -204,7 +207,7 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
     }
     let f = frame(&root, &title, &rows, key_lines.len())?;
     let chart_area = sub(&root, f.chart);
-    let chart = log_chart(&chart_area, (x0, x1), (y0, y1), "time per run", false, &|v: &f64| time_tick(*v))?;
+    let chart = log_chart(&chart_area, (x0, x1), (y0, y1), "time per run", false, &|v: &f64| time_tick(*v), w.header.axis())?;
     let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
     let plot = plot_rect(&chart);
     let mut placer = Placer::new(plot);
@@ -282,13 +285,13 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
     key(&root, f.key, &key_lines)?;
     root.present().map_err(err)?;
     let mut desc = format!(
-        "Log-log chart of time per run against rows, from {} to {} rows. Designs: {}. Filled marks are measured medians with their 95% intervals, thin lines the fitted growth",
+        "Log-log chart of time per run against {axis}, from {} to {} {axis}. Designs: {}. Filled marks are measured medians with their 95% intervals, thin lines the fitted growth",
         size_label(w.header.sizes.first().copied().unwrap_or(0) as f64),
         size_label(w.header.sizes.last().copied().unwrap_or(0) as f64),
         design_words(&designs)
     );
     if let Some(t) = target {
-        desc += &format!("; faint lines continue each fit to the target of {} rows and end in a hollow mark", size_label(t as f64));
+        desc += &format!("; faint lines continue each fit to the target of {} {axis} and end in a hollow mark", size_label(t as f64));
     }
     desc.push('.');
     for (k, l) in key_lines.iter().enumerate() {
@@ -323,7 +326,7 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     rows.push((Sample::Line { pattern: &[], width: 6, ink: table_ink, mark: None }, "the table's own size".into()));
     let f = frame(&root, &title, &rows, 0)?;
     let chart_area = sub(&root, f.chart);
-    let chart = log_chart(&chart_area, (x0, x1), (y0, y1), "bytes", true, &|v: &f64| bytes_tick(*v))?;
+    let chart = log_chart(&chart_area, (x0, x1), (y0, y1), "bytes", true, &|v: &f64| bytes_tick(*v), w.header.axis())?;
     let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
     let mut tables: Vec<&crate::results::TableRecord> = w.tables.iter().filter(|t| t.table_bytes_estimate > 0.0 && (t.rows as f64) > x0 && (t.rows as f64) < x1).collect();
     tables.sort_by_key(|t| t.rows);
@@ -347,17 +350,20 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     legend(&root, f.legend, &rows)?;
     root.present().map_err(err)?;
     Ok(format!(
-        "Log-log chart of bytes against rows. Designs: {}. Filled marks on thick lines are the bytes allocated per run; hollow marks on thin faint lines the peak of live bytes; the pale band is the table's own estimated size.",
+        "Log-log chart of bytes against {}. Designs: {}. Filled marks on thick lines are the bytes allocated per run; hollow marks on thin faint lines the peak of live bytes; the pale band is the table's own estimated size.",
+        w.header.axis().name(),
         design_words(&designs)
     ))
 }
 
 /// Latency by percentile for each design at one size (from the samples).
 pub fn distribution<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, rows_at: u64) -> Res<String> {
+    let ax = w.header.axis();
+    let axis = ax.name();
     root.fill(&PAPER).map_err(err)?;
     let designs: Vec<String> = w.header.designs.iter().map(|d| d.name.clone()).collect();
     let ys = designs.iter().filter_map(|d| w.point(d, rows_at).and_then(|p| p.measured.as_ref())).flat_map(|m| m.samples_ns.iter().copied());
-    let title = format!("{} — time per run by percentile at {} rows", escaped(&w.header.workload), size_label(rows_at as f64));
+    let title = format!("{} — time per run by percentile at {} {axis}", escaped(&w.header.workload), size_label(rows_at as f64));
     let Some((y0, y1)) = span(ys) else {
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No samples to draw.".to_string()).map_err(err);
@@ -406,7 +412,7 @@ pub fn distribution<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, row
     legend(&root, f.legend, &rows)?;
     root.present().map_err(err)?;
     Ok(format!(
-        "Each design's samples at {} rows, sorted: percentile across, time per run up (log scale). A flat line means steady runs; a rise at the right end means occasional slow runs. Designs: {}.",
+        "Each design's samples at {} {axis}, sorted: percentile across, time per run up (log scale). A flat line means steady runs; a rise at the right end means occasional slow runs. Designs: {}.",
         size_label(rows_at as f64),
         design_words(&designs)
     ))
@@ -426,7 +432,7 @@ pub fn ratios<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     let rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     let f = frame(&root, &title, &rows, 0)?;
     let chart_area = sub(&root, f.chart);
-    let chart = log_chart(&chart_area, (x0, x1), (0.8, y1.max(2.0)), "× the cheapest", false, &|v: &f64| format!("×{}", crate::present::units::short(*v)))?;
+    let chart = log_chart(&chart_area, (x0, x1), (0.8, y1.max(2.0)), "× the cheapest", false, &|v: &f64| format!("×{}", crate::present::units::short(*v)), w.header.axis())?;
     for (i, d) in designs.iter().enumerate() {
         let pts: Vec<(i32, i32)> = w
             .comparisons
@@ -464,6 +470,8 @@ fn both(dir: &Path, stem: &str, size: (u32, u32), title: &str, draw: impl Fn(Are
 
 /// The pictures of one workload, each as SVG and PNG in `dir`. Returns (title, SVG path).
 pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Vec<(String, PathBuf)>> {
+    let ax = w.header.axis();
+    let axis = ax.name();
     ensure_font();
     std::fs::create_dir_all(dir).map_err(err)?;
     // The workload name comes from a results file: never a path of its own.
@@ -480,10 +488,10 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
         out.push((title, p));
         Ok(())
     };
-    one("scaling", "Time per run as the rows grow".into(), &|r| scaling(r, w, a), &|r| scaling(r, w, a))?;
+    one("scaling", format!("Time per run as the {axis} grow"), &|r| scaling(r, w, a), &|r| scaling(r, w, a))?;
     one("memory", "Allocated and peak live bytes".into(), &|r| memory(r, w), &|r| memory(r, w))?;
     if let Some(n) = dist_rows {
-        one("distribution", format!("Time by percentile at {} rows", size_label(n as f64)), &|r| distribution(r, w, n), &|r| distribution(r, w, n))?;
+        one("distribution", format!("Time by percentile at {} {axis}", size_label(n as f64)), &|r| distribution(r, w, n), &|r| distribution(r, w, n))?;
     }
     one("ratios", "Cost relative to the cheapest design".into(), &|r| ratios(r, w), &|r| ratios(r, w))?;
     Ok(out)
