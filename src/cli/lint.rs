@@ -42,7 +42,11 @@ pub fn run(args: Args) -> i32 {
                         "programs": programs,
                     }));
                 } else {
-                    println!("{}: ok — {} with {} designs over {} sizes", f.display(), plan.name, plan.designs.len(), plan.sizes.len());
+                    let over = match &plan.axis {
+                        Some(a) => format!("{} values of {} at {} rows", plan.sizes.len(), a.name, crate::spec::units::rows_label(a.rows)),
+                        None => format!("{} sizes", plan.sizes.len()),
+                    };
+                    println!("{}: ok — {} with {} designs over {over}", f.display(), plan.name, plan.designs.len());
                     // Programs run with the user's permissions: say what `sweep --allow-programs` would run.
                     for c in &programs {
                         println!("  runs a program (needs sweep --allow-programs): {c}");

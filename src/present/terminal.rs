@@ -433,7 +433,11 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
         push_wrapped(&mut s, &about, width, "", "");
     }
     if let Some(a) = &h.axis {
-        let what = format!("swept: {} ({}{}) with {} rows at every point", a.name, a.set.label(), a.column.as_ref().map(|c| format!(" of `{c}`")).unwrap_or_default(), crate::spec::units::rows_label(a.rows));
+        // "columns (columns)" says nothing twice: the parameter is named only when it differs.
+        let set = if a.set.label() == a.name { String::new() } else { a.set.label().to_string() };
+        let of = a.column.as_ref().map(|c| format!("{}of `{c}`", if set.is_empty() { "" } else { " " })).unwrap_or_default();
+        let detail = if set.is_empty() && of.is_empty() { String::new() } else { format!(" ({set}{of})") };
+        let what = format!("swept: {}{detail} with {} rows at every point", a.name, crate::spec::units::rows_label(a.rows));
         push_wrapped(&mut s, &what, width, "", "");
     }
     s.push('\n');
