@@ -3,6 +3,7 @@
 
 pub mod alloc;
 pub mod clock;
+pub mod equivalence;
 pub mod hygiene;
 pub mod inputs;
 pub mod interrupt;
