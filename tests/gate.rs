@@ -265,7 +265,7 @@ fn gate_cli_exit_codes_json_baselines_and_history() {
     let out = fc().arg("gate").arg(runs.join("r1")).arg(runs.join("r2")).output().expect("runs");
     let text = String::from_utf8_lossy(&out.stdout);
     assert_eq!(out.status.code(), Some(1), "{text}");
-    assert!(text.contains("regression build at 64k rows") && text.contains("RESULT: worse"), "{text}");
+    assert!(text.contains("got slower at 64k rows") && text.contains("result       worse"), "{text}");
     let out = fc().arg("gate").arg(runs.join("r2")).arg(runs.join("r3")).output().expect("runs");
     assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stdout));
     let out = fc().arg("gate").arg(runs.join("r1")).arg(runs.join("r2")).arg("--json").output().expect("runs");

@@ -3,11 +3,9 @@
 //! significant rank test, or started to scale worse. Exit 0 when nothing got worse, 2 for
 //! bad input. BASELINE is a run folder or the name of a saved baseline.
 
-use crate::present::units::time_ns;
 use crate::results::reader::RunResults;
-use crate::spec::units::{parse_share, rows_label};
+use crate::spec::units::parse_share;
 use crate::track::gate::{compare, Call, GateOptions, GateReport};
-use comfy_table::{presets, CellAlignment, ContentArrangement, Table};
 use std::path::{Path, PathBuf};
 
 /// Schema of the `--json` document (docs/results.md).
@@ -118,133 +116,165 @@ pub fn run(a: Args) -> i32 {
     }
 }
 
-/// The verdict table and notes as text.
+/// The gate's answer as text, decision first and within the terminal's width: the result,
+/// then per workload one paragraph per design saying where it got slower or faster (with
+/// the ratio judged, its interval and the rank test), or that it held; growth changes;
+/// what could not be compared. `--json` carries every per-size figure.
 pub fn render(r: &GateReport) -> String {
+    use crate::present::terminal::{wrap, Options};
     use std::fmt::Write;
+    let width = Options::detect(false).width;
     let mut s = String::new();
-    let _ = writeln!(s, "gate: baseline {} → new {}", r.baseline_run, r.new_run);
+    let para = |s: &mut String, label: &str, text: &str| {
+        let first = format!("  {label:<13}");
+        let rest = " ".repeat(first.chars().count());
+        for l in wrap(text, width, &first, &rest) {
+            let _ = writeln!(s, "{l}");
+        }
+    };
+    let _ = writeln!(s, "framecost gate · baseline {} · new {}", r.baseline_run, r.new_run);
+    let answer = if r.failed() {
+        let mut parts = Vec::new();
+        if r.regressions > 0 {
+            parts.push(format!("{} point(s) confirmed slower", r.regressions));
+        }
+        if r.growth_regressions > 0 {
+            parts.push(format!("{} cost(s) growing faster with the data", r.growth_regressions));
+        }
+        format!("worse: {} (exit 1)", parts.join(", "))
+    } else {
+        "no design got slower beyond its threshold (exit 0)".to_string()
+    };
+    para(&mut s, "result", &answer);
     if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.normalised_by.as_deref() == Some("drift probe")) {
-        let _ = writeln!(s, "  ratios are corrected by the drift probe timed beside the designs at each size (raw ratios in brackets)");
+        para(&mut s, "judged on", "each size's ratio of medians (new over baseline) divided by the drift probe's at that size, so the machine's own change of speed is taken out; raw ratios are in --json");
     }
     if r.machines_differ {
-        let _ = writeln!(
-            s,
-            "  the runs were made on different machines or versions: ratios are also shown divided by the yardstick ratio ({}), and that one is judged",
-            r.yardstick_ratio.map(|y| format!("×{y:.3}")).unwrap_or_else(|| "unknown".into())
-        );
+        let y = r.yardstick_ratio.map(|y| format!("{y:.3}×")).unwrap_or_else(|| "unknown".into());
+        para(&mut s, "machines", &format!("the runs were made on different machines or versions; ratios are judged divided by the yardstick's ({y})"));
     }
     for w in &r.workloads {
-        let _ = writeln!(s, "\n▌ {} (threshold {:.0}%)", w.workload, w.threshold * 100.0);
-        let mut sizes: Vec<u64> = w.points.iter().map(|p| p.rows).collect();
-        sizes.sort_unstable();
-        sizes.dedup();
-        let mut designs: Vec<String> = Vec::new();
+        let _ = writeln!(s, "\n── {} (threshold {:.0}%) {}", w.workload, w.threshold * 100.0, "─".repeat(width.saturating_sub(w.workload.chars().count() + 22).min(60)));
+        let mut designs: Vec<&str> = Vec::new();
         for p in &w.points {
-            if !designs.contains(&p.design) {
-                designs.push(p.design.clone());
+            if !designs.contains(&p.design.as_str()) {
+                designs.push(&p.design);
             }
         }
-        let mut t = Table::new();
-        t.load_preset(presets::NOTHING).set_content_arrangement(ContentArrangement::Disabled);
-        let mut head = vec!["new / baseline".to_string()];
-        head.extend(sizes.iter().map(|n| rows_label(*n)));
-        t.set_header(head);
-        for d in &designs {
-            let mut row = vec![d.clone()];
-            for &n in &sizes {
-                row.push(match w.points.iter().find(|p| &p.design == d && p.rows == n) {
-                    Some(p) => {
-                        let shown = match p.normalised_ratio {
-                            Some(nr) => format!("×{:.2} (raw {:.2})", nr, p.ratio),
-                            None => format!("×{:.2}", p.ratio),
-                        };
-                        let mark = match (p.call, p.confirmed) {
-                            (Call::Regression, false) => "△",
-                            (Call::Improvement, false) => "▽",
-                            (c, _) => c.mark(),
-                        };
-                        format!("{shown} {mark}")
-                    }
-                    None => String::new(),
-                });
+        let name_w = designs.iter().map(|d| d.chars().count()).max().unwrap_or(0).clamp(8, 28);
+        for d in designs {
+            let mut pts: Vec<_> = w.points.iter().filter(|p| p.design == d).collect();
+            pts.sort_by_key(|p| p.rows);
+            let judged = |p: &crate::track::gate::PointGate| p.normalised_ratio.unwrap_or(p.ratio);
+            let ax = crate::results::schema::Axis(w.axis.as_ref());
+            let sizes = |v: &[&&crate::track::gate::PointGate]| v.iter().map(|p| ax.point(p.rows)).collect::<Vec<_>>().join(", ");
+            let times = |v: &[&&crate::track::gate::PointGate]| v.iter().map(|p| format!("{:.2}×", judged(p))).collect::<Vec<_>>().join(", ");
+            let detail = |v: &[&&crate::track::gate::PointGate]| {
+                let ivs: Vec<String> = v
+                    .iter()
+                    .filter_map(|p| match (p.ratio_low, p.ratio_high) {
+                        (Some(a), Some(b)) => Some(format!("{a:.2}×–{b:.2}×")),
+                        _ => None,
+                    })
+                    .collect();
+                let p_max = v.iter().filter_map(|p| p.p_value).fold(f64::NAN, f64::max);
+                let mut t = String::new();
+                if !ivs.is_empty() {
+                    t.push_str(&format!("; 95% interval {}", ivs.join(", ")));
+                }
+                if p_max.is_finite() {
+                    t.push_str(&format!("; rank test p ≤ {p_max:.1e}"));
+                }
+                t
+            };
+            let pick = |call: Call, confirmed: bool| pts.iter().filter(|p| p.call == call && p.confirmed == confirmed).collect::<Vec<_>>();
+            let (slower, faster) = (pick(Call::Regression, true), pick(Call::Improvement, true));
+            let (slower1, faster1) = (pick(Call::Regression, false), pick(Call::Improvement, false));
+            let mut said = Vec::new();
+            if !slower.is_empty() {
+                said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
             }
-            t.add_row(row);
-        }
-        for c in t.column_iter_mut().skip(1) {
-            c.set_cell_alignment(CellAlignment::Right);
-        }
-        for line in t.to_string().lines() {
-            let _ = writeln!(s, "  {}", line.trim_end());
-        }
-        for p in w.points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
-            let _ = writeln!(
-                s,
-                "  {}{} {} at {} rows: medians {} → {} (×{:.3}{}){}, p = {}",
-                if p.call == Call::Regression { "regression" } else { "improvement" },
-                if p.confirmed { "" } else { " at this size only (not confirmed)" },
-                p.design,
-                rows_label(p.rows),
-                time_ns(p.base_median_ns),
-                time_ns(p.new_median_ns),
-                p.ratio,
-                p.normalised_ratio.map(|n| format!(", ×{n:.3} corrected for the machine")).unwrap_or_default(),
-                match (p.shift, p.ratio_low, p.ratio_high) {
-                    (Some(e), Some(a), Some(b)) => format!("; pairwise estimate ×{e:.3}, 95% interval ×{a:.3}–×{b:.3}"),
-                    _ => String::new(),
-                },
-                p.p_value.map(|v| format!("{v:.2e}")).unwrap_or_else(|| "n/a".into())
-            );
+            if !faster.is_empty() {
+                said.push(format!("got faster at {}: {} the baseline's time{}", sizes(&faster), times(&faster), detail(&faster)));
+            }
+            for (v, word) in [(&slower1, "slower"), (&faster1, "faster")] {
+                if !v.is_empty() {
+                    said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(v), times(v)));
+                }
+            }
+            let unclear = pts.iter().filter(|p| p.call == Call::Unclear).count();
+            let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
+            if said.is_empty() {
+                let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
+                let hi = held.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+                let range = if held.is_empty() { String::new() } else { format!(" ({lo:.2}× to {hi:.2}× the baseline's time)") };
+                said.push(format!("no change judged at {} of {} sizes{range}", held.len(), pts.len()));
+            } else if !held.is_empty() {
+                said.push(format!("no change judged at the other {} size(s)", held.len()));
+            }
+            if unclear > 0 {
+                said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
+            }
+            let first = format!("  {d:<name_w$}  ");
+            let rest = " ".repeat(first.chars().count());
+            for l in wrap(&said.join("; "), width, &first, &rest) {
+                let _ = writeln!(s, "{l}");
+            }
         }
         for g in &w.growth {
-            let tag = match g.call {
-                Call::Regression => "GROWTH REGRESSION",
-                Call::Improvement => "growth improvement",
+            let word = match g.call {
+                Call::Regression => "now grows faster with the data",
+                Call::Improvement => "now grows slower with the data",
                 _ => continue,
             };
             let iv = |v: Option<(f64, f64)>| v.map(|(a, b)| format!(" [{a:.2}–{b:.2}]")).unwrap_or_default();
-            let _ = writeln!(
-                s,
-                "  {tag}: {} {} exponent {:.2}{} → {:.2}{} (class {} → {}) over {} sizes",
-                g.design,
-                g.metric,
-                g.base_exponent.unwrap_or(f64::NAN),
-                iv(g.base_interval),
-                g.new_exponent.unwrap_or(f64::NAN),
-                iv(g.new_interval),
-                g.base_class.clone().unwrap_or_else(|| "?".into()),
-                g.new_class.clone().unwrap_or_else(|| "?".into()),
-                g.sizes.len()
+            para(
+                &mut s,
+                "growth",
+                &format!(
+                    "`{}`: its {} {word}: class {} → {}, log-log slope {:.2}{} → {:.2}{} over {} sizes",
+                    g.design,
+                    g.metric,
+                    g.base_class.clone().unwrap_or_else(|| "?".into()),
+                    g.new_class.clone().unwrap_or_else(|| "?".into()),
+                    g.base_exponent.unwrap_or(f64::NAN),
+                    iv(g.base_interval),
+                    g.new_exponent.unwrap_or(f64::NAN),
+                    iv(g.new_interval),
+                    g.sizes.len()
+                ),
             );
         }
-        if let Some(cm) = &w.common_mode {
-            if (cm.ratio - 1.0).abs() > w.threshold {
-                let _ = writeln!(
-                    s,
-                    "  the whole workload moved ×{:.2} (median of its points; spread ×{:.2}): the environment, or a change common to every design — reported, not judged; points are judged against it",
+        if let Some(cm) = w.common_mode.as_ref().filter(|cm| (cm.ratio - 1.0).abs() > w.threshold) {
+            para(
+                &mut s,
+                "together",
+                &format!(
+                    "the whole workload moved to {:.2}× the baseline's time (median of its points, spread {:.2}×): the environment, or a change every design shares; reported, not judged — each point is judged against it",
                     cm.ratio,
                     cm.spread.exp()
-                );
-            }
+                ),
+            );
         }
         for m in &w.missing {
-            let _ = writeln!(s, "  not compared: {} at {} rows (baseline {}, new {})", m.design, rows_label(m.rows), m.baseline, m.new);
+            let ax = crate::results::schema::Axis(w.axis.as_ref());
+            para(&mut s, "not compared", &format!("`{}` at {} (baseline: {}; new: {})", m.design, ax.point(m.rows), m.baseline, m.new));
         }
         for d in &w.unmatched_designs {
-            let _ = writeln!(s, "  design in one run only: {d}");
+            para(&mut s, "one run only", &format!("design `{d}`"));
         }
     }
     for wname in &r.unmatched_workloads {
-        let _ = writeln!(s, "\nworkload in one run only: {wname}");
+        let _ = writeln!(s);
+        para(&mut s, "one run only", &format!("workload `{wname}`"));
     }
-    let _ = writeln!(
-        s,
-        "\n{} · ▲ regression, ▼ improvement (△ ▽ at one size only, not confirmed), · within the threshold, ? beyond it but not significant\n{} confirmed regression(s), {} unconfirmed, {} growth regression(s), {} improvement(s), {} point(s) not compared",
-        if r.failed() { "RESULT: worse" } else { "RESULT: no regression" },
-        r.regressions,
-        r.unconfirmed_regressions,
-        r.growth_regressions,
-        r.improvements,
-        r.missing
+    let _ = writeln!(s);
+    let tally = format!(
+        "{} confirmed slower, {} slower at one size only, {} growth change(s) for the worse, {} faster, {} point(s) not compared",
+        r.regressions, r.unconfirmed_regressions, r.growth_regressions, r.improvements, r.missing
     );
+    for l in wrap(&tally, width, "", "  ") {
+        let _ = writeln!(s, "{l}");
+    }
     s
 }

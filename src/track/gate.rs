@@ -149,6 +149,9 @@ pub struct WorkloadGate {
     /// discount: see [`common_mode`].
     #[serde(default)]
     pub common_mode: Option<CommonMode>,
+    /// What the workload swept when not rows (the same in both runs), for labels.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<crate::results::schema::AxisPlan>,
 }
 
 /// What the points of a workload moved together between the two runs.
@@ -323,6 +326,7 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
             missing: vec![],
             unmatched_designs: vec![],
             common_mode: None,
+            axis: nw.header.axis.clone(),
         };
         for d in &bw.header.designs {
             if !nw.header.designs.iter().any(|x| x.name == d.name) {
@@ -518,6 +522,7 @@ mod common_mode_tests {
             missing: vec![],
             unmatched_designs: vec![],
             common_mode: None,
+            axis: None,
         }
     }
 
