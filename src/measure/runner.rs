@@ -775,6 +775,9 @@ fn decide(a: &Active, b: &crate::plan::Budget, run_elapsed_s: f64) -> Option<Sto
 }
 
 fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDesign>]) -> Measured {
+    // A program's CPU time can be unreadable (NaN) for a sample; the median is over the rest.
+    let cpu: Vec<f64> = a.cpu.iter().copied().filter(|x| x.is_finite()).collect();
+    let cpu_median = (!cpu.is_empty()).then(|| crate::measure::stats::median(&cpu));
     let mut s = a.samples.clone();
     s.sort_by(f64::total_cmp);
     let med = median_sorted(&s);
@@ -803,18 +806,14 @@ fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDe
         p90_ns: tail.p90,
         p99_ns: tail.p99,
         max_ns: tail.max,
-        cpu_ns: {
-            let cpu: Vec<f64> = a.cpu.iter().copied().filter(|x| x.is_finite()).collect();
-            if cpu.is_empty() { 0.0 } else { crate::measure::stats::median(&cpu) }
-        },
+        cpu_ns: cpu_median.unwrap_or(0.0),
         alloc_counted: !a.is_program,
         program: a.is_program.then(|| {
             let p = programs.get(a.index).and_then(|x| x.as_ref());
-            let cpu: Vec<f64> = a.cpu.iter().copied().filter(|x| x.is_finite()).collect();
             // The sample whose runs added the most above what was resident before them.
             let top = a.resident.iter().max_by_key(|(peak, before)| peak.saturating_sub(before.unwrap_or(0))).copied();
             ProgramMeasured {
-                child_cpu_ns: (!cpu.is_empty()).then(|| crate::measure::stats::median(&cpu)),
+                child_cpu_ns: cpu_median,
                 peak_resident_bytes: top.map(|t| t.0).unwrap_or(0),
                 resident_before_bytes: top.and_then(|t| t.1).or_else(|| p.and_then(|p| p.resident_before)),
                 load_ns: p.and_then(|p| p.load_ns),
