@@ -65,6 +65,11 @@ pub struct Args {
     /// Print everything in the summary: all findings, cost-model notes, intervals, chunks.
     #[arg(long)]
     pub long: bool,
+    /// Measure in this process instead of a child process per workload: a runaway design
+    /// (one run past twice its point budget) then ends the whole sweep, and a step that
+    /// allocates past the memory available takes framecost down with it.
+    #[arg(long)]
+    pub in_process: bool,
 }
 
 /// The decision for one finished workload, in a few words, for the piped progress line.
@@ -312,7 +317,7 @@ impl Bar {
 }
 
 impl Progress for Bar {
-    fn point(&self, workload: &str, rows: u64, design: &str, samples: usize) {
+    fn point(&self, workload: &str, rows: u64, _index: usize, design: &str, samples: usize) {
         let Some(pb) = &self.pb else { return };
         let Ok(st) = self.state.lock() else { return };
         let elapsed = st.started.map(|t| t.elapsed().as_secs_f64()).unwrap_or(0.0);
@@ -349,11 +354,9 @@ impl Progress for Bar {
     }
 }
 
-pub fn run(a: Args) -> i32 {
-    let files = match super::expand_paths(&a.paths) {
-        Ok(f) => f,
-        Err(e) => return fail(e),
-    };
+/// Every workload of the command line, checked, with its overrides applied.
+fn load_plans(a: &Args) -> Result<Vec<Plan>, i32> {
+    let files = super::expand_paths(&a.paths).map_err(fail)?;
     // Check everything before running anything.
     let mut plans = Vec::new();
     let mut bad = false;
@@ -376,13 +379,58 @@ pub fn run(a: Args) -> i32 {
         }
     }
     if bad {
-        return fail("fix the workload files above (nothing was run)");
+        return Err(fail("fix the workload files above (nothing was run)"));
     }
     for p in plans.iter_mut() {
-        if let Err(e) = adjust(p, &a) {
-            return fail(e);
+        adjust(p, a).map_err(fail)?;
+    }
+    Ok(plans)
+}
+
+/// A measuring child of an isolated sweep (see `measure::supervise`): measure one workload
+/// into the parent's run folder, report over the pipe, print nothing else but errors.
+fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, String>) -> i32 {
+    let order = match order {
+        Ok(o) => o,
+        Err(e) => return fail(e),
+    };
+    let plans = match load_plans(a) {
+        Ok(p) => p,
+        Err(code) => return code,
+    };
+    let Some(plan) = plans.get(order.workload) else { return fail(format!("the measuring order names workload {} of {}", order.workload, plans.len())) };
+    if plan.spec_hash != order.spec_hash {
+        return fail(format!("`{}` changed since the sweep started; nothing more was measured", plan.file));
+    }
+    crate::measure::worker::connect(order.fd);
+    crate::measure::interrupt::install_quiet();
+    if let Some(b) = order.allowance {
+        crate::measure::memory::set_allowance(b);
+    }
+    let mut out = match RunWriter::append(&order.dir) {
+        Ok(w) => w,
+        Err(e) => return write_failed(e),
+    };
+    let opts = SweepOptions { force: a.force, resume: order.resume, ..SweepOptions::default() };
+    match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress) {
+        Ok(o) if o.interrupted || crate::measure::interrupt::requested() => crate::exit::INTERRUPTED,
+        Ok(_) => crate::exit::OK,
+        Err(runner::RunError::Write(w)) => write_failed(w),
+        Err(other) => {
+            eprintln!("framecost sweep: {other}");
+            crate::exit::RUN_FAILED
         }
     }
+}
+
+pub fn run(a: Args) -> i32 {
+    if let Some(order) = crate::measure::worker::order() {
+        return measure_as_child(&a, order);
+    }
+    let plans = match load_plans(&a) {
+        Ok(p) => p,
+        Err(code) => return code,
+    };
     // Programs run with the user's permissions: only when allowed, and never unannounced.
     let commands = program_commands(&plans);
     if !commands.is_empty() && !a.allow_programs && !a.plan {
@@ -476,7 +524,9 @@ pub fn run(a: Args) -> i32 {
     };
 
     crate::measure::interrupt::install();
-    crate::measure::watchdog::start(dir.join("points.jsonl"));
+    if a.in_process {
+        crate::measure::watchdog::start(dir.join("points.jsonl"));
+    }
     let started = Instant::now();
     let clock = crate::measure::clock::calibrate();
     let mut header = runner::run_header(std::env::args().collect(), clock, a.force);
@@ -493,7 +543,8 @@ pub fn run(a: Args) -> i32 {
     for (k, p) in plans.iter().enumerate() {
         let _ = out.side_file(&format!("spec-{}.yaml", p.name), &p.spec_text);
         bar.begin(k);
-        match runner::sweep(p, &opts, &clock, &mut out, &bar) {
+        let swept = if a.in_process { runner::sweep(p, &opts, &clock, &mut out, &bar) } else { crate::measure::supervise::sweep(p, k, &clock, &mut out, &bar) };
+        match swept {
             Ok(o) if o.interrupted || crate::measure::interrupt::requested() => {
                 if let Some(pb) = &bar.pb {
                     pb.finish_and_clear();

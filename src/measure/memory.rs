@@ -223,9 +223,36 @@ pub fn memory_limit() -> MemoryLimit {
         }
     };
     consider(rlimit_room(libc::RLIMIT_AS, status_kib("VmSize:")), "the address-space limit (ulimit -v)");
-    consider(rlimit_room(libc::RLIMIT_DATA, status_kib("VmData:")), "the data-segment limit (ulimit -d)");
+    let data = rlimit_room(libc::RLIMIT_DATA, status_kib("VmData:"));
+    let ours = ALLOWANCE.load(std::sync::atomic::Ordering::Relaxed) > 0 && current_rlimit(libc::RLIMIT_DATA) == Some(ALLOWANCE.load(std::sync::atomic::Ordering::Relaxed));
+    if !ours {
+        consider(data, "the data-segment limit (ulimit -d)");
+    }
     consider(cgroup_room(), "the cgroup memory limit");
+    if ours {
+        // The parent's allowance, not the user's limit: what was available when this
+        // measuring process started. --force may try past it: the allocation then fails
+        // and the point fails, not the sweep.
+        if let Some(b) = data.filter(|&b| b < best.bytes) {
+            best = MemoryLimit { bytes: b, source: "the measuring process's allowance (memory available when it started)".into(), hard: false };
+        }
+    }
     best
+}
+
+/// The allowance a supervising parent set as this process's `RLIMIT_DATA` (0: none).
+static ALLOWANCE: std::sync::atomic::AtomicU64 = std::sync::atomic::AtomicU64::new(0);
+
+/// Note the allowance the parent set (see [`super::supervise`]).
+pub fn set_allowance(bytes: u64) {
+    ALLOWANCE.store(bytes, std::sync::atomic::Ordering::Relaxed);
+}
+
+/// A resource limit's current (soft) value, if set.
+fn current_rlimit(resource: libc::__rlimit_resource_t) -> Option<u64> {
+    // SAFETY: getrlimit writes into the struct we own.
+    let mut rl: libc::rlimit = unsafe { std::mem::zeroed() };
+    (unsafe { libc::getrlimit(resource, &mut rl) } == 0 && rl.rlim_cur != libc::RLIM_INFINITY).then_some(rl.rlim_cur as u64)
 }
 
 /// What a resource limit leaves above the current use, if the limit is set.

@@ -3,7 +3,9 @@
 
 pub mod alloc;
 pub mod clock;
+pub mod admit;
 pub mod equivalence;
+pub mod headers;
 pub mod hygiene;
 pub mod inputs;
 pub mod interrupt;
@@ -11,5 +13,8 @@ pub mod machine;
 pub mod memory;
 pub mod program;
 pub mod runner;
+pub mod sampling;
+pub mod supervise;
 pub mod stats;
 pub mod watchdog;
+pub mod worker;

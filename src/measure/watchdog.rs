@@ -6,9 +6,10 @@
 //! thread checks every 50 ms. When an armed run passes its limit, the thread appends a
 //! failed point with the reason to `points.jsonl` (one `O_APPEND` write of a whole line; the
 //! sweep's thread is inside the run, not writing), prints where the run is, and ends the
-//! process with [`crate::exit::RUN_FAILED`]. The sweep does not go on after that: measuring
-//! in a child process the parent can kill would allow it, at the cost of building each
-//! table once per design. Cost when nothing runs away, outside the timed region: arming and
+//! process with [`crate::exit::RUN_FAILED`]. This is the in-process sweep's guard
+//! (`sweep --in-process`, and library users): by default `sweep` measures in a child
+//! process ([`super::supervise`]), where [`arm`] also tells the parent, which kills a
+//! runaway child and goes on with the sweep. Cost when nothing runs away, outside the timed region: arming and
 //! disarming take two uncontended mutex operations and no allocation (names are given once
 //! per workload with [`names`]); the thread wakes every 50 ms and allocates nothing.
 
@@ -70,6 +71,7 @@ pub struct Guard(());
 
 impl Drop for Guard {
     fn drop(&mut self) {
+        super::worker::disarmed();
         if let Some(s) = SHARED.get() {
             if let Ok(mut a) = s.armed.lock() {
                 *a = None;
@@ -82,6 +84,8 @@ impl Drop for Guard {
 /// failure is recorded at `rows` (a size of the sweep). Does nothing until [`start`] named
 /// a results file, so library users and tests are never ended by it.
 pub fn arm(design: usize, rows: u64, what: &'static str, limit: Duration) -> Guard {
+    // A measuring child tells its parent, which enforces the limit by killing it.
+    super::worker::armed(design, rows, limit, what);
     let s = shared();
     if let Ok(mut a) = s.armed.lock() {
         *a = Some(Armed { design, rows, what, started: Instant::now(), limit });

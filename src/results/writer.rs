@@ -47,6 +47,22 @@ impl RunWriter {
         Ok(RunWriter { dir: dir.to_path_buf(), points, results: RunResults::default() })
     }
 
+    /// Open the run in `dir` to add records to it (a measuring child of `sweep`), with what
+    /// it already holds read back.
+    pub fn append(dir: &Path) -> Result<RunWriter, WriteError> {
+        let path = dir.join("points.jsonl");
+        let points = OpenOptions::new().append(true).open(&path).map_err(io(&path))?;
+        let results = RunResults::read(dir).map_err(|e| WriteError::Io { path: path.display().to_string(), source: std::io::Error::other(e.to_string()) })?;
+        Ok(RunWriter { dir: dir.to_path_buf(), points, results })
+    }
+
+    /// Read back what other processes (a measuring child) added to the run.
+    pub fn reload(&mut self) -> Result<(), WriteError> {
+        let path = self.dir.join("points.jsonl");
+        self.results = RunResults::read(&self.dir).map_err(|e| WriteError::Io { path: path.display().to_string(), source: std::io::Error::other(e.to_string()) })?;
+        Ok(())
+    }
+
     pub fn dir(&self) -> &Path {
         &self.dir
     }

@@ -1,0 +1,146 @@
+//! Admission at one size: which designs run there, and why each other one does not.
+//!
+//! A design is not run at a size when its estimated memory or disk will not fit
+//! ([`super::inputs::refusals`], the same rule `sweep --plan` shows), when it failed or ran
+//! out of budget at a smaller size, or when its time — extrapolated from the sizes it was
+//! measured at — would overrun the point budget or the whole run's. What admission knows of
+//! a design is its [`DesignState`], learned from each point as it is written (or read back
+//! from `points.jsonl` when a sweep resumes).
+
+use super::runner::SweepOptions;
+use crate::plan::Plan;
+use crate::results::{Measured, SkipInfo, SkipReason, StopReason};
+
+/// What later sizes learn from a design's earlier ones.
+#[derive(Debug, Default, Clone)]
+pub struct DesignState {
+    /// (size, median ns) of measured sizes.
+    pub history: Vec<(u64, f64)>,
+    /// (size, peak live bytes, or a program's peak resident size) of measured sizes.
+    pub peaks: Vec<(u64, f64)>,
+    /// Why it runs at no larger size, if it does not.
+    pub blocked: Option<SkipInfo>,
+    /// The size whose point is already written (a resumed sweep's failure).
+    pub written_at: Option<u64>,
+}
+
+impl DesignState {
+    /// Learn from a design's measured point at `rows`.
+    pub fn learn_measured(&mut self, plan: &Plan, rows: u64, m: &Measured) {
+        let b = plan.budget;
+        self.history.push((rows, m.median_ns));
+        self.peaks.push((
+            rows,
+            m.program
+                .map(|p| p.peak_resident_bytes as f64)
+                .unwrap_or(m.alloc.peak_live as f64),
+        ));
+        if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
+            self.blocked = Some(SkipInfo {
+                reason: SkipReason::SmallerSizeOverBudget,
+                predicted_ns: None,
+                predicted_bytes: None,
+                detail: format!(
+                    "at {} the {} point budget allowed only {} of {} samples (one run {})",
+                    plan.axis_point(rows),
+                    crate::present::units::time_ns(b.per_point_s * 1e9),
+                    m.samples_ns.len(),
+                    b.min_samples,
+                    crate::present::units::time_ns(m.median_ns)
+                ),
+            });
+        }
+    }
+
+    /// Learn that the design failed at `rows`: it is not run at larger sizes.
+    pub fn learn_failed(&mut self, plan: &Plan, rows: u64, info: &SkipInfo) {
+        self.blocked = Some(SkipInfo {
+            detail: format!("failed at {}: {}", plan.axis_point(rows), info.detail),
+            ..info.clone()
+        });
+    }
+}
+
+/// Predicted median time of one run at `rows` from the measured sizes: the log-log slope of
+/// the last three (at least 1, so growth is never assumed to be below linear).
+pub fn predict_ns(history: &[(u64, f64)], rows: u64) -> Option<f64> {
+    let (n0, t0) = *history.last()?;
+    let slope = if history.len() >= 2 {
+        let tail = &history[history.len().saturating_sub(3)..];
+        let x: Vec<f64> = tail.iter().map(|p| p.0 as f64).collect();
+        let y: Vec<f64> = tail.iter().map(|p| p.1).collect();
+        super::stats::loglog_slope(&x, &y)
+            .unwrap_or(1.0)
+            .clamp(1.0, 4.0)
+    } else {
+        1.0
+    };
+    Some(t0 * (rows as f64 / n0 as f64).powf(slope))
+}
+
+/// The decision for each design at one size: `Ok(())` to run it, or why it is skipped.
+/// A design whose point at this size is already written gets neither (it is left out).
+pub fn admit(
+    plan: &Plan,
+    rows: u64,
+    states: &[DesignState],
+    opts: &SweepOptions,
+    elapsed_run_s: f64,
+) -> Vec<Option<Result<(), SkipInfo>>> {
+    let b = plan.budget;
+    let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
+    let limit = super::memory::memory_limit();
+    // A hard limit (ulimit, cgroup) cannot be forced past: the allocation would fail, so
+    // such a size is refused even with --force.
+    let mut refused =
+        super::inputs::refusals(plan, rows, &peaks, &limit, opts.memory_share, opts.force);
+    (0..plan.designs.len())
+        .map(|i| {
+            let st = &states[i];
+            if st.written_at == Some(rows) {
+                return None;
+            }
+            if let Some(info) = refused[i].take() {
+                return Some(Err(info));
+            }
+            if let Some(block) = &st.blocked {
+                let mut info = block.clone();
+                info.predicted_ns = predict_ns(&st.history, rows).or(info.predicted_ns);
+                return Some(Err(info));
+            }
+            let Some(pred) = predict_ns(&st.history, rows) else {
+                return Some(Ok(()));
+            };
+            let cost_s = pred * opts.runs_needed / 1e9;
+            if cost_s > b.per_point_s {
+                return Some(Err(SkipInfo {
+                    reason: SkipReason::PredictedOverBudget,
+                    predicted_ns: Some(pred),
+                    predicted_bytes: None,
+                    detail: format!(
+                        "one run predicted at {}; {} runs need {} > {} point budget",
+                        crate::present::units::time_ns(pred),
+                        opts.runs_needed,
+                        crate::present::units::time_ns(cost_s * 1e9),
+                        crate::present::units::time_ns(b.per_point_s * 1e9)
+                    ),
+                }));
+            }
+            if elapsed_run_s + cost_s > b.whole_run_s {
+                return Some(Err(SkipInfo {
+                    reason: SkipReason::RunBudget,
+                    predicted_ns: Some(pred),
+                    predicted_bytes: None,
+                    detail: format!(
+                        "{} runs at {} would pass the {} run budget ({} used)",
+                        opts.runs_needed,
+                        crate::present::units::time_ns(pred),
+                        crate::present::units::time_ns(b.whole_run_s * 1e9),
+                        crate::present::units::time_ns(elapsed_run_s * 1e9)
+                    ),
+                }));
+            }
+            Some(Ok(()))
+        })
+        .collect()
+}
