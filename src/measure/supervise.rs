@@ -17,7 +17,8 @@
 //!   fails at that size.
 //! - **Signals.** The child has a process group of its own; the parent forwards the first
 //!   Ctrl-C or SIGTERM as SIGTERM (the child stops at its next safe point and keeps its
-//!   points) and a second one as SIGKILL ([`super::interrupt`]).
+//!   points) and a second one as SIGKILL ([`super::interrupt`]); a parent killed outright
+//!   takes the child with it (`PR_SET_PDEATHSIG`).
 //! - **Temp files.** The child's `TMPDIR` is a folder the parent removes at the end, so even
 //!   a killed child leaves nothing behind.
 //!
@@ -277,11 +278,14 @@ fn run_child(
         .env("TMPDIR", temp)
         .stdin(std::process::Stdio::null())
         .process_group(0);
-    // SAFETY: between fork and exec only async-signal-safe calls: fcntl, getrlimit, setrlimit.
+    // SAFETY: between fork and exec only async-signal-safe calls: fcntl, prctl, getrlimit,
+    // setrlimit.
     unsafe {
         cmd.pre_exec(move || {
             // The writing end stays open across exec in the child only.
             libc::fcntl(write_fd, libc::F_SETFD, 0);
+            // A parent killed outright (SIGKILL) takes its measuring child with it.
+            libc::prctl(libc::PR_SET_PDEATHSIG, libc::SIGKILL);
             if let Some(bytes) = allowance {
                 let mut rl: libc::rlimit = std::mem::zeroed();
                 if libc::getrlimit(libc::RLIMIT_DATA, &mut rl) == 0
