@@ -6,6 +6,7 @@
 # never compared with a fixed time. Not run by the test suite.
 #
 #   benches/isolation-overhead.sh [ROUNDS] [WORKLOAD...]   (default 5 rounds, the catalog)
+#   SWEEP_ARGS='--sizes 1k,2k' benches/isolation-overhead.sh 10 tests/data/tiny.yaml
 set -euo pipefail
 cd "$(dirname "$0")/.."
 bin=${FRAMECOST:-${CARGO_TARGET_DIR:-target}/release/framecost}
@@ -20,8 +21,8 @@ iso=()
 inp=()
 for r in $(seq 1 "$rounds"); do
   for mode in isolated in-process; do
-    extra=()
-    [ "$mode" = in-process ] && extra=(--in-process)
+    read -r -a extra <<<"${SWEEP_ARGS:-}"
+    [ "$mode" = in-process ] && extra+=(--in-process)
     t0=$(date +%s.%N)
     "$bin" sweep "${workloads[@]}" --quiet --out "$work/$mode-$r" "${extra[@]}" >/dev/null 2>&1 || true
     t1=$(date +%s.%N)
