@@ -324,6 +324,15 @@ impl Progress for Bar {
         let left = Bar::left(&st).map(|s| format!(" · about {} left", hms(s))).unwrap_or_default();
         pb.set_message(format!("{} elapsed{left} · {workload} · {} rows · {design} · {samples} samples", hms(elapsed), rows_label(rows)));
     }
+    fn rewound(&self, kept: usize) {
+        let Ok(mut st) = self.state.lock() else { return };
+        let lost = st.done_here.saturating_sub(kept);
+        st.done_here = kept;
+        st.points_done = st.points_done.saturating_sub(lost as u64);
+        if let Some(pb) = &self.pb {
+            pb.set_position(st.points_done);
+        }
+    }
     fn point_done(&self) {
         let Ok(mut st) = self.state.lock() else { return };
         st.points_done += 1;

@@ -84,6 +84,9 @@ pub trait Progress {
     /// A point's sampling goes on: design number `design` (named `name`) at `rows`.
     fn point(&self, workload: &str, rows: u64, design: usize, name: &str, samples: usize);
     fn point_done(&self);
+    /// The workload's sweep starts again with only `kept` of its points (a measuring child
+    /// ended abnormally and the size it was on was cut): count from there.
+    fn rewound(&self, _kept: usize) {}
 }
 
 /// A progress sink that shows nothing.

@@ -130,7 +130,8 @@ pub fn sweep(
             .and_then(|s| plan.sizes.iter().position(|&x| x == s))
             .or(resume.as_ref().map(|r| r.from))
             .unwrap_or(0);
-        cut_from(&points, start, plan, pos).map_err(|e| io_error(&points, e))?;
+        let kept = cut_from(&points, start, plan, pos).map_err(|e| io_error(&points, e))?;
+        progress.rewound(kept);
         let info = SkipInfo {
             reason: SkipReason::Failed,
             predicted_ns: None,
@@ -418,10 +419,12 @@ fn describe(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -
 /// Cut `points.jsonl` back to the records written before size number `pos` of this
 /// workload (records of other workloads before `start` are never touched). A line that
 /// does not parse — one the child was writing when it died — ends what is kept.
-fn cut_from(points: &Path, start: u64, plan: &Plan, pos: usize) -> std::io::Result<()> {
+/// Returns how many of the workload's points are kept.
+fn cut_from(points: &Path, start: u64, plan: &Plan, pos: usize) -> std::io::Result<usize> {
     let bytes = std::fs::read(points)?;
     let from = (start as usize).min(bytes.len());
     let mut keep = from;
+    let mut kept_points = 0;
     for line in bytes[from..].split_inclusive(|&b| b == b'\n') {
         if line.last() != Some(&b'\n') {
             break;
@@ -442,9 +445,13 @@ fn cut_from(points: &Path, start: u64, plan: &Plan, pos: usize) -> std::io::Resu
         if later {
             break;
         }
+        if matches!(serde_json::from_slice::<Record>(line), Ok(Record::Point(ref p)) if p.workload == plan.name) {
+            kept_points += 1;
+        }
         keep += line.len();
     }
     let f = std::fs::OpenOptions::new().write(true).open(points)?;
     f.set_len(keep as u64)?;
-    f.sync_all()
+    f.sync_all()?;
+    Ok(kept_points)
 }
