@@ -89,9 +89,9 @@ pub fn run(a: Args) -> i32 {
                     "  {:<24} predicted at {}: {} [{}–{}]{}",
                     "",
                     wa.axis().point(pr.rows),
-                    crate::present::units::time_ns(pr.median),
-                    crate::present::units::time_ns(pr.low),
-                    crate::present::units::time_ns(pr.high),
+                    crate::units::time_ns(pr.median),
+                    crate::units::time_ns(pr.low),
+                    crate::units::time_ns(pr.high),
                     match (pr.far, pr.rough) {
                         (_, true) => " (an order of magnitude only: the interval spans more than ×10)",
                         (true, false) => " (far past the measured sizes)",
@@ -104,8 +104,8 @@ pub fn run(a: Args) -> i32 {
                     "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{})",
                     "",
                     wa.axis().point(h.rows),
-                    crate::present::units::time_ns(h.predicted_ns),
-                    crate::present::units::time_ns(h.measured_ns),
+                    crate::units::time_ns(h.predicted_ns),
+                    crate::units::time_ns(h.measured_ns),
                     h.error * 100.0,
                     if h.inside_interval { ", inside the interval" } else { ", outside the interval" }
                 );

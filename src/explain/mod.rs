@@ -9,7 +9,7 @@
 
 use crate::analyse::{class_of, WorkloadAnalysis};
 use crate::fit::growth::GrowthClass;
-use crate::present::units::{bytes, time_ns};
+use crate::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, Measured};
 use crate::spec::model::ColumnKind;

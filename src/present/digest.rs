@@ -9,10 +9,10 @@
 
 use crate::analyse::{DesignAnalysis, PredictionOut, WorkloadAnalysis};
 use crate::explain::{Explanation, Finding, VerdictKind};
-use crate::present::units::time_ns;
+use crate::units::time_ns;
 use crate::results::reader::WorkloadResults;
 use crate::results::{ComparisonRecord, EquivalenceStatus, SkipReason};
-use crate::spec::units::rows_label;
+use crate::units::rows_label;
 
 /// The decision of one workload, in words.
 #[derive(Debug, Clone)]

@@ -11,7 +11,7 @@
 use crate::analyse::{analyse, AnalyseOptions};
 use crate::explain::{explain, Explanation};
 use crate::present::page::{self, Part};
-use crate::present::units::{bytes, time_ns};
+use crate::units::{bytes, time_ns};
 use crate::results::reader::RunResults;
 use std::path::{Path, PathBuf};
 

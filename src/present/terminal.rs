@@ -437,7 +437,7 @@ fn workload_block(p: &Parts, style: Style, o: Options) -> String {
         let set = if a.set.label() == a.name { String::new() } else { a.set.label().to_string() };
         let of = a.column.as_ref().map(|c| format!("{}of `{c}`", if set.is_empty() { "" } else { " " })).unwrap_or_default();
         let detail = if set.is_empty() && of.is_empty() { String::new() } else { format!(" ({set}{of})") };
-        let what = format!("swept: {}{detail} with {} rows at every point", a.name, crate::spec::units::rows_label(a.rows));
+        let what = format!("swept: {}{detail} with {} rows at every point", a.name, crate::units::rows_label(a.rows));
         push_wrapped(&mut s, &what, width, "", "");
     }
     s.push('\n');
