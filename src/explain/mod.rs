@@ -15,8 +15,10 @@ use crate::results::{EquivalenceStatus, Measured};
 use crate::spec::model::ColumnKind;
 use serde::{Deserialize, Serialize};
 
+pub mod analysed;
 pub mod payback;
 pub mod verdict;
+pub use analysed::{Analysed, AnalysedWorkload};
 pub use verdict::{verdict, VerdictKind};
 
 /// One statement about a design (or the workload), backed by numbers.

@@ -7,14 +7,16 @@
 //! Everything fits the width it is given ([`Options::detect`]: the terminal's width, else
 //! `COLUMNS`, else 100): text is wrapped with hanging indents and grids that are too wide
 //! are split into blocks of sizes. `--long` adds every finding, the cost-model notes, the
-//! intervals, chunks, set-up times and skip details. Built from [`RunResults`] alone, so
-//! `recap` prints exactly what `sweep` printed.
+//! intervals, chunks, set-up times and skip details. Drawn from a run's saved results with
+//! their analysis and explanations made once by the caller ([`Analysed`]), so `recap` prints
+//! exactly what `sweep` printed.
 
 use super::digest::{self, counts_allocations, times, Digest};
 use super::units::{bytes, time_ns};
 use crate::analyse::WorkloadAnalysis;
-use crate::explain::Explanation;
-use crate::results::reader::{RunResults, WorkloadResults};
+use crate::explain::{Analysed, Explanation};
+use crate::fit::growth::GrowthClass;
+use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, StopReason};
 use std::fmt::Write;
 
@@ -170,33 +172,26 @@ fn grid(head: &[String], rows: &[(String, Vec<Vec<String>>)], width: usize, inde
     out
 }
 
-/// Everything a workload's block needs, computed once.
+/// Everything a workload's block needs: what the run's [`Analysed`] holds, and its digest.
 struct Parts<'a> {
     w: &'a WorkloadResults,
-    a: WorkloadAnalysis,
-    e: Explanation,
+    a: &'a WorkloadAnalysis,
+    e: &'a Explanation,
     d: Digest,
 }
 
-fn parts(r: &RunResults) -> Vec<Parts<'_>> {
-    r.workloads
-        .iter()
-        .map(|w| {
-            let a = crate::analyse::analyse_workload(w, &crate::analyse::AnalyseOptions::default());
-            let e = crate::explain::explain(w, &a);
-            let d = digest::digest(w, &a, &e);
-            Parts { w, a, e, d }
-        })
-        .collect()
+fn parts<'a>(an: &'a Analysed) -> Vec<Parts<'a>> {
+    an.workloads().map(|x| Parts { w: x.w, a: x.a, e: x.e, d: digest::digest(x.w, x.a, x.e) }).collect()
 }
 
 /// The whole run as text, at the detected width, short form.
-pub fn render(r: &RunResults, style: Style) -> String {
-    render_with(r, style, Options::detect(false))
+pub fn render(an: &Analysed, style: Style) -> String {
+    render_with(an, style, Options::detect(false))
 }
 
-/// The whole run as text.
-pub fn render_with(r: &RunResults, style: Style, o: Options) -> String {
+/// The whole run as text, from its results and their analysis and explanations.
+pub fn render_with(an: &Analysed, style: Style, o: Options) -> String {
+    let r = an.results;
     let width = o.width;
     let mut s = String::new();
     if let Some(h) = &r.run {
@@ -226,7 +221,7 @@ pub fn render_with(r: &RunResults, style: Style, o: Options) -> String {
             let _ = writeln!(s, "{}", style.alarm(&l));
         }
     }
-    let all = parts(r);
+    let all = parts(an);
     if all.len() > 1 {
         s.push('\n');
         s.push_str(&overview(&all, width, style));
@@ -395,7 +390,7 @@ fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
         let mem = vec![bytes_label];
         let mut exp = Vec::new();
         if let Some(e) = &d.expect_time {
-            let ok = da.time.as_ref().is_some_and(|t| crate::analyse::class_of(e).is_some_and(|c| t.admits(c)));
+            let ok = da.time.as_ref().is_some_and(|t| GrowthClass::from_label(e).is_some_and(|c| t.admits(c)));
             exp.push(format!("time {e} {}", if ok { "✓" } else { "✗" }));
         }
         if let Some(e) = &d.expect_bytes {
