@@ -20,6 +20,7 @@ pub mod shape;
 pub mod spec;
 pub mod table;
 pub mod track;
+pub mod units;
 
 /// Exit codes shared by every command.
 pub mod exit {

@@ -3,7 +3,8 @@
 //! one another, what the evidence says about the cause, and a verdict. From saved results
 //! alone; `--json` for machines.
 
-use crate::analyse::{analyse, AnalyseOptions};
+use crate::analyse::AnalyseOptions;
+use crate::explain::Analysed;
 use crate::spec::units::parse_rows;
 use std::path::PathBuf;
 
@@ -54,11 +55,9 @@ pub fn run(a: Args) -> i32 {
             return crate::exit::BAD_INPUT;
         }
     };
-    let analysis = analyse(&r, &opts);
-    let explanations: Vec<_> =
-        r.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
+    let analysed = Analysed::new(&r, &opts);
     if a.json {
-        let doc = serde_json::json!({ "schema": SCHEMA, "analysis": analysis, "explanations": explanations });
+        let doc = analysed.document(SCHEMA);
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
         return crate::exit::OK;
     }
@@ -68,7 +67,7 @@ pub fn run(a: Args) -> i32 {
     if r.damaged_lines > 0 {
         println!("{} damaged line(s) in the results file were left out\n", r.damaged_lines);
     }
-    for ((w, wa), e) in r.workloads.iter().zip(&analysis.workloads).zip(&explanations) {
+    for crate::explain::AnalysedWorkload { w, a: wa, e } in analysed.workloads() {
         println!("▌ {}", w.header.workload);
         for d in &wa.designs {
             let t = d.time.as_ref().map(|t| {
@@ -89,9 +88,9 @@ pub fn run(a: Args) -> i32 {
                     "  {:<24} predicted at {}: {} [{}–{}]{}",
                     "",
                     wa.axis().point(pr.rows),
-                    crate::present::units::time_ns(pr.median),
-                    crate::present::units::time_ns(pr.low),
-                    crate::present::units::time_ns(pr.high),
+                    crate::units::time_ns(pr.median),
+                    crate::units::time_ns(pr.low),
+                    crate::units::time_ns(pr.high),
                     match (pr.far, pr.rough) {
                         (_, true) => " (an order of magnitude only: the interval spans more than ×10)",
                         (true, false) => " (far past the measured sizes)",
@@ -104,8 +103,8 @@ pub fn run(a: Args) -> i32 {
                     "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{})",
                     "",
                     wa.axis().point(h.rows),
-                    crate::present::units::time_ns(h.predicted_ns),
-                    crate::present::units::time_ns(h.measured_ns),
+                    crate::units::time_ns(h.predicted_ns),
+                    crate::units::time_ns(h.measured_ns),
                     h.error * 100.0,
                     if h.inside_interval { ", inside the interval" } else { ", outside the interval" }
                 );

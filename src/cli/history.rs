@@ -5,7 +5,7 @@
 //! (the spec hash in the workload header differs from the run before) are marked in both.
 
 use crate::present::plot::{spec_changes, RunMark};
-use crate::present::units::{escaped, size_label};
+use crate::units::{escaped, size_label};
 use crate::results::reader::RunResults;
 use crate::track::gate::{compare, Call, GateOptions};
 use std::path::PathBuf;

@@ -43,7 +43,7 @@ pub fn run(args: Args) -> i32 {
                     }));
                 } else {
                     let over = match &plan.axis {
-                        Some(a) => format!("{} values of {} at {} rows", plan.sizes.len(), a.name, crate::spec::units::rows_label(a.rows)),
+                        Some(a) => format!("{} values of {} at {} rows", plan.sizes.len(), a.name, crate::units::rows_label(a.rows)),
                         None => format!("{} sizes", plan.sizes.len()),
                     };
                     println!("{}: ok — {} with {} designs over {over}", f.display(), plan.name, plan.designs.len());

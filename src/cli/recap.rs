@@ -2,6 +2,8 @@
 //! file alone (also works on a run that was interrupted). `--json` prints the run's summary
 //! and verdicts as one document (`framecost.recap/1`, see docs/results.md).
 
+use crate::analyse::AnalyseOptions;
+use crate::explain::Analysed;
 use crate::results::reader::RunResults;
 use std::path::PathBuf;
 
@@ -23,14 +25,9 @@ pub struct Args {
 
 /// A run as one JSON document: its summary (as in `summary.json`) and each workload's
 /// verdict. `sweep --json` prints the same with a few fields more.
-pub fn document(schema: &str, r: &RunResults) -> serde_json::Value {
-    let analysis = crate::analyse::analyse(r, &crate::analyse::AnalyseOptions::default());
-    let verdicts: Vec<_> = r
-        .workloads
-        .iter()
-        .zip(&analysis.workloads)
-        .map(|(w, wa)| serde_json::json!({ "workload": w.header.workload, "verdict": crate::explain::explain(w, wa).verdict }))
-        .collect();
+pub fn document(schema: &str, an: &Analysed) -> serde_json::Value {
+    let r = an.results;
+    let verdicts: Vec<_> = an.workloads().map(|x| serde_json::json!({ "workload": x.w.header.workload, "verdict": x.e.verdict })).collect();
     serde_json::json!({
         "schema": schema,
         "complete": r.complete(),
@@ -43,14 +40,14 @@ pub fn document(schema: &str, r: &RunResults) -> serde_json::Value {
 pub fn run(args: Args) -> i32 {
     match RunResults::read(&args.run) {
         Ok(r) if args.json => {
-            let mut doc = document(SCHEMA, &r);
+            let mut doc = document(SCHEMA, &Analysed::new(&r, &AnalyseOptions::default()));
             doc["run"] = args.run.display().to_string().into();
             println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
             crate::exit::OK
         }
         Ok(r) => {
             use crate::present::terminal::{render_with, Options, Style};
-            print!("{}", render_with(&r, Style::detect(), Options::detect(args.long)));
+            print!("{}", render_with(&Analysed::new(&r, &AnalyseOptions::default()), Style::detect(), Options::detect(args.long)));
             crate::exit::OK
         }
         Err(e) => {

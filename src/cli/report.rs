@@ -36,7 +36,8 @@ pub fn run(a: Args) -> i32 {
         }
     };
     let dir = a.out.clone().unwrap_or_else(|| if a.run.is_dir() { a.run.clone() } else { a.run.parent().map(PathBuf::from).unwrap_or_default() });
-    match crate::present::report::write(&dir, &r, &AnalyseOptions { at, ..AnalyseOptions::default() }) {
+    let analysed = crate::explain::Analysed::new(&r, &AnalyseOptions { at, ..AnalyseOptions::default() });
+    match crate::present::report::write(&dir, &analysed) {
         Ok(w) => {
             println!(
                 "report: {}\n        {}\ntables: {}\n        {}\n        {}\npictures: {} files in {}",

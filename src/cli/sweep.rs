@@ -75,8 +75,7 @@ pub struct Args {
 /// The decision for one finished workload, in a few words, for the piped progress line.
 fn workload_answer(r: &crate::results::reader::RunResults, name: &str) -> String {
     let Some(w) = r.workloads.iter().find(|w| w.header.workload == name) else { return String::new() };
-    let a = crate::analyse::analyse_workload(w, &crate::analyse::AnalyseOptions::default());
-    let e = crate::explain::explain(w, &a);
+    let (a, e) = crate::explain::analysed::analyse_and_explain(w, &crate::analyse::AnalyseOptions::default());
     crate::present::digest::digest(w, &a, &e).answer
 }
 
@@ -592,20 +591,19 @@ pub fn run(a: Args) -> i32 {
     // Everything after the measurements is drawn from the results as read back from disk,
     // exactly as `explain`, `report` and `recap` will read them later, so they agree.
     let saved = crate::results::reader::RunResults::read(&dir).unwrap_or_else(|_| out.results.clone());
-    // The analysis and findings, for notebooks (`framecost explain` recomputes them).
-    let analysis = crate::analyse::analyse(&saved, &crate::analyse::AnalyseOptions::default());
-    let explanations: Vec<_> =
-        saved.workloads.iter().zip(&analysis.workloads).map(|(w, wa)| crate::explain::explain(w, wa)).collect();
-    let doc = serde_json::json!({ "schema": super::explain::SCHEMA, "analysis": analysis, "explanations": explanations });
+    // Analysed and explained once: the same value feeds analysis.json (for notebooks;
+    // `framecost explain` recomputes it), the pictures and pages, and the summary.
+    let analysed = crate::explain::Analysed::new(&saved, &crate::analyse::AnalyseOptions::default());
+    let doc = analysed.document(super::explain::SCHEMA);
     if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
         return write_failed(e);
     }
-    let report = crate::present::report::write(&dir, &saved, &crate::analyse::AnalyseOptions::default());
+    let report = crate::present::report::write(&dir, &analysed);
     if let Err(e) = &report {
         eprintln!("framecost sweep: could not write results: the pictures and reports: {e} (the measurements are kept; `framecost report` redraws them)");
     }
     if a.json {
-        let mut doc = super::recap::document(SCHEMA, &saved);
+        let mut doc = super::recap::document(SCHEMA, &analysed);
         doc["run"] = dir.display().to_string().into();
         doc["report"] = report.as_ref().ok().map(|w| w.html.display().to_string()).into();
         let tables: Vec<String> = ["points.parquet", "samples.parquet", "points.csv"]
@@ -619,7 +617,7 @@ pub fn run(a: Args) -> i32 {
         doc["mismatched_sizes"] = mismatches.into();
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
     } else if !a.quiet {
-        print!("{}", render_with(&saved, Style::detect(), Options::detect(a.long)));
+        print!("{}", render_with(&analysed, Style::detect(), Options::detect(a.long)));
     }
     if !a.json {
         println!("\nresults: {} (summary: {})", dir.join("points.jsonl").display(), summary_path.display());

@@ -11,7 +11,7 @@
 //! under a temporary name in the same folder, then renamed. Exit 0 on success, 2 for bad
 //! input or a refused size, 3 when writing failed.
 
-use crate::present::units::bytes;
+use crate::units::bytes;
 use crate::table::write::{self, FileFormat};
 use std::path::PathBuf;
 

@@ -9,14 +9,16 @@
 
 use crate::analyse::{class_of, WorkloadAnalysis};
 use crate::fit::growth::GrowthClass;
-use crate::present::units::{bytes, time_ns};
+use crate::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, Measured};
 use crate::spec::model::ColumnKind;
 use serde::{Deserialize, Serialize};
 
+pub mod analysed;
 pub mod payback;
 pub mod verdict;
+pub use analysed::{Analysed, AnalysedWorkload};
 pub use verdict::{verdict, VerdictKind};
 
 /// One statement about a design (or the workload), backed by numbers.

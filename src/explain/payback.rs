@@ -7,7 +7,7 @@
 //! (`PointRecord::setup_ns`); runs made before it was recorded simply have no finding.
 
 use super::Finding;
-use crate::present::units::time_ns;
+use crate::units::time_ns;
 use crate::results::reader::WorkloadResults;
 
 /// One finding per design with a timed set-up, against the fastest design without one.

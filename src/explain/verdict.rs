@@ -23,7 +23,7 @@
 
 use super::Verdict;
 use crate::analyse::{CrossoverOut, DesignAnalysis, WorkloadAnalysis};
-use crate::present::units::{ratio, time_ns};
+use crate::units::{ratio, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{ComparisonRecord, EquivalenceStatus};
 use serde::{Deserialize, Serialize};
@@ -317,8 +317,8 @@ fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, tied: &[&str], rows: u64
             by_bytes.to_string(),
             format!(
                 "`{by_bytes}` is suggested because it allocates less ({} vs {} for `{other}` at {})",
-                crate::present::units::bytes(bytes(by_bytes) as f64),
-                crate::present::units::bytes(bytes(other) as f64),
+                crate::units::bytes(bytes(by_bytes) as f64),
+                crate::units::bytes(bytes(other) as f64),
                 w.header.axis().point(rows)
             ),
         );

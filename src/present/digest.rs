@@ -9,10 +9,11 @@
 
 use crate::analyse::{DesignAnalysis, PredictionOut, WorkloadAnalysis};
 use crate::explain::{Explanation, Finding, VerdictKind};
-use crate::present::units::time_ns;
+use crate::fit::growth::GrowthClass;
+use crate::units::time_ns;
 use crate::results::reader::WorkloadResults;
 use crate::results::{ComparisonRecord, EquivalenceStatus, SkipReason};
-use crate::spec::units::rows_label;
+use crate::units::rows_label;
 
 /// The decision of one workload, in words.
 #[derive(Debug, Clone)]
@@ -141,13 +142,13 @@ pub fn same_bytes_everywhere(w: &WorkloadResults, design: &str) -> bool {
 /// they are the same at every size, "slope s" from the exponent alone, or "not counted".
 /// With it, whether an expected class is met (None: cannot be judged).
 pub fn bytes_growth(w: &WorkloadResults, da: &DesignAnalysis, expect: Option<&str>) -> (String, Option<bool>) {
-    let want = expect.and_then(crate::analyse::class_of);
+    let want = expect.and_then(GrowthClass::from_label);
     if !counts_allocations(w, &da.design) {
         return ("not counted".into(), None);
     }
     match (&da.bytes, da.bytes_exponent) {
         (Some(b), _) => (b.label(), want.map(|c| b.admits(c))),
-        _ if same_bytes_everywhere(w, &da.design) => ("constant".into(), want.map(|c| c == crate::fit::growth::GrowthClass::Constant)),
+        _ if same_bytes_everywhere(w, &da.design) => ("constant".into(), want.map(|c| c == GrowthClass::Constant)),
         (None, Some(e)) => (format!("slope {e:.2}"), None),
         (None, None) => ("—".into(), None),
     }

@@ -6,12 +6,12 @@
 //! The pages themselves are laid out in `page.rs` (decision first, an overview across
 //! workloads, a design × size grid, one picture open and the rest folded); this file draws
 //! the pictures, writes the files and holds the CSV. Writing twice from the same results
-//! gives the same files.
+//! gives the same files. The analysis and explanations come made ([`Analysed`]): nothing
+//! here fits or judges.
 
-use crate::analyse::{analyse, AnalyseOptions};
-use crate::explain::{explain, Explanation};
+use crate::explain::Analysed;
 use crate::present::page::{self, Part};
-use crate::present::units::{bytes, time_ns};
+use crate::units::{bytes, time_ns};
 use crate::results::reader::RunResults;
 use std::path::{Path, PathBuf};
 
@@ -48,16 +48,15 @@ fn machine_lines(r: &RunResults) -> Vec<(String, String)> {
     ]
 }
 
-/// Draw and write everything for a run into `dir`.
-pub fn write(dir: &Path, r: &RunResults, opts: &AnalyseOptions) -> Result<Written, String> {
+/// Draw and write everything for an analysed run into `dir`.
+pub fn write(dir: &Path, an: &Analysed) -> Result<Written, String> {
+    let r = an.results;
     // The tables for notebooks first: they need no drawing, so a picture that fails cannot cost them.
     let exports = crate::results::export::write(dir, r)?;
-    let analysis = analyse(r, opts);
-    let explanations: Vec<Explanation> = r.workloads.iter().zip(&analysis.workloads).map(|(w, a)| explain(w, a)).collect();
     let pic_dir = dir.join("pictures");
     let mut parts = Vec::new();
     let mut pictures = Vec::new();
-    for ((w, a), e) in r.workloads.iter().zip(&analysis.workloads).zip(&explanations) {
+    for crate::explain::AnalysedWorkload { w, a, e } in an.workloads() {
         let drawn = crate::present::plot::draw_all(&pic_dir, w, a)?;
         for (_, p) in &drawn {
             pictures.push(p.clone());

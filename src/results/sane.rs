@@ -4,7 +4,7 @@
 //! 1e308 ns, a sample of 1e-300 ns, zero rows) would send fits and pictures into absurd
 //! ranges (a log axis of 600 decades), so such a record is treated as a damaged line.
 //! Names are printed to terminals and written into reports: control characters in them are
-//! replaced by visible escapes ([`crate::present::units::escaped`]).
+//! replaced by visible escapes ([`crate::units::escaped`]).
 
 use super::*;
 
@@ -61,8 +61,8 @@ fn measured_ok(m: &Measured) -> bool {
 }
 
 fn clean(s: &mut String) {
-    if s.chars().any(crate::present::units::unprintable) {
-        *s = crate::present::units::escaped(s).into_owned();
+    if s.chars().any(crate::units::unprintable) {
+        *s = crate::units::escaped(s).into_owned();
     }
 }
 

@@ -246,7 +246,7 @@ impl AxisPlan {
     /// The value alone: `10k`, `12.5%`, `0.75`.
     pub fn value_label(&self, x: f64) -> String {
         match self.set {
-            AxisSet::Distinct | AxisSet::Columns => crate::present::units::rows_label_f(x),
+            AxisSet::Distinct | AxisSet::Columns => crate::units::rows_label_f(x),
             AxisSet::Nulls => format!("{}%", trim_number(self.value(x) * 100.0)),
             AxisSet::Skew => trim_number(self.value(x)),
         }
@@ -292,28 +292,28 @@ impl Axis<'_> {
     /// A point as prose: `4k rows`, `100 groups`, `null share 10%`.
     pub fn point(&self, x: u64) -> String {
         match self.0 {
-            None => format!("{} rows", crate::spec::units::rows_label(x)),
-            Some(a) if a.set.scale() == 1 => format!("{} {}", crate::spec::units::rows_label(x), a.name),
+            None => format!("{} rows", crate::units::rows_label(x)),
+            Some(a) if a.set.scale() == 1 => format!("{} {}", crate::units::rows_label(x), a.name),
             Some(a) => a.point(x as f64),
         }
     }
     pub fn point_f(&self, x: f64) -> String {
         match self.0 {
-            None => format!("{} rows", crate::present::units::rows_label_f(x)),
+            None => format!("{} rows", crate::units::rows_label_f(x)),
             Some(a) => a.point(x),
         }
     }
     /// The value alone (a table heading or a picture's tick): `4k`, `10%`.
     pub fn value(&self, x: u64) -> String {
         match self.0 {
-            None => crate::spec::units::rows_label(x),
-            Some(a) if a.set.scale() == 1 => crate::spec::units::rows_label(x),
+            None => crate::units::rows_label(x),
+            Some(a) if a.set.scale() == 1 => crate::units::rows_label(x),
             Some(a) => a.value_label(x as f64),
         }
     }
     pub fn value_f(&self, x: f64) -> String {
         match self.0 {
-            None => crate::present::units::rows_label_f(x),
+            None => crate::units::rows_label_f(x),
             Some(a) => a.value_label(x),
         }
     }

@@ -64,8 +64,8 @@ pub fn read_sample(path: &Path, opts: &ReadOptions, available: u64) -> Result<Da
         return Err(format!(
             "{}: reading it would need about {} of memory; {} available (use --max-rows to read part of it)",
             path.display(),
-            crate::present::units::bytes(need),
-            crate::present::units::bytes(available as f64)
+            crate::units::bytes(need),
+            crate::units::bytes(available as f64)
         ));
     }
     let file = File::open(path).map_err(|e| format!("{}: cannot open: {e}", path.display()))?;

@@ -96,7 +96,7 @@ pub struct TableDoc<'a> {
 fn sizes(rows: usize) -> String {
     let mut v: Vec<u64> = [rows / 4, rows / 2, rows, rows * 2, rows * 4].iter().map(|&r| r.max(1) as u64).collect();
     v.dedup();
-    v.iter().map(|&n| crate::spec::units::rows_label(n)).collect::<Vec<_>>().join(", ")
+    v.iter().map(|&n| crate::units::rows_label(n)).collect::<Vec<_>>().join(", ")
 }
 
 /// The whole workload skeleton for one table.

@@ -31,11 +31,11 @@ pub const MAX_WARMUP: u64 = 1000;
 /// Why a design, column or workload name cannot be printed or used as it is: control
 /// characters (a newline or terminal escape codes), or too long. None when it is fine.
 pub fn name_problem(name: &str) -> Option<String> {
-    if let Some(ch) = name.chars().find(|&c| crate::present::units::unprintable(c)) {
+    if let Some(ch) = name.chars().find(|&c| crate::units::unprintable(c)) {
         return Some(format!(
             "names may not hold control characters or invisible marks, found {} in {}",
             ch.escape_unicode(),
-            crate::present::units::escaped(name)
+            crate::units::escaped(name)
         ));
     }
     if name.chars().count() > MAX_NAME {
@@ -116,7 +116,7 @@ pub fn plan_param_problems(plan: &Plan) -> Vec<String> {
             for pd in s.def.params {
                 if let Some(ParamValue::Count(x)) = s.params.0.get(pd.name) {
                     if let Some(m) = count_problem(&pd.kind, *x, largest) {
-                        out.push(format!("design `{}`, step `{}`, `{}`: {m}", crate::present::units::escaped(&d.name), s.def.name, pd.name));
+                        out.push(format!("design `{}`, step `{}`, `{}`: {m}", crate::units::escaped(&d.name), s.def.name, pd.name));
                     }
                 }
             }

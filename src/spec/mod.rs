@@ -36,7 +36,7 @@ pub struct SpecIssue {
 impl fmt::Display for SpecIssue {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         // Messages quote what the file says: control characters in it are shown escaped.
-        let esc = crate::present::units::escaped;
+        let esc = crate::units::escaped;
         write!(f, "{}:{}:{}: {}", self.file, self.line, self.column, esc(&self.message))?;
         if let Some(h) = &self.hint {
             write!(f, " ({})", esc(h))?;
@@ -65,7 +65,7 @@ impl std::error::Error for SpecErrors {}
 
 /// Read, check and resolve one workload file.
 pub fn load(path: &Path) -> Result<Plan, SpecErrors> {
-    let file = crate::present::units::escaped(&path.display().to_string()).into_owned();
+    let file = crate::units::escaped(&path.display().to_string()).into_owned();
     let text = guard::read_spec(path)
         .map_err(|message| SpecErrors(vec![SpecIssue { file: file.clone(), line: 1, column: 1, message, hint: None }]))?;
     load_str(&file, &text)

@@ -8,7 +8,7 @@
 
 use super::look::*;
 use super::{ensure_font, key, log_axis, ticks, write_png, write_svg};
-use crate::present::units::{escaped, size_label, time_ns};
+use crate::units::{escaped, size_label, time_ns};
 use crate::results::reader::WorkloadResults;
 use plotters::prelude::*;
 use std::path::{Path, PathBuf};
@@ -143,7 +143,7 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
                 let k = v.round();
                 if (v - k).abs() < 1e-6 && k >= 0.0 { labels.get(k as usize).cloned().unwrap_or_default() } else { String::new() }
             })
-            .y_label_formatter(&|v| format!("×{}", crate::present::units::short(*v)))
+            .y_label_formatter(&|v| format!("×{}", crate::units::short(*v)))
             .draw()
             .map_err(err)?;
         let (xr, yr) = chart.plotting_area().get_pixel_range();

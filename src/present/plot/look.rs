@@ -392,7 +392,7 @@ pub fn xml_escape(s: &str) -> String {
             '<' => "&lt;".into(),
             '>' => "&gt;".into(),
             '"' => "&quot;".into(),
-            c if crate::present::units::unprintable(c) => c.escape_default().to_string(),
+            c if crate::units::unprintable(c) => c.escape_default().to_string(),
             c => c.to_string(),
         })
         .collect()

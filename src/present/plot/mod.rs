@@ -23,7 +23,7 @@ pub use history::{draw_history, history, short_run_id, spec_changes, RunMark};
 pub use look::INKS;
 
 use crate::analyse::WorkloadAnalysis;
-use crate::present::units::{bytes_tick, escaped, size_label, time_tick};
+use crate::units::{bytes_tick, escaped, size_label, time_tick};
 use crate::results::reader::WorkloadResults;
 use look::*;
 use plotters::coord::combinators::BindKeyPoints;
@@ -432,7 +432,7 @@ pub fn ratios<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     let rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     let f = frame(&root, &title, &rows, 0)?;
     let chart_area = sub(&root, f.chart);
-    let chart = log_chart(&chart_area, (x0, x1), (0.8, y1.max(2.0)), "× the cheapest", false, &|v: &f64| format!("×{}", crate::present::units::short(*v)), w.header.axis())?;
+    let chart = log_chart(&chart_area, (x0, x1), (0.8, y1.max(2.0)), "× the cheapest", false, &|v: &f64| format!("×{}", crate::units::short(*v)), w.header.axis())?;
     for (i, d) in designs.iter().enumerate() {
         let pts: Vec<(i32, i32)> = w
             .comparisons
@@ -481,7 +481,7 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
     let all = w.header.designs.len();
     let count = |n: u64| w.header.designs.iter().filter(|d| w.point(&d.name, n).is_some_and(|p| p.measured.is_some())).count();
     let dist_rows = w.header.sizes.iter().rev().copied().find(|&n| count(n) == all).or_else(|| w.header.sizes.iter().rev().copied().find(|&n| count(n) >= 2));
-    let workload = crate::present::units::escaped(&w.header.workload).into_owned();
+    let workload = crate::units::escaped(&w.header.workload).into_owned();
     let mut out = Vec::new();
     let mut one = |kind: &str, title: String, svg: &dyn Fn(Area<SVGBackend<'_>>) -> Res<String>, png: &dyn Fn(Area<BitMapBackend<'_>>) -> Res<String>| -> Res<()> {
         let p = both(dir, &format!("{name}-{kind}"), SIZE, &format!("{workload}: {title}"), svg, png)?;
