@@ -70,8 +70,8 @@ fn rank(c: GrowthClass) -> usize {
 
 /// Growth of time, and the teaching expectations (time and bytes).
 fn growth(d: &Design, findings: &mut Vec<Finding>) {
-    let Design { w, dh, da, ax, .. } = *d;
-    let (name, axis) = (&dh.name, ax.name());
+    let Design { dh, da, ax, .. } = *d;
+    let axis = ax.name();
     let f = |kind: &str, measured: String, implies: String, action: String| d.finding(kind, measured, implies, action);
     if let Some(t) = &da.time {
         let exp = da
@@ -137,7 +137,7 @@ fn growth(d: &Design, findings: &mut Vec<Finding>) {
 
 /// Repeated copying (bytes per unit that grow with the unit) and peak memory against the table.
 fn memory(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), findings: &mut Vec<Finding>) {
-    let Design { w, dh, da, ax, .. } = *d;
+    let Design { da, ax, .. } = *d;
     let at = |x: u64| ax.point(x);
     let f = |kind: &str, measured: String, implies: String, action: String| d.finding(kind, measured, implies, action);
     let per0 = m0.alloc.bytes as f64 / n0 as f64;
@@ -186,7 +186,7 @@ fn memory(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), fi
 
 /// Fragmented output, parallelism, unstable samples and stalls at the largest size.
 fn runs(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), findings: &mut Vec<Finding>) {
-    let Design { w, dh, da, ax, .. } = *d;
+    let Design { dh, ax, .. } = *d;
     let at = |x: u64| ax.point(x);
     let f = |kind: &str, measured: String, implies: String, action: String| d.finding(kind, measured, implies, action);
     // Fragmented output.
@@ -253,7 +253,7 @@ fn runs(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), find
 /// end with, else against the table's declared column kinds.
 /// (Not for a program: the file format it writes decides its dtypes.)
 fn dtypes(d: &Design, m1: &Measured, findings: &mut Vec<Finding>) {
-    let Design { w, dh, da, ax, .. } = *d;
+    let Design { w, dh, .. } = *d;
     let f = |kind: &str, measured: String, implies: String, action: String| d.finding(kind, measured, implies, action);
     if let Some(o) = m1.output.as_ref().filter(|_| dh.program.is_none()) {
         let drift: Vec<String> = o

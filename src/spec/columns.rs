@@ -4,6 +4,7 @@
 
 use super::locate::YamlPath;
 use super::model::*;
+use super::limits::{MAX_COLUMNS, MAX_SKEWED_DISTINCT};
 use super::validate::Checker;
 use crate::plan::{ColumnPlan, RangePlan};
 use std::collections::HashSet;
@@ -33,13 +34,7 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
     let mut out = Vec::new();
     for (i, col) in table.columns.iter().enumerate() {
         let p = path.index(i);
-        if col.name.trim().is_empty() {
-            c.at(&p.key("name"), "expected a column name, found an empty one", None);
-        } else if let Some(m) = name_problem(&col.name) {
-            c.at(&p.key("name"), m, None);
-        } else if !seen.insert(col.name.clone()) {
-            c.at(&p.key("name"), format!("column `{}` is defined twice", col.name), None);
-        }
+        c.name(&p.key("name"), &col.name, "column", &mut seen);
         let kind = col.kind;
         let applies = |c: &mut Checker, present: bool, key: &str, ok: &[ColumnKind]| {
             if present && !ok.contains(&kind) {

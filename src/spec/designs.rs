@@ -20,13 +20,7 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
     let mut out = Vec::new();
     for (i, d) in designs.iter().enumerate() {
         let p = path.index(i);
-        if d.name.trim().is_empty() {
-            c.at(&p.key("name"), "expected a design name, found an empty one", None);
-        } else if let Some(m) = name_problem(&d.name) {
-            c.at(&p.key("name"), m, None);
-        } else if !seen.insert(d.name.clone()) {
-            c.at(&p.key("name"), format!("design `{}` is defined twice", d.name), None);
-        }
+        c.name(&p.key("name"), &d.name, "design", &mut seen);
         if d.steps.is_empty() && d.program.is_none() {
             c.at(&p.key("steps"), "expected at least one step (or a `program:`)", None);
         }

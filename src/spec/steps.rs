@@ -3,7 +3,7 @@
 //! bounds, numbers and shares, choices, flags, text — and the step built from them.
 
 use super::locate::YamlPath;
-use super::model::*;
+use super::limits::count_problem;
 use super::suggest::closest;
 use super::validate::Checker;
 use crate::patterns::{self, ParamKind, ParamValue, Params};

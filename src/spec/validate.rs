@@ -46,6 +46,17 @@ impl Checker<'_> {
         let p = at.unwrap_or(super::locate::Pos { line: 1, column: 1 });
         self.issues.push(SpecIssue { file: self.file.to_string(), line: p.line, column: p.column, message: format!("{path}: {message}"), hint });
     }
+    /// A column's or design's name (`what`): not empty, well formed ([`name_problem`]),
+    /// not already in `seen`.
+    pub(super) fn name(&mut self, path: &YamlPath, name: &str, what: &str, seen: &mut HashSet<String>) {
+        if name.trim().is_empty() {
+            self.at(path, format!("expected a {what} name, found an empty one"), None);
+        } else if let Some(m) = name_problem(name) {
+            self.at(path, m, None);
+        } else if !seen.insert(name.to_string()) {
+            self.at(path, format!("{what} `{name}` is defined twice"), None);
+        }
+    }
     pub(super) fn share(&mut self, path: &YamlPath, v: f64, what: &str) -> f64 {
         if !(0.0..=1.0).contains(&v) || !v.is_finite() {
             self.at(path, format!("expected {what} between 0 and 1 (or 0% to 100%), found {v}"), None);

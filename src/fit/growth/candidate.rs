@@ -88,7 +88,7 @@ fn model_top_slope(terms: &[(Term, f64)], sizes: &[f64]) -> Option<f64> {
 /// Fit one class with every subset of its lower-order terms (leading term
 /// kept), keep the subsets whose coefficients are all ≥ 0, and return the one
 /// with the lowest AICc (module doc).
-fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weights: &[f64], top_slope: f64) -> Candidate {
+pub(super) fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weights: &[f64], top_slope: f64) -> Candidate {
     let all = class.terms();
     let lower = all.len() - 1;
     let mut best: Option<(Vec<Term>, LsqFit, f64)> = None;

@@ -353,6 +353,7 @@ fn alternative_to(best: GrowthClass, ranked: &[&Candidate], min_aicc: f64) -> Op
 mod tests {
     use super::*;
 
+    #[test]
     fn negative_slope_is_rejected_and_constant_wins() {
         // A cost that shrinks with n: every growing class is either rejected
         // (its leading coefficient would be negative, or its class disagrees

@@ -206,6 +206,7 @@ pub fn exponent_with_ci(
 mod tests {
     use super::*;
 
+    #[test]
     fn bootstrap_is_deterministic_and_brackets_the_slope() {
         let mut rng = SplitMix64::new(3);
         let points: Vec<(f64, Vec<f64>)> = [1e3, 1e4, 1e5, 1e6]
