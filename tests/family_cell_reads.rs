@@ -8,10 +8,9 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::{AllocStats, Window};
-use framecost::measure::runner::run_design;
-use framecost::patterns::Value;
-use framecost::plan::Plan;
+mod common;
+
+use common::{run, Seen};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -42,21 +41,6 @@ designs:
   - {name: no-column, steps: [{read_cells: {column: 9, reads: 10}}]}
 "#;
 
-fn run(plan: &Plan, name: &str, table: &DataFrame) -> Result<(AllocStats, DataFrame), String> {
-    let d = plan.designs.iter().find(|d| d.name == name).expect("design");
-    let mut v = Value::Frame(table.clone());
-    for s in &d.setup {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
-    }
-    let w = Window::open();
-    let out = run_design(d, v);
-    let alloc = w.close();
-    match out? {
-        Value::Frame(df) => Ok((alloc, df)),
-        _ => Err(format!("{name} does not give a table")),
-    }
-}
-
 fn cells(df: &DataFrame) -> (i64, f64) {
     let read = df.column("cells_read").expect("cells_read").i64().expect("i64").get(0).expect("value");
     let sum = df.column("sum").expect("sum").f64().expect("f64").get(0).expect("value");
@@ -72,17 +56,17 @@ fn table_api_reads_cost_more_than_typed_reads() {
 
     // Same cells, same sum, whichever way they were read (and however the column is stored).
     let four = ["cell-4k", "row-4k", "typed-4k", "slice-4k", "chunked-slice-4k", "chunked-typed-4k", "copy-4k", "prebuilt-4k"];
-    let results: Vec<(AllocStats, DataFrame)> = four.iter().map(|d| get(d)).collect();
-    let (read, sum) = cells(&results[0].1);
-    for (name, (_, df)) in four.iter().zip(&results) {
+    let results: Vec<Seen> = four.iter().map(|d| get(d)).collect();
+    let (read, sum) = cells(&results[0].df);
+    for (name, Seen { df, .. }) in four.iter().zip(&results) {
         assert_eq!(df.height(), 1, "{name} gives one row");
         assert_eq!(cells(df), (read, sum), "{name} reads the same cells");
     }
     // 1% of kilograms are null and skipped: most reads find a value, not all.
     assert!(read > 3800 && read < 4000, "cells read {read}");
-    assert_eq!(cells(&get("cell-1k").1), cells(&get("slice-1k").1));
+    assert_eq!(cells(&get("cell-1k").df), cells(&get("slice-1k").df));
 
-    let a = |name: &str| get(name).0;
+    let a = |name: &str| get(name).alloc;
     let (row1, row4) = (a("row-1k"), a("row-4k"));
     let (slice1, slice4) = (a("slice-1k"), a("slice-4k"));
     let (typed1, typed4) = (a("typed-1k"), a("typed-4k"));

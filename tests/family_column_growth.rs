@@ -7,10 +7,9 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::{AllocStats, Window};
-use framecost::measure::runner::run_design;
-use framecost::patterns::{OutputFacts, Value};
-use framecost::plan::Plan;
+mod common;
+
+use common::{run, Seen};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -35,26 +34,6 @@ designs:
   - {name: f32-none, steps: [{grow_columns: {source: 1, columns: 8, reads: none, dtype: f32}}]}
 "#;
 
-struct Seen {
-    alloc: AllocStats,
-    facts: OutputFacts,
-    df: DataFrame,
-}
-
-fn run(plan: &Plan, name: &str, table: &DataFrame) -> Seen {
-    let d = plan.designs.iter().find(|d| d.name == name).expect("design");
-    let mut v = Value::Frame(table.clone());
-    for s in &d.setup {
-        v = s.runner.run(v).expect("setup");
-    }
-    let w = Window::open();
-    let out = run_design(d, v).expect("runs");
-    let alloc = w.close();
-    let facts = OutputFacts::of(&out);
-    let Value::Frame(df) = out else { panic!("{name} gives a table") };
-    Seen { alloc, facts, df }
-}
-
 fn chunks_of(s: &Seen, col: &str) -> usize {
     s.df.column(col).expect("column").n_chunks()
 }
@@ -65,7 +44,7 @@ fn column_growth_fragments_and_consolidation_costs() {
     let n = 20_000u64;
     let table = framecost::table::generate(&plan.columns, plan.seed, n).expect("table");
     let names = ["between", "between-16", "kept", "first", "after", "after-16", "at-once", "f64-none", "f32-none"];
-    let seen: Vec<Seen> = names.iter().map(|d| run(&plan, d, &table)).collect();
+    let seen: Vec<Seen> = names.iter().map(|d| run(&plan, d, &table).unwrap_or_else(|e| panic!("{d}: {e}"))).collect();
     let by = |name: &str| &seen[names.iter().position(|n| *n == name).expect("known design")];
 
     for (name, s) in names.iter().zip(&seen) {

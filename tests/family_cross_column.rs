@@ -6,7 +6,8 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::Window;
+mod common;
+
 use framecost::measure::runner::run_design;
 use framecost::patterns::{OutputFacts, Value};
 use polars::prelude::*;
@@ -39,7 +40,7 @@ fn transposing_mixed_columns_goes_through_text_and_costs_far_more() {
     let plan = framecost::spec::load_str("cross.yaml", SPEC).expect("spec");
     let n = 3000u64;
     let df = framecost::table::generate(&plan.columns, plan.seed, n).expect("table");
-    let d = |name: &str| plan.designs.iter().find(|d| d.name == name).expect("design");
+    let d = |name: &str| common::design(&plan, name);
     let frame = |v: Value| match v {
         Value::Frame(f) => f,
         _ => panic!("a table"),
@@ -58,10 +59,9 @@ fn transposing_mixed_columns_goes_through_text_and_costs_far_more() {
     let mut bytes = Vec::new();
     let mut facts = Vec::new();
     for name in names {
-        let input = Value::Frame(df.clone());
-        let w = Window::open();
-        let out = run_design(d(name), input).expect("sums");
-        bytes.push(w.close().bytes);
+        let (alloc, out) = common::counted(d(name), Value::Frame(df.clone()));
+        let out = out.expect("sums");
+        bytes.push(alloc.bytes);
         facts.push(OutputFacts::of(&out));
         if name == "arithmetic" {
             let t = frame(out);

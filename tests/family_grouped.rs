@@ -8,10 +8,9 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::{AllocStats, Window};
-use framecost::measure::runner::run_design;
-use framecost::patterns::{OutputFacts, Value};
-use framecost::plan::Plan;
+mod common;
+
+use common::{run, Seen};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -33,29 +32,6 @@ designs:
   - {name: shares-parts, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_shares: {by: 0, value: 1, method: partitions}}]}
   - {name: text-value, steps: [{group_totals: {by: 0, value: 2}}]}
 "#;
-
-struct Seen {
-    alloc: AllocStats,
-    facts: OutputFacts,
-    df: DataFrame,
-}
-
-fn run(plan: &Plan, name: &str, table: &DataFrame) -> Result<Seen, String> {
-    let d = plan.designs.iter().find(|d| d.name == name).expect("design");
-    let mut v = Value::Frame(table.clone());
-    for s in &d.setup {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
-    }
-    let w = Window::open();
-    let out = run_design(d, v);
-    let alloc = w.close();
-    let out = out?;
-    let facts = OutputFacts::of(&out);
-    match out {
-        Value::Frame(df) => Ok(Seen { alloc, facts, df }),
-        _ => Err(format!("{name} does not give a table")),
-    }
-}
 
 #[test]
 fn per_group_functions_allocate_per_group_and_agree_with_native() {

@@ -10,9 +10,11 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::Window;
+mod common;
+
 use framecost::measure::runner::run_design;
 use framecost::patterns::{OutputFacts, Value};
+use common::design;
 use std::collections::HashMap;
 
 const SPEC: &str = r#"
@@ -34,10 +36,6 @@ designs:
   - {name: flag-only, steps: [{flag_sorted: {column: 0}}]}
   - {name: flag-unsorted, steps: [{flag_sorted: {column: 1}}]}
 "#;
-
-fn design<'a>(plan: &'a framecost::plan::Plan, name: &str) -> &'a framecost::plan::DesignPlan {
-    plan.designs.iter().find(|d| d.name == name).expect("design")
-}
 
 #[test]
 fn duplicate_keys_multiply_rows_and_the_sorted_flag_makes_sorting_free() {
@@ -76,14 +74,10 @@ fn duplicate_keys_multiply_rows_and_the_sorted_flag_makes_sorting_free() {
         _ => panic!("a table"),
     };
     let sort = design(&plan, "sort");
-    let input = Value::Frame(df.clone());
-    let w = Window::open();
-    let plain = run_design(sort, input).expect("sorts");
-    let unflagged_bytes = w.close().bytes;
-    let input = Value::Frame(flagged.clone());
-    let w = Window::open();
-    let quick = run_design(sort, input).expect("sorts");
-    let flagged_bytes = w.close().bytes;
+    let (alloc, plain) = common::counted(sort, Value::Frame(df.clone()));
+    let (plain, unflagged_bytes) = (plain.expect("sorts"), alloc.bytes);
+    let (alloc, quick) = common::counted(sort, Value::Frame(flagged.clone()));
+    let (quick, flagged_bytes) = (quick.expect("sorts"), alloc.bytes);
     assert_eq!(OutputFacts::of(&plain).fingerprint, OutputFacts::of(&quick).fingerprint, "same order either way");
     assert_eq!(OutputFacts::of(&plain).fingerprint, framecost::table::fingerprint(&df), "the rows were in order already");
     eprintln!("sort of {n} sorted rows: unflagged {unflagged_bytes} bytes, flagged {flagged_bytes} bytes");
@@ -92,13 +86,9 @@ fn duplicate_keys_multiply_rows_and_the_sorted_flag_makes_sorting_free() {
 
     // The merge join's own bytes are below the hash join's (no hash table).
     let measure = |name: &str| {
-        let d = design(&plan, name);
-        let input = Value::Frame(flagged.clone());
-        let w = Window::open();
-        let out = run_design(d, input).expect("joins");
-        let b = w.close().bytes;
-        drop(out);
-        b
+        let (alloc, out) = common::counted(design(&plan, name), Value::Frame(flagged.clone()));
+        drop(out.expect("joins"));
+        alloc.bytes
     };
     let hash_bytes = measure("hash");
     let merge_bytes = measure("merge");

@@ -8,10 +8,9 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::{AllocStats, Window};
-use framecost::measure::runner::run_design;
-use framecost::patterns::{OutputFacts, Value};
-use framecost::plan::Plan;
+mod common;
+
+use common::{run, Seen};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -40,29 +39,6 @@ designs:
   - {name: pairs-prefix, setup: [{build_pair_index: {first: 3, second: 4, level: prefix}}], steps: [{probe_pair_index: {probes: 300}}]}
   - {name: float-key, steps: [{lookup_scan: {key: 1, value: 0, probes: 10}}]}
 "#;
-
-struct Seen {
-    alloc: AllocStats,
-    facts: OutputFacts,
-    df: DataFrame,
-}
-
-fn run(plan: &Plan, name: &str, table: &DataFrame) -> Result<Seen, String> {
-    let d = plan.designs.iter().find(|d| d.name == name).expect("design");
-    let mut v = Value::Frame(table.clone());
-    for s in &d.setup {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
-    }
-    let w = Window::open();
-    let out = run_design(d, v);
-    let alloc = w.close();
-    let out = out?;
-    let facts = OutputFacts::of(&out);
-    match out {
-        Value::Frame(df) => Ok(Seen { alloc, facts, df }),
-        _ => Err(format!("{name} does not give a table")),
-    }
-}
 
 fn probes_of(df: &DataFrame) -> Vec<i64> {
     df.column("probe").expect("probe").i64().expect("i64").into_no_null_iter().collect()

@@ -7,10 +7,9 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::{AllocStats, Window};
-use framecost::measure::runner::run_design;
-use framecost::patterns::{OutputFacts, Value};
-use framecost::plan::Plan;
+mod common;
+
+use common::{run, Seen};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -34,36 +33,23 @@ designs:
   - {name: wrong-flag, steps: [{payout_per_row: {a: 1, b: 2, flag: 1}}]}
 "#;
 
-fn run(plan: &Plan, name: &str, table: &DataFrame) -> Result<(AllocStats, OutputFacts, DataFrame), String> {
-    let d = plan.designs.iter().find(|d| d.name == name).expect("design");
-    let w = Window::open();
-    let out = run_design(d, Value::Frame(table.clone()));
-    let alloc = w.close();
-    let out = out?;
-    let facts = OutputFacts::of(&out);
-    match out {
-        Value::Frame(df) => Ok((alloc, facts, df)),
-        _ => Err(format!("{name} does not give a table")),
-    }
-}
-
 #[test]
 fn per_row_functions_agree_with_expressions_and_allocate_per_row() {
     let plan = framecost::spec::load_str("evidence.yaml", SPEC).expect("spec");
     let n = 20_000u64;
     let table = framecost::table::generate(&plan.columns, plan.seed, n).expect("table");
     let names = ["row", "reused", "typed", "expression"];
-    let seen: Vec<(AllocStats, OutputFacts, DataFrame)> =
+    let seen: Vec<Seen> =
         names.iter().map(|d| run(&plan, d, &table).unwrap_or_else(|e| panic!("{d}: {e}"))).collect();
-    for (name, (_, facts, df)) in names.iter().zip(&seen) {
+    for (name, Seen { facts, df, .. }) in names.iter().zip(&seen) {
         assert_eq!(facts.rows, n, "{name} keeps every row");
-        assert_eq!(facts.fingerprint, seen[3].1.fingerprint, "{name} computes what the expression computes");
+        assert_eq!(facts.fingerprint, seen[3].facts.fingerprint, "{name} computes what the expression computes");
         assert_eq!(df.column("payout").expect("payout").dtype(), &DataType::Int64);
     }
 
     // Nulls fall the same way: a payout is null exactly where gross or tare is null; a null
     // organic flag counts as not organic.
-    let df = &seen[3].2;
+    let df = &seen[3].df;
     let g = table.column("gross").expect("gross").i64().expect("i64").clone();
     let t = table.column("tare").expect("tare").i64().expect("i64").clone();
     let o = table.column("organic").expect("organic").bool().expect("bool").clone();
@@ -82,8 +68,8 @@ fn per_row_functions_agree_with_expressions_and_allocate_per_row() {
 
     // Allocations: a fresh row per call allocates at least once per row; the others
     // allocate a fixed amount (plan and buffers), far fewer than one per row.
-    let count = |i: usize| seen[i].0.count;
-    let bytes = |i: usize| seen[i].0.bytes;
+    let count = |i: usize| seen[i].alloc.count;
+    let bytes = |i: usize| seen[i].alloc.bytes;
     eprintln!("allocations: row {} reused {} typed {} expression {}", count(0), count(1), count(2), count(3));
     eprintln!("bytes: row {} reused {} typed {} expression {}", bytes(0), bytes(1), bytes(2), bytes(3));
     assert!(count(0) >= n, "a row per call: {} allocations for {n} rows", count(0));

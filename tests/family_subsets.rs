@@ -7,8 +7,8 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::Window;
-use framecost::measure::runner::run_design;
+mod common;
+
 use framecost::patterns::{OutputFacts, Value};
 
 const SPEC: &str = r#"
@@ -41,11 +41,8 @@ fn a_slice_allocates_nothing_per_row_and_a_gather_or_copy_allocates_per_row() {
         let df = framecost::table::generate(&plan.columns, plan.seed, n).expect("table");
         let mut facts = Vec::new();
         for (i, name) in names.iter().enumerate() {
-            let d = plan.designs.iter().find(|d| d.name == *name).expect("design");
-            let input = Value::Frame(df.clone());
-            let w = Window::open();
-            let out = run_design(d, input).expect("runs");
-            let a = w.close();
+            let (a, out) = common::counted(common::design(&plan, name), Value::Frame(df.clone()));
+            let out = out.expect("runs");
             facts.push(OutputFacts::of(&out));
             drop(out);
             bytes[i][si] = a.bytes as f64;

@@ -5,8 +5,8 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::Window;
-use framecost::measure::runner::run_design;
+mod common;
+
 use framecost::patterns::{OutputFacts, Value};
 
 const SPEC: &str = r#"
@@ -32,13 +32,9 @@ fn tiny_containers_allocate_per_row_and_the_native_split_does_not() {
     let df = framecost::table::generate(&plan.columns, plan.seed, n).expect("table");
     let mut seen = Vec::new();
     for d in &plan.designs {
-        let mut v = Value::Frame(df.clone());
-        for s in &d.setup {
-            v = s.runner.run(v).expect("setup");
-        }
-        let w = Window::open();
-        let out = run_design(d, v).expect("splits");
-        let a = w.close();
+        let v = common::set_up(d, Value::Frame(df.clone())).expect("setup");
+        let (a, out) = common::counted(d, v);
+        let out = out.expect("splits");
         let f = OutputFacts::of(&out);
         if d.name == "native" {
             // Four parts per label, nulls where a part was null (concat_str gives null).

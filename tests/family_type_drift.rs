@@ -4,6 +4,8 @@
 //! writing a value of another type into a typed column casts the whole column. Strict
 //! stacking of tables whose dtypes differ fails; relaxed stacking casts to a supertype.
 
+mod common;
+
 use framecost::measure::runner::run_design;
 use framecost::patterns::{OutputFacts, Value};
 use polars::prelude::*;
@@ -41,12 +43,8 @@ designs:
 "#;
 
 fn run(plan: &framecost::plan::Plan, name: &str, df: &DataFrame) -> Result<DataFrame, String> {
-    let d = plan.designs.iter().find(|d| d.name == name).expect("design");
-    let mut v = Value::Frame(df.clone());
-    for s in &d.setup {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
-    }
-    match run_design(d, v)? {
+    let d = common::design(plan, name);
+    match run_design(d, common::set_up(d, Value::Frame(df.clone()))?)? {
         Value::Frame(f) => Ok(f),
         _ => Err("not a table".into()),
     }

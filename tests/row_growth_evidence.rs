@@ -7,8 +7,8 @@
 //!
 //! One test in its own binary: the allocation counter is process-wide.
 
-use framecost::measure::alloc::Window;
-use framecost::measure::runner::run_design;
+mod common;
+
 use framecost::measure::stats::loglog_slope;
 use framecost::patterns::{Records, Value};
 use std::sync::Arc;
@@ -42,10 +42,8 @@ struct Seen {
 }
 
 fn measure(plan: &framecost::plan::Plan, design: &str, recs: &Arc<Records>) -> Seen {
-    let d = plan.designs.iter().find(|d| d.name == design).expect("design");
-    let w = Window::open();
-    let out = run_design(d, Value::Records(recs.clone())).expect("runs");
-    let a = w.close();
+    let (a, out) = common::counted(common::design(plan, design), Value::Records(recs.clone()));
+    let out = out.expect("runs");
     let facts = framecost::patterns::OutputFacts::of(&out);
     Seen { bytes: a.bytes as f64, chunks: facts.chunks, rows: facts.rows, fingerprint: facts.fingerprint }
 }

@@ -6,20 +6,23 @@
 //! only said when allocated bytes per row themselves grow with the rows; "stalls" only when
 //! the tail is measured over enough samples. Each design's step cost-model notes (written
 //! beside the steps' code) are attached so the reader sees the mechanism the trade knows.
+//!
+//! The findings about each design are in `design.rs`, the verdict in `verdict.rs`, set-up
+//! pay-back in `payback.rs`; this file gathers them with the workload's own findings (a
+//! busy machine, outputs that differ) and the steps' cost-model notes, and renders them.
 
-use crate::analyse::{class_of, WorkloadAnalysis};
-use crate::fit::growth::GrowthClass;
-use crate::units::{bytes, time_ns};
+use crate::analyse::WorkloadAnalysis;
 use crate::results::reader::WorkloadResults;
 use crate::results::{EquivalenceStatus, Measured};
-use crate::spec::model::ColumnKind;
 use serde::{Deserialize, Serialize};
 
 pub mod analysed;
+mod design;
 pub mod payback;
 pub mod verdict;
 pub use analysed::{Analysed, AnalysedWorkload};
 pub use verdict::{verdict, VerdictKind};
+
 
 /// One statement about a design (or the workload), backed by numbers.
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -60,263 +63,24 @@ pub struct Explanation {
     pub step_notes: Vec<(String, String)>,
 }
 
-fn last_measured<'a>(w: &'a WorkloadResults, design: &str) -> Option<(u64, &'a Measured)> {
-    w.design_points(design).into_iter().rev().find_map(|p| p.measured.as_ref().map(|m| (p.rows, m)))
-}
-
-fn first_measured<'a>(w: &'a WorkloadResults, design: &str) -> Option<(u64, &'a Measured)> {
-    w.design_points(design).into_iter().find_map(|p| p.measured.as_ref().map(|m| (p.rows, m)))
-}
-
-fn rank(c: GrowthClass) -> usize {
-    GrowthClass::ALL.iter().position(|x| *x == c).unwrap_or(0)
-}
-
 /// Explain one workload from its results and analysis.
 pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
-    let mut findings = Vec::new();
     let verdict = verdict(w, a);
-    let better = verdict.design.clone();
-    let table_bytes = |rows: u64| w.tables.iter().find(|t| t.rows == rows).map(|t| t.table_bytes_estimate);
-    // What was swept: rows, or another axis ("groups", "columns") with the rows fixed.
-    let ax = w.header.axis();
-    let (axis, at) = (ax.name(), |x: u64| ax.point(x));
-
-    for (dh, da) in w.header.designs.iter().zip(&a.designs) {
-        let name = &dh.name;
-        let f = |kind: &str, measured: String, implies: String, action: String| Finding {
-            design: Some(name.clone()),
-            kind: kind.into(),
-            measured,
-            implies,
-            action,
-        };
-        let switch = |why: &str| match &better {
-            Some(b) if b != name => format!("use `{b}` instead ({why})"),
-            _ => String::new(),
-        };
-
-        // Growth of time, and the teaching expectation.
-        if let Some(t) = &da.time {
-            let exp = da
-                .time_exponent
-                .as_ref()
-                .map(|e| format!(", log-log slope {:.2} [{:.2}–{:.2}] over the top {} sizes", e.slope, e.low, e.high, e.sizes_used))
-                .unwrap_or_default();
-            let runner = t
-                .runner_up
-                .as_ref()
-                .map(|r| format!("; runner-up {r}, ΔAICc {:.1}", t.delta_aicc))
-                .unwrap_or_default();
-            findings.push(f(
-                "growth",
-                format!("time grows as {} over {} sizes{runner}{exp}", t.label(), t.sizes),
-                match class_of(&t.class) {
-                    Some(GrowthClass::Quadratic) => format!("once the n² term dominates, doubling the {axis} multiplies the time by about 4: fine on a sample, hours on the full data"),
-                    Some(GrowthClass::Cubic) => format!("once the n³ term dominates, doubling the {axis} multiplies the time by about 8"),
-                    Some(GrowthClass::Linear) | Some(GrowthClass::Linearithmic) => if ax.is_rows() { "the cost scales with the data (roughly proportional)".into() } else { format!("the cost scales with the {axis} (roughly proportional)") },
-                    Some(GrowthClass::Constant) | Some(GrowthClass::Log) => format!("the cost barely depends on the number of {axis}"),
-                    None => "no growth class agrees with the measured slope: measure more sizes, or larger ones, before predicting".into(),
-                },
-                String::new(),
-            ));
-            if let Some(e) = &dh.expect_time {
-                let (want, got) = (class_of(e), class_of(&t.class));
-                // A pair ("n or n log n") meets an expectation of either class.
-                let ok = want.is_some_and(|c| t.admits(c));
-                // Neighbours that a few decades of sizes cannot separate well: n and n log n,
-                // constant and log n (a rise of a few percent per decade).
-                let near = matches!(
-                    (want, got),
-                    (Some(GrowthClass::Linear), Some(GrowthClass::Linearithmic))
-                        | (Some(GrowthClass::Linearithmic), Some(GrowthClass::Linear))
-                        | (Some(GrowthClass::Constant), Some(GrowthClass::Log))
-                        | (Some(GrowthClass::Log), Some(GrowthClass::Constant))
-                );
-                findings.push(f(
-                    "expectation",
-                    format!("the workload expects time to grow as {e}; measured {}", t.label()),
-                    if ok {
-                        "the measurement confirms the rule".into()
-                    } else if near {
-                        "close to the rule: over a few decades these neighbouring classes differ by a slowly growing factor, so costs that creep up with size (data outgrowing the caches) tip the choice".into()
-                    } else {
-                        "the measurement does not match the expectation".into()
-                    },
-                    if ok || near { String::new() } else { "fixed costs can hide growth at small sizes: extend the sizes if the decision depends on it".into() },
-                ));
-            }
-        }
-        if let (Some(e), Some(b)) = (&dh.expect_bytes, &da.bytes) {
-            let want = class_of(e);
-            let ok = want.is_some_and(|c| b.admits(c));
-            findings.push(f(
-                "expectation",
-                format!("the workload expects allocated bytes to grow as {e}; measured {}", b.label()),
-                if ok { "the measurement confirms the rule".into() } else { "the measurement does not match the expectation".into() },
-                String::new(),
-            ));
-        }
-
-        // Repeated copying: bytes per row that grow with the rows.
-        if let (Some((n0, m0)), Some((n1, m1))) = (first_measured(w, name), last_measured(w, name)) {
-            let per0 = m0.alloc.bytes as f64 / n0 as f64;
-            let per1 = m1.alloc.bytes as f64 / n1 as f64;
-            let superlinear = da.bytes.as_ref().and_then(|b| class_of(&b.class)).map(|c| rank(c) >= rank(GrowthClass::Quadratic));
-            let slope = da.bytes_exponent.unwrap_or(1.0);
-            // A program has no allocation counts: no copying is claimed from zeros.
-            // Per unit of the axis: only for counts (rows, groups, columns), not for shares.
-            let unit = ax.unit();
-            if let Some(u) = unit.filter(|_| m1.alloc_counted && n1 >= 4 * n0 && per1 > 2.0 * per0 && (superlinear == Some(true) || (superlinear.is_none() && slope >= 1.5))) {
-                let tb = table_bytes(n1).map(|t| format!(", {:.0}× the table's own {}", m1.alloc.bytes as f64 / t.max(1.0), bytes(t))).unwrap_or_default();
-                findings.push(f(
-                    "copying",
-                    format!(
-                        "allocates {} per run at {}: {} per {u}, up from {} per {u} at {}{tb}; bytes grow as {}",
-                        bytes(m1.alloc.bytes as f64),
-                        at(n1),
-                        bytes(per1),
-                        bytes(per0),
-                        at(n0),
-                        da.bytes.as_ref().map(|b| b.class.clone()).unwrap_or_else(|| format!("n^{slope:.2}"))
-                    ),
-                    format!("each new {u} costs more than the one before: the data built so far is copied again and again (repeated copying of the growing table)"),
-                    switch("it copies each value a bounded number of times"),
-                ));
-            }
-            // Peak live memory against the table.
-            // A whole process's peak includes its own start-up (an interpreter, a library),
-            // which is not the design holding tables: no multiple of the table is claimed.
-            let whole_process = m1.program.is_some_and(|p| p.resident_before_bytes.is_none());
-            if let Some(t) = table_bytes(n1).filter(|_| !whole_process) {
-                let peak = m1.peak_bytes() as f64;
-                let copies = peak / t.max(1.0);
-                // For a program: what its runs added to its resident size, as its process showed it.
-                let what = if m1.alloc_counted { "peak live memory" } else { "peak resident memory added by the runs" };
-                if copies >= 2.0 {
-                    findings.push(f(
-                        "peak",
-                        format!("{what} {} at {}, {:.1}× the table's size ({})", bytes(peak), at(n1), copies, bytes(t)),
-                        format!("at its peak the design holds the equivalent of about {:.0} tables: memory, not time, may be the limit on the full data", copies.floor()),
-                        String::new(),
-                    ));
-                }
-            }
-            // Fragmented output.
-            let c0 = m0.output.as_ref().map(|o| o.chunks).unwrap_or(1);
-            let c1 = m1.output.as_ref().map(|o| o.chunks).unwrap_or(1);
-            if c1 > 1 && c1 > c0 {
-                findings.push(f(
-                    "chunks",
-                    format!("leaves its output in {c1} chunks at {} ({c0} at {})", at(n1), at(n0)),
-                    "storage is fragmented in proportion to the work done; every later operation that needs contiguous storage pays to consolidate it".into(),
-                    "consolidate once at the end (or build once) instead of leaving the chunks".into(),
-                ));
-            }
-            // Parallelism and stalls at the largest size.
-            if m1.median_ns > 1e5 {
-                let par = m1.cpu_ns / m1.median_ns;
-                if par >= 1.4 {
-                    findings.push(f(
-                        "parallel",
-                        format!("{} is {par:.1}× wall time at {}", if dh.program.is_some() { "the program's CPU time" } else { "CPU time" }, at(n1)),
-                        "the work ran on several cores; on a busier or smaller machine it will be slower".into(),
-                        String::new(),
-                    ));
-                } else if par <= 0.5 && !m1.is_contaminated() {
-                    findings.push(f(
-                        "parallel",
-                        format!("CPU time is only {par:.2}× wall time at {}", at(n1)),
-                        "the design spends time waiting (I/O or the system), not computing".into(),
-                        String::new(),
-                    ));
-                }
-            }
-            if m1.bimodal {
-                let mut v = m1.samples_ns.clone();
-                v.sort_by(f64::total_cmp);
-                findings.push(f(
-                    "unstable",
-                    format!(
-                        "its samples at {} fall into two clusters (fastest {}, median {}, slowest {})",
-                        at(n1),
-                        time_ns(v[0]),
-                        time_ns(m1.median_ns),
-                        time_ns(v[v.len() - 1])
-                    ),
-                    if m1.is_contaminated() {
-                        "the machine was busy while it was measured: the slow cluster may be other work taking the cores".into()
-                    } else {
-                        "the design switches between a fast and a slow regime (a lazily built structure, a thread pool waking, memory being returned to the system); the median hides it".into()
-                    },
-                    "compare the fastest samples too, and measure again before acting on a small difference".into(),
-                ));
-            }
-            if m1.samples_ns.len() >= 20 && m1.p50_ns > 0.0 && m1.p99_ns / m1.p50_ns >= 2.0 {
-                findings.push(f(
-                    "tail",
-                    format!("p99 is {:.1}× the median at {} ({} vs {})", m1.p99_ns / m1.p50_ns, at(n1), time_ns(m1.p99_ns), time_ns(m1.p50_ns)),
-                    "some runs stall (allocation, page faults or another process); the median is the fairer comparison".into(),
-                    String::new(),
-                ));
-            }
-            // Dtype drift: the output against the dtypes the design declares it is meant to
-            // end with, else against the table's declared column kinds.
-            // (Not for a program: the file format it writes decides its dtypes.)
-            if let Some(o) = m1.output.as_ref().filter(|_| dh.program.is_none()) {
-                let drift: Vec<String> = o
-                    .dtypes
-                    .iter()
-                    .filter_map(|(col, dt)| {
-                        if let Some((_, want)) = dh.expect_dtypes.iter().find(|(c, _)| c == col) {
-                            return (dt != want).then(|| format!("{col}: meant to be {want}, ends {dt}"));
-                        }
-                        let declared = w.header.columns.iter().find(|c| &c.name == col)?;
-                        let want = declared.kind.dtype_label();
-                        // Records hold categorical values as text: not a drift of the design.
-                        let by_records = declared.kind == ColumnKind::Category && dt == "str" && dh.feed == "records";
-                        (dt != want && !by_records).then(|| format!("{col}: declared {want}, ends {dt}"))
-                    })
-                    .collect();
-                if !drift.is_empty() {
-                    findings.push(f(
-                        "dtype",
-                        format!("output dtypes differ from what was intended: {}", drift.join(", ")),
-                        "values were cast on the way: wider types cost memory and speed, text loses meaning".into(),
-                        "create the column typed from the start, or cast explicitly where intended (and say so in `expect: {dtypes: …}`)".into(),
-                    ));
-                }
-            }
-        }
-
-        // Skipped points.
-        let skipped: Vec<_> = w.design_points(name).into_iter().filter(|p| p.skipped.is_some()).collect();
-        if let Some(first) = skipped.first() {
-            let sk = first.skipped.as_ref().expect("filtered");
-            let pred = sk.predicted_ns.map(|p| format!("; one run was predicted at {}", time_ns(p))).unwrap_or_default();
-            findings.push(f(
-                "skipped",
-                format!("not measured at {} of {} sizes, from {}: {}{pred}", skipped.len(), w.header.sizes.len(), at(first.rows), sk.reason.label()),
-                if ax.is_rows() { "its cost outgrew the budget before the data did".into() } else { format!("its cost outgrew the budget before the {axis} did") },
-                String::new(),
-            ));
-        }
-        if let Some(p) = &da.prediction {
-            if p.far {
-                findings.push(f(
-                    "extrapolation",
-                    format!("the prediction at {} is {:.1} decades past the largest measured size", at(p.rows), p.extrapolation_decades),
-                    "a class fitted on small sizes can change at large ones: read it as an order of magnitude".into(),
-                    "measure a size closer to the target if the decision depends on it".into(),
-                ));
-            }
-        }
-    }
-
+    let better = verdict.design.as_deref();
+    let mut findings: Vec<Finding> =
+        w.header.designs.iter().zip(&a.designs).flat_map(|(dh, da)| design::findings(w, dh, da, better)).collect();
     findings.extend(payback::findings(w));
     if let Some(m) = machine_finding(w) {
         findings.push(m);
     }
+    findings.extend(mismatch_findings(w));
+    let step_notes = step_notes(w);
+    Explanation { workload: w.header.workload.clone(), verdict, findings, step_notes }
+}
+
+/// One workload-level finding per size where the designs' outputs differ.
+fn mismatch_findings(w: &WorkloadResults) -> Vec<Finding> {
+    let mut findings = Vec::new();
     for c in &w.comparisons {
         if c.equivalence.status == EquivalenceStatus::Mismatch {
             findings.push(Finding {
@@ -328,7 +92,11 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             });
         }
     }
+    findings
+}
 
+/// The cost-model notes of the steps the designs use, each step once.
+fn step_notes(w: &WorkloadResults) -> Vec<(String, String)> {
     let mut step_notes: Vec<(String, String)> = Vec::new();
     for d in &w.header.designs {
         for s in &d.steps {
@@ -340,7 +108,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
             }
         }
     }
-    Explanation { workload: w.header.workload.clone(), verdict, findings, step_notes }
+    step_notes
 }
 
 /// A workload-level finding when points were measured on a busy machine: the machine is

@@ -25,7 +25,7 @@ use super::Verdict;
 use crate::analyse::{CrossoverOut, DesignAnalysis, WorkloadAnalysis};
 use crate::units::{ratio, time_ns};
 use crate::results::reader::WorkloadResults;
-use crate::results::{ComparisonRecord, EquivalenceStatus};
+use crate::results::{Axis, ComparisonRecord, EquivalenceStatus, Ratio};
 use serde::{Deserialize, Serialize};
 
 /// A runner-up within this ratio of the fastest design is a tie.
@@ -146,14 +146,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         ));
     }
     if w.header.designs.len() == 1 {
-        let name = &w.header.designs[0].name;
-        let growth = design(a, name).and_then(|d| d.time.as_ref()).map(|t| t.label()).unwrap_or_else(|| "not fitted yet".into());
-        return Verdict {
-            kind: VerdictKind::Winner,
-            design: Some(name.clone()),
-            text: format!("one design, tracked on its own: `{name}`'s time grows as {growth}{}", at_target(a, name)),
-            decided_at: None,
-        };
+        return single(a, &w.header.designs[0].name);
     }
     let (all, cmps) = usable(w);
     let total = all.len();
@@ -191,18 +184,51 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
             decided_at: Some(last.rows),
         };
     }
-    // A loser predicted to overtake the winner before the target, with the measured trend.
+    if let Some(v) = overtaken(w, a, &cmps, &ranked, last.rows, &busy_note) {
+        return v;
+    }
+    let (below, unsupported) = crossing_notes(a, &cmps, &best, ax);
+    Verdict {
+        kind: VerdictKind::Winner,
+        design: Some(best.clone()),
+        text: format!(
+            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{}{below}{unsupported}{busy_note}",
+            ratio(runner.ratio),
+            runner.design,
+            at_target(a, &best)
+        ),
+        decided_at: Some(last.rows),
+    }
+}
+
+/// The verdict of a workload with one design: tracked on its own growth.
+fn single(a: &WorkloadAnalysis, name: &str) -> Verdict {
+    let growth = design(a, name).and_then(|d| d.time.as_ref()).map(|t| t.label()).unwrap_or_else(|| "not fitted yet".into());
+    Verdict {
+        kind: VerdictKind::Winner,
+        design: Some(name.to_string()),
+        text: format!("one design, tracked on its own: `{name}`'s time grows as {growth}{}", at_target(a, name)),
+        decided_at: None,
+    }
+}
+
+/// A loser predicted to overtake the winner (`ranked[0]`) before the target, with the
+/// measured trend: its ratio shrank at each of the last sizes and its cost rose less.
+fn overtaken(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecord], ranked: &[Ratio], largest: u64, busy_note: &str) -> Option<Verdict> {
+    let ax = w.header.axis();
+    let best = &ranked[0].design;
+    let at = ax.point(largest);
     for r in ranked.iter().skip(1) {
-        let Some(trend) = shrinking_ratio(&cmps, &best, &r.design) else { continue };
-        let Some(c) = predicted_overtake(a, &best, &r.design, last.rows) else { continue };
+        let Some(trend) = shrinking_ratio(cmps, best, &r.design) else { continue };
+        let Some(c) = predicted_overtake(a, best, &r.design, largest) else { continue };
         // A shrinking ratio alone also fits a design with a larger fixed cost and the same
         // cost per row, which approaches the winner but never passes it: the loser's cost
         // must also have risen clearly less than the winner's over the last step.
-        if !rises_less(w, &cmps, &best, &r.design) {
+        if !rises_less(w, cmps, best, &r.design) {
             continue;
         }
         let steps: Vec<String> = trend.iter().map(|x| ratio(*x)).collect();
-        return Verdict {
+        return Some(Verdict {
             kind: VerdictKind::Crossover,
             design: Some(r.design.clone()),
             text: format!(
@@ -216,11 +242,16 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
                 r.design,
                 at_target(a, &r.design)
             ),
-            decided_at: Some(last.rows),
-        };
+            decided_at: Some(largest),
+        });
     }
-    // Measured winner; mention a crossover inside the measured range, and a fitted crossing
-    // the measured trend does not support.
+    None
+}
+
+/// For a measured winner: a crossover inside the measured range ("below about 8k `x` is
+/// cheaper"), and a fitted crossing before the target that the measured trend does not
+/// support.
+fn crossing_notes(a: &WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str, ax: Axis) -> (String, String) {
     let below = a
         .crossovers
         .iter()
@@ -230,7 +261,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         .filter(|c| {
             cmps.iter().any(|m| {
                 let r = |d: &str| m.ratios.iter().find(|x| x.design == d).map(|x| x.ratio);
-                (m.rows as f64) < c.rows && matches!((r(&c.faster_below), r(&best)), (Some(lo), Some(hi)) if lo < hi)
+                (m.rows as f64) < c.rows && matches!((r(&c.faster_below), r(best)), (Some(lo), Some(hi)) if lo < hi)
             })
         })
         .max_by(|x, y| x.rows.total_cmp(&y.rows))
@@ -248,17 +279,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
             )
         })
         .unwrap_or_default();
-    Verdict {
-        kind: VerdictKind::Winner,
-        design: Some(best.clone()),
-        text: format!(
-            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{}{below}{unsupported}{busy_note}",
-            ratio(runner.ratio),
-            runner.design,
-            at_target(a, &best)
-        ),
-        decided_at: Some(last.rows),
-    }
+    (below, unsupported)
 }
 
 /// Margin a design must have at the two largest sizes for a verdict from points measured on

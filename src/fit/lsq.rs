@@ -18,6 +18,7 @@
 //! definition for a model that contains a constant column; when `y` has no
 //! spread at all it is 1 for an exact fit and 0 otherwise.
 
+use super::qr::qr_solve;
 use super::FitError;
 
 /// The result of a least-squares fit.
@@ -70,23 +71,6 @@ impl LsqFit {
     }
 }
 
-/// Euclidean norm with scaling, so that values near 1e200 do not overflow.
-fn norm2<'a>(values: impl Iterator<Item = &'a f64> + Clone) -> f64 {
-    let scale = values.clone().fold(0.0_f64, |m, v| m.max(v.abs()));
-    if scale == 0.0 || !scale.is_finite() {
-        return scale;
-    }
-    let sum: f64 = values.map(|v| (v / scale) * (v / scale)).sum();
-    scale * sum.sqrt()
-}
-
-/// Apply the Householder reflection `I − 2vvᵀ/(vᵀv)` to `col` in place.
-fn reflect(v: &[f64], vtv: f64, col: &mut [f64]) {
-    let dot: f64 = v.iter().zip(col.iter()).map(|(a, b)| a * b).sum();
-    let f = 2.0 * dot / vtv;
-    col.iter_mut().zip(v).for_each(|(c, vi)| *c -= f * vi);
-}
-
 /// Sum with Neumaier's compensation (keeps means exact to ~1 ulp).
 fn compensated_sum(values: impl Iterator<Item = f64>) -> f64 {
     let (mut sum, mut comp) = (0.0_f64, 0.0_f64);
@@ -113,6 +97,35 @@ fn compensated_sum(values: impl Iterator<Item = f64>) -> f64 {
 /// the intercept (e.g. years near 1950), and `y` is centred too; the
 /// coefficients and covariance are transformed back exactly afterwards.
 pub fn solve(x_rows: &[Vec<f64>], y: &[f64], weights: Option<&[f64]>) -> Result<LsqFit, FitError> {
+    let p = checked_design(x_rows, y, weights)?;
+    let m = y.len();
+    let w: Vec<f64> = weights.map_or_else(|| vec![1.0; m], <[f64]>::to_vec);
+    let c = centre(x_rows, &w)?;
+
+    // y is centred too (same reason); its mean goes back into the intercept.
+    let ybar = compensated_sum((0..m).map(|i| w[i] * y[i])) / c.sum_w;
+    let y_shift = if c.constant_col.is_some() { ybar } else { 0.0 };
+    let yc: Vec<f64> = y.iter().map(|v| v - y_shift).collect();
+    let (mut coef_c, cov_c) = qr_solve(&c.cols, &yc, &w)?;
+
+    // Residuals from the centred problem and the coefficients returned.
+    let rss = compensated_sum((0..m).map(|i| {
+        let fitted: f64 = (0..p).map(|j| c.cols[j][i] * coef_c[j]).sum();
+        let res = yc[i] - fitted;
+        w[i] * res * res
+    }));
+    let sst = compensated_sum((0..m).map(|i| w[i] * (y[i] - ybar) * (y[i] - ybar)));
+    if let Some(k) = c.constant_col {
+        coef_c[k] += y_shift / x_rows[0][k];
+    }
+    let (coef, cov_unscaled) = uncentre(&c, x_rows, &coef_c, &cov_c);
+    summarise(coef, cov_unscaled, rss, sst, m)
+}
+
+/// The design's shape and values: `y` non-empty, one row per value, every row as long as
+/// the first and finite, weights (if any) one per value and positive, and more values
+/// than columns. Returns the number of columns.
+fn checked_design(x_rows: &[Vec<f64>], y: &[f64], weights: Option<&[f64]>) -> Result<usize, FitError> {
     let m = y.len();
     if m == 0 {
         return Err(FitError::Empty);
@@ -163,9 +176,24 @@ pub fn solve(x_rows: &[Vec<f64>], y: &[f64], weights: Option<&[f64]>) -> Result<
             needed: p + 1,
         });
     }
-    let w: Vec<f64> = weights.map_or_else(|| vec![1.0; m], <[f64]>::to_vec);
+    Ok(p)
+}
 
-    // Centre on weighted means when there is a constant column.
+/// The design in columns, centred on the weighted means when one column is constant.
+struct Centred {
+    /// The constant column, if any (it is not centred).
+    constant_col: Option<usize>,
+    /// Each column's weighted mean (0 for the constant column, or when there is none).
+    means: Vec<f64>,
+    /// The centred columns.
+    cols: Vec<Vec<f64>>,
+    /// Σ wᵢ.
+    sum_w: f64,
+}
+
+/// Centre on weighted means when there is a constant column.
+fn centre(x_rows: &[Vec<f64>], w: &[f64]) -> Result<Centred, FitError> {
+    let (m, p) = (x_rows.len(), x_rows[0].len());
     let constant_col = (0..p).find(|&j| {
         let v = x_rows[0][j];
         v != 0.0 && x_rows.iter().all(|r| r[j] == v)
@@ -185,34 +213,21 @@ pub fn solve(x_rows: &[Vec<f64>], y: &[f64], weights: Option<&[f64]>) -> Result<
             detail: "centring the design overflowed".to_string(),
         });
     }
+    Ok(Centred { constant_col, means, cols, sum_w })
+}
 
-    // y is centred too (same reason); its mean goes back into the intercept.
-    let ybar = compensated_sum((0..m).map(|i| w[i] * y[i])) / sum_w;
-    let y_shift = if constant_col.is_some() { ybar } else { 0.0 };
-    let yc: Vec<f64> = y.iter().map(|v| v - y_shift).collect();
-    let (mut coef_c, cov_c) = qr_solve(&cols, &yc, &w)?;
-
-    // Residuals from the centred problem and the coefficients returned.
-    let rss = compensated_sum((0..m).map(|i| {
-        let fitted: f64 = (0..p).map(|j| cols[j][i] * coef_c[j]).sum();
-        let res = yc[i] - fitted;
-        w[i] * res * res
-    }));
-    let sst = compensated_sum((0..m).map(|i| w[i] * (y[i] - ybar) * (y[i] - ybar)));
-    if let Some(c) = constant_col {
-        coef_c[c] += y_shift / x_rows[0][c];
-    }
-
-    // Undo the centring: with the constant column c holding v,
-    // β_c = β'_c − Σ_{j≠c} β'_j x̄_j / v, i.e. β = T β', cov = T cov' Tᵀ.
+/// Undo the centring: with the constant column c holding v,
+/// β_c = β'_c − Σ_{j≠c} β'_j x̄_j / v, i.e. β = T β', cov = T cov' Tᵀ.
+fn uncentre(c: &Centred, x_rows: &[Vec<f64>], coef_c: &[f64], cov_c: &[Vec<f64>]) -> (Vec<f64>, Vec<Vec<f64>>) {
+    let p = coef_c.len();
     let mut t = vec![vec![0.0; p]; p];
     for (j, row) in t.iter_mut().enumerate() {
         row[j] = 1.0;
     }
-    if let Some(c) = constant_col {
-        let v = x_rows[0][c];
-        for j in (0..p).filter(|&j| j != c) {
-            t[c][j] = -means[j] / v;
+    if let Some(k) = c.constant_col {
+        let v = x_rows[0][k];
+        for j in (0..p).filter(|&j| j != k) {
+            t[k][j] = -c.means[j] / v;
         }
     }
     let coef: Vec<f64> = (0..p)
@@ -232,7 +247,13 @@ pub fn solve(x_rows: &[Vec<f64>], y: &[f64], weights: Option<&[f64]>) -> Result<
                 .collect()
         })
         .collect();
+    (coef, cov_unscaled)
+}
 
+/// The fit's error estimates (residual SD, R², standard errors), refused when anything
+/// overflowed.
+fn summarise(coef: Vec<f64>, cov_unscaled: Vec<Vec<f64>>, rss: f64, sst: f64, m: usize) -> Result<LsqFit, FitError> {
+    let p = coef.len();
     let dof = m - p;
     let residual_sd = (rss / dof as f64).sqrt();
     let r_squared = if sst > 0.0 {
@@ -265,116 +286,6 @@ pub fn solve(x_rows: &[Vec<f64>], y: &[f64], weights: Option<&[f64]>) -> Result<
         rss,
         n: m,
     })
-}
-
-/// Householder QR least squares on a column-major design `cols` (m × p,
-/// m > p), weights `w`. Returns the coefficients and `(XᵀWX)⁻¹`.
-// Triangular solves and products read best with explicit indices.
-#[allow(clippy::needless_range_loop)]
-fn qr_solve(
-    cols: &[Vec<f64>],
-    y: &[f64],
-    w: &[f64],
-) -> Result<(Vec<f64>, Vec<Vec<f64>>), FitError> {
-    let p = cols.len();
-    let m = y.len();
-    let sqrt_w: Vec<f64> = w.iter().map(|v| v.sqrt()).collect();
-
-    // √W·X, each column scaled to unit length (scale kept for undoing).
-    let mut a: Vec<Vec<f64>> = cols
-        .iter()
-        .map(|c| c.iter().zip(&sqrt_w).map(|(x, s)| x * s).collect())
-        .collect();
-    let mut scale = vec![0.0; p];
-    for (j, col) in a.iter_mut().enumerate() {
-        let s = norm2(col.iter());
-        if s == 0.0 {
-            return Err(FitError::RankDeficient { column: j });
-        }
-        if !s.is_finite() {
-            return Err(FitError::Numerical {
-                detail: format!("column {j} overflows"),
-            });
-        }
-        col.iter_mut().for_each(|v| *v /= s);
-        scale[j] = s;
-    }
-    let mut b: Vec<f64> = (0..m).map(|i| sqrt_w[i] * y[i]).collect();
-
-    // Householder QR, applying each reflection to the remaining columns and
-    // to b. After step k, a[k][k] holds R_kk and a[j][k] (j > k) holds R_kj.
-    // With unit columns, |R_kk| is the sine of the angle between column k and
-    // the span of the earlier ones: below `tol` the design is singular.
-    let tol = 10.0 * m.max(p) as f64 * f64::EPSILON;
-    let mut reflectors: Vec<(Vec<f64>, f64)> = Vec::with_capacity(p);
-    for k in 0..p {
-        let norm = norm2(a[k][k..].iter());
-        if norm <= tol {
-            return Err(FitError::RankDeficient { column: k });
-        }
-        let alpha = if a[k][k] > 0.0 { -norm } else { norm };
-        let mut v: Vec<f64> = a[k][k..].to_vec();
-        v[0] -= alpha;
-        // vtv > 0 because |v[0]| = |x0 − alpha| ≥ norm > 0.
-        let vtv: f64 = v.iter().map(|x| x * x).sum();
-        for col in a.iter_mut().skip(k + 1) {
-            reflect(&v, vtv, &mut col[k..]);
-        }
-        reflect(&v, vtv, &mut b[k..]);
-        a[k][k] = alpha;
-        a[k][k + 1..].iter_mut().for_each(|x| *x = 0.0);
-        reflectors.push((v, vtv));
-    }
-    let r = |i: usize, j: usize| a[j][i]; // R_ij, upper triangular (i ≤ j)
-    let back_substitute = |rhs: &[f64]| -> Vec<f64> {
-        let mut z = vec![0.0; p];
-        for i in (0..p).rev() {
-            let mut s = rhs[i];
-            for j in i + 1..p {
-                s -= r(i, j) * z[j];
-            }
-            z[i] = s / r(i, i);
-        }
-        z
-    };
-
-    // Solve R z = (Qᵀb)[..p] for the scaled coefficients z = scale·β, then
-    // one step of iterative refinement: the residual is projected again and
-    // the correction added (recovers digits lost to rounding).
-    let mut z = back_substitute(&b);
-    let mut resid: Vec<f64> = (0..m)
-        .map(|i| {
-            let fitted: f64 = (0..p).map(|j| cols[j][i] / scale[j] * z[j]).sum();
-            sqrt_w[i] * (y[i] - fitted)
-        })
-        .collect();
-    for (k, (v, vtv)) in reflectors.iter().enumerate() {
-        reflect(v, *vtv, &mut resid[k..]);
-    }
-    let dz = back_substitute(&resid);
-    z.iter_mut().zip(&dz).for_each(|(zi, d)| *zi += d);
-    let coef: Vec<f64> = z.iter().zip(&scale).map(|(zi, si)| zi / si).collect();
-
-    // R⁻¹ (upper triangular), then (XᵀWX)⁻¹ = D⁻¹ R⁻¹ R⁻ᵀ D⁻¹, D = diag(scale).
-    let mut rinv = vec![vec![0.0; p]; p];
-    for j in 0..p {
-        rinv[j][j] = 1.0 / r(j, j);
-        for i in (0..j).rev() {
-            let mut s = 0.0;
-            for k in i + 1..=j {
-                s += r(i, k) * rinv[k][j];
-            }
-            rinv[i][j] = -s / r(i, i);
-        }
-    }
-    let mut cov = vec![vec![0.0; p]; p];
-    for i in 0..p {
-        for j in 0..p {
-            let s: f64 = (i.max(j)..p).map(|k| rinv[i][k] * rinv[j][k]).sum();
-            cov[i][j] = s / (scale[i] * scale[j]);
-        }
-    }
-    Ok((coef, cov))
 }
 
 #[cfg(test)]

@@ -7,9 +7,14 @@
 //!   test noise are reproducible bit for bit;
 //! - [`sample`]: median and the type-7 sample quantile;
 //! - [`dist`]: Student-t distribution (CDF and quantile) for intervals;
-//! - [`lsq`]: weighted linear least squares by Householder QR;
-//! - [`growth`]: fit each growth class with its lower-order terms (non-negative
-//!   coefficients) and pick one by AICc, checked against the log-log slope; log-log slopes, doubling ratios and bootstrap exponents;
+//! - `qr`: the Householder QR core of least squares (private);
+//! - [`lsq`]: weighted linear least squares: input checks, centring, the fit's
+//!   error estimates;
+//! - [`growth`]: growth classes, in its own folder: the vocabulary of terms and
+//!   classes (`classes.rs`), the slopes the data show — log-log slopes, doubling
+//!   ratios, bootstrap exponents (`slopes.rs`), one class fitted with its
+//!   lower-order terms, non-negative coefficients (`candidate.rs`), and the choice
+//!   among classes by AICc, checked against the log-log slope (`mod.rs`);
 //! - [`predict`](mod@predict): cost at an unmeasured size with a prediction interval, and
 //!   the size where two designs cross.
 //!
@@ -25,6 +30,7 @@ pub mod dist;
 pub mod growth;
 pub mod lsq;
 pub mod predict;
+mod qr;
 pub mod rng;
 pub mod sample;
 

@@ -140,6 +140,35 @@ pub fn crossover(
     hi_n: f64,
     search_max_n: f64,
 ) -> Result<Option<Crossover>, FitError> {
+    check_range(lo_n, hi_n, search_max_n)?;
+    let g = |n: f64| -> Option<f64> {
+        let (ca, cb) = (a.cost_at(n), b.cost_at(n));
+        (ca > 0.0 && cb > 0.0 && ca.is_finite() && cb.is_finite()).then(|| ca.ln() - cb.ln())
+    };
+    let (u_lo, u_hi) = (lo_n.ln(), search_max_n.ln());
+    let decades = (search_max_n / lo_n).log10();
+    let steps = ((decades * GRID_PER_DECADE as f64).ceil() as usize).max(1);
+    let grid: Vec<f64> = (0..=steps)
+        .map(|i| (u_lo + (u_hi - u_lo) * i as f64 / steps as f64).exp())
+        .collect();
+    let Some((j, i, g_low)) = bracket(&grid, &g) else {
+        return Ok(None);
+    };
+    let n_cross = bisect(&g, grid[j], grid[i], g_low);
+    // g < 0 below the crossing means A's cost is lower there.
+    let faster_below = if g_low < 0.0 { Which::A } else { Which::B };
+    let (n_lo, n_hi) = band_overlap(a, b, &grid, n_cross, lo_n, search_max_n)?;
+    Ok(Some(Crossover {
+        n: n_cross,
+        n_lo: n_lo.min(n_cross),
+        n_hi: n_hi.max(n_cross),
+        inside_measured: (lo_n..=hi_n).contains(&n_cross),
+        faster_below,
+    }))
+}
+
+/// The search range: finite, positive, `lo_n ≤ hi_n ≤ search_max_n`.
+fn check_range(lo_n: f64, hi_n: f64, search_max_n: f64) -> Result<(), FitError> {
     for (i, v) in [lo_n, hi_n, search_max_n].iter().enumerate() {
         if !v.is_finite() {
             return Err(FitError::NonFinite {
@@ -161,21 +190,13 @@ pub fn crossover(
             detail: format!("need lo_n ≤ hi_n ≤ search_max_n, got {lo_n}, {hi_n}, {search_max_n}"),
         });
     }
-    let g = |n: f64| -> Option<f64> {
-        let (ca, cb) = (a.cost_at(n), b.cost_at(n));
-        (ca > 0.0 && cb > 0.0 && ca.is_finite() && cb.is_finite()).then(|| ca.ln() - cb.ln())
-    };
-    let (u_lo, u_hi) = (lo_n.ln(), search_max_n.ln());
-    let decades = (search_max_n / lo_n).log10();
-    let steps = ((decades * GRID_PER_DECADE as f64).ceil() as usize).max(1);
-    let grid: Vec<f64> = (0..=steps)
-        .map(|i| (u_lo + (u_hi - u_lo) * i as f64 / steps as f64).exp())
-        .collect();
+    Ok(())
+}
 
-    // First pair of valid grid points where g has strictly opposite signs
-    // (grid points with g exactly 0 are stepped over, so identical curves
-    // never "cross").
-    let mut bracket = None;
+/// First pair of valid grid points where g has strictly opposite signs
+/// (grid points with g exactly 0 are stepped over, so identical curves
+/// never "cross"): their indices and g at the lower one.
+fn bracket(grid: &[f64], g: &impl Fn(f64) -> Option<f64>) -> Option<(usize, usize, f64)> {
     let mut prev: Option<(usize, f64)> = None;
     for (i, &n) in grid.iter().enumerate() {
         let Some(gi) = g(n) else { continue };
@@ -184,18 +205,18 @@ pub fn crossover(
         }
         if let Some((j, gj)) = prev {
             if gj.signum() != gi.signum() {
-                bracket = Some((j, i, gj));
-                break;
+                return Some((j, i, gj));
             }
         }
         prev = Some((i, gi));
     }
-    let Some((j, i, g_low)) = bracket else {
-        return Ok(None);
-    };
+    None
+}
 
-    // Bisection in ln n, keeping g's lower-end sign at `lo`.
-    let (mut lo, mut hi) = (grid[j].ln(), grid[i].ln());
+/// Bisection in ln n between `below` and `above`, keeping g's lower-end sign (`g_low`) at
+/// the lower end; returns the crossing.
+fn bisect(g: &impl Fn(f64) -> Option<f64>, below: f64, above: f64, g_low: f64) -> f64 {
+    let (mut lo, mut hi) = (below.ln(), above.ln());
     for _ in 0..200 {
         let mid = 0.5 * (lo + hi);
         if mid <= lo || mid >= hi {
@@ -209,11 +230,12 @@ pub fn crossover(
             None => break,
         }
     }
-    let n_cross = (0.5 * (lo + hi)).exp();
-    // g < 0 below the crossing means A's cost is lower there.
-    let faster_below = if g_low < 0.0 { Which::A } else { Which::B };
+    (0.5 * (lo + hi)).exp()
+}
 
-    // Band overlap around the crossing.
+/// Band overlap around the crossing: the sizes below and above `n_cross` where the two
+/// 95 % prediction bands stop overlapping (`lo_n` and `search_max_n` when they never do).
+fn band_overlap(a: &GrowthFit, b: &GrowthFit, grid: &[f64], n_cross: f64, lo_n: f64, search_max_n: f64) -> Result<(f64, f64), FitError> {
     let overlaps = |n: f64| -> Result<bool, FitError> {
         let pa = predict(a, n, a.max_n)?;
         let pb = predict(b, n, b.max_n)?;
@@ -254,12 +276,5 @@ pub fn crossover(
             break;
         }
     }
-
-    Ok(Some(Crossover {
-        n: n_cross,
-        n_lo: n_lo.min(n_cross),
-        n_hi: n_hi.max(n_cross),
-        inside_measured: (lo_n..=hi_n).contains(&n_cross),
-        faster_below,
-    }))
+    Ok((n_lo, n_hi))
 }

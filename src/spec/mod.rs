@@ -7,6 +7,8 @@
 //! problem through [`locate::Locator`]. Nothing here panics on any input.
 
 pub mod axis;
+mod columns;
+mod designs;
 pub mod guard;
 pub mod limits;
 pub mod locate;
@@ -14,6 +16,7 @@ pub mod model;
 pub mod programs;
 pub mod queries;
 pub mod sql_rules;
+mod steps;
 pub mod suggest;
 pub mod tables;
 pub mod units;

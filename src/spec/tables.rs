@@ -9,7 +9,8 @@
 use super::locate::YamlPath;
 use super::model::{ColumnKind, TableRows, TableSpec, WorkloadSpec};
 use super::suggest::closest;
-use super::validate::{check_columns, Checker};
+use super::columns::check_columns;
+use super::validate::Checker;
 use crate::plan::{RowsPlan, TablePlan};
 use std::collections::HashSet;
 

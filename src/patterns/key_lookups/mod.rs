@@ -11,11 +11,21 @@
 //! must know: an index is the family's own value (`key index`, `pair index`), so a design
 //! can build it untimed in `setup:` and time only the probes; building it in `steps:` times
 //! both, and the difference is the cost of the index.
+//!
+//! The steps live in `single.rs` (one key column) and `pairs.rs` (two-level keys); this
+//! file registers them and holds what they share: the wanted keys, typed key columns and
+//! the output table of matches.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+mod pairs;
+mod single;
+
+pub use pairs::PairIndex;
+pub use single::KeyIndex;
+
+use super::{polars_err, ParamDef, ParamKind, StepDef, StepError, Value, ValueKind};
+use pairs::{BuildPairIndex, PairsScan, ProbePairIndex};
 use polars::prelude::*;
-use polars::series::IsSorted;
-use std::sync::Arc;
+use single::{BuildKeyIndex, JoinWanted, Lookup, MarkSorted, ProbeKeyIndex};
 
 /// The family's own values.
 pub const KEY_INDEX: &str = "key index";
@@ -230,305 +240,29 @@ fn no_rows(step: &'static str) -> StepError {
     StepError::Value { step, message: "the table has no rows to look keys up in".into() }
 }
 
-struct MarkSorted {
-    column: usize,
+/// The matches found so far: for each, the probe's number and the row it found.
+#[derive(Default)]
+struct Found {
+    probe: Vec<i64>,
+    rows: Vec<IdxSize>,
 }
 
-impl Step for MarkSorted {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "mark_sorted";
-        let mut df = input.into_frame(NAME)?;
-        let c = column_at(&df, self.column, NAME)?;
-        if c.null_count() > 0 {
-            return Err(StepError::Value { step: NAME, message: format!("column `{}` has nulls; a sorted key must not", c.name()) });
-        }
-        let s = c.as_materialized_series();
-        let ok = s.is_sorted(SortOptions::default()).map_err(polars_err(NAME))?;
-        if !ok {
-            return Err(StepError::Value { step: NAME, message: format!("column `{}` is not sorted ascending", c.name()) });
-        }
-        let mut c = c.clone();
-        c.set_sorted_flag(IsSorted::Ascending);
-        df.replace_column(self.column, c).map_err(polars_err(NAME))?;
-        Ok(Value::Frame(df))
+impl Found {
+    /// Probe `k` found row `r`.
+    fn push(&mut self, k: usize, r: IdxSize) {
+        self.probe.push(k as i64);
+        self.rows.push(r);
     }
-}
 
-struct Lookup {
-    key: usize,
-    value: usize,
-    probes: usize,
-    sorted: bool,
-}
-
-impl Step for Lookup {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        let name: &'static str = if self.sorted { "lookup_sorted" } else { "lookup_scan" };
-        let df = input.into_frame(name)?;
-        let kc = column_at(&df, self.key, name)?;
-        let vc = column_at(&df, self.value, name)?;
-        if df.height() == 0 {
-            return Err(no_rows(name));
+    /// Probe `k` found each of `rows`.
+    fn push_all(&mut self, k: usize, rows: &[IdxSize]) {
+        for &r in rows {
+            self.push(k, r);
         }
-        if self.sorted && kc.is_sorted_flag() != IsSorted::Ascending {
-            return Err(StepError::Value {
-                step: name,
-                message: format!("column `{}` is not flagged sorted ascending (add `mark_sorted` to the design's setup)", kc.name()),
-            });
-        }
-        if self.sorted && kc.null_count() > 0 {
-            return Err(StepError::Value { step: name, message: format!("column `{}` has nulls; binary search needs a key without", kc.name()) });
-        }
-        let keys = int_keys(kc, name)?;
-        let want = wanted(&keys, self.probes);
-        let (vals, valid) = parts(&keys);
-        let (mut probe, mut rows) = (Vec::new(), Vec::new());
-        for (k, w) in want.iter().enumerate() {
-            let Some(w) = *w else { continue };
-            if self.sorted {
-                // The flag promises ascending order without nulls (mark_sorted checked it).
-                let lo = vals.partition_point(|&x| x < w);
-                let hi = lo + vals[lo..].partition_point(|&x| x <= w);
-                for r in lo..hi {
-                    probe.push(k as i64);
-                    rows.push(r as IdxSize);
-                }
-            } else {
-                for (r, &x) in vals.iter().enumerate() {
-                    if x == w && valid_at(valid, r) {
-                        probe.push(k as i64);
-                        rows.push(r as IdxSize);
-                    }
-                }
-            }
-        }
-        matches(name, probe, rows, Some(vc))
     }
-}
 
-/// A hash index from key to rows, with the columns its probes need.
-pub struct KeyIndex {
-    pub keys: Int64Chunked,
-    pub values: Column,
-    pub map: PlHashMap<i64, Vec<IdxSize>>,
-}
-
-struct BuildKeyIndex {
-    key: usize,
-    value: usize,
-}
-
-impl Step for BuildKeyIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "build_key_index";
-        let df = input.into_frame(NAME)?;
-        let keys = int_keys(column_at(&df, self.key, NAME)?, NAME)?;
-        let values = column_at(&df, self.value, NAME)?.clone();
-        let mut map: PlHashMap<i64, Vec<IdxSize>> = PlHashMap::default();
-        let (vals, valid) = parts(&keys);
-        for (r, &x) in vals.iter().enumerate() {
-            if valid_at(valid, r) {
-                map.entry(x).or_default().push(r as IdxSize);
-            }
-        }
-        Ok(Value::Custom(KEY_INDEX, Arc::new(KeyIndex { keys, values, map })))
-    }
-}
-
-struct ProbeKeyIndex {
-    probes: usize,
-}
-
-impl Step for ProbeKeyIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "probe_key_index";
-        let ix = input.into_custom::<KeyIndex>(NAME, KEY_INDEX)?;
-        if ix.keys.is_empty() {
-            return Err(no_rows(NAME));
-        }
-        let (mut probe, mut rows) = (Vec::new(), Vec::new());
-        for (k, w) in wanted(&ix.keys, self.probes).into_iter().enumerate() {
-            if let Some(found) = w.and_then(|w| ix.map.get(&w)) {
-                for &r in found {
-                    probe.push(k as i64);
-                    rows.push(r);
-                }
-            }
-        }
-        matches(NAME, probe, rows, Some(&ix.values))
-    }
-}
-
-struct JoinWanted {
-    key: usize,
-    value: usize,
-    probes: usize,
-}
-
-impl Step for JoinWanted {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "join_wanted_keys";
-        let df = input.into_frame(NAME)?;
-        let n = df.height();
-        if n == 0 {
-            return Err(no_rows(NAME));
-        }
-        let keys = int_keys(column_at(&df, self.key, NAME)?, NAME)?;
-        let vc = column_at(&df, self.value, NAME)?.clone();
-        let vname = vc.name().clone();
-        if vname.as_str() == "probe" || vname.as_str() == "row" {
-            return Err(StepError::Value { step: NAME, message: format!("the value column may not be called `{vname}`") });
-        }
-        let want = wanted(&keys, self.probes);
-        let m = want.len();
-        let wanted_df = DataFrame::new(
-            m,
-            vec![Column::new("probe".into(), (0..m as i64).collect::<Vec<_>>()), Column::new("__wanted".into(), want)],
-        )
-        .map_err(polars_err(NAME))?;
-        let table = DataFrame::new(n, vec![keys.with_name("__key".into()).into_series().into_column(), vc])
-            .map_err(polars_err(NAME))?
-            .with_row_index("__row".into(), None)
-            .map_err(polars_err(NAME))?;
-        let out = wanted_df
-            .lazy()
-            .join(table.lazy(), [col("__wanted")], [col("__key")], JoinArgs::new(JoinType::Inner))
-            .sort(["probe", "__row"], SortMultipleOptions::default())
-            .select([col("probe"), col("__row").cast(DataType::Int64).alias("row"), col(vname.clone())])
-            .collect()
-            .map_err(polars_err(NAME))?;
-        Ok(Value::Frame(out))
-    }
-}
-
-fn wanted_pairs(a: &Int64Chunked, b: &Int64Chunked, probes: usize) -> Vec<Option<(i64, i64)>> {
-    let n = a.len();
-    let (av, avalid) = parts(a);
-    let (bv, bvalid) = parts(b);
-    (0..probes)
-        .map(|k| {
-            let i = position(k, probes, n);
-            if i >= av.len() || i >= bv.len() || !valid_at(avalid, i) || !valid_at(bvalid, i) {
-                return None;
-            }
-            // A miss shares its first level with a real row, so a prefix index finds
-            // candidates and must reject them on the second level.
-            Some((av[i], if is_miss(k) { miss_key(k) } else { bv[i] }))
-        })
-        .collect()
-}
-
-fn pair_columns(df: &DataFrame, first: usize, second: usize, step: &'static str) -> Result<(Int64Chunked, Int64Chunked), StepError> {
-    if df.height() == 0 {
-        return Err(no_rows(step));
-    }
-    Ok((int_keys(column_at(df, first, step)?, step)?, int_keys(column_at(df, second, step)?, step)?))
-}
-
-struct PairsScan {
-    first: usize,
-    second: usize,
-    probes: usize,
-}
-
-impl Step for PairsScan {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "lookup_pairs_scan";
-        let df = input.into_frame(NAME)?;
-        let (a, b) = pair_columns(&df, self.first, self.second, NAME)?;
-        let (av, avalid) = parts(&a);
-        let (bv, bvalid) = parts(&b);
-        let (mut probe, mut rows) = (Vec::new(), Vec::new());
-        for (k, w) in wanted_pairs(&a, &b, self.probes).into_iter().enumerate() {
-            let Some((x, y)) = w else { continue };
-            for r in 0..av.len() {
-                if av[r] == x && bv[r] == y && valid_at(avalid, r) && valid_at(bvalid, r) {
-                    probe.push(k as i64);
-                    rows.push(r as IdxSize);
-                }
-            }
-        }
-        matches(NAME, probe, rows, None)
-    }
-}
-
-enum PairMap {
-    Full(PlHashMap<(i64, i64), Vec<IdxSize>>),
-    Prefix(PlHashMap<i64, Vec<IdxSize>>),
-}
-
-/// A hash index on a two-level key.
-pub struct PairIndex {
-    first: Int64Chunked,
-    second: Int64Chunked,
-    map: PairMap,
-}
-
-struct BuildPairIndex {
-    first: usize,
-    second: usize,
-    prefix: bool,
-}
-
-impl Step for BuildPairIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "build_pair_index";
-        let df = input.into_frame(NAME)?;
-        let (a, b) = pair_columns(&df, self.first, self.second, NAME)?;
-        let map = {
-            let (av, avalid) = parts(&a);
-            let (bv, bvalid) = parts(&b);
-            let ok = |r: usize| valid_at(avalid, r) && valid_at(bvalid, r);
-            if self.prefix {
-                let mut m: PlHashMap<i64, Vec<IdxSize>> = PlHashMap::default();
-                for r in (0..av.len()).filter(|&r| ok(r)) {
-                    m.entry(av[r]).or_default().push(r as IdxSize);
-                }
-                PairMap::Prefix(m)
-            } else {
-                let mut m: PlHashMap<(i64, i64), Vec<IdxSize>> = PlHashMap::default();
-                for r in (0..av.len()).filter(|&r| ok(r)) {
-                    m.entry((av[r], bv[r])).or_default().push(r as IdxSize);
-                }
-                PairMap::Full(m)
-            }
-        };
-        Ok(Value::Custom(PAIR_INDEX, Arc::new(PairIndex { first: a, second: b, map })))
-    }
-}
-
-struct ProbePairIndex {
-    probes: usize,
-}
-
-impl Step for ProbePairIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        const NAME: &str = "probe_pair_index";
-        let ix = input.into_custom::<PairIndex>(NAME, PAIR_INDEX)?;
-        let (bv, _) = parts(&ix.second);
-        let (mut probe, mut rows) = (Vec::new(), Vec::new());
-        for (k, w) in wanted_pairs(&ix.first, &ix.second, self.probes).into_iter().enumerate() {
-            let Some((x, y)) = w else { continue };
-            match &ix.map {
-                PairMap::Full(m) => {
-                    if let Some(found) = m.get(&(x, y)) {
-                        for &r in found {
-                            probe.push(k as i64);
-                            rows.push(r);
-                        }
-                    }
-                }
-                PairMap::Prefix(m) => {
-                    if let Some(found) = m.get(&x) {
-                        // Rows in the index already have a valid second level.
-                        for &r in found.iter().filter(|&&r| bv.get(r as usize) == Some(&y)) {
-                            probe.push(k as i64);
-                            rows.push(r);
-                        }
-                    }
-                }
-            }
-        }
-        matches(NAME, probe, rows, None)
+    /// The output table (see [`matches`]).
+    fn into_value(self, step: &'static str, values: Option<&Column>) -> Result<Value, StepError> {
+        matches(step, self.probe, self.rows, values)
     }
 }

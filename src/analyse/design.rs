@@ -1,0 +1,153 @@
+//! One design of a workload analysed: which measured points its fits use (busy sizes left
+//! out of time, memory keeping every size, `--top-sizes`, `--fit-up-to`), the fits of time,
+//! allocated bytes and peak memory, doubling ratios, predictions at the target and the
+//! hold-out checks against sizes measured but not fitted.
+
+use super::fits::{bounded_by_bytes, fit_time, predict_with_alternative};
+use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
+use super::AnalyseOptions;
+use crate::fit::growth::{doubling_ratios, fit_growth, loglog_slope, GrowthFit, MIN_SIZES};
+use crate::fit::FitError;
+use crate::results::reader::WorkloadResults;
+use crate::results::{Measured, PointRecord};
+
+/// Per design: the fit of its time (every sample), kept for crossovers.
+pub(super) struct Fitted {
+    pub(super) name: String,
+    pub(super) time: Option<GrowthFit>,
+    pub(super) lo: f64,
+    pub(super) hi: f64,
+}
+
+/// The measured points each kind of fit uses, and what was left out and why.
+struct Chosen<'a> {
+    /// The points the time fits use: up to the limit, clean sizes when enough remain.
+    used: Vec<&'a &'a PointRecord>,
+    /// The points the memory fits use: up to the limit, busy or not.
+    for_memory: Vec<&'a &'a PointRecord>,
+    notes: Vec<String>,
+}
+
+/// Analyse one design of `w` and keep its time fit for the crossovers.
+pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOptions, predict_at: Option<u64>) -> (DesignAnalysis, Fitted) {
+    let limit = opts.fit_up_to.unwrap_or(u64::MAX);
+    let pts: Vec<_> = w.design_points(name).into_iter().filter(|p| p.measured.is_some()).collect();
+    let Chosen { used, for_memory, mut notes } = choose_points(&pts, limit, opts.top_sizes);
+    let measured: Vec<(u64, &Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
+    let seed = xxhash_rust::xxh3::xxh3_64(name.as_bytes());
+    let (time_fit, time_exponent) = fit_time(&measured, seed);
+    let doubling = doubling_of(&used);
+    let (bytes_res, bytes_exponent) = memory_fit(&for_memory, &|m| m.alloc.bytes as f64);
+    let (peak_res, peak_exponent) = memory_fit(&for_memory, &|m| m.peak_bytes() as f64);
+    // Sizes the memory fits used (all of them, busy or not), not the time fits'.
+    let (bytes_out, peak_out) = (growth_out(&bytes_res, for_memory.len()).ok(), growth_out(&peak_res, for_memory.len()).ok());
+    let bytes_fit = bytes_res.ok();
+    let time_fit = time_fit.map(|t| match bounded_by_bytes(&t, bytes_fit.as_ref()) {
+        Some((f, note)) => {
+            notes.push(note);
+            f
+        }
+        None => t,
+    });
+    let time_out: Option<GrowthOut> = match growth_out(&time_fit, measured.len()) {
+        Ok(g) => Some(g),
+        Err(e) => {
+            notes.push(format!("time: no growth class ({e})"));
+            None
+        }
+    };
+    let time = time_fit.ok();
+    if bytes_out.is_none() && bytes_exponent.is_some() {
+        notes.push("bytes: fewer than 5 measured sizes, exponent only".into());
+    }
+    let max_fitted = used.iter().map(|p| p.rows).max().unwrap_or(0) as f64;
+    let min_fitted = used.iter().map(|p| p.rows).min().unwrap_or(0) as f64;
+    let pred = |f: &Option<GrowthFit>, rows: u64| predict_with_alternative(f.as_ref()?, rows, max_fitted);
+    let prediction = predict_at.and_then(|n| pred(&time, n));
+    let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));
+    let holdout = holdout_checks(&pts, limit, &|rows| pred(&time, rows));
+    let analysis = DesignAnalysis {
+        design: name.to_string(),
+        measured_sizes: pts.iter().map(|p| p.rows).collect(),
+        time: time_out,
+        time_exponent,
+        doubling,
+        bytes: bytes_out,
+        bytes_exponent,
+        peak: peak_out,
+        peak_exponent,
+        prediction,
+        bytes_prediction,
+        holdout,
+        notes,
+    };
+    (analysis, Fitted { name: name.to_string(), time, lo: min_fitted, hi: max_fitted })
+}
+
+/// The points the fits use: sizes up to `limit`; busy sizes out of the time fits when
+/// enough clean ones remain; only the largest `top` sizes when asked.
+fn choose_points<'a>(pts: &'a [&'a PointRecord], limit: u64, top: Option<usize>) -> Chosen<'a> {
+    let mut used: Vec<_> = pts.iter().filter(|p| p.rows <= limit).collect();
+    let mut notes = Vec::new();
+    // Memory is counted, not timed: a busy machine does not change it, so its fits keep
+    // every size.
+    let mut for_memory = used.clone();
+    // Points measured on a busy machine never decide a class, as long as enough clean
+    // sizes remain to fit one.
+    let busy = used.iter().filter(|p| p.measured.as_ref().is_some_and(|m| m.is_contaminated())).count();
+    if busy > 0 {
+        if used.len() - busy >= MIN_SIZES {
+            used.retain(|p| !p.measured.as_ref().is_some_and(|m| m.is_contaminated()));
+            notes.push(format!("{busy} size(s) measured on a busy machine were left out of the time fits"));
+        } else {
+            notes.push(format!("{busy} size(s) were measured on a busy machine and too few clean ones remain: the fits include them"));
+        }
+    }
+    if let Some(k) = top {
+        let drop = used.len().saturating_sub(k.max(MIN_SIZES));
+        used.drain(..drop);
+        let drop = for_memory.len().saturating_sub(k.max(MIN_SIZES));
+        for_memory.drain(..drop);
+    }
+    Chosen { used, for_memory, notes }
+}
+
+/// (from, to, ratio per doubling) between consecutive sizes' medians.
+fn doubling_of(used: &[&&PointRecord]) -> Vec<(u64, u64, f64)> {
+    let medians: Vec<(f64, f64)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m.median_ns))).collect();
+    if medians.len() < 2 {
+        return vec![];
+    }
+    let (x, y): (Vec<f64>, Vec<f64>) = medians.iter().copied().unzip();
+    doubling_ratios(&x, &y)
+        .map(|r| r.into_iter().enumerate().map(|(i, v)| (x[i] as u64, x[i + 1] as u64, v)).collect())
+        .unwrap_or_default()
+}
+
+/// A memory metric's growth fit and log-log slope over the points that counted any.
+fn memory_fit(for_memory: &[&&PointRecord], get: &dyn Fn(&Measured) -> f64) -> (Result<GrowthFit, FitError>, Option<f64>) {
+    let v: Vec<(f64, f64)> = for_memory.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, get(m)))).filter(|p| p.1 > 0.0).collect();
+    let (x, y): (Vec<f64>, Vec<f64>) = v.iter().copied().unzip();
+    let slope = loglog_slope(&x, &y).ok();
+    (fit_growth(&x, &y), slope)
+}
+
+/// The time prediction checked at every measured size beyond the fitted ones.
+fn holdout_checks(pts: &[&PointRecord], limit: u64, pred: &dyn Fn(u64) -> Option<super::PredictionOut>) -> Vec<HoldoutCheck> {
+    pts.iter()
+        .filter(|p| p.rows > limit)
+        .filter_map(|p| {
+            let m = p.measured.as_ref()?;
+            let pr = pred(p.rows)?;
+            Some(HoldoutCheck {
+                rows: p.rows,
+                predicted_ns: pr.median,
+                low_ns: pr.low,
+                high_ns: pr.high,
+                measured_ns: m.median_ns,
+                error: (pr.median - m.median_ns) / m.median_ns,
+                inside_interval: pr.low <= m.median_ns && m.median_ns <= pr.high,
+            })
+        })
+        .collect()
+}

@@ -1,0 +1,191 @@
+//! The analysis's records: one metric's growth (`GrowthOut`), an exponent, a prediction, a
+//! hold-out check, a design's whole analysis and a crossover — what `--json`, the
+//! explanation, the pictures and the gate read — and the translation of a growth fit into
+//! its record. Kept apart from the fitting so the records can be read without it.
+
+use crate::fit::growth::{curve_at, GrowthClass, GrowthFit, Term};
+use crate::fit::FitError;
+use serde::{Deserialize, Serialize};
+
+/// One metric's growth.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct GrowthOut {
+    /// "constant", "log n", "n", "n log n", "n²", "n³", or "unclear" when no class agrees
+    /// with the measured slope (then `terms` is empty and `top_slope` says what was seen).
+    pub class: String,
+    /// A faster-growing class the data cannot tell apart from `class` ("n or n log n").
+    #[serde(default)]
+    pub alternative: Option<String>,
+    /// The fitted curve: (term label, coefficient), all coefficients ≥ 0.
+    #[serde(default)]
+    pub terms: Vec<(String, f64)>,
+    /// Log-log slope of the per-size medians over the largest sizes (what the class was
+    /// checked against).
+    #[serde(default)]
+    pub top_slope: Option<f64>,
+    pub a: f64,
+    pub b: f64,
+    pub runner_up: Option<String>,
+    /// AICc of the runner-up minus the best (larger: more decisive).
+    pub delta_aicc: f64,
+    /// Akaike weight of the chosen class.
+    pub evidence_weight: f64,
+    pub sizes: usize,
+    /// Relative residual spread of the fit.
+    pub residual_sd: f64,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct ExponentOut {
+    pub slope: f64,
+    pub low: f64,
+    pub high: f64,
+    pub sizes_used: usize,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct PredictionOut {
+    pub rows: u64,
+    pub median: f64,
+    pub low: f64,
+    pub high: f64,
+    /// Decades past the largest fitted size.
+    pub extrapolation_decades: f64,
+    pub far: bool,
+    /// The interval spans more than ×10: an order of magnitude only.
+    #[serde(default)]
+    pub rough: bool,
+    /// The class predicted with, and the alternative class whose prediction widened the
+    /// interval (when the data cannot tell the two apart).
+    #[serde(default)]
+    pub class: String,
+    #[serde(default)]
+    pub alternative: Option<String>,
+}
+
+/// A prediction checked against a size that was measured but not fitted.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct HoldoutCheck {
+    pub rows: u64,
+    pub predicted_ns: f64,
+    pub low_ns: f64,
+    pub high_ns: f64,
+    pub measured_ns: f64,
+    /// (predicted − measured) / measured.
+    pub error: f64,
+    pub inside_interval: bool,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct DesignAnalysis {
+    pub design: String,
+    pub measured_sizes: Vec<u64>,
+    pub time: Option<GrowthOut>,
+    pub time_exponent: Option<ExponentOut>,
+    /// (from rows, to rows, ratio normalised to a doubling).
+    pub doubling: Vec<(u64, u64, f64)>,
+    pub bytes: Option<GrowthOut>,
+    pub bytes_exponent: Option<f64>,
+    pub peak: Option<GrowthOut>,
+    pub peak_exponent: Option<f64>,
+    pub prediction: Option<PredictionOut>,
+    pub bytes_prediction: Option<PredictionOut>,
+    pub holdout: Vec<HoldoutCheck>,
+    /// Why a fit is missing, when it is.
+    pub notes: Vec<String>,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct CrossoverOut {
+    /// Cheaper below the crossing.
+    pub faster_below: String,
+    /// Cheaper above it.
+    pub faster_above: String,
+    pub rows: f64,
+    pub rows_low: f64,
+    pub rows_high: f64,
+    pub inside_measured: bool,
+    /// The crossing's interval ends inside the search range on both sides (the prediction
+    /// bands separate again): a crossover whose interval runs to the end of the search is
+    /// not a finding.
+    #[serde(default)]
+    pub bounded: bool,
+}
+
+impl GrowthOut {
+    /// "n", "n or n log n", "n to n²", or "unclear (slope 0.42)".
+    pub fn label(&self) -> String {
+        if self.class == "unclear" {
+            return format!("unclear (slope {:.2})", self.top_slope.unwrap_or(f64::NAN));
+        }
+        match (class_of(&self.class), self.alternative.as_deref().and_then(class_of)) {
+            (Some(best), alt) => crate::fit::growth::pair_label(best, alt),
+            (None, _) => self.class.clone(),
+        }
+    }
+
+    /// True when `class` is the chosen class, the alternative, or between them.
+    pub fn admits(&self, class: GrowthClass) -> bool {
+        let Some(best) = class_of(&self.class) else { return false };
+        let alt = self.alternative.as_deref().and_then(class_of).unwrap_or(best);
+        (best.rank().min(alt.rank())..=best.rank().max(alt.rank())).contains(&class.rank())
+    }
+
+    /// The fitted cost at `n` (None when unclear or from an old analysis without terms).
+    pub fn cost_at(&self, n: f64) -> Option<f64> {
+        if self.terms.is_empty() {
+            return None;
+        }
+        let terms: Vec<(Term, f64)> = self.terms.iter().filter_map(|(t, c)| Term::from_label(t).map(|t| (t, *c))).collect();
+        Some(curve_at(&terms, n))
+    }
+
+    /// A growth that no class explains.
+    fn unclear(slope: f64, sizes: usize) -> GrowthOut {
+        GrowthOut {
+            class: "unclear".into(),
+            alternative: None,
+            terms: vec![],
+            top_slope: Some(slope),
+            a: 0.0,
+            b: 0.0,
+            runner_up: None,
+            delta_aicc: 0.0,
+            evidence_weight: 0.0,
+            sizes,
+            residual_sd: 0.0,
+        }
+    }
+}
+
+/// A growth fit for the analysis: the class, or "unclear" when no class agrees with the
+/// slope; other fit failures are returned as the note to record.
+pub(super) fn growth_out(fit: &Result<GrowthFit, FitError>, sizes: usize) -> Result<GrowthOut, String> {
+    match fit {
+        Ok(f) => Ok(out(f)),
+        Err(FitError::NoClassAgrees { slope }) => Ok(GrowthOut::unclear(*slope, sizes)),
+        Err(e) => Err(e.to_string()),
+    }
+}
+
+/// The record of a growth fit.
+fn out(f: &GrowthFit) -> GrowthOut {
+    GrowthOut {
+        class: f.best.label().to_string(),
+        alternative: f.alternative.map(|c| c.label().to_string()),
+        terms: f.terms.iter().map(|(t, c)| (t.label().to_string(), *c)).collect(),
+        top_slope: Some(f.top_slope),
+        a: f.a,
+        b: f.b,
+        runner_up: f.runner_up.map(|c| c.label().to_string()),
+        delta_aicc: f.delta_aicc,
+        evidence_weight: f.evidence_weight,
+        sizes: f.n_sizes,
+        residual_sd: f.residual_sd(),
+    }
+}
+
+/// A class label back to the class.
+pub fn class_of(label: &str) -> Option<GrowthClass> {
+    GrowthClass::from_label(label)
+}

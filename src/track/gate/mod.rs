@@ -1,0 +1,302 @@
+//! The regression gate: compare a baseline run with a new run of the same workloads, size by
+//! size and class by class.
+//!
+//! A point (design × size) is a **regression** only when both hold: the ratio of medians
+//! new/base exceeds the threshold (default 10%, or the workload's `gate.threshold`), and a
+//! two-sided Mann–Whitney test on the samples is significant (α = 0.05). Improvements are
+//! judged alike. A regression fails the gate when it is **confirmed**: seen at a
+//! neighbouring size of the same design too (or the design was compared at one size only).
+//! Samples within one run share that run's conditions, so a single point can differ between
+//! two runs by more than its own samples suggest; a change in the code shows at more than
+//! one size. Unconfirmed regressions are reported, not hidden.
+//!
+//! A design has a **growth regression** when its time exponent over the sizes both runs
+//! measured rose by 0.1 or more (`--growth-rise`) with the two bootstrap intervals apart
+//! **and** the per-size comparisons agree — the largest size is a confirmed regression and
+//! the ratio new/base grew by more than the threshold from the smallest size to the largest
+//! (bootstrap intervals within one run are narrower than the variation between runs of
+//! unchanged code) — or when its allocated-bytes exponent (exact counts) rose by 0.15 or
+//! more. Points missing from either run are reported, not ignored.
+//!
+//! Machine speed: each size of a run also times a fixed drift probe in the same rounds as
+//! the designs, so a ratio can be divided by how much faster or slower the machine itself
+//! was at that size (a busy neighbour, a slower machine, another polars build affects the
+//! designs and the probe alike; a slower design does not move the probe). That corrected
+//! ratio is judged together with the raw one: a change is called only when both pass the
+//! threshold in the same direction, so the correction can explain a change away but never
+//! create one from equal medians. Both are shown. Runs without probes fall back to dividing
+//! by the ratio of the runs' yardsticks when the machines differ. A newcomer must know: this works from saved results
+//! alone and never reruns anything.
+//!
+//! The parts: one design's points compared and confirmed (`points.rs`), growth compared
+//! (`growth.rs`), the workload's common move (`common.rs`); this file holds the records and
+//! walks the runs' workloads and designs.
+
+mod common;
+mod growth;
+mod points;
+
+pub use common::{common_mode, COMMON_MODE_SPREADS};
+
+use crate::results::reader::{RunResults, WorkloadResults};
+use points::{confirm, matched, point_gate, Machines};
+use serde::{Deserialize, Serialize};
+
+/// Settings of a gate.
+#[derive(Debug, Clone)]
+pub struct GateOptions {
+    /// Replace every workload's threshold (a share: 0.1 = 10%).
+    pub threshold: Option<f64>,
+    /// Significance level of the rank test.
+    pub alpha: f64,
+    /// Time-exponent rise that counts as a growth regression; None turns the growth check
+    /// of time off (bytes are exact counts and keep their own rule).
+    pub growth_rise: Option<f64>,
+}
+
+impl Default for GateOptions {
+    fn default() -> Self {
+        GateOptions { threshold: None, alpha: 0.05, growth_rise: Some(TIME_EXPONENT_RISE) }
+    }
+}
+
+/// The default share a median may grow before it counts.
+pub const DEFAULT_THRESHOLD: f64 = 0.10;
+/// Exponent rise that counts as a growth regression (time, with separated intervals).
+pub const TIME_EXPONENT_RISE: f64 = 0.10;
+/// Exponent rise that counts as a growth regression of allocated bytes (exact counts).
+pub const BYTES_EXPONENT_RISE: f64 = 0.15;
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Call {
+    Regression,
+    Improvement,
+    /// Within the threshold, or a difference the test does not support.
+    Same,
+    /// Beyond the threshold, but too few samples (or too much noise) to be significant.
+    Unclear,
+}
+
+impl Call {
+    pub fn mark(self) -> &'static str {
+        match self {
+            Call::Regression => "▲",
+            Call::Improvement => "▼",
+            Call::Same => "·",
+            Call::Unclear => "?",
+        }
+    }
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct PointGate {
+    pub design: String,
+    pub rows: u64,
+    pub base_median_ns: f64,
+    pub new_median_ns: f64,
+    /// new / base, raw.
+    pub ratio: f64,
+    /// Hodges–Lehmann estimate of the ratio (the median of all pairwise ratios, after the
+    /// same correction as `normalised_ratio`), the centre of the interval below.
+    #[serde(default)]
+    pub shift: Option<f64>,
+    /// Hodges–Lehmann (Moses) interval of that estimate (95%), when the samples allow one.
+    pub ratio_low: Option<f64>,
+    pub ratio_high: Option<f64>,
+    /// The ratio corrected for the machine's own speed: divided by the drift probe's ratio at
+    /// this size (both runs timed the probe in the same rounds as the designs), or, without
+    /// probes, by the yardstick ratio when the machines differ. This is the ratio judged.
+    pub normalised_ratio: Option<f64>,
+    /// What the ratio was divided by: "drift probe" or "yardstick".
+    #[serde(default)]
+    pub normalised_by: Option<String>,
+    pub p_value: Option<f64>,
+    pub call: Call,
+    /// A regression or improvement seen at a neighbouring size of the same design too (or
+    /// the design was compared at one size only). Only confirmed changes fail the gate.
+    #[serde(default)]
+    pub confirmed: bool,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct GrowthGate {
+    pub design: String,
+    /// "time", "bytes" (counted allocations) or "resident" (a program's resident memory).
+    pub metric: String,
+    pub base_class: Option<String>,
+    pub new_class: Option<String>,
+    pub base_exponent: Option<f64>,
+    pub new_exponent: Option<f64>,
+    /// Bootstrap intervals (time only).
+    pub base_interval: Option<(f64, f64)>,
+    pub new_interval: Option<(f64, f64)>,
+    pub sizes: Vec<u64>,
+    pub call: Call,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct MissingPoint {
+    pub design: String,
+    pub rows: u64,
+    /// "measured", "skipped: <reason>" or "absent".
+    pub baseline: String,
+    pub new: String,
+}
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct WorkloadGate {
+    pub workload: String,
+    pub threshold: f64,
+    pub points: Vec<PointGate>,
+    pub growth: Vec<GrowthGate>,
+    pub missing: Vec<MissingPoint>,
+    /// Designs in one run only.
+    pub unmatched_designs: Vec<String>,
+    /// The move the whole workload shared (three or more designs), when there is one to
+    /// discount: see [`common_mode`].
+    #[serde(default)]
+    pub common_mode: Option<CommonMode>,
+    /// What the workload swept when not rows (the same in both runs), for labels.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axis: Option<crate::results::schema::AxisPlan>,
+}
+
+/// What the points of a workload moved together between the two runs.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct CommonMode {
+    /// Median of the judged ratios over every point of every design.
+    pub ratio: f64,
+    /// Robust spread of the points' log-ratios around it (1.4826 × median absolute deviation).
+    pub spread: f64,
+}
+
+
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct GateReport {
+    pub baseline_run: String,
+    pub new_run: String,
+    pub machines_differ: bool,
+    /// new yardstick / baseline yardstick.
+    pub yardstick_ratio: Option<f64>,
+    pub workloads: Vec<WorkloadGate>,
+    /// Workloads in one run only.
+    pub unmatched_workloads: Vec<String>,
+    /// Confirmed point regressions.
+    pub regressions: usize,
+    /// Point regressions seen at one size only (reported, not failing).
+    #[serde(default)]
+    pub unconfirmed_regressions: usize,
+    pub growth_regressions: usize,
+    pub improvements: usize,
+    pub missing: usize,
+}
+
+impl GateReport {
+    /// True when anything got worse.
+    pub fn failed(&self) -> bool {
+        self.regressions > 0 || self.growth_regressions > 0
+    }
+}
+
+/// Compare two runs.
+pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateReport {
+    let (bh, nh) = (base.run.as_ref(), new.run.as_ref());
+    let machines_differ = match (bh, nh) {
+        (Some(b), Some(n)) => !b.machine.same_machine(&n.machine),
+        _ => false,
+    };
+    let yardstick_ratio = match (bh, nh) {
+        (Some(b), Some(n)) if b.yardstick.median_ns > 0.0 => Some(n.yardstick.median_ns / b.yardstick.median_ns),
+        _ => None,
+    };
+    let machines = Machines { differ: machines_differ, yardstick_ratio };
+    let mut report = GateReport {
+        baseline_run: bh.map(|h| h.run_id.clone()).unwrap_or_default(),
+        new_run: nh.map(|h| h.run_id.clone()).unwrap_or_default(),
+        machines_differ,
+        yardstick_ratio,
+        workloads: vec![],
+        unmatched_workloads: vec![],
+        regressions: 0,
+        unconfirmed_regressions: 0,
+        growth_regressions: 0,
+        improvements: 0,
+        missing: 0,
+    };
+    for bw in &base.workloads {
+        let Some(nw) = new.workloads.iter().find(|w| w.header.workload == bw.header.workload) else {
+            report.unmatched_workloads.push(format!("{} (baseline only)", bw.header.workload));
+            continue;
+        };
+        if bw.header.axis != nw.header.axis {
+            // Swept over different axes (say rows, then columns): equal numbers mean different points.
+            report.unmatched_workloads.push(format!("{} (swept over {} in the baseline, {} in the new run)", bw.header.workload, bw.header.axis().name(), nw.header.axis().name()));
+            continue;
+        }
+        let wg = compare_workload(bw, nw, opts, machines);
+        report.regressions += wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).count();
+        report.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
+        report.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
+        report.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
+        report.missing += wg.missing.len();
+        report.workloads.push(wg);
+    }
+    for nw in &new.workloads {
+        if !base.workloads.iter().any(|w| w.header.workload == nw.header.workload) {
+            report.unmatched_workloads.push(format!("{} (new run only)", nw.header.workload));
+        }
+    }
+    report
+}
+
+/// One workload in both runs: every design in both compared, the designs in one run only
+/// listed, then the common move discounted.
+fn compare_workload(bw: &WorkloadResults, nw: &WorkloadResults, opts: &GateOptions, machines: Machines) -> WorkloadGate {
+    let threshold = opts.threshold.or(nw.header.gate_threshold).unwrap_or(DEFAULT_THRESHOLD);
+    let mut wg = WorkloadGate {
+        workload: bw.header.workload.clone(),
+        threshold,
+        points: vec![],
+        growth: vec![],
+        missing: vec![],
+        unmatched_designs: vec![],
+        common_mode: None,
+        axis: nw.header.axis.clone(),
+    };
+    for d in &bw.header.designs {
+        if !nw.header.designs.iter().any(|x| x.name == d.name) {
+            wg.unmatched_designs.push(format!("{} (baseline only)", d.name));
+            continue;
+        }
+        compare_design(&mut wg, bw, nw, &d.name, opts, machines);
+    }
+    for d in &nw.header.designs {
+        if !bw.header.designs.iter().any(|x| x.name == d.name) {
+            wg.unmatched_designs.push(format!("{} (new run only)", d.name));
+        }
+    }
+    common_mode(&mut wg, bw.header.designs.len().min(nw.header.designs.len()), threshold);
+    wg
+}
+
+/// One design in both runs: its points size by size, confirmed, then its growth.
+fn compare_design(wg: &mut WorkloadGate, bw: &WorkloadResults, nw: &WorkloadResults, design: &str, opts: &GateOptions, machines: Machines) {
+    let threshold = wg.threshold;
+    let common = matched(wg, bw, nw, design);
+    let first = wg.points.len();
+    for &pair in &common {
+        wg.points.push(point_gate(design, pair, bw, nw, machines, threshold, opts.alpha));
+    }
+    // Confirmation: the same call at a neighbouring compared size (see `confirm`).
+    confirm(&mut wg.points[first..]);
+    // Growth over the sizes both runs measured.
+    if let Some(rise) = opts.growth_rise {
+        if let Some(g) = growth::time_growth(design, &common, &wg.points[first..], rise, threshold) {
+            wg.growth.push(g);
+        }
+    }
+    if let Some(g) = growth::memory_growth(design, &common) {
+        wg.growth.push(g);
+    }
+}

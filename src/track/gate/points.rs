@@ -1,0 +1,113 @@
+//! One design's points compared size by size: which sizes both runs measured (and what the
+//! others were), the ratio of medians with its Hodges–Lehmann interval, the correction for
+//! the machine's own speed, the rank test, the call, and confirmation by a neighbouring size.
+
+use super::{Call, MissingPoint, PointGate, WorkloadGate};
+use crate::results::reader::WorkloadResults;
+use crate::results::Measured;
+use crate::track::stats::{hodges_lehmann_ratio_ci, mann_whitney, Method};
+
+/// How the machine's own speed differed between the runs, for runs without drift probes.
+#[derive(Debug, Clone, Copy)]
+pub(super) struct Machines {
+    pub(super) differ: bool,
+    /// new yardstick / baseline yardstick.
+    pub(super) yardstick_ratio: Option<f64>,
+}
+
+/// A size both runs measured: (size, baseline, new).
+pub(super) type Pair<'a> = (u64, &'a Measured, &'a Measured);
+
+/// The sizes of `design` both runs measured, in order; every other size either run has is
+/// recorded in `wg.missing` with what each run has there.
+pub(super) fn matched<'a>(wg: &mut WorkloadGate, bw: &'a WorkloadResults, nw: &'a WorkloadResults, design: &str) -> Vec<Pair<'a>> {
+    let mut sizes: Vec<u64> = bw.header.sizes.iter().chain(&nw.header.sizes).copied().collect();
+    sizes.sort_unstable();
+    sizes.dedup();
+    let mut common: Vec<Pair<'a>> = Vec::new();
+    for n in sizes {
+        let b = bw.point(design, n).and_then(|p| p.measured.as_ref());
+        let m = nw.point(design, n).and_then(|p| p.measured.as_ref());
+        match (b, m) {
+            (Some(b), Some(m)) => common.push((n, b, m)),
+            _ => wg.missing.push(MissingPoint { design: design.to_string(), rows: n, baseline: status(bw, design, n), new: status(nw, design, n) }),
+        }
+    }
+    common
+}
+
+/// One point compared: ratio, interval, the speed-corrected ratio, the rank test and the
+/// call (confirmation comes after, over the design's points).
+#[allow(clippy::too_many_arguments)]
+pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw: &WorkloadResults, machines: Machines, threshold: f64, alpha: f64) -> PointGate {
+    let ratio = m.median_ns / b.median_ns;
+    let ci = hodges_lehmann_ratio_ci(&b.samples_ns, &m.samples_ns, 0.95).ok();
+    let probe = match (bw.comparison(n).and_then(|c| c.probe_ns), nw.comparison(n).and_then(|c| c.probe_ns)) {
+        (Some(pb), Some(pn)) if pb > 0.0 && pn > 0.0 => Some(pn / pb),
+        _ => None,
+    };
+    let (normalised, by) = match (probe, machines.differ, machines.yardstick_ratio) {
+        (Some(pr), _, _) => (Some(ratio / pr), Some("drift probe".to_string())),
+        (None, true, Some(y)) => (Some(ratio / y), Some("yardstick".to_string())),
+        _ => (None, None),
+    };
+    // The rank test compares the samples after the same correction.
+    let scale = normalised.map(|x| x / ratio).unwrap_or(1.0);
+    let adjusted: Vec<f64> = m.samples_ns.iter().map(|v| v * scale).collect();
+    let p = mann_whitney(&adjusted, &b.samples_ns, Method::Auto).ok().map(|t| t.p_two_sided);
+    let call = judge(ratio, normalised, p, threshold, alpha);
+    PointGate {
+        design: design.to_string(),
+        rows: n,
+        base_median_ns: b.median_ns,
+        new_median_ns: m.median_ns,
+        ratio,
+        shift: ci.map(|c| c.1 * scale),
+        ratio_low: ci.map(|c| c.0 * scale),
+        ratio_high: ci.map(|c| c.2 * scale),
+        normalised_ratio: normalised,
+        normalised_by: by,
+        p_value: p,
+        call,
+        confirmed: false,
+    }
+}
+
+/// Confirmation of one design's points (in size order): a regression or improvement is
+/// confirmed when a neighbouring compared size made the same call, or the design was
+/// compared at one size only. A change in the code shows at more than one size; run-to-run
+/// noise of one point rarely repeats at the next (two independent tests).
+pub(super) fn confirm(points: &mut [PointGate]) {
+    let calls: Vec<Call> = points.iter().map(|p| p.call).collect();
+    for (k, p) in points.iter_mut().enumerate() {
+        let next_to = |j: Option<usize>| j.and_then(|j| calls.get(j)).is_some_and(|c| *c == p.call);
+        p.confirmed = matches!(p.call, Call::Regression | Call::Improvement)
+            && (calls.len() == 1 || next_to(k.checked_sub(1)) || next_to(Some(k + 1)));
+    }
+}
+
+fn status(w: &WorkloadResults, design: &str, rows: u64) -> String {
+    match w.point(design, rows) {
+        Some(p) if p.measured.is_some() => "measured".into(),
+        Some(p) => format!("skipped: {}", p.skipped.as_ref().map(|s| s.reason.label()).unwrap_or("?")),
+        None => "absent".into(),
+    }
+}
+
+/// The call on one point. `raw` is new/base as measured, `corrected` the same after the
+/// machine-speed correction (if any). A change is called only when the raw ratio and the
+/// corrected one both pass the threshold in the same direction: the correction may explain
+/// a change away (the machine was slower), but never turn equal medians into one.
+fn judge(raw: f64, corrected: Option<f64>, p: Option<f64>, threshold: f64, alpha: f64) -> Call {
+    let significant = p.is_some_and(|p| p < alpha);
+    let up = |r: f64| r > 1.0 + threshold;
+    let down = |r: f64| r < 1.0 / (1.0 + threshold);
+    let c = corrected.unwrap_or(raw);
+    if up(raw) && up(c) {
+        if significant { Call::Regression } else { Call::Unclear }
+    } else if down(raw) && down(c) {
+        if significant { Call::Improvement } else { Call::Unclear }
+    } else {
+        Call::Same
+    }
+}
