@@ -6,7 +6,7 @@
 use super::Finding;
 use crate::analyse::{class_of, DesignAnalysis};
 use crate::fit::growth::GrowthClass;
-use crate::present::units::{bytes, time_ns};
+use crate::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
 use crate::results::{Axis, DesignHeader, Measured};
 use crate::spec::model::ColumnKind;

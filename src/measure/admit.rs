@@ -43,10 +43,10 @@ impl DesignState {
                 detail: format!(
                     "at {} the {} point budget allowed only {} of {} samples (one run {})",
                     plan.axis_point(rows),
-                    crate::present::units::time_ns(b.per_point_s * 1e9),
+                    crate::units::time_ns(b.per_point_s * 1e9),
                     m.samples_ns.len(),
                     b.min_samples,
-                    crate::present::units::time_ns(m.median_ns)
+                    crate::units::time_ns(m.median_ns)
                 ),
             });
         }
@@ -119,10 +119,10 @@ pub fn admit(
                     predicted_bytes: None,
                     detail: format!(
                         "one run predicted at {}; {} runs need {} > {} point budget",
-                        crate::present::units::time_ns(pred),
+                        crate::units::time_ns(pred),
                         opts.runs_needed,
-                        crate::present::units::time_ns(cost_s * 1e9),
-                        crate::present::units::time_ns(b.per_point_s * 1e9)
+                        crate::units::time_ns(cost_s * 1e9),
+                        crate::units::time_ns(b.per_point_s * 1e9)
                     ),
                 }));
             }
@@ -134,9 +134,9 @@ pub fn admit(
                     detail: format!(
                         "{} runs at {} would pass the {} run budget ({} used)",
                         opts.runs_needed,
-                        crate::present::units::time_ns(pred),
-                        crate::present::units::time_ns(b.whole_run_s * 1e9),
-                        crate::present::units::time_ns(elapsed_run_s * 1e9)
+                        crate::units::time_ns(pred),
+                        crate::units::time_ns(b.whole_run_s * 1e9),
+                        crate::units::time_ns(elapsed_run_s * 1e9)
                     ),
                 }));
             }

@@ -126,7 +126,7 @@ pub fn refusals(plan: &Plan, rows: u64, peaks: &[Vec<(u64, f64)>], limit: &memor
                         "needs {} on the {} engine; {} allowed by {}, {:.0}% of it may be used ({})",
                         est.describe(),
                         plan.designs[i].engine.label(),
-                        crate::present::units::bytes(avail as f64),
+                        crate::units::bytes(avail as f64),
                         limit.source,
                         share * 100.0,
                         if limit.hard { "a hard limit: --force cannot lift it" } else { "--force to run anyway" }
@@ -144,7 +144,7 @@ pub fn refusals(plan: &Plan, rows: u64, peaks: &[Vec<(u64, f64)>], limit: &memor
                     detail: format!(
                         "writes {}; {} free in {}, {:.0}% of it may be used (--force to run anyway)",
                         est.describe_disk(),
-                        crate::present::units::bytes(free as f64),
+                        crate::units::bytes(free as f64),
                         std::env::temp_dir().display(),
                         share * 100.0
                     ),

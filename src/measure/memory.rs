@@ -42,16 +42,16 @@ impl Estimate {
         self.table + self.records + self.generator + self.working
     }
     pub fn describe_disk(&self) -> String {
-        format!("about {} in the temp folder", crate::present::units::bytes(self.disk))
+        format!("about {} in the temp folder", crate::units::bytes(self.disk))
     }
     pub fn describe(&self) -> String {
         format!(
             "about {} (table {}, records {}, generator {}, largest design's working memory {})",
-            crate::present::units::bytes(self.total()),
-            crate::present::units::bytes(self.table),
-            crate::present::units::bytes(self.records),
-            crate::present::units::bytes(self.generator),
-            crate::present::units::bytes(self.working)
+            crate::units::bytes(self.total()),
+            crate::units::bytes(self.table),
+            crate::units::bytes(self.records),
+            crate::units::bytes(self.generator),
+            crate::units::bytes(self.working)
         )
     }
 }

@@ -647,7 +647,7 @@ fn exit_text(status: libc::c_int) -> String {
 }
 
 fn secs(d: Duration) -> String {
-    crate::present::units::time_ns(d.as_secs_f64() * 1e9)
+    crate::units::time_ns(d.as_secs_f64() * 1e9)
 }
 
 /// Text from a child made safe to print: control characters replaced, length capped.

@@ -156,7 +156,7 @@ pub fn sweep(
         if seen.armed.is_none() {
             eprintln!(
                 "\nframecost sweep: `{}` at {}: {}; every design fails there, going on",
-                crate::present::units::escaped(&plan.name),
+                crate::units::escaped(&plan.name),
                 plan.axis_point(plan.sizes.get(pos).copied().unwrap_or(0)),
                 describe(&status, &seen, allowance)
             );
@@ -169,8 +169,8 @@ pub fn sweep(
                 .unwrap_or("?");
             eprintln!(
                 "\nframecost sweep: `{}` design `{}` at {}: {}; going on without it",
-                crate::present::units::escaped(&plan.name),
-                crate::present::units::escaped(who),
+                crate::units::escaped(&plan.name),
+                crate::units::escaped(who),
                 plan.axis_point(a.size),
                 describe(&status, &seen, allowance)
             );
@@ -397,7 +397,7 @@ fn describe(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -
         .as_ref()
         .map(|a| a.what.as_str())
         .unwrap_or("the preparation of the size's inputs");
-    let units = |ns: f64| crate::present::units::time_ns(ns);
+    let units = |ns: f64| crate::units::time_ns(ns);
     if let (Some(took), Some(a)) = (seen.runaway, &seen.armed) {
         return format!(
             "{what} ran for {}, past its limit of {} (twice the point budget, at least the budget + 5 s); its measuring process was stopped",
@@ -405,7 +405,7 @@ fn describe(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -
             units(a.limit.as_nanos() as f64)
         );
     }
-    let allowed = crate::present::units::bytes(allowance as f64);
+    let allowed = crate::units::bytes(allowance as f64);
     match (status.signal(), status.code()) {
         (Some(libc::SIGKILL), _) => format!("its measuring process was killed (SIGKILL) during {what}, most likely by the system for lack of memory (it was allowed {allowed})"),
         (Some(libc::SIGABRT), _) => format!("its measuring process aborted during {what}: most likely an allocation failed past the {allowed} it was allowed"),

@@ -110,8 +110,8 @@ fn watch() {
         };
         let detail = format!(
             "{what} ran for {}, past its limit of {} (twice the point budget, at least the budget + 5 s), and could not be stopped from inside; the sweep was ended here",
-            crate::present::units::time_ns(took.as_nanos() as f64),
-            crate::present::units::time_ns(limit.as_nanos() as f64)
+            crate::units::time_ns(took.as_nanos() as f64),
+            crate::units::time_ns(limit.as_nanos() as f64)
         );
         let rec = Record::Point(PointRecord {
             workload,
@@ -127,7 +127,7 @@ fn watch() {
                 let _ = f.sync_data();
             }
         }
-        eprintln!("\nframecost sweep: `{}` at {rows} rows: {detail}", crate::present::units::escaped(&design));
+        eprintln!("\nframecost sweep: `{}` at {rows} rows: {detail}", crate::units::escaped(&design));
         if let Some(dir) = path.parent() {
             eprintln!("framecost sweep: the points measured so far are in {}; `framecost report {}` draws them", dir.display(), dir.display());
         }
