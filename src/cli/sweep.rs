@@ -466,8 +466,8 @@ pub fn run(a: Args) -> i32 {
             }
             println!(
                 "  budgets: {} per point, {} whole run, precision ±{:.1}%, {}–{} samples",
-                crate::present::units::time_ns(p.budget.per_point_s * 1e9),
-                crate::present::units::time_ns(p.budget.whole_run_s * 1e9),
+                crate::units::time_ns(p.budget.per_point_s * 1e9),
+                crate::units::time_ns(p.budget.whole_run_s * 1e9),
                 p.budget.precision * 100.0,
                 p.budget.min_samples,
                 p.budget.max_samples
@@ -480,7 +480,7 @@ pub fn run(a: Args) -> i32 {
                     p.name,
                     rows_label(largest),
                     est.describe_disk(),
-                    crate::present::units::bytes(free as f64)
+                    crate::units::bytes(free as f64)
                 ));
             }
         }
@@ -492,9 +492,9 @@ pub fn run(a: Args) -> i32 {
         }
     }
     if a.plan {
-        println!("memory a size may use now: {} (set by {})", crate::present::units::bytes(avail as f64), limit.source);
+        println!("memory a size may use now: {} (set by {})", crate::units::bytes(avail as f64), limit.source);
         if let Some(free) = crate::measure::memory::available_disk(&std::env::temp_dir()) {
-            println!("free disk in {}: {}", std::env::temp_dir().display(), crate::present::units::bytes(free as f64));
+            println!("free disk in {}: {}", std::env::temp_dir().display(), crate::units::bytes(free as f64));
         }
         for r in &refused {
             println!("would refuse: {r}{}", if a.force { " (but --force is set)" } else { "" });

@@ -3,7 +3,7 @@
 //! SVGs and styles inline; no scripts, fonts or links to anything outside it) and
 //! the notebook tables (`points.parquet`, `samples.parquet`, `points.csv`: `results::export`).
 //!
-//! The pages themselves are laid out in `page.rs` (decision first, an overview across
+//! The pages themselves are laid out in `page/` (decision first, an overview across
 //! workloads, a design × size grid, one picture open and the rest folded); this file draws
 //! the pictures, writes the files and holds the CSV. Writing twice from the same results
 //! gives the same files. The analysis and explanations come made ([`Analysed`]): nothing

@@ -106,97 +106,12 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
     let lane_h = ((h - FIXED - key_h) / designs.len().max(1) as i32).max(MIN_LANE);
     let lanes_bottom = top + lane_h * designs.len().max(1) as i32;
     let mut plot_x = (0, 0);
+    let g = Lanes { top, lane_h, w, right, n, count: designs.len() };
     let mut desc_lanes = Vec::new();
     for (i, d) in designs.iter().enumerate() {
-        let last_lane = i + 1 == designs.len();
-        let lane = root.clone().shrink((0, top + lane_h * i as i32), ((w - right) as u32, (lane_h + if last_lane { 40 } else { 0 }) as u32));
-        let mut sizes: Vec<u64> = runs.iter().flat_map(|(_, r)| r.design_points(d).into_iter().filter(|p| p.measured.is_some()).map(|p| p.rows)).collect();
-        sizes.sort_unstable();
-        sizes.dedup();
-        let first_of = |size: u64| runs.iter().find_map(|(_, r)| r.point(d, size).and_then(|p| p.measured.as_ref()).map(|m| m.median_ns));
-        let rel = |r: &WorkloadResults, size: u64| -> Option<f64> {
-            let m = r.point(d, size)?.measured.as_ref()?.median_ns;
-            let f = first_of(size)?;
-            (f > 0.0 && m > 0.0).then(|| m / f)
-        };
-        let all: Vec<f64> = sizes.iter().flat_map(|&s| runs.iter().filter_map(move |(_, r)| rel(r, s))).collect();
-        let lo = all.iter().copied().fold(1.0, f64::min).min(0.8) / 1.15;
-        let hi = all.iter().copied().fold(1.0, f64::max).max(1.25) * 1.15;
-        let labels = run_labels(runs);
-        let mut chart = ChartBuilder::on(&lane)
-            .margin_top(28)
-            .margin_bottom(6)
-            .margin_left(10)
-            .margin_right(10)
-            .x_label_area_size(if last_lane { 40 } else { 0 })
-            .y_label_area_size(70)
-            .build_cartesian_2d(-0.4f64..(n - 0.6), log_axis(lo, hi, ticks::decimal(lo, hi)))
-            .map_err(err)?;
-        chart
-            .configure_mesh()
-            .light_line_style(RULE.mix(0.45))
-            .bold_line_style(RULE)
-            .axis_style(MUTED)
-            .label_style((FONT, 12).into_font().color(&TEXT))
-            .x_labels(runs.len().min(8))
-            .x_label_formatter(&|v| {
-                let k = v.round();
-                if (v - k).abs() < 1e-6 && k >= 0.0 { labels.get(k as usize).cloned().unwrap_or_default() } else { String::new() }
-            })
-            .y_label_formatter(&|v| format!("×{}", crate::units::short(*v)))
-            .draw()
-            .map_err(err)?;
-        let (xr, yr) = chart.plotting_area().get_pixel_range();
-        plot_x = (xr.start, xr.end);
-        // The lane's name, with the design's mark, in the lane's head.
-        let head = top + lane_h * i as i32 + 6;
-        mark(&root, (26, head + 8), i, true)?;
-        text(&root, &fit_text(&root, &escaped(d), 14.0, w - right - 60), (40, head), 14.0, TEXT)?;
-        let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
-        let mut latest = Vec::new();
-        for (k, &size) in sizes.iter().enumerate() {
-            let keep = 0.35 + 0.65 * (k + 1) as f64 / sizes.len() as f64;
-            let c = tint(ink(i), keep);
-            let pts: Vec<(i32, i32)> = runs.iter().enumerate().filter_map(|(r, (_, res))| rel(res, size).map(|v| px(r as f64, v))).collect();
-            pattern_line(&root, &pts, dashes_of(i), c, 2)?;
-            for p in &pts {
-                draw_mark(&root, *p, mark_of(i), c, true)?;
-            }
-            for m in changes.iter().filter(|m| &m.design == d && m.rows == size) {
-                if let Some(v) = runs.get(m.run).and_then(|(_, res)| rel(res, size)) {
-                    let (x, y) = px(m.run as f64, v);
-                    if m.worse {
-                        root.draw(&Polygon::new(vec![(x, y - 18), (x + 6, y - 9), (x - 6, y - 9)], TEXT.filled())).map_err(err)?;
-                    } else {
-                        let tri = vec![(x - 6, y + 9), (x + 6, y + 9), (x, y + 18), (x - 6, y + 9)];
-                        root.draw(&PathElement::new(tri, TEXT.stroke_width(2))).map_err(err)?;
-                    }
-                }
-            }
-            if let Some(m) = runs.iter().rev().find_map(|(_, r)| r.point(d, size).and_then(|p| p.measured.as_ref())) {
-                latest.push((size, first_of(size).unwrap_or(m.median_ns), m.median_ns, c));
-            }
-        }
-        // The column of latest times, largest size first; as many as fit the lane.
-        let col_x = w - right + 8;
-        let fits = ((yr.end - yr.start) / 16).max(1) as usize;
-        let shown: Vec<&(u64, f64, f64, RGBColor)> = latest.iter().rev().take(fits).collect();
-        for (k, (size, first, ns, c)) in shown.iter().enumerate() {
-            let y = yr.start + 16 * k as i32;
-            root.draw(&Rectangle::new([(col_x, y + 3), (col_x + 14, y + 11)], c.filled())).map_err(err)?;
-            let words = format!("{}: {} → {}", size_label(*size as f64), time_ns(*first), time_ns(*ns));
-            text(&root, &fit_text(&root, &words, 12.0, right - 32), (col_x + 20, y), 12.0, TEXT)?;
-        }
-        desc_lanes.push(format!(
-            "{} ({}): {}",
-            escaped(d),
-            look_words(i),
-            latest.iter().rev().map(|(s, first, ns, _)| format!("{} rows {} first, {} latest", size_label(*s as f64), time_ns(*first), time_ns(*ns))).collect::<Vec<_>>().join(", ")
-        ));
-        // Lane separator.
-        if !last_lane {
-            root.draw(&PathElement::new(vec![(12, top + lane_h * (i as i32 + 1)), (w - 12, top + lane_h * (i as i32 + 1))], RULE.stroke_width(1))).map_err(err)?;
-        }
+        let (span, desc) = lane(&root, &g, i, d, runs, changes)?;
+        plot_x = span;
+        desc_lanes.push(desc);
     }
     // Workload-file changes: a numbered rule between the two runs, across every lane.
     for (k, (run, _, _)) in edits.iter().enumerate() {
@@ -242,6 +157,111 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
         desc += &format!(" {}{}.", l[..1].to_uppercase(), &l[1..]);
     }
     Ok(desc)
+}
+
+/// Where the lanes go: the top of the first, each one's height, the picture's width, the
+/// column of times at the right, the number of runs across, the number of lanes.
+struct Lanes {
+    top: i32,
+    lane_h: i32,
+    w: i32,
+    right: i32,
+    n: f64,
+    count: usize,
+}
+
+/// One design's lane: a line per size relative to its first run, the gate's marks, and the
+/// column of first and latest times. Returns the plot's pixel span across and the lane in words.
+fn lane<DB: DrawingBackend>(root: &Area<DB>, g: &Lanes, i: usize, d: &str, runs: &[(String, &WorkloadResults)], changes: &[RunMark]) -> Res<((i32, i32), String)> {
+    let last_lane = i + 1 == g.count;
+    let lane = root.clone().shrink((0, g.top + g.lane_h * i as i32), ((g.w - g.right) as u32, (g.lane_h + if last_lane { 40 } else { 0 }) as u32));
+    let mut sizes: Vec<u64> = runs.iter().flat_map(|(_, r)| r.design_points(d).into_iter().filter(|p| p.measured.is_some()).map(|p| p.rows)).collect();
+    sizes.sort_unstable();
+    sizes.dedup();
+    let first_of = |size: u64| runs.iter().find_map(|(_, r)| r.point(d, size).and_then(|p| p.measured.as_ref()).map(|m| m.median_ns));
+    let rel = |r: &WorkloadResults, size: u64| -> Option<f64> {
+        let m = r.point(d, size)?.measured.as_ref()?.median_ns;
+        let f = first_of(size)?;
+        (f > 0.0 && m > 0.0).then(|| m / f)
+    };
+    let all: Vec<f64> = sizes.iter().flat_map(|&s| runs.iter().filter_map(move |(_, r)| rel(r, s))).collect();
+    let lo = all.iter().copied().fold(1.0, f64::min).min(0.8) / 1.15;
+    let hi = all.iter().copied().fold(1.0, f64::max).max(1.25) * 1.15;
+    let labels = run_labels(runs);
+    let mut chart = ChartBuilder::on(&lane)
+        .margin_top(28)
+        .margin_bottom(6)
+        .margin_left(10)
+        .margin_right(10)
+        .x_label_area_size(if last_lane { 40 } else { 0 })
+        .y_label_area_size(70)
+        .build_cartesian_2d(-0.4f64..(g.n - 0.6), log_axis(lo, hi, ticks::decimal(lo, hi)))
+        .map_err(err)?;
+    chart
+        .configure_mesh()
+        .light_line_style(RULE.mix(0.45))
+        .bold_line_style(RULE)
+        .axis_style(MUTED)
+        .label_style((FONT, 12).into_font().color(&TEXT))
+        .x_labels(runs.len().min(8))
+        .x_label_formatter(&|v| {
+            let k = v.round();
+            if (v - k).abs() < 1e-6 && k >= 0.0 { labels.get(k as usize).cloned().unwrap_or_default() } else { String::new() }
+        })
+        .y_label_formatter(&|v| format!("×{}", crate::units::short(*v)))
+        .draw()
+        .map_err(err)?;
+    let (xr, yr) = chart.plotting_area().get_pixel_range();
+    // The lane's name, with the design's mark, in the lane's head.
+    let head = g.top + g.lane_h * i as i32 + 6;
+    mark(root, (26, head + 8), i, true)?;
+    text(root, &fit_text(root, &escaped(d), 14.0, g.w - g.right - 60), (40, head), 14.0, TEXT)?;
+    let px = |x: f64, y: f64| chart.backend_coord(&(x, y));
+    let mut latest = Vec::new();
+    for (k, &size) in sizes.iter().enumerate() {
+        let keep = 0.35 + 0.65 * (k + 1) as f64 / sizes.len() as f64;
+        let c = tint(ink(i), keep);
+        let pts: Vec<(i32, i32)> = runs.iter().enumerate().filter_map(|(r, (_, res))| rel(res, size).map(|v| px(r as f64, v))).collect();
+        pattern_line(root, &pts, dashes_of(i), c, 2)?;
+        for p in &pts {
+            draw_mark(root, *p, mark_of(i), c, true)?;
+        }
+        for m in changes.iter().filter(|m| &m.design == d && m.rows == size) {
+            if let Some(v) = runs.get(m.run).and_then(|(_, res)| rel(res, size)) {
+                let (x, y) = px(m.run as f64, v);
+                if m.worse {
+                    root.draw(&Polygon::new(vec![(x, y - 18), (x + 6, y - 9), (x - 6, y - 9)], TEXT.filled())).map_err(err)?;
+                } else {
+                    let tri = vec![(x - 6, y + 9), (x + 6, y + 9), (x, y + 18), (x - 6, y + 9)];
+                    root.draw(&PathElement::new(tri, TEXT.stroke_width(2))).map_err(err)?;
+                }
+            }
+        }
+        if let Some(m) = runs.iter().rev().find_map(|(_, r)| r.point(d, size).and_then(|p| p.measured.as_ref())) {
+            latest.push((size, first_of(size).unwrap_or(m.median_ns), m.median_ns, c));
+        }
+    }
+    // The column of latest times, largest size first; as many as fit the lane.
+    let col_x = g.w - g.right + 8;
+    let fits = ((yr.end - yr.start) / 16).max(1) as usize;
+    let shown: Vec<&(u64, f64, f64, RGBColor)> = latest.iter().rev().take(fits).collect();
+    for (k, (size, first, ns, c)) in shown.iter().enumerate() {
+        let y = yr.start + 16 * k as i32;
+        root.draw(&Rectangle::new([(col_x, y + 3), (col_x + 14, y + 11)], c.filled())).map_err(err)?;
+        let words = format!("{}: {} → {}", size_label(*size as f64), time_ns(*first), time_ns(*ns));
+        text(root, &fit_text(root, &words, 12.0, g.right - 32), (col_x + 20, y), 12.0, TEXT)?;
+    }
+    let desc = format!(
+        "{} ({}): {}",
+        escaped(d),
+        look_words(i),
+        latest.iter().rev().map(|(s, first, ns, _)| format!("{} rows {} first, {} latest", size_label(*s as f64), time_ns(*first), time_ns(*ns))).collect::<Vec<_>>().join(", ")
+    );
+    // Lane separator.
+    if !last_lane {
+        root.draw(&PathElement::new(vec![(12, g.top + g.lane_h * (i as i32 + 1)), (g.w - 12, g.top + g.lane_h * (i as i32 + 1))], RULE.stroke_width(1))).map_err(err)?;
+    }
+    Ok(((xr.start, xr.end), desc))
 }
 
 fn short_hash(h: &str) -> String {
