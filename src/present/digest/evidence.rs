@@ -57,7 +57,7 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
             "{busy} of {} points were measured while the machine was busy; they are left out of growth classes and the verdict.",
             measured.len()
         ));
-        tags.push(format!("busy machine ({busy} points)"));
+        tags.push(format!("busy machine ({busy} point{})", if busy == 1 { "" } else { "s" }));
     }
     for d in &w.header.designs {
         let pts = w.design_points(&d.name);
