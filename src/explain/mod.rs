@@ -21,7 +21,6 @@ pub mod payback;
 pub mod verdict;
 pub use verdict::{verdict, VerdictKind};
 
-
 /// One statement about a design (or the workload), backed by numbers.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Finding {
