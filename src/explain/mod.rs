@@ -23,7 +23,6 @@ pub mod verdict;
 pub use analysed::{Analysed, AnalysedWorkload};
 pub use verdict::{verdict, VerdictKind};
 
-
 /// One statement about a design (or the workload), backed by numbers.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct Finding {

@@ -183,7 +183,6 @@ impl std::fmt::Display for GrowthClass {
 mod tests {
     use super::*;
 
-
     #[test]
     fn labels_round_trip() {
         for c in GrowthClass::ALL {

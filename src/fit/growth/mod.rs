@@ -76,7 +76,6 @@
 //!   (the known-answer suite checks 2 % and 10 %).
 //! - Ties in AICc go to the simpler class (earlier in [`GrowthClass::ALL`]).
 
-
 mod candidate;
 mod classes;
 mod slopes;

@@ -171,7 +171,6 @@ pub struct CommonMode {
     pub spread: f64,
 }
 
-
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct GateReport {
     pub baseline_run: String,
