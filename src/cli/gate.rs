@@ -125,13 +125,7 @@ pub fn render(r: &GateReport) -> String {
     use std::fmt::Write;
     let width = Options::detect(false).width;
     let mut s = String::new();
-    let para = |s: &mut String, label: &str, text: &str| {
-        let first = format!("  {label:<13}");
-        let rest = " ".repeat(first.chars().count());
-        for l in wrap(text, width, &first, &rest) {
-            let _ = writeln!(s, "{l}");
-        }
-    };
+    let para = |s: &mut String, label: &str, text: &str| para(s, width, label, text);
     let _ = writeln!(s, "framecost gate · baseline {} · new {}", r.baseline_run, r.new_run);
     let answer = if r.failed() {
         let mut parts = Vec::new();
@@ -163,106 +157,9 @@ pub fn render(r: &GateReport) -> String {
         }
         let name_w = designs.iter().map(|d| d.chars().count()).max().unwrap_or(0).clamp(8, 28);
         for d in designs {
-            let mut pts: Vec<_> = w.points.iter().filter(|p| p.design == d).collect();
-            pts.sort_by_key(|p| p.rows);
-            let judged = |p: &crate::track::gate::PointGate| p.normalised_ratio.unwrap_or(p.ratio);
-            let ax = crate::results::schema::Axis(w.axis.as_ref());
-            let sizes = |v: &[&&crate::track::gate::PointGate]| v.iter().map(|p| ax.point(p.rows)).collect::<Vec<_>>().join(", ");
-            let times = |v: &[&&crate::track::gate::PointGate]| v.iter().map(|p| format!("{:.2}×", judged(p))).collect::<Vec<_>>().join(", ");
-            let detail = |v: &[&&crate::track::gate::PointGate]| {
-                let ivs: Vec<String> = v
-                    .iter()
-                    .filter_map(|p| match (p.ratio_low, p.ratio_high) {
-                        (Some(a), Some(b)) => Some(format!("{a:.2}×–{b:.2}×")),
-                        _ => None,
-                    })
-                    .collect();
-                let p_max = v.iter().filter_map(|p| p.p_value).fold(f64::NAN, f64::max);
-                let mut t = String::new();
-                if !ivs.is_empty() {
-                    t.push_str(&format!("; 95% interval {}", ivs.join(", ")));
-                }
-                if p_max.is_finite() {
-                    t.push_str(&format!("; rank test p ≤ {p_max:.1e}"));
-                }
-                t
-            };
-            let pick = |call: Call, confirmed: bool| pts.iter().filter(|p| p.call == call && p.confirmed == confirmed).collect::<Vec<_>>();
-            let (slower, faster) = (pick(Call::Regression, true), pick(Call::Improvement, true));
-            let (slower1, faster1) = (pick(Call::Regression, false), pick(Call::Improvement, false));
-            let mut said = Vec::new();
-            if !slower.is_empty() {
-                said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
-            }
-            if !faster.is_empty() {
-                said.push(format!("got faster at {}: {} the baseline's time{}", sizes(&faster), times(&faster), detail(&faster)));
-            }
-            for (v, word) in [(&slower1, "slower"), (&faster1, "faster")] {
-                if !v.is_empty() {
-                    said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(v), times(v)));
-                }
-            }
-            let unclear = pts.iter().filter(|p| p.call == Call::Unclear).count();
-            let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
-            if said.is_empty() {
-                let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
-                let hi = held.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-                let range = if held.is_empty() { String::new() } else { format!(" ({lo:.2}× to {hi:.2}× the baseline's time)") };
-                said.push(format!("no change judged at {} of {} sizes{range}", held.len(), pts.len()));
-            } else if !held.is_empty() {
-                said.push(format!("no change judged at the other {} size(s)", held.len()));
-            }
-            if unclear > 0 {
-                said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
-            }
-            let first = format!("  {d:<name_w$}  ");
-            let rest = " ".repeat(first.chars().count());
-            for l in wrap(&said.join("; "), width, &first, &rest) {
-                let _ = writeln!(s, "{l}");
-            }
+            design_lines(&mut s, w, d, name_w, width);
         }
-        for g in &w.growth {
-            let word = match g.call {
-                Call::Regression => "now grows faster with the data",
-                Call::Improvement => "now grows slower with the data",
-                _ => continue,
-            };
-            let iv = |v: Option<(f64, f64)>| v.map(|(a, b)| format!(" [{a:.2}–{b:.2}]")).unwrap_or_default();
-            para(
-                &mut s,
-                "growth",
-                &format!(
-                    "`{}`: its {} {word}: class {} → {}, log-log slope {:.2}{} → {:.2}{} over {} sizes",
-                    g.design,
-                    g.metric,
-                    g.base_class.clone().unwrap_or_else(|| "?".into()),
-                    g.new_class.clone().unwrap_or_else(|| "?".into()),
-                    g.base_exponent.unwrap_or(f64::NAN),
-                    iv(g.base_interval),
-                    g.new_exponent.unwrap_or(f64::NAN),
-                    iv(g.new_interval),
-                    g.sizes.len()
-                ),
-            );
-        }
-        if let Some(cm) = w.common_mode.as_ref().filter(|cm| (cm.ratio - 1.0).abs() > w.threshold) {
-            para(
-                &mut s,
-                "together",
-                &format!(
-                    "the whole workload moved to {:.2}× the baseline's time (median of its points, spread {:.2}×): the environment, or a change every design shares; reported, not judged — each point is judged against it",
-                    cm.ratio,
-                    cm.spread.exp()
-                ),
-            );
-        }
-        for m in &w.missing {
-            let ax = crate::results::schema::Axis(w.axis.as_ref());
-            para(&mut s, "not compared", &format!("`{}` at {} (baseline: {}; new: {})", m.design, ax.point(m.rows), m.baseline, m.new));
-        }
-        for d in &w.unmatched_designs {
-            para(&mut s, "one run only", &format!("design `{d}`"));
-        }
+        workload_notes(&mut s, w, width);
     }
     for wname in &r.unmatched_workloads {
         let _ = writeln!(s);
@@ -277,4 +174,130 @@ pub fn render(r: &GateReport) -> String {
         let _ = writeln!(s, "{l}");
     }
     s
+}
+
+/// One labelled paragraph of the gate's answer, wrapped to the width.
+fn para(s: &mut String, width: usize, label: &str, text: &str) {
+    use crate::present::terminal::wrap;
+    use std::fmt::Write;
+    let first = format!("  {label:<13}");
+    let rest = " ".repeat(first.chars().count());
+    for l in wrap(text, width, &first, &rest) {
+        let _ = writeln!(s, "{l}");
+    }
+}
+
+/// One design's paragraph: where it got slower or faster (ratio judged, interval, rank
+/// test), or that it held.
+fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, name_w: usize, width: usize) {
+    use crate::present::terminal::wrap;
+    use std::fmt::Write;
+    let mut pts: Vec<_> = w.points.iter().filter(|p| p.design == d).collect();
+    pts.sort_by_key(|p| p.rows);
+    let judged = |p: &crate::track::gate::PointGate| p.normalised_ratio.unwrap_or(p.ratio);
+    let ax = crate::results::schema::Axis(w.axis.as_ref());
+    let sizes = |v: &[&&crate::track::gate::PointGate]| v.iter().map(|p| ax.point(p.rows)).collect::<Vec<_>>().join(", ");
+    let times = |v: &[&&crate::track::gate::PointGate]| v.iter().map(|p| format!("{:.2}×", judged(p))).collect::<Vec<_>>().join(", ");
+    let detail = |v: &[&&crate::track::gate::PointGate]| {
+        let ivs: Vec<String> = v
+            .iter()
+            .filter_map(|p| match (p.shift, p.ratio_low, p.ratio_high) {
+                // The interval belongs to the pairwise (Hodges–Lehmann) estimate, not to the
+                // ratio of medians: printed together, no estimate sits outside its interval.
+                (Some(h), Some(a), Some(b)) => Some(format!("{h:.2}× [{a:.2}×–{b:.2}×]")),
+                (None, Some(a), Some(b)) => Some(format!("[{a:.2}×–{b:.2}×]")),
+                _ => None,
+            })
+            .collect();
+        let p_max = v.iter().filter_map(|p| p.p_value).fold(f64::NAN, f64::max);
+        let mut t = String::new();
+        if !ivs.is_empty() {
+            t.push_str(&format!("; pairwise estimate [95% interval] {}", ivs.join(", ")));
+        }
+        if p_max.is_finite() {
+            t.push_str(&format!("; rank test p ≤ {p_max:.1e}"));
+        }
+        t
+    };
+    let pick = |call: Call, confirmed: bool| pts.iter().filter(|p| p.call == call && p.confirmed == confirmed).collect::<Vec<_>>();
+    let (slower, faster) = (pick(Call::Regression, true), pick(Call::Improvement, true));
+    let (slower1, faster1) = (pick(Call::Regression, false), pick(Call::Improvement, false));
+    let mut said = Vec::new();
+    if !slower.is_empty() {
+        said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
+    }
+    if !faster.is_empty() {
+        said.push(format!("got faster at {}: {} the baseline's time{}", sizes(&faster), times(&faster), detail(&faster)));
+    }
+    for (v, word) in [(&slower1, "slower"), (&faster1, "faster")] {
+        if !v.is_empty() {
+            said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(v), times(v)));
+        }
+    }
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear).count();
+    let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
+    if said.is_empty() {
+        let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = held.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let range = if held.is_empty() { String::new() } else { format!(" ({lo:.2}× to {hi:.2}× the baseline's time)") };
+        said.push(format!("no change judged at {} of {} sizes{range}", held.len(), pts.len()));
+    } else if !held.is_empty() {
+        said.push(format!("no change judged at the other {} size(s)", held.len()));
+    }
+    if unclear > 0 {
+        said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
+    }
+    let first = format!("  {d:<name_w$}  ");
+    let rest = " ".repeat(first.chars().count());
+    for l in wrap(&said.join("; "), width, &first, &rest) {
+        let _ = writeln!(s, "{l}");
+    }
+}
+
+/// What a workload adds after its designs: growth changes, a move of the whole workload,
+/// points and designs not compared.
+fn workload_notes(s: &mut String, w: &crate::track::gate::WorkloadGate, width: usize) {
+    let para = |s: &mut String, label: &str, text: &str| para(s, width, label, text);
+    for g in &w.growth {
+        let word = match g.call {
+            Call::Regression => "now grows faster with the data",
+            Call::Improvement => "now grows slower with the data",
+            _ => continue,
+        };
+        let iv = |v: Option<(f64, f64)>| v.map(|(a, b)| format!(" [{a:.2}–{b:.2}]")).unwrap_or_default();
+        para(
+            s,
+            "growth",
+            &format!(
+                "`{}`: its {} {word}: class {} → {}, log-log slope {:.2}{} → {:.2}{} over {} sizes",
+                g.design,
+                g.metric,
+                g.base_class.clone().unwrap_or_else(|| "?".into()),
+                g.new_class.clone().unwrap_or_else(|| "?".into()),
+                g.base_exponent.unwrap_or(f64::NAN),
+                iv(g.base_interval),
+                g.new_exponent.unwrap_or(f64::NAN),
+                iv(g.new_interval),
+                g.sizes.len()
+            ),
+        );
+    }
+    if let Some(cm) = w.common_mode.as_ref().filter(|cm| (cm.ratio - 1.0).abs() > w.threshold) {
+        para(
+            s,
+            "together",
+            &format!(
+                "the whole workload moved to {:.2}× the baseline's time (median of its points, spread {:.2}×): the environment, or a change every design shares; reported, not judged — each point is judged against it",
+                cm.ratio,
+                cm.spread.exp()
+            ),
+        );
+    }
+    for m in &w.missing {
+        let ax = crate::results::schema::Axis(w.axis.as_ref());
+        para(s, "not compared", &format!("`{}` at {} (baseline: {}; new: {})", m.design, ax.point(m.rows), m.baseline, m.new));
+    }
+    for d in &w.unmatched_designs {
+        para(s, "one run only", &format!("design `{d}`"));
+    }
 }

@@ -29,12 +29,7 @@ impl DesignState {
     pub fn learn_measured(&mut self, plan: &Plan, rows: u64, m: &Measured) {
         let b = plan.budget;
         self.history.push((rows, m.median_ns));
-        self.peaks.push((
-            rows,
-            m.program
-                .map(|p| p.peak_resident_bytes as f64)
-                .unwrap_or(m.alloc.peak_live as f64),
-        ));
+        self.peaks.push((rows, m.program.map(|p| p.peak_resident_bytes as f64).unwrap_or(m.alloc.peak_live as f64)));
         if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
             self.blocked = Some(SkipInfo {
                 reason: SkipReason::SmallerSizeOverBudget,
@@ -54,10 +49,7 @@ impl DesignState {
 
     /// Learn that the design failed at `rows`: it is not run at larger sizes.
     pub fn learn_failed(&mut self, plan: &Plan, rows: u64, info: &SkipInfo) {
-        self.blocked = Some(SkipInfo {
-            detail: format!("failed at {}: {}", plan.axis_point(rows), info.detail),
-            ..info.clone()
-        });
+        self.blocked = Some(SkipInfo { detail: format!("failed at {}: {}", plan.axis_point(rows), info.detail), ..info.clone() });
     }
 }
 
@@ -69,9 +61,7 @@ pub fn predict_ns(history: &[(u64, f64)], rows: u64) -> Option<f64> {
         let tail = &history[history.len().saturating_sub(3)..];
         let x: Vec<f64> = tail.iter().map(|p| p.0 as f64).collect();
         let y: Vec<f64> = tail.iter().map(|p| p.1).collect();
-        super::stats::loglog_slope(&x, &y)
-            .unwrap_or(1.0)
-            .clamp(1.0, 4.0)
+        super::stats::loglog_slope(&x, &y).unwrap_or(1.0).clamp(1.0, 4.0)
     } else {
         1.0
     };
@@ -80,20 +70,13 @@ pub fn predict_ns(history: &[(u64, f64)], rows: u64) -> Option<f64> {
 
 /// The decision for each design at one size: `Ok(())` to run it, or why it is skipped.
 /// A design whose point at this size is already written gets neither (it is left out).
-pub fn admit(
-    plan: &Plan,
-    rows: u64,
-    states: &[DesignState],
-    opts: &SweepOptions,
-    elapsed_run_s: f64,
-) -> Vec<Option<Result<(), SkipInfo>>> {
+pub fn admit(plan: &Plan, rows: u64, states: &[DesignState], opts: &SweepOptions, elapsed_run_s: f64) -> Vec<Option<Result<(), SkipInfo>>> {
     let b = plan.budget;
     let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
     let limit = super::memory::memory_limit();
     // A hard limit (ulimit, cgroup) cannot be forced past: the allocation would fail, so
     // such a size is refused even with --force.
-    let mut refused =
-        super::inputs::refusals(plan, rows, &peaks, &limit, opts.memory_share, opts.force);
+    let mut refused = super::inputs::refusals(plan, rows, &peaks, &limit, opts.memory_share, opts.force);
     (0..plan.designs.len())
         .map(|i| {
             let st = &states[i];

@@ -35,12 +35,7 @@ pub fn workload_header(plan: &Plan, programs: &[Option<ProgramDesign>]) -> Recor
                 name: d.name.clone(),
                 about: d.about.clone(),
                 recipe: d.recipe(),
-                steps: d
-                    .setup
-                    .iter()
-                    .chain(&d.steps)
-                    .map(|s| s.def.name.to_string())
-                    .collect(),
+                steps: d.setup.iter().chain(&d.steps).map(|s| s.def.name.to_string()).collect(),
                 feed: match d.feed {
                     Feed::Table => "table".into(),
                     Feed::Records => "records".into(),
@@ -52,18 +47,11 @@ pub fn workload_header(plan: &Plan, programs: &[Option<ProgramDesign>]) -> Recor
                     mode: p.mode.label().to_string(),
                     input: p.input.label().to_string(),
                     any_row_order: p.any_row_order,
-                    runtime: programs
-                        .get(i)
-                        .and_then(|x| x.as_ref())
-                        .and_then(|x| x.runtime.clone()),
+                    runtime: programs.get(i).and_then(|x| x.as_ref()).and_then(|x| x.runtime.clone()),
                 }),
                 expect_time: d.expect_time.map(str::to_string),
                 expect_bytes: d.expect_bytes.map(str::to_string),
-                expect_dtypes: d
-                    .expect_dtypes
-                    .iter()
-                    .map(|(c, t)| (c.clone(), t.to_string()))
-                    .collect(),
+                expect_dtypes: d.expect_dtypes.iter().map(|(c, t)| (c.clone(), t.to_string())).collect(),
             })
             .collect(),
         outputs_differ: plan.outputs_differ.clone(),
@@ -91,9 +79,5 @@ pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool) -> RunHe
 
 /// The closing record.
 pub fn end_record(started: Instant, mismatches: usize) -> EndRecord {
-    EndRecord {
-        finished_at: now_text(),
-        elapsed_s: started.elapsed().as_secs_f64(),
-        mismatches: mismatches as u64,
-    }
+    EndRecord { finished_at: now_text(), elapsed_s: started.elapsed().as_secs_f64(), mismatches: mismatches as u64 }
 }

@@ -44,13 +44,7 @@ pub struct SweepOptions {
 
 impl Default for SweepOptions {
     fn default() -> Self {
-        SweepOptions {
-            force: false,
-            memory_share: 0.8,
-            runs_needed: 4.0,
-            seed: 0x0f2a_3e5c,
-            resume: None,
-        }
+        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c, resume: None }
     }
 }
 
@@ -59,11 +53,7 @@ pub enum RunError {
     #[error(transparent)]
     Write(#[from] WriteError),
     #[error("could not build the synthetic table of `{workload}` at {rows} rows: {message}")]
-    Table {
-        workload: String,
-        rows: u64,
-        message: String,
-    },
+    Table { workload: String, rows: u64, message: String },
     #[error("could not measure `{workload}`: {message}")]
     Worker { workload: String, message: String },
 }
@@ -131,22 +121,10 @@ fn finish_point(
     }
     a.written = true;
     let point = |m: Option<Measured>, s: Option<SkipInfo>| {
-        Record::Point(PointRecord {
-            workload: plan.name.clone(),
-            design: a.design.name.clone(),
-            rows,
-            measured: m,
-            skipped: s,
-            setup_ns: a.setup_ns,
-        })
+        Record::Point(PointRecord { workload: plan.name.clone(), design: a.design.name.clone(), rows, measured: m, skipped: s, setup_ns: a.setup_ns })
     };
     if let Some(err) = &a.error {
-        let info = SkipInfo {
-            reason: SkipReason::Failed,
-            predicted_ns: None,
-            predicted_bytes: None,
-            detail: err.clone(),
-        };
+        let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: err.clone() };
         st.learn_failed(plan, rows, &info);
         out.write(point(None, Some(info)))?;
         outcome.failures += 1;
@@ -157,53 +135,28 @@ fn finish_point(
     }
     let m = super::sampling::summarize(a, probe_runs, programs);
     st.learn_measured(plan, rows, &m);
-    measured.push((
-        a.design.name.clone(),
-        m.samples_ns.clone(),
-        m.median_ns,
-        m.output.clone(),
-    ));
+    measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
     out.write(point(Some(m), None))?;
     outcome.measured += 1;
     Ok(())
 }
 
 /// What a resumed sweep knows of each design from the points already written.
-fn resumed_states(
-    plan: &Plan,
-    results: &crate::results::reader::RunResults,
-    from: usize,
-) -> Vec<DesignState> {
-    let mut states: Vec<DesignState> = plan
-        .designs
-        .iter()
-        .map(|_| DesignState::default())
-        .collect();
-    let Some(w) = results
-        .workloads
-        .iter()
-        .rev()
-        .find(|w| w.header.workload == plan.name)
-    else {
+fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, from: usize) -> Vec<DesignState> {
+    let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
+    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == plan.name) else {
         return states;
     };
     for p in &w.points {
         let Some(i) = plan.designs.iter().position(|d| d.name == p.design) else {
             continue;
         };
-        if plan
-            .sizes
-            .iter()
-            .position(|&s| s == p.rows)
-            .is_none_or(|k| k >= from)
-        {
+        if plan.sizes.iter().position(|&s| s == p.rows).is_none_or(|k| k >= from) {
             continue;
         }
         match (&p.measured, &p.skipped) {
             (Some(m), _) => states[i].learn_measured(plan, p.rows, m),
-            (None, Some(s)) if s.reason == SkipReason::Failed => {
-                states[i].learn_failed(plan, p.rows, s)
-            }
+            (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(plan, p.rows, s),
             _ => {}
         }
     }
@@ -211,24 +164,16 @@ fn resumed_states(
 }
 
 /// Sweep one plan, writing every record as it is made.
-pub fn sweep(
-    plan: &Plan,
-    opts: &SweepOptions,
-    clock: &ClockInfo,
-    out: &mut RunWriter,
-    progress: &dyn Progress,
-) -> Result<Outcome, RunError> {
+pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let b = plan.budget;
     // Program designs: one work folder each in a temp folder for the whole sweep, and a
     // worker started now (its hello says what it runs on, for the header).
     let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {
-        Some(
-            crate::patterns::storage::TempFolder::create().map_err(|e| RunError::Table {
-                workload: plan.name.clone(),
-                rows: 0,
-                message: format!("could not create a temp folder for the program designs: {e}"),
-            })?,
-        )
+        Some(crate::patterns::storage::TempFolder::create().map_err(|e| RunError::Table {
+            workload: plan.name.clone(),
+            rows: 0,
+            message: format!("could not create a temp folder for the program designs: {e}"),
+        })?)
     } else {
         None
     };
@@ -249,22 +194,10 @@ pub fn sweep(
     let from = resume.as_ref().map(|r| r.from).unwrap_or(0);
     let states = match &resume {
         Some(_) => resumed_states(plan, &out.results, from),
-        None => plan
-            .designs
-            .iter()
-            .map(|_| DesignState::default())
-            .collect(),
+        None => plan.designs.iter().map(|_| DesignState::default()).collect(),
     };
-    let elapsed = std::time::Duration::from_secs_f64(
-        resume
-            .as_ref()
-            .map(|r| r.elapsed_s.clamp(0.0, 1e9))
-            .unwrap_or(0.0),
-    );
-    super::watchdog::names(
-        &plan.name,
-        plan.designs.iter().map(|d| d.name.clone()).collect(),
-    );
+    let elapsed = std::time::Duration::from_secs_f64(resume.as_ref().map(|r| r.elapsed_s.clamp(0.0, 1e9)).unwrap_or(0.0));
+    super::watchdog::names(&plan.name, plan.designs.iter().map(|d| d.name.clone()).collect());
     let mut run = SizeRun {
         plan,
         opts,
@@ -273,17 +206,11 @@ pub fn sweep(
         outcome: Outcome::default(),
         states,
         programs,
-        started: Instant::now()
-            .checked_sub(elapsed)
-            .unwrap_or_else(Instant::now),
+        started: Instant::now().checked_sub(elapsed).unwrap_or_else(Instant::now),
         min_sample_ns: clock.min_sample_ns(),
         probe: super::machine::DriftProbe::new(),
     };
-    warmup_lap(
-        plan,
-        plan.sizes.get(from).copied().unwrap_or(1),
-        &run.states,
-    );
+    warmup_lap(plan, plan.sizes.get(from).copied().unwrap_or(1), &run.states);
     for (k, &rows) in plan.sizes.iter().enumerate().skip(from) {
         if super::interrupt::requested() {
             run.outcome.interrupted = true;
@@ -331,13 +258,7 @@ impl<'p> SizeRun<'p, '_> {
     /// Measure every admitted design at one size. True when a stop was asked for.
     fn one_size(&mut self, rows: u64) -> Result<bool, RunError> {
         let plan = self.plan;
-        let decisions = super::admit::admit(
-            plan,
-            rows,
-            &self.states,
-            self.opts,
-            self.started.elapsed().as_secs_f64(),
-        );
+        let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64());
         let mut runnable = Vec::new();
         for (i, d) in decisions.into_iter().enumerate() {
             match d {
@@ -355,50 +276,16 @@ impl<'p> SizeRun<'p, '_> {
         let inputs = self.prepare(rows, &runnable)?;
         let (mut active, _program_files) = self.activate(rows, &runnable, &inputs)?;
         let mut measured: Vec<MeasuredRow> = Vec::new();
-        super::sampling::first_runs(
-            plan,
-            rows,
-            &mut active,
-            &mut self.programs,
-            self.progress,
-            self.min_sample_ns,
-        );
+        super::sampling::first_runs(plan, rows, &mut active, &mut self.programs, self.progress, self.min_sample_ns);
         super::sampling::warm_up(&plan.budget, rows, &mut active, &mut self.programs);
         // A design's point is written as soon as its sampling ends.
-        let (states, out, outcome, progress) = (
-            &mut self.states,
-            &mut *self.out,
-            &mut self.outcome,
-            self.progress,
-        );
-        let mut done = |a: &mut Active<'p>,
-                        probe_runs: &[(f64, f64)],
-                        programs: &[Option<ProgramDesign>]|
-         -> Result<(), RunError> {
-            finish_point(
-                plan,
-                rows,
-                a,
-                &mut states[a.index],
-                out,
-                outcome,
-                &mut measured,
-                probe_runs,
-                programs,
-            )?;
+        let (states, out, outcome, progress) = (&mut self.states, &mut *self.out, &mut self.outcome, self.progress);
+        let mut done = |a: &mut Active<'p>, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDesign>]| -> Result<(), RunError> {
+            finish_point(plan, rows, a, &mut states[a.index], out, outcome, &mut measured, probe_runs, programs)?;
             progress.point_done();
             Ok(())
         };
-        let (probe_runs, stopped) = super::sampling::interleave(
-            plan,
-            rows,
-            self.started,
-            &self.probe,
-            &mut active,
-            &mut self.programs,
-            progress,
-            &mut done,
-        )?;
+        let (probe_runs, stopped) = super::sampling::interleave(plan, rows, self.started, &self.probe, &mut active, &mut self.programs, progress, &mut done)?;
         // Designs still sampling when a stop was asked for keep what they measured.
         for a in active.iter_mut().filter(|a| !a.written) {
             if a.sampling() {
@@ -422,11 +309,7 @@ impl<'p> SizeRun<'p, '_> {
     }
 
     /// The size's tables (untimed), with their record written.
-    fn prepare(
-        &mut self,
-        rows: u64,
-        runnable: &[usize],
-    ) -> Result<super::inputs::SizeInputs, RunError> {
+    fn prepare(&mut self, rows: u64, runnable: &[usize]) -> Result<super::inputs::SizeInputs, RunError> {
         let plan = self.plan;
         let peaks: Vec<Vec<(u64, f64)>> = self.states.iter().map(|s| s.peaks.clone()).collect();
         let est = super::memory::estimate(plan, rows, &peaks);
@@ -434,35 +317,17 @@ impl<'p> SizeRun<'p, '_> {
         let t0 = Instant::now();
         let engines = |e: EngineChoice| runnable.iter().any(|&i| plan.designs[i].engine == e);
         let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-            super::inputs::SizeInputs::prepare(
-                plan,
-                rows,
-                engines(EngineChoice::Memory),
-                engines(EngineChoice::Streaming),
-            )
+            super::inputs::SizeInputs::prepare(plan, rows, engines(EngineChoice::Memory), engines(EngineChoice::Streaming))
         }))
-        .unwrap_or_else(|p| {
-            Err(format!(
-                "the generator panicked: {}",
-                panic_text(p.as_ref())
-            ))
-        });
-        let inputs = prepared.map_err(|message| RunError::Table {
-            workload: plan.name.clone(),
-            rows,
-            message,
-        })?;
+        .unwrap_or_else(|p| Err(format!("the generator panicked: {}", panic_text(p.as_ref()))));
+        let inputs = prepared.map_err(|message| RunError::Table { workload: plan.name.clone(), rows, message })?;
         let df: DataFrame = inputs.first();
         let generate_ns = t0.elapsed().as_nanos() as f64;
         let gen_alloc = w.close();
         self.out.write(Record::Table(TableRecord {
             workload: plan.name.clone(),
             rows,
-            fingerprint: if inputs.tables.is_empty() {
-                "on disk only".to_string()
-            } else {
-                crate::table::fingerprint(&df)
-            },
+            fingerprint: if inputs.tables.is_empty() { "on disk only".to_string() } else { crate::table::fingerprint(&df) },
             generate_ns,
             generate_alloc_bytes: gen_alloc.bytes,
             table_bytes_estimate: est.table,
@@ -484,27 +349,14 @@ impl<'p> SizeRun<'p, '_> {
         let plan: &'p Plan = self.plan;
         let b = plan.budget;
         let df = inputs.first();
-        let records = if runnable
-            .iter()
-            .any(|&i| plan.designs[i].feed == Feed::Records)
-        {
-            Some(Arc::new(Records::from_frame(&df).map_err(|e| {
-                RunError::Table {
-                    workload: plan.name.clone(),
-                    rows,
-                    message: e.to_string(),
-                }
-            })?))
+        let records = if runnable.iter().any(|&i| plan.designs[i].feed == Feed::Records) {
+            Some(Arc::new(Records::from_frame(&df).map_err(|e| RunError::Table { workload: plan.name.clone(), rows, message: e.to_string() })?))
         } else {
             None
         };
         // Program designs read the tables from files (untimed); a worker loads its input now.
-        let formats: Vec<crate::spec::model::InputFormat> = runnable
-            .iter()
-            .filter_map(|&i| plan.designs[i].program.as_ref().map(|p| p.input))
-            .collect();
-        let program_files =
-            (!formats.is_empty()).then(|| ProgramInputs::write(&inputs.tables, &formats));
+        let formats: Vec<crate::spec::model::InputFormat> = runnable.iter().filter_map(|&i| plan.designs[i].program.as_ref().map(|p| p.input)).collect();
+        let program_files = (!formats.is_empty()).then(|| ProgramInputs::write(&inputs.tables, &formats));
         let mut active = Vec::new();
         for &i in runnable {
             let d = &plan.designs[i];
@@ -513,20 +365,9 @@ impl<'p> SizeRun<'p, '_> {
                 Err(e) => (RunContext::default(), Some(e)),
             };
             if let Some(p) = self.programs.get_mut(i).and_then(|p| p.as_mut()) {
-                let _watch = super::watchdog::arm(
-                    i,
-                    rows,
-                    "loading a program's input",
-                    super::watchdog::limit_for(b.per_point_s),
-                );
+                let _watch = super::watchdog::arm(i, rows, "loading a program's input", super::watchdog::limit_for(b.per_point_s));
                 error = match &program_files {
-                    Some(Ok(files)) => p
-                        .start_size(
-                            files,
-                            plan.rows_at(rows),
-                            super::sampling::program_limit(&b, 0.0),
-                        )
-                        .err(),
+                    Some(Ok(files)) => p.start_size(files, plan.rows_at(rows), super::sampling::program_limit(&b, 0.0)).err(),
                     Some(Err(e)) => Some(e.clone()),
                     None => Some("its input files were not written".into()),
                 };
@@ -535,12 +376,7 @@ impl<'p> SizeRun<'p, '_> {
             let mut feed = design_feed(d, &df, &records);
             let setup_started = Instant::now();
             for s in d.setup.iter().filter(|_| error.is_none()) {
-                let _watch = super::watchdog::arm(
-                    i,
-                    rows,
-                    "a set-up step",
-                    super::watchdog::limit_for(b.per_point_s),
-                );
+                let _watch = super::watchdog::arm(i, rows, "a set-up step", super::watchdog::limit_for(b.per_point_s));
                 match run_step(s, feed.clone(), &ctx) {
                     Ok(v) => feed = v,
                     Err(e) => {
@@ -575,21 +411,14 @@ fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -
 fn warmup_lap(plan: &Plan, at: u64, states: &[DesignState]) {
     let first = plan.sizes.first().copied().unwrap_or(1);
     let rows = plan.rows_at(first).min(1000);
-    let streams = plan
-        .designs
-        .iter()
-        .any(|d| d.engine == EngineChoice::Streaming);
-    let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-        super::inputs::SizeInputs::prepare_rows(plan, first, rows, true, streams)
-    }));
+    let streams = plan.designs.iter().any(|d| d.engine == EngineChoice::Streaming);
+    let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| super::inputs::SizeInputs::prepare_rows(plan, first, rows, true, streams)));
     let Ok(Ok(inputs)) = prepared else { return };
     let df = inputs.first();
     let records = Records::from_frame(&df).ok().map(Arc::new);
     let started = Instant::now();
     for (i, d) in plan.designs.iter().enumerate() {
-        if started.elapsed().as_secs_f64() > plan.budget.per_point_s
-            || super::interrupt::requested()
-        {
+        if started.elapsed().as_secs_f64() > plan.budget.per_point_s || super::interrupt::requested() {
             break;
         }
         // A program warms up in its own process, on its first run at each size; a design
@@ -609,16 +438,7 @@ fn warmup_lap(plan: &Plan, at: u64, states: &[DesignState]) {
         }
         // A runaway here is recorded at the size about to be measured, which it keeps from
         // being measured.
-        let _watch = super::watchdog::arm(
-            i,
-            at,
-            "the untimed warm-up lap (one run on at most 1000 rows)",
-            super::watchdog::limit_for(plan.budget.per_point_s),
-        );
-        let _ = run_design_in(
-            d,
-            make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)),
-            &ctx,
-        );
+        let _watch = super::watchdog::arm(i, at, "the untimed warm-up lap (one run on at most 1000 rows)", super::watchdog::limit_for(plan.budget.per_point_s));
+        let _ = run_design_in(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)), &ctx);
     }
 }

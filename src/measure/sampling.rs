@@ -50,14 +50,7 @@ pub struct Active<'a> {
 }
 
 impl<'a> Active<'a> {
-    pub fn new(
-        index: usize,
-        design: &'a DesignPlan,
-        feed: Value,
-        ctx: RunContext,
-        setup_ns: Option<f64>,
-        error: Option<String>,
-    ) -> Active<'a> {
+    pub fn new(index: usize, design: &'a DesignPlan, feed: Value, ctx: RunContext, setup_ns: Option<f64>, error: Option<String>) -> Active<'a> {
         Active {
             index,
             design,
@@ -106,26 +99,18 @@ pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Res
 }
 
 /// Run one (set-up) step, a panic becoming an error.
-pub fn run_step(
-    s: &crate::plan::StepPlan,
-    input: Value,
-    ctx: &RunContext,
-) -> Result<Value, String> {
+pub fn run_step(s: &crate::plan::StepPlan, input: Value, ctx: &RunContext) -> Result<Value, String> {
     caught(|| s.runner.run_in(input, ctx).map_err(|e| e.to_string()))
 }
 
 /// Run step work with a panic turned into an error that names it.
 fn caught(work: impl FnOnce() -> Result<Value, String>) -> Result<Value, String> {
-    std::panic::catch_unwind(std::panic::AssertUnwindSafe(work))
-        .unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+    std::panic::catch_unwind(std::panic::AssertUnwindSafe(work)).unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
 }
 
 /// The message of a caught panic.
 pub fn panic_text(p: &(dyn std::any::Any + Send)) -> String {
-    p.downcast_ref::<&str>()
-        .map(|s| s.to_string())
-        .or_else(|| p.downcast_ref::<String>().cloned())
-        .unwrap_or_else(|| "no message".into())
+    p.downcast_ref::<&str>().map(|s| s.to_string()).or_else(|| p.downcast_ref::<String>().cloned()).unwrap_or_else(|| "no message".into())
 }
 
 /// The input for one run: shared when steps only read it, a private deep copy otherwise.
@@ -139,9 +124,7 @@ pub fn make_input(feed: &Value, private: bool) -> Value {
 /// Time `batch` runs as one sample. Inputs are built before the clock starts and the
 /// outputs dropped after it stops.
 fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
-    let mut inputs: Vec<Value> = (0..a.batch)
-        .map(|_| make_input(&a.feed, a.private))
-        .collect();
+    let mut inputs: Vec<Value> = (0..a.batch).map(|_| make_input(&a.feed, a.private)).collect();
     let mut outputs: Vec<Result<Value, String>> = Vec::with_capacity(a.batch as usize);
     let cpu0 = process_cpu_ns();
     let w = Window::open();
@@ -161,36 +144,20 @@ fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
         }
     }
     let b = a.batch as f64;
-    let per_run = AllocStats {
-        bytes: (alloc.bytes as f64 / b).round() as u64,
-        count: (alloc.count as f64 / b).round() as u64,
-        peak_live: alloc.peak_live,
-    };
+    let per_run = AllocStats { bytes: (alloc.bytes as f64 / b).round() as u64, count: (alloc.count as f64 / b).round() as u64, peak_live: alloc.peak_live };
     Ok((elapsed / b, cpu / b, per_run, first))
 }
 
 /// What one sample gave: ns per run, CPU ns per run, allocations per run, the first
 /// output (steps only), the resident size at its peak and before it (programs only).
-type Taken = (
-    f64,
-    f64,
-    AllocStats,
-    Option<Value>,
-    Option<(u64, Option<u64>)>,
-);
+type Taken = (f64, f64, AllocStats, Option<Value>, Option<(u64, Option<u64>)>);
 
 /// Take one sample of a design: its steps in this process, or its program.
 fn take(a: &Active, programs: &mut [Option<ProgramDesign>], b: &Budget) -> Result<Taken, String> {
     match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
         Some(p) => {
             let s = p.sample(a.batch, program_limit(b, a.spent_s))?;
-            Ok((
-                s.ns_per_run,
-                s.cpu_ns_per_run,
-                AllocStats::default(),
-                None,
-                s.peak_resident.map(|p| (p, s.resident_before)),
-            ))
+            Ok((s.ns_per_run, s.cpu_ns_per_run, AllocStats::default(), None, s.peak_resident.map(|p| (p, s.resident_before))))
         }
         None => sample(a).map(|(ns, cpu, alloc, out)| (ns, cpu, alloc, out, None)),
     }
@@ -199,9 +166,7 @@ fn take(a: &Active, programs: &mut [Option<ProgramDesign>], b: &Budget) -> Resul
 /// How long a program's request may take: what is left of its point budget, with a
 /// quarter and a second of grace (and at least a second).
 pub fn program_limit(b: &Budget, spent_s: f64) -> std::time::Duration {
-    std::time::Duration::from_secs_f64(
-        (b.per_point_s * 1.25 + 1.0 - spent_s).clamp(1.0, 86_400.0 * 14.0),
-    )
+    std::time::Duration::from_secs_f64((b.per_point_s * 1.25 + 1.0 - spent_s).clamp(1.0, 86_400.0 * 14.0))
 }
 
 /// A sample that ended in an error: a failure of the design, or — when the sweep was
@@ -215,14 +180,7 @@ pub fn failed(a: &mut Active, e: String) {
 }
 
 /// The first run of each design: learn its speed, choose the batch, record its output.
-pub fn first_runs(
-    plan: &Plan,
-    rows: u64,
-    active: &mut [Active],
-    programs: &mut [Option<ProgramDesign>],
-    progress: &dyn Progress,
-    min_sample_ns: f64,
-) {
+pub fn first_runs(plan: &Plan, rows: u64, active: &mut [Active], programs: &mut [Option<ProgramDesign>], progress: &dyn Progress, min_sample_ns: f64) {
     let b = plan.budget;
     for a in active.iter_mut().filter(|a| a.error.is_none()) {
         if super::interrupt::requested() {
@@ -230,12 +188,7 @@ pub fn first_runs(
         }
         progress.point(&plan.name, rows, a.index, &a.design.name, 0);
         let t = Instant::now();
-        let watch = watchdog::arm(
-            a.index,
-            rows,
-            "the first run",
-            watchdog::limit_for(b.per_point_s),
-        );
+        let watch = watchdog::arm(a.index, rows, "the first run", watchdog::limit_for(b.per_point_s));
         let first = take(a, programs, &b);
         drop(watch);
         // The output to compare: a step's first result, or what the program saved.
@@ -243,16 +196,10 @@ pub fn first_runs(
             let facts = match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
                 Some(p) => match p.output(program_limit(&b, a.spent_s + ns / 1e9))? {
                     // How the file was read back says nothing about the program's storage.
-                    Some(df) => Some(OutputFacts {
-                        chunks: 0,
-                        ..facts_for_comparison(plan, &Value::Frame(df))?
-                    }),
+                    Some(df) => Some(OutputFacts { chunks: 0, ..facts_for_comparison(plan, &Value::Frame(df))? }),
                     None => None,
                 },
-                None => out_v
-                    .as_ref()
-                    .map(|v| facts_for_comparison(plan, v))
-                    .transpose()?,
+                None => out_v.as_ref().map(|v| facts_for_comparison(plan, v)).transpose()?,
             };
             Ok((ns, cpu, alloc, facts, peak))
         });
@@ -270,18 +217,9 @@ pub fn first_runs(
                     a.stop = Some(StopReason::PointBudget);
                 } else {
                     // A worker's own clock may cost more to read than framecost's.
-                    let worker_clock = programs
-                        .get(a.index)
-                        .and_then(|p| p.as_ref())
-                        .and_then(|p| p.clock_ns);
-                    let min_ns = worker_clock
-                        .map(|c| (c * 100.0).max(min_sample_ns))
-                        .unwrap_or(min_sample_ns);
-                    let cap = if a.is_program {
-                        super::program::MAX_WORKER_BATCH
-                    } else {
-                        100_000
-                    };
+                    let worker_clock = programs.get(a.index).and_then(|p| p.as_ref()).and_then(|p| p.clock_ns);
+                    let min_ns = worker_clock.map(|c| (c * 100.0).max(min_sample_ns)).unwrap_or(min_sample_ns);
+                    let cap = if a.is_program { super::program::MAX_WORKER_BATCH } else { 100_000 };
                     a.batch = ((min_ns / ns.max(1.0)).ceil() as u64).clamp(1, cap);
                 }
             }
@@ -292,24 +230,14 @@ pub fn first_runs(
 }
 
 /// Further warm-up, in whole batches, while it stays cheap.
-pub fn warm_up(
-    b: &Budget,
-    rows: u64,
-    active: &mut [Active],
-    programs: &mut [Option<ProgramDesign>],
-) {
+pub fn warm_up(b: &Budget, rows: u64, active: &mut [Active], programs: &mut [Option<ProgramDesign>]) {
     for a in active.iter_mut().filter(|a| a.sampling()) {
         for _ in 1..b.warmup {
             if a.spent_s > b.per_point_s * 0.2 || super::interrupt::requested() {
                 break;
             }
             let t = Instant::now();
-            let watch = watchdog::arm(
-                a.index,
-                rows,
-                "a warm-up run",
-                watchdog::limit_for(b.per_point_s),
-            );
+            let watch = watchdog::arm(a.index, rows, "a warm-up run", watchdog::limit_for(b.per_point_s));
             let warm = take(a, programs, b);
             drop(watch);
             if let Err(e) = warm {
@@ -333,11 +261,7 @@ pub fn interleave<'a>(
     active: &mut [Active<'a>],
     programs: &mut [Option<ProgramDesign>],
     progress: &dyn Progress,
-    done: &mut dyn FnMut(
-        &mut Active<'a>,
-        &[(f64, f64)],
-        &[Option<ProgramDesign>],
-    ) -> Result<(), RunError>,
+    done: &mut dyn FnMut(&mut Active<'a>, &[(f64, f64)], &[Option<ProgramDesign>]) -> Result<(), RunError>,
 ) -> Result<(Vec<(f64, f64)>, bool), RunError> {
     let b = plan.budget;
     let mut probe_runs: Vec<(f64, f64)> = Vec::new();
@@ -358,12 +282,7 @@ pub fn interleave<'a>(
             }
             any = true;
             let t = Instant::now();
-            let watch = watchdog::arm(
-                a.index,
-                rows,
-                "a sample",
-                watchdog::limit_for(b.per_point_s),
-            );
+            let watch = watchdog::arm(a.index, rows, "a sample", watchdog::limit_for(b.per_point_s));
             let sw0 = super::hygiene::involuntary_switches();
             let taken = take(a, programs, &b);
             a.switches.0 += super::hygiene::involuntary_switches().saturating_sub(sw0);
@@ -421,11 +340,7 @@ fn decide(a: &Active, b: &Budget, run_elapsed_s: f64) -> Option<StopReason> {
 }
 
 /// The point's record from what was sampled.
-pub fn summarize(
-    a: &Active,
-    probe_runs: &[(f64, f64)],
-    programs: &[Option<ProgramDesign>],
-) -> Measured {
+pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDesign>]) -> Measured {
     // A program's CPU time can be unreadable (NaN) for a sample; the median is over the rest.
     let cpu: Vec<f64> = a.cpu.iter().copied().filter(|x| x.is_finite()).collect();
     let cpu_median = (!cpu.is_empty()).then(|| crate::measure::stats::median(&cpu));
@@ -433,19 +348,10 @@ pub fn summarize(
     s.sort_by(f64::total_cmp);
     let med = median_sorted(&s);
     let ci = median_ci_sorted(&s, 0.95);
-    let tail =
-        super::stats::tail_percentiles(&a.samples).unwrap_or(super::stats::TailPercentiles {
-            p50: med,
-            p90: med,
-            p99: med,
-            max: med,
-        });
+    let tail = super::stats::tail_percentiles(&a.samples).unwrap_or(super::stats::TailPercentiles { p50: med, p90: med, p99: med, max: med });
     let mut by_bytes = a.allocs.clone();
     by_bytes.sort_by_key(|x| x.bytes);
-    let mid = by_bytes
-        .get(by_bytes.len() / 2)
-        .copied()
-        .unwrap_or_default();
+    let mid = by_bytes.get(by_bytes.len() / 2).copied().unwrap_or_default();
     let peak = a.allocs.iter().map(|x| x.peak_live).max().unwrap_or(0);
     Measured {
         stop: a.stop.unwrap_or(StopReason::SampleCap),
@@ -466,32 +372,19 @@ pub fn summarize(
         program: a.is_program.then(|| {
             let p = programs.get(a.index).and_then(|x| x.as_ref());
             // The sample whose runs added the most above what was resident before them.
-            let top = a
-                .resident
-                .iter()
-                .max_by_key(|(peak, before)| peak.saturating_sub(before.unwrap_or(0)))
-                .copied();
+            let top = a.resident.iter().max_by_key(|(peak, before)| peak.saturating_sub(before.unwrap_or(0))).copied();
             ProgramMeasured {
                 child_cpu_ns: cpu_median,
                 peak_resident_bytes: top.map(|t| t.0).unwrap_or(0),
-                resident_before_bytes: top
-                    .and_then(|t| t.1)
-                    .or_else(|| p.and_then(|p| p.resident_before)),
+                resident_before_bytes: top.and_then(|t| t.1).or_else(|| p.and_then(|p| p.resident_before)),
                 load_ns: p.and_then(|p| p.load_ns),
             }
         }),
-        alloc: AllocStats {
-            bytes: mid.bytes,
-            count: mid.count,
-            peak_live: peak,
-        },
+        alloc: AllocStats { bytes: mid.bytes, count: mid.count, peak_live: peak },
         alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
         output: a.output.clone(),
         spent_s: a.spent_s,
-        disturbance: Some(super::hygiene::assess(
-            probe_runs,
-            (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1),
-        )),
+        disturbance: Some(super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1))),
         bimodal: super::hygiene::bimodal(&a.samples),
     }
 }

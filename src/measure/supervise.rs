@@ -56,18 +56,10 @@ struct Watched {
 
 /// Measure workload `index` (`plan`) in child processes, resuming after abnormal ends, and
 /// return what its sweep ended with. `out`'s results are read back from disk afterwards.
-pub fn sweep(
-    plan: &Plan,
-    index: usize,
-    clock: &ClockInfo,
-    out: &mut RunWriter,
-    progress: &dyn Progress,
-) -> Result<Outcome, RunError> {
+pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let dir = out.dir().to_path_buf();
     let points = dir.join("points.jsonl");
-    let start = std::fs::metadata(&points)
-        .map(|m| m.len())
-        .map_err(|e| io_error(&points, e))?;
+    let start = std::fs::metadata(&points).map(|m| m.len()).map_err(|e| io_error(&points, e))?;
     let temp = crate::patterns::storage::TempFolder::create().map_err(|e| io_error(&points, e))?;
     let began = Instant::now();
     let mut resume: Option<Resume> = None;
@@ -83,8 +75,7 @@ pub fn sweep(
             allowance: Some(allowance),
             resume: resume.clone(),
         };
-        let (status, seen) =
-            run_child(plan, order, temp.path(), progress).map_err(|e| io_error(&points, e))?;
+        let (status, seen) = run_child(plan, order, temp.path(), progress).map_err(|e| io_error(&points, e))?;
         if status.success() {
             break Ok(false);
         }
@@ -93,17 +84,13 @@ pub fn sweep(
             Some(crate::exit::WRITE_FAILED) => {
                 break Err(RunError::Write(io_error(
                     &points,
-                    std::io::Error::other(
-                        "the measuring process could not write its results (its message is above)",
-                    ),
+                    std::io::Error::other("the measuring process could not write its results (its message is above)"),
                 )))
             }
             Some(c @ (crate::exit::BAD_INPUT | crate::exit::RUN_FAILED)) => {
                 break Err(RunError::Worker {
                     workload: plan.name.clone(),
-                    message: format!(
-                        "its measuring process stopped with exit code {c} (its message is above)"
-                    ),
+                    message: format!("its measuring process stopped with exit code {c} (its message is above)"),
                 })
             }
             _ => {}
@@ -116,10 +103,7 @@ pub fn sweep(
         if restarts > plan.designs.len() + 1 {
             break Err(RunError::Worker {
                 workload: plan.name.clone(),
-                message: format!(
-                    "its measuring process ended abnormally {restarts} times; the last: {}",
-                    describe(&status, &seen, allowance)
-                ),
+                message: format!("its measuring process ended abnormally {restarts} times; the last: {}", describe(&status, &seen, allowance)),
             });
         }
         let pos = seen
@@ -132,26 +116,12 @@ pub fn sweep(
             .unwrap_or(0);
         let kept = cut_from(&points, start, plan, pos).map_err(|e| io_error(&points, e))?;
         progress.rewound(kept);
-        let info = SkipInfo {
-            reason: SkipReason::Failed,
-            predicted_ns: None,
-            predicted_bytes: None,
-            detail: describe(&status, &seen, allowance),
-        };
-        let mut failed = resume
-            .take()
-            .filter(|r| r.from == pos)
-            .map(|r| r.failed)
-            .unwrap_or_default();
+        let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: describe(&status, &seen, allowance) };
+        let mut failed = resume.take().filter(|r| r.from == pos).map(|r| r.failed).unwrap_or_default();
         match &seen.armed {
             Some(a) if a.design < plan.designs.len() => failed.push((a.design, info)),
             // Nothing was running: the size itself could not be prepared.
-            _ => failed.extend(
-                (0..plan.designs.len())
-                    .filter(|i| !failed.iter().any(|f| f.0 == *i))
-                    .map(|i| (i, info.clone()))
-                    .collect::<Vec<_>>(),
-            ),
+            _ => failed.extend((0..plan.designs.len()).filter(|i| !failed.iter().any(|f| f.0 == *i)).map(|i| (i, info.clone())).collect::<Vec<_>>()),
         }
         if seen.armed.is_none() {
             eprintln!(
@@ -162,11 +132,7 @@ pub fn sweep(
             );
         }
         if let Some(a) = &seen.armed {
-            let who = plan
-                .designs
-                .get(a.design)
-                .map(|d| d.name.as_str())
-                .unwrap_or("?");
+            let who = plan.designs.get(a.design).map(|d| d.name.as_str()).unwrap_or("?");
             eprintln!(
                 "\nframecost sweep: `{}` design `{}` at {}: {}; going on without it",
                 crate::units::escaped(&plan.name),
@@ -175,11 +141,7 @@ pub fn sweep(
                 describe(&status, &seen, allowance)
             );
         }
-        resume = Some(Resume {
-            from: pos,
-            elapsed_s: began.elapsed().as_secs_f64(),
-            failed,
-        });
+        resume = Some(Resume { from: pos, elapsed_s: began.elapsed().as_secs_f64(), failed });
     };
     drop(temp);
     out.reload().map_err(RunError::Write)?;
@@ -188,25 +150,13 @@ pub fn sweep(
 }
 
 fn io_error(path: &Path, source: std::io::Error) -> WriteError {
-    WriteError::Io {
-        path: path.display().to_string(),
-        source,
-    }
+    WriteError::Io { path: path.display().to_string(), source }
 }
 
 /// The counts of a workload's sweep, from its records as written.
 fn outcome_of(out: &RunWriter, plan: &Plan, interrupted: bool) -> Outcome {
-    let mut o = Outcome {
-        interrupted,
-        ..Outcome::default()
-    };
-    if let Some(w) = out
-        .results
-        .workloads
-        .iter()
-        .rev()
-        .find(|w| w.header.workload == plan.name)
-    {
+    let mut o = Outcome { interrupted, ..Outcome::default() };
+    if let Some(w) = out.results.workloads.iter().rev().find(|w| w.header.workload == plan.name) {
         for p in &w.points {
             match (&p.measured, &p.skipped) {
                 (Some(_), _) => o.measured += 1,
@@ -214,11 +164,7 @@ fn outcome_of(out: &RunWriter, plan: &Plan, interrupted: bool) -> Outcome {
                 _ => o.skipped += 1,
             }
         }
-        o.mismatches = w
-            .comparisons
-            .iter()
-            .filter(|c| c.equivalence.status == EquivalenceStatus::Mismatch)
-            .count();
+        o.mismatches = w.comparisons.iter().filter(|c| c.equivalence.status == EquivalenceStatus::Mismatch).count();
     }
     o
 }
@@ -232,24 +178,11 @@ pub const MEMORY_ENV: &str = "FRAMECOST_CHILD_MIB";
 /// already holds (about what a child holds before it builds a table), never above a data
 /// limit already set, nor above [`MEMORY_ENV`].
 fn allowance() -> u64 {
-    let cap = std::env::var(MEMORY_ENV)
-        .ok()
-        .and_then(|v| v.trim().parse::<u64>().ok())
-        .filter(|&m| m > 0)
-        .map(|m| m.saturating_mul(1 << 20));
+    let cap = std::env::var(MEMORY_ENV).ok().and_then(|v| v.trim().parse::<u64>().ok()).filter(|&m| m > 0).map(|m| m.saturating_mul(1 << 20));
     let room = super::memory::memory_limit().bytes;
     let held = std::fs::read_to_string("/proc/self/status")
         .ok()
-        .and_then(|s| {
-            s.lines().find(|l| l.starts_with("VmData:")).and_then(|l| {
-                l[7..]
-                    .trim()
-                    .trim_end_matches("kB")
-                    .trim()
-                    .parse::<u64>()
-                    .ok()
-            })
-        })
+        .and_then(|s| s.lines().find(|l| l.starts_with("VmData:")).and_then(|l| l[7..].trim().trim_end_matches("kB").trim().parse::<u64>().ok()))
         .unwrap_or(0)
         * 1024;
     let natural = room.saturating_add(held).max(256 << 20);
@@ -257,12 +190,7 @@ fn allowance() -> u64 {
 }
 
 /// Start one child, relay its progress, enforce its runs' limits, and wait for it.
-fn run_child(
-    plan: &Plan,
-    mut order: Order,
-    temp: &Path,
-    progress: &dyn Progress,
-) -> std::io::Result<(std::process::ExitStatus, Watched)> {
+fn run_child(plan: &Plan, mut order: Order, temp: &Path, progress: &dyn Progress) -> std::io::Result<(std::process::ExitStatus, Watched)> {
     let mut fds = [0i32; 2];
     // SAFETY: pipe2 fills the two descriptors we own; both are close-on-exec for now.
     if unsafe { libc::pipe2(fds.as_mut_ptr(), libc::O_CLOEXEC) } != 0 {
@@ -274,11 +202,7 @@ fn run_child(
     let text = serde_json::to_string(&order).map_err(std::io::Error::other)?;
     let exe = std::env::current_exe()?;
     let mut cmd = std::process::Command::new(exe);
-    cmd.args(std::env::args_os().skip(1))
-        .env(super::worker::ENV, text)
-        .env("TMPDIR", temp)
-        .stdin(std::process::Stdio::null())
-        .process_group(0);
+    cmd.args(std::env::args_os().skip(1)).env(super::worker::ENV, text).env("TMPDIR", temp).stdin(std::process::Stdio::null()).process_group(0);
     // SAFETY: between fork and exec only async-signal-safe calls: fcntl, prctl, getrlimit,
     // setrlimit.
     unsafe {
@@ -289,14 +213,8 @@ fn run_child(
             libc::prctl(libc::PR_SET_PDEATHSIG, libc::SIGKILL);
             if let Some(bytes) = allowance {
                 let mut rl: libc::rlimit = std::mem::zeroed();
-                if libc::getrlimit(libc::RLIMIT_DATA, &mut rl) == 0
-                    && (rl.rlim_cur == libc::RLIM_INFINITY || rl.rlim_cur > bytes as libc::rlim_t)
-                {
-                    rl.rlim_cur = if rl.rlim_max == libc::RLIM_INFINITY {
-                        bytes as libc::rlim_t
-                    } else {
-                        rl.rlim_max.min(bytes as libc::rlim_t)
-                    };
+                if libc::getrlimit(libc::RLIMIT_DATA, &mut rl) == 0 && (rl.rlim_cur == libc::RLIM_INFINITY || rl.rlim_cur > bytes as libc::rlim_t) {
+                    rl.rlim_cur = if rl.rlim_max == libc::RLIM_INFINITY { bytes as libc::rlim_t } else { rl.rlim_max.min(bytes as libc::rlim_t) };
                     libc::setrlimit(libc::RLIMIT_DATA, &rl);
                 }
             }
@@ -315,11 +233,7 @@ fn run_child(
     let mut pending: Vec<u8> = Vec::new();
     let mut buf = [0u8; 4096];
     loop {
-        let mut pfd = libc::pollfd {
-            fd: read_fd,
-            events: libc::POLLIN,
-            revents: 0,
-        };
+        let mut pfd = libc::pollfd { fd: read_fd, events: libc::POLLIN, revents: 0 };
         // SAFETY: one pollfd we own.
         let ready = unsafe { libc::poll(&mut pfd, 1, 100) };
         if ready > 0 {
@@ -329,9 +243,7 @@ fn run_child(
                     pending.extend_from_slice(&buf[..n]);
                     while let Some(end) = pending.iter().position(|&b| b == b'\n') {
                         let line: Vec<u8> = pending.drain(..=end).collect();
-                        if let Some(ev) =
-                            super::worker::parse(String::from_utf8_lossy(&line).trim_end())
-                        {
+                        if let Some(ev) = super::worker::parse(String::from_utf8_lossy(&line).trim_end()) {
                             relay(plan, ev, &mut seen, progress);
                         }
                     }
@@ -359,31 +271,12 @@ fn run_child(
 fn relay(plan: &Plan, ev: Event, seen: &mut Watched, progress: &dyn Progress) {
     match ev {
         Event::Size(s) => seen.size = Some(s),
-        Event::Armed {
-            design,
-            size,
-            limit_ms,
-            what,
-        } => {
-            seen.armed = Some(Armed {
-                design,
-                size,
-                limit: Duration::from_millis(limit_ms),
-                what,
-                since: Instant::now(),
-            });
+        Event::Armed { design, size, limit_ms, what } => {
+            seen.armed = Some(Armed { design, size, limit: Duration::from_millis(limit_ms), what, since: Instant::now() });
         }
         Event::Disarmed => seen.armed = None,
-        Event::Point {
-            design,
-            size,
-            samples,
-        } => {
-            let name = plan
-                .designs
-                .get(design)
-                .map(|d| d.name.as_str())
-                .unwrap_or("?");
+        Event::Point { design, size, samples } => {
+            let name = plan.designs.get(design).map(|d| d.name.as_str()).unwrap_or("?");
             progress.point(&plan.name, size, design, name, samples);
         }
         Event::Done => progress.point_done(),
@@ -392,11 +285,7 @@ fn relay(plan: &Plan, ev: Event, seen: &mut Watched, progress: &dyn Progress) {
 
 /// Why a child ended, in words, for the failed point.
 fn describe(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -> String {
-    let what = seen
-        .armed
-        .as_ref()
-        .map(|a| a.what.as_str())
-        .unwrap_or("the preparation of the size's inputs");
+    let what = seen.armed.as_ref().map(|a| a.what.as_str()).unwrap_or("the preparation of the size's inputs");
     let units = |ns: f64| crate::units::time_ns(ns);
     if let (Some(took), Some(a)) = (seen.runaway, &seen.armed) {
         return format!(
@@ -407,7 +296,9 @@ fn describe(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -
     }
     let allowed = crate::units::bytes(allowance as f64);
     match (status.signal(), status.code()) {
-        (Some(libc::SIGKILL), _) => format!("its measuring process was killed (SIGKILL) during {what}, most likely by the system for lack of memory (it was allowed {allowed})"),
+        (Some(libc::SIGKILL), _) => {
+            format!("its measuring process was killed (SIGKILL) during {what}, most likely by the system for lack of memory (it was allowed {allowed})")
+        }
         (Some(libc::SIGABRT), _) => format!("its measuring process aborted during {what}: most likely an allocation failed past the {allowed} it was allowed"),
         (Some(sig), _) => format!("its measuring process ended with signal {sig} during {what}"),
         (None, Some(101)) => format!("its measuring process panicked during {what}"),
@@ -429,12 +320,7 @@ fn cut_from(points: &Path, start: u64, plan: &Plan, pos: usize) -> std::io::Resu
         if line.last() != Some(&b'\n') {
             break;
         }
-        let at_or_after = |rows: u64| {
-            plan.sizes
-                .iter()
-                .position(|&s| s == rows)
-                .is_none_or(|k| k >= pos)
-        };
+        let at_or_after = |rows: u64| plan.sizes.iter().position(|&s| s == rows).is_none_or(|k| k >= pos);
         let later = match serde_json::from_slice::<Record>(line) {
             Ok(Record::Point(p)) => p.workload == plan.name && at_or_after(p.rows),
             Ok(Record::Table(t)) => t.workload == plan.name && at_or_after(t.rows),

@@ -123,10 +123,7 @@ pub fn size_started(size: u64) {
 
 /// A run of design `design` at `size` starts and may last `limit`.
 pub fn armed(design: usize, size: u64, limit: std::time::Duration, what: &str) {
-    say(format_args!(
-        "A {design} {size} {} {what}\n",
-        limit.as_millis()
-    ));
+    say(format_args!("A {design} {size} {} {what}\n", limit.as_millis()));
 }
 
 /// The run armed last ended.
@@ -150,18 +147,9 @@ impl Progress for PipeProgress {
 #[derive(Debug, Clone, PartialEq)]
 pub enum Event {
     Size(u64),
-    Armed {
-        design: usize,
-        size: u64,
-        limit_ms: u64,
-        what: String,
-    },
+    Armed { design: usize, size: u64, limit_ms: u64, what: String },
     Disarmed,
-    Point {
-        design: usize,
-        size: u64,
-        samples: usize,
-    },
+    Point { design: usize, size: u64, samples: usize },
     Done,
 }
 
@@ -175,19 +163,10 @@ pub fn parse(line: &str) -> Option<Event> {
         "A" => {
             let (design, size, limit_ms) = (num()? as usize, num()?, num()?);
             let what = it.next().unwrap_or("a run").trim().to_string();
-            Some(Event::Armed {
-                design,
-                size,
-                limit_ms,
-                what,
-            })
+            Some(Event::Armed { design, size, limit_ms, what })
         }
         "a" => Some(Event::Disarmed),
-        "P" => Some(Event::Point {
-            design: num()? as usize,
-            size: num()?,
-            samples: num()? as usize,
-        }),
+        "P" => Some(Event::Point { design: num()? as usize, size: num()?, samples: num()? as usize }),
         "D" => Some(Event::Done),
         _ => None,
     }
@@ -200,24 +179,9 @@ mod tests {
     #[test]
     fn every_line_the_child_writes_parses_back() {
         assert_eq!(parse("S 4096"), Some(Event::Size(4096)));
-        assert_eq!(
-            parse("A 2 8192 5000 the first run"),
-            Some(Event::Armed {
-                design: 2,
-                size: 8192,
-                limit_ms: 5000,
-                what: "the first run".into()
-            })
-        );
+        assert_eq!(parse("A 2 8192 5000 the first run"), Some(Event::Armed { design: 2, size: 8192, limit_ms: 5000, what: "the first run".into() }));
         assert_eq!(parse("a"), Some(Event::Disarmed));
-        assert_eq!(
-            parse("P 1 64 12"),
-            Some(Event::Point {
-                design: 1,
-                size: 64,
-                samples: 12
-            })
-        );
+        assert_eq!(parse("P 1 64 12"), Some(Event::Point { design: 1, size: 64, samples: 12 }));
         assert_eq!(parse("D"), Some(Event::Done));
         assert_eq!(parse("A 1 x 5 y"), None);
         assert_eq!(parse(""), None);

@@ -19,18 +19,22 @@
 //! limit, when the sweep is interrupted, and when this module's handle is dropped. Nothing
 //! here panics on what a child sends: every reply is checked, every line is length-capped.
 
+mod files;
+mod os;
+mod process;
+
+pub use files::{comparable, read_table, write_table, ProgramInputs};
+pub use os::clean;
+use os::*;
 use super::interrupt;
-use crate::patterns::storage::TempFolder;
 use crate::plan::ProgramPlan;
-use crate::spec::model::{InputFormat, ProgramMode};
+use crate::spec::model::ProgramMode;
 use polars::prelude::*;
-use std::io::{BufRead, BufReader, Read, Write};
+use std::io::Read;
 use std::os::unix::process::CommandExt;
 use std::path::{Path, PathBuf};
 use std::process::{Child, ChildStdin, Command, Stdio};
-use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::mpsc::{self, Receiver, RecvTimeoutError};
-use std::sync::Arc;
 use std::time::{Duration, Instant};
 
 /// The protocol version this build speaks.
@@ -42,85 +46,6 @@ pub const MAX_WORKER_BATCH: u64 = 10_000;
 /// Error text of a request cut short by Ctrl-C or SIGTERM (not a failure of the design).
 pub const INTERRUPTED: &str = "interrupted";
 
-/// The files of one size, in the formats the size's program designs read. Removed when
-/// dropped (after the size).
-pub struct ProgramInputs {
-    _folder: TempFolder,
-    files: Vec<(InputFormat, Vec<(String, PathBuf)>)>,
-}
-
-impl ProgramInputs {
-    /// Write every table once per format (untimed).
-    pub fn write(tables: &[(String, DataFrame)], formats: &[InputFormat]) -> Result<ProgramInputs, String> {
-        let folder = TempFolder::create().map_err(|e| format!("could not create a temp folder for the program inputs: {e}"))?;
-        let mut files = Vec::new();
-        for &f in formats {
-            if files.iter().any(|(g, _)| *g == f) {
-                continue;
-            }
-            let mut paths = Vec::new();
-            for (name, df) in tables {
-                // Table names are checked identifiers; the file name is framecost's own.
-                let path = folder.path().join(format!("{name}.{}", f.extension()));
-                write_table(df, &path, f)?;
-                paths.push((name.clone(), path));
-            }
-            files.push((f, paths));
-        }
-        Ok(ProgramInputs { _folder: folder, files })
-    }
-
-    /// The tables' files in format `f` (first table first).
-    pub fn paths(&self, f: InputFormat) -> &[(String, PathBuf)] {
-        self.files.iter().find(|(g, _)| *g == f).map(|(_, p)| p.as_slice()).unwrap_or(&[])
-    }
-}
-
-/// Write one table in a program's format.
-pub fn write_table(df: &DataFrame, path: &Path, f: InputFormat) -> Result<(), String> {
-    let mut df = df.clone();
-    let file = std::fs::File::create(path).map_err(|e| format!("could not write {}: {e}", path.display()))?;
-    let done = match f {
-        InputFormat::Parquet => ParquetWriter::new(file).finish(&mut df).map(|_| ()),
-        InputFormat::Ipc => IpcWriter::new(file).finish(&mut df),
-        InputFormat::Csv => CsvWriter::new(file).finish(&mut df),
-    };
-    done.map_err(|e| format!("could not write {}: {e}", path.display()))
-}
-
-/// Read a table a program wrote, in format `f`.
-pub fn read_table(path: &Path, f: InputFormat) -> Result<DataFrame, String> {
-    let meta = std::fs::metadata(path).map_err(|e| format!("the program wrote no output at {}: {e}", path.display()))?;
-    if !meta.is_file() {
-        return Err(format!("the program's output {} is not a file", path.display()));
-    }
-    let file = std::fs::File::open(path).map_err(|e| format!("could not open the program's output {}: {e}", path.display()))?;
-    let read = match f {
-        InputFormat::Parquet => ParquetReader::new(file).finish(),
-        InputFormat::Ipc => IpcReader::new(file).finish(),
-        InputFormat::Csv => CsvReadOptions::default().with_infer_schema_length(None).into_reader_with_file_handle(file).finish(),
-    };
-    read.map_err(|e| format!("could not read the program's output {} as {}: {e}", path.display(), f.label()))
-}
-
-/// The table as the equivalence check sees it when programs take part: written as CSV and
-/// read back (so every design's output went through the same text form, whatever its
-/// in-memory types), rows sorted when their order carries no meaning.
-pub fn comparable(df: &DataFrame, any_order: bool) -> Result<DataFrame, String> {
-    let mut buf = Vec::new();
-    let mut copy = df.clone();
-    CsvWriter::new(&mut buf).finish(&mut copy).map_err(|e| format!("could not write the output as CSV: {e}"))?;
-    let back = CsvReadOptions::default()
-        .with_infer_schema_length(None)
-        .into_reader_with_file_handle(std::io::Cursor::new(buf))
-        .finish()
-        .map_err(|e| format!("could not read the output back from CSV: {e}"))?;
-    if !any_order || back.width() == 0 || back.height() < 2 {
-        return Ok(back);
-    }
-    let names: Vec<PlSmallStr> = back.get_column_names().into_iter().cloned().collect();
-    back.sort(names, SortMultipleOptions::default()).map_err(|e| format!("could not sort the output's rows: {e}"))
-}
 
 /// One sample of a program design.
 #[derive(Debug, Clone, Copy)]
@@ -350,99 +275,6 @@ impl ProgramDesign {
         }
     }
 
-    fn output_path(&self) -> PathBuf {
-        self.work.join(format!("output.{}", self.plan.input.extension()))
-    }
-
-    /// The command of process mode with its placeholders replaced.
-    fn process_args(&self) -> Vec<String> {
-        let out = self.output_path().display().to_string();
-        let first = self.input.first().map(|p| p.1.display().to_string()).unwrap_or_default();
-        self.plan
-            .command
-            .iter()
-            .map(|a| {
-                let mut s = a.replace("{input}", &first).replace("{output}", &out).replace("{rows}", &self.rows.to_string());
-                for (n, p) in &self.input {
-                    s = s.replace(&format!("{{input:{n}}}"), &p.display().to_string());
-                }
-                s
-            })
-            .collect()
-    }
-
-    /// One whole run of the command: (wall ns, CPU ns, peak resident bytes).
-    fn run_process(&mut self, limit: Duration) -> Result<(f64, f64, u64), String> {
-        let args = self.process_args();
-        let mut cmd = self.command(&args)?;
-        let log = self.log_file()?;
-        cmd.stdin(Stdio::null()).stdout(Stdio::from(log));
-        // The guard that kills the run at its limit starts before the clock.
-        let killed = Arc::new(AtomicBool::new(false));
-        let (tx, rx) = mpsc::channel::<Option<i32>>();
-        let k = killed.clone();
-        let guard = std::thread::spawn(move || {
-            let Ok(Some(pid)) = rx.recv() else { return };
-            let deadline = Instant::now() + limit;
-            loop {
-                match rx.recv_timeout(Duration::from_millis(25)) {
-                    Ok(_) | Err(RecvTimeoutError::Disconnected) => return,
-                    Err(RecvTimeoutError::Timeout) => {
-                        if interrupt::requested() || Instant::now() >= deadline {
-                            k.store(true, Ordering::SeqCst);
-                            kill_group(pid);
-                            return;
-                        }
-                    }
-                }
-            }
-        });
-        let t0 = Instant::now();
-        let child = match cmd.spawn() {
-            Ok(c) => c,
-            Err(e) => {
-                let _ = tx.send(None);
-                let _ = guard.join();
-                return Err(format!("could not start `{}`: {e}", self.plan.written.join(" ")));
-            }
-        };
-        let pid = child.id() as i32;
-        let _ = tx.send(Some(pid));
-        let mut status: libc::c_int = 0;
-        // SAFETY: a zeroed rusage is a valid value for wait4 to fill in.
-        let mut usage: libc::rusage = unsafe { std::mem::zeroed() };
-        let waited = loop {
-            // SAFETY: pid is our own child, not yet reaped; status and usage are valid pointers.
-            let r = unsafe { libc::wait4(pid, &mut status, 0, &mut usage) };
-            if r == pid {
-                break Ok(());
-            }
-            let err = std::io::Error::last_os_error();
-            if err.kind() != std::io::ErrorKind::Interrupted {
-                break Err(format!("could not wait for the program: {err}"));
-            }
-        };
-        let wall = t0.elapsed().as_nanos() as f64;
-        let _ = tx.send(None);
-        let _ = guard.join();
-        // Anything it left running in its group goes too.
-        kill_group(pid);
-        drop(child);
-        waited?;
-        if killed.load(Ordering::SeqCst) {
-            if interrupt::requested() {
-                return Err(INTERRUPTED.into());
-            }
-            return Err(format!("still running after {}: stopped and killed{}", secs(limit), self.tail()));
-        }
-        if !libc::WIFEXITED(status) || libc::WEXITSTATUS(status) != 0 {
-            return Err(format!("{}{}", exit_text(status), self.tail()));
-        }
-        let tv = |t: libc::timeval| t.tv_sec as f64 * 1e9 + t.tv_usec as f64 * 1e3;
-        let cpu = tv(usage.ru_utime) + tv(usage.ru_stime);
-        Ok((wall, cpu, (usage.ru_maxrss.max(0) as u64) * 1024))
-    }
-
     /// Send one request and wait for its reply.
     fn request(&mut self, req: &serde_json::Value, limit: Duration, what: &str) -> Result<serde_json::Value, String> {
         let Some(w) = self.worker.as_mut() else { return Err("the worker is not running".into()) };
@@ -557,115 +389,3 @@ impl Drop for ProgramDesign {
     }
 }
 
-/// Read capped lines from a worker's stdout into a channel until it closes.
-fn read_lines(stdout: std::process::ChildStdout, tx: mpsc::Sender<Result<String, String>>) {
-    let mut r = BufReader::new(stdout);
-    loop {
-        let mut buf = Vec::new();
-        match (&mut r).take(MAX_LINE).read_until(b'\n', &mut buf) {
-            Ok(0) => return,
-            Ok(n) => {
-                if buf.last() != Some(&b'\n') && n as u64 >= MAX_LINE {
-                    let _ = tx.send(Err(format!("the worker sent a line longer than {} MiB", MAX_LINE >> 20)));
-                    return;
-                }
-                let line = String::from_utf8_lossy(&buf).trim().to_string();
-                if line.is_empty() {
-                    continue;
-                }
-                if tx.send(Ok(line)).is_err() {
-                    return;
-                }
-            }
-            Err(e) => {
-                let _ = tx.send(Err(format!("could not read the worker's stdout: {e}")));
-                return;
-            }
-        }
-    }
-}
-
-/// Write to a child's stdin without dying of SIGPIPE when it has gone (framecost restores
-/// the default SIGPIPE action so `| head` ends it quietly): the signal is blocked on this
-/// thread for the write, and one it raised is taken back before unblocking.
-fn write_no_sigpipe(w: &mut ChildStdin, bytes: &[u8]) -> std::io::Result<()> {
-    // SAFETY: plain signal-mask calls on this thread with valid, initialised sets.
-    unsafe {
-        let mut block: libc::sigset_t = std::mem::zeroed();
-        let mut old: libc::sigset_t = std::mem::zeroed();
-        libc::sigemptyset(&mut block);
-        libc::sigaddset(&mut block, libc::SIGPIPE);
-        libc::pthread_sigmask(libc::SIG_BLOCK, &block, &mut old);
-        let r = w.write_all(bytes).and_then(|_| w.flush());
-        if r.as_ref().is_err_and(|e| e.kind() == std::io::ErrorKind::BrokenPipe) {
-            let zero = libc::timespec { tv_sec: 0, tv_nsec: 0 };
-            libc::sigtimedwait(&block, std::ptr::null_mut(), &zero);
-        }
-        libc::pthread_sigmask(libc::SIG_SETMASK, &old, std::ptr::null_mut());
-        r
-    }
-}
-
-fn kill_group(pid: i32) {
-    if pid > 0 {
-        // SAFETY: kill has no memory effects; a negative pid names the child's own group.
-        unsafe {
-            libc::kill(-pid, libc::SIGKILL);
-        }
-    }
-}
-
-/// A field of `/proc/PID/status` in KiB (`VmHWM:`, `VmRSS:`).
-fn status_kib(pid: i32, field: &str) -> Option<u64> {
-    let text = std::fs::read_to_string(format!("/proc/{pid}/status")).ok()?;
-    text.lines().find(|l| l.starts_with(field))?.split_whitespace().nth(1)?.parse().ok()
-}
-
-/// CPU time of every thread of a process (ns), from `/proc/PID/task/*/schedstat`.
-fn task_cpu_ns(pid: i32) -> Option<u64> {
-    let mut total = 0u64;
-    let mut any = false;
-    for e in std::fs::read_dir(format!("/proc/{pid}/task")).ok()?.flatten() {
-        if let Ok(t) = std::fs::read_to_string(e.path().join("schedstat")) {
-            if let Some(ns) = t.split_whitespace().next().and_then(|x| x.parse::<u64>().ok()) {
-                total += ns;
-                any = true;
-            }
-        }
-    }
-    any.then_some(total)
-}
-
-fn exit_text(status: libc::c_int) -> String {
-    if libc::WIFEXITED(status) {
-        format!("the program exited with status {}", libc::WEXITSTATUS(status))
-    } else if libc::WIFSIGNALED(status) {
-        format!("the program was ended by signal {}", libc::WTERMSIG(status))
-    } else {
-        format!("the program ended with wait status {status}")
-    }
-}
-
-fn secs(d: Duration) -> String {
-    crate::units::time_ns(d.as_secs_f64() * 1e9)
-}
-
-/// Text from a child made safe to print: control characters replaced, length capped.
-pub fn clean(s: &str, max: usize) -> String {
-    let t: String = s.chars().map(|c| if c.is_control() { ' ' } else { c }).collect();
-    if t.chars().count() > max {
-        format!("{}…", t.chars().take(max).collect::<String>())
-    } else {
-        t
-    }
-}
-
-/// The last `n` lines of a child's text, each cleaned and indented.
-fn clean_lines(s: &str, n: usize) -> String {
-    let lines: Vec<&str> = s.lines().filter(|l| !l.trim().is_empty()).collect();
-    lines[lines.len().saturating_sub(n)..].iter().map(|l| format!("  | {}", clean(l, 300))).collect::<Vec<_>>().join("\n")
-}
-
-fn short(s: &str) -> String {
-    clean(s, 160)
-}

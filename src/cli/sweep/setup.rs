@@ -1,0 +1,184 @@
+//! What `sweep` does before measuring: every workload loaded and checked with the command
+//! line's overrides applied through the spec's own limits, the program designs listed, what
+//! `--plan` prints about a size; and the measuring child's entry point, which loads the same
+//! workloads from the same command line.
+
+use super::{fail, write_failed, Args};
+use crate::measure::runner::{self, SweepOptions};
+use crate::plan::Plan;
+use crate::results::writer::RunWriter;
+use crate::spec::units::{parse_rows, parse_seconds, parse_share, rows_label};
+
+/// Apply command-line overrides to a plan.
+pub fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
+    if let Some(list) = &a.sizes {
+        if let Some(ax) = &plan.axis {
+            return Err(format!("--sizes: `{}` sweeps {} at {} rows; change its `sweep: values:` instead", plan.name, ax.name, rows_label(ax.rows)));
+        }
+        let mut v = Vec::new();
+        for s in list {
+            v.push(parse_rows(s).map_err(|e| format!("--sizes: expected {e}"))?);
+        }
+        v.sort_unstable();
+        v.dedup();
+        if let Some(m) = crate::spec::validate::sizes_problems(&v).into_iter().next() {
+            return Err(format!("--sizes: {m}"));
+        }
+        plan.sizes = v;
+    }
+    if let Some(s) = &a.point_budget {
+        plan.budget.per_point_s = positive(parse_seconds(s), "--point-budget")?;
+    }
+    if let Some(s) = &a.run_budget {
+        plan.budget.whole_run_s = positive(parse_seconds(s), "--run-budget")?;
+    }
+    if let Some(s) = &a.precision {
+        plan.budget.precision = parse_share(s).map_err(|e| format!("--precision: expected {e}"))?;
+    }
+    if let Some(m) = a.max_samples {
+        if m < plan.budget.min_samples.min(6) {
+            return Err(format!("--max-samples: expected at least {}", plan.budget.min_samples.min(6)));
+        }
+        plan.budget.max_samples = m;
+        plan.budget.min_samples = plan.budget.min_samples.min(m);
+    }
+    if !a.designs.is_empty() {
+        for d in &a.designs {
+            if !plan.designs.iter().any(|x| &x.name == d) {
+                let names: Vec<&str> = plan.designs.iter().map(|x| x.name.as_str()).collect();
+                let hint = crate::spec::suggest::closest(d, names.iter().copied())
+                    .map(|s| format!(" (did you mean `{s}`?)"))
+                    .unwrap_or_default();
+                return Err(format!("--design: `{}` has no design `{d}`{hint}; it has {}", plan.name, names.join(", ")));
+            }
+        }
+        plan.designs.retain(|x| a.designs.contains(&x.name));
+    }
+    // The overridden values go through the same limits as the spec's own.
+    let flag = |key: &str| match key {
+        "per_point" => "--point-budget",
+        "whole_run" => "--run-budget",
+        "precision" => "--precision",
+        _ => "--max-samples",
+    };
+    if let Some((key, m)) = crate::spec::validate::budget_problems(&plan.budget).into_iter().next() {
+        return Err(format!("{}: {m}", flag(key)));
+    }
+    if let Some(m) = crate::spec::validate::plan_param_problems(plan).into_iter().next() {
+        return Err(format!("--sizes: with these sizes, {m}"));
+    }
+    Ok(())
+}
+
+fn positive(v: Result<f64, String>, flag: &str) -> Result<f64, String> {
+    match v {
+        Ok(x) if x > 0.0 && x.is_finite() => Ok(x),
+        Ok(x) => Err(format!("{flag}: expected a duration above zero, found {x} s")),
+        Err(e) => Err(format!("{flag}: expected {e}")),
+    }
+}
+
+/// What `--plan` says about one size: one line, or one per engine when designs differ in it.
+pub fn plan_lines(p: &Plan, n: u64) -> Vec<String> {
+    use crate::spec::model::EngineChoice;
+    let engines: Vec<EngineChoice> = [EngineChoice::Memory, EngineChoice::Streaming]
+        .into_iter()
+        .filter(|e| p.designs.iter().any(|d| d.engine == *e))
+        .collect();
+    let line = |e: crate::measure::memory::Estimate, who: &str| {
+        let disk = if e.disk > 0.0 { format!("; writes {}", e.describe_disk()) } else { String::new() };
+        format!("{who}needs {}{disk}", e.describe())
+    };
+    if engines.len() < 2 && !engines.contains(&EngineChoice::Streaming) {
+        return vec![line(crate::measure::memory::estimate(p, n, &[]), "")];
+    }
+    engines
+        .iter()
+        .map(|&eng| {
+            let largest = (0..p.designs.len())
+                .filter(|&i| p.designs[i].engine == eng)
+                .map(|i| crate::measure::memory::estimate_design(p, i, n, &[]))
+                .max_by(|a, b| a.total().total_cmp(&b.total()));
+            let who = format!("{} engine: ", eng.label());
+            largest.map(|e| line(e, &who)).unwrap_or_default()
+        })
+        .collect()
+}
+
+/// `workload/design: command (mode, input)` for every program design, as the user wrote it.
+pub fn program_commands(plans: &[Plan]) -> Vec<String> {
+    plans
+        .iter()
+        .flat_map(|p| p.designs.iter().filter_map(move |d| d.program.as_ref().map(|g| format!("{}/{}: {}", p.name, d.name, g.label()))))
+        .collect()
+}
+
+/// Every workload of the command line, checked, with its overrides applied.
+pub fn load_plans(a: &Args) -> Result<Vec<Plan>, i32> {
+    let files = crate::cli::expand_paths(&a.paths).map_err(fail)?;
+    // Check everything before running anything.
+    let mut plans = Vec::new();
+    let mut bad = false;
+    for f in &files {
+        match crate::spec::load(f) {
+            Ok(p) => plans.push(p),
+            Err(e) => {
+                eprintln!("{e}");
+                bad = true;
+            }
+        }
+    }
+    for name in &a.builtin {
+        match crate::builtin::load(name) {
+            Ok(p) => plans.push(p),
+            Err(e) => {
+                eprintln!("framecost sweep: --builtin: {e}");
+                bad = true;
+            }
+        }
+    }
+    if bad {
+        return Err(fail("fix the workload files above (nothing was run)"));
+    }
+    for p in plans.iter_mut() {
+        adjust(p, a).map_err(fail)?;
+    }
+    Ok(plans)
+}
+
+/// A measuring child of an isolated sweep (see `measure::supervise`): measure one workload
+/// into the parent's run folder, report over the pipe, print nothing else but errors.
+pub fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, String>) -> i32 {
+    let order = match order {
+        Ok(o) => o,
+        Err(e) => return fail(e),
+    };
+    let plans = match load_plans(a) {
+        Ok(p) => p,
+        Err(code) => return code,
+    };
+    let Some(plan) = plans.get(order.workload) else { return fail(format!("the measuring order names workload {} of {}", order.workload, plans.len())) };
+    if plan.spec_hash != order.spec_hash {
+        return fail(format!("`{}` changed since the sweep started; nothing more was measured", plan.file));
+    }
+    crate::measure::worker::connect(order.fd);
+    crate::measure::interrupt::install_quiet();
+    if let Some(b) = order.allowance {
+        crate::measure::memory::set_allowance(b);
+    }
+    let mut out = match RunWriter::append(&order.dir) {
+        Ok(w) => w,
+        Err(e) => return write_failed(e),
+    };
+    let opts = SweepOptions { force: a.force, resume: order.resume, ..SweepOptions::default() };
+    match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress) {
+        Ok(o) if o.interrupted || crate::measure::interrupt::requested() => crate::exit::INTERRUPTED,
+        Ok(_) => crate::exit::OK,
+        Err(runner::RunError::Write(w)) => write_failed(w),
+        Err(other) => {
+            eprintln!("framecost sweep: {other}");
+            crate::exit::RUN_FAILED
+        }
+    }
+}
+
