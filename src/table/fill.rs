@@ -3,7 +3,9 @@
 //! table stays a small part of a sweep (`benches/generate.rs` measures it against a copy).
 //!
 //! A newcomer must know: on x86-64 the same loop is compiled a second time for AVX-512 and
-//! chosen at run time when the processor has it (eight rows per instruction: SplitMix64's
+//! chosen at run time when the processor has it (by compilers from Rust 1.89, where those
+//! target features are stable: `build.rs` sets `framecost_wide`; older ones build the plain
+//! loops alone) (eight rows per instruction: SplitMix64's
 //! 64-bit multiplies have no narrower vector form). Both copies evaluate the same integer
 //! and IEEE arithmetic on each row, so a table never depends on the machine; the unit test
 //! below compares them. The per-row functions must be branch-free where they can (a select
@@ -19,19 +21,13 @@ use std::ops::Range;
 pub(crate) const GRAIN: usize = 1 << 14;
 
 /// True when the wide copy of the loops can run here (checked once, then cached by std).
+#[cfg(all(target_arch = "x86_64", framecost_wide))]
 #[inline]
 fn wide() -> bool {
-    #[cfg(target_arch = "x86_64")]
-    {
-        std::arch::is_x86_feature_detected!("avx512f")
-            && std::arch::is_x86_feature_detected!("avx512dq")
-            && std::arch::is_x86_feature_detected!("avx512vl")
-            && std::arch::is_x86_feature_detected!("avx512bw")
-    }
-    #[cfg(not(target_arch = "x86_64"))]
-    {
-        false
-    }
+    std::arch::is_x86_feature_detected!("avx512f")
+        && std::arch::is_x86_feature_detected!("avx512dq")
+        && std::arch::is_x86_feature_detected!("avx512vl")
+        && std::arch::is_x86_feature_detected!("avx512bw")
 }
 
 #[inline(always)]
@@ -41,7 +37,7 @@ fn fill_plain<T>(out: &mut [MaybeUninit<T>], base: u64, f: &impl Fn(u64) -> T) {
     }
 }
 
-#[cfg(target_arch = "x86_64")]
+#[cfg(all(target_arch = "x86_64", framecost_wide))]
 #[target_feature(enable = "avx512f,avx512dq,avx512vl,avx512bw")]
 unsafe fn fill_wide<T>(out: &mut [MaybeUninit<T>], base: u64, f: &impl Fn(u64) -> T) {
     fill_plain(out, base, f)
@@ -49,7 +45,7 @@ unsafe fn fill_wide<T>(out: &mut [MaybeUninit<T>], base: u64, f: &impl Fn(u64) -
 
 /// `out[j] = f(base + j)` for every j, with the fastest copy of the loop this machine runs.
 fn fill_chunk<T>(out: &mut [MaybeUninit<T>], base: u64, f: &impl Fn(u64) -> T) {
-    #[cfg(target_arch = "x86_64")]
+    #[cfg(all(target_arch = "x86_64", framecost_wide))]
     if wide() {
         // SAFETY: `wide()` checked that the processor has every feature the copy is built for.
         unsafe { fill_wide(out, base, f) };
@@ -65,7 +61,7 @@ fn map_plain<T: Copy>(vals: &mut [T], f: &impl Fn(T) -> T) {
     }
 }
 
-#[cfg(target_arch = "x86_64")]
+#[cfg(all(target_arch = "x86_64", framecost_wide))]
 #[target_feature(enable = "avx512f,avx512dq,avx512vl,avx512bw")]
 unsafe fn map_wide<T: Copy>(vals: &mut [T], f: &impl Fn(T) -> T) {
     map_plain(vals, f)
@@ -73,7 +69,7 @@ unsafe fn map_wide<T: Copy>(vals: &mut [T], f: &impl Fn(T) -> T) {
 
 /// `vals[j] = f(vals[j])` for every j, on this thread (the caller is already parallel).
 pub(crate) fn map_in_place<T: Copy>(vals: &mut [T], f: impl Fn(T) -> T) {
-    #[cfg(target_arch = "x86_64")]
+    #[cfg(all(target_arch = "x86_64", framecost_wide))]
     if wide() {
         // SAFETY: as in `fill_chunk`.
         unsafe { map_wide(vals, &f) };
@@ -143,7 +139,7 @@ fn bits_plain(out: &mut [u8], base: u64, rows: u64, set: &impl Fn(u64) -> bool) 
     }
 }
 
-#[cfg(target_arch = "x86_64")]
+#[cfg(all(target_arch = "x86_64", framecost_wide))]
 #[target_feature(enable = "avx512f,avx512dq,avx512vl,avx512bw")]
 unsafe fn bits_wide(out: &mut [u8], base: u64, rows: u64, set: &impl Fn(u64) -> bool) {
     bits_plain(out, base, rows, set)
@@ -155,7 +151,7 @@ pub(crate) fn bits(rows: u64, set: impl Fn(u64) -> bool + Sync) -> Bitmap {
     // Chunks of whole words, so every task starts at a multiple of 64 rows.
     bytes.par_chunks_mut(GRAIN / 8).enumerate().for_each(|(c, chunk)| {
         let base = (c * GRAIN) as u64;
-        #[cfg(target_arch = "x86_64")]
+        #[cfg(all(target_arch = "x86_64", framecost_wide))]
         if wide() {
             // SAFETY: as in `fill_chunk`.
             unsafe { bits_wide(chunk, base, rows, &set) };
@@ -202,7 +198,7 @@ mod tests {
             assert_eq!(bm.len() as u64, rows);
             assert!(bm.iter().enumerate().all(|(i, b)| b == (st.at(i as u64) < cut)), "{rows} rows");
         }
-        #[cfg(target_arch = "x86_64")]
+        #[cfg(all(target_arch = "x86_64", framecost_wide))]
         if wide() {
             // And the wide copy alone, on the same rows.
             let mut v: Vec<MaybeUninit<u64>> = Vec::with_capacity(n as usize);
