@@ -1,7 +1,9 @@
 //! `framecost table SPEC --rows N --write FILE` end to end: each format's file is what its
 //! published specification says, holds the same table `sweep` would build (the content
 //! fingerprint), is readable by an independent reader (Python's csv module for CSV), is the
-//! only file written, and sizes that do not fit are refused before anything is written.
+//! only file written, and sizes that do not fit are refused before anything is written. A
+//! workload that sweeps another axis is written at one of its points (`--at`), and one of
+//! several related tables with `--table`.
 
 use assert_cmd::Command;
 use polars::prelude::*;
@@ -87,6 +89,126 @@ fn sizes_that_do_not_fit_and_bad_requests_are_refused_without_writing() {
         let err = String::from_utf8_lossy(&out.stderr);
         assert_eq!(out.status.code(), Some(2), "{a:?}: {err}");
         assert!(err.contains(words), "{a:?}: {err}");
+    }
+    assert!(only_file_in(dir.path()).is_empty(), "nothing may be written: {:?}", only_file_in(dir.path()));
+}
+
+fn workload(name: &str) -> std::path::PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("workloads").join(name)
+}
+
+/// The tables `sweep` builds at swept value `x` of a workload.
+fn swept_tables(path: &Path, x: u64) -> Vec<(String, DataFrame)> {
+    let plan = framecost::spec::load(path).expect("spec");
+    framecost::table::related::generate_tables(&plan.tables_at(x), plan.seed, plan.related, plan.rows_at(x)).expect("tables")
+}
+
+#[test]
+fn a_point_of_an_axis_sweep_is_written_with_at() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let write = |spec: &Path, args: &[&str], file: &str| {
+        let path = dir.path().join(file);
+        let mut a = vec![spec.to_str().expect("utf8"), "--write", path.to_str().expect("utf8")];
+        a.extend(args);
+        let out = table(&a);
+        assert_eq!(out.status.code(), Some(0), "{args:?}: {}", String::from_utf8_lossy(&out.stderr));
+        (path, String::from_utf8_lossy(&out.stdout).to_string())
+    };
+    let parquet = |p: &Path| ParquetReader::new(std::fs::File::open(p).expect("open")).finish().expect("readable");
+
+    // group-count sweeps the distinct count of `grouping` at its `rows: 64k`.
+    let groups = workload("group-count.yaml");
+    let (path, said) = write(&groups, &["--at", "1k"], "g1k.parquet");
+    assert!(said.contains("64000 rows") && said.contains("at 1k groups"), "{said}");
+    let df = parquet(&path);
+    assert_eq!(df.height(), 64_000);
+    // Reference: the occupancy problem (Feller, An Introduction to Probability Theory and Its
+    // Applications, vol. 1, ch. II): n uniform draws over d values leave d·(1 − 1/d)ⁿ values
+    // undrawn on average — 1000·(1 − 1/1000)^64000 ≈ 1.6e-25 here, so all 1000 appear …
+    assert_eq!(df.column("grouping").expect("column").n_unique().expect("n_unique"), 1000);
+    // … and it is the table `sweep` measures at that point.
+    let want = &swept_tables(&groups, 1000)[0].1;
+    assert_eq!(framecost::table::fingerprint(&df), framecost::table::fingerprint(want));
+    // At 16k groups λ = 64000/16000 = 4 draws per value: d·(1 − e^−λ) ≈ 15707 seen, with a
+    // standard deviation of √(d·e^−λ·(1 − (1 + λ)·e^−λ)) ≈ 16 (same source); 1% is 10 of them.
+    let (path, _) = write(&groups, &["--at", "16k"], "g16k.parquet");
+    let seen = parquet(&path).column("grouping").expect("column").n_unique().expect("n_unique") as f64;
+    let expect = 16_000.0 * (1.0 - (1.0 - 1.0 / 16_000.0f64).powi(64_000));
+    assert!((seen - expect).abs() < 0.01 * expect, "{seen} distinct, expected about {expect:.0}");
+    // --rows replaces the workload's rows.
+    let (path, said) = write(&groups, &["--at", "256", "--rows", "2k"], "g-rows.parquet");
+    assert_eq!(parquet(&path).height(), 2000, "{said}");
+
+    // column-growth sweeps the number of columns at `rows: 8k`: the declared five, then copies.
+    let columns = workload("column-growth.yaml");
+    let (path, said) = write(&columns, &["--at", "32"], "c32.csv");
+    assert!(said.contains("32 columns"), "{said}");
+    let df = CsvReadOptions::default().try_into_reader_with_file_path(Some(path)).expect("reader").finish().expect("csv");
+    assert_eq!((df.height(), df.width()), (8000, 32));
+    let names: Vec<String> = df.get_column_names().iter().map(|n| n.to_string()).collect();
+    assert_eq!(&names[..6], &["crate_id", "kilograms", "parcel", "variety", "picked_on", "crate_id_2"]);
+    // Without --at, the table as declared.
+    let (path, _) = write(&columns, &[], "declared.ipc");
+    assert_eq!(IpcReader::new(std::fs::File::open(&path).expect("open")).finish().expect("ipc").width(), 5);
+
+    // A null-share sweep: the share asked for, within three binomial standard errors
+    // (√(p(1 − p)/n) [the binomial distribution's variance]).
+    let nulls = dir.path().join("nulls.yaml");
+    std::fs::write(
+        &nulls,
+        "name: null-share\nseed: 5\ntable:\n  columns:\n    - {name: line, kind: key}\n    - {name: kilograms, kind: float, range: [1, 500]}\nrows: 40k\nsweep: {axis: missing weights, column: kilograms, set: nulls, values: [1%, 5%, 25%]}\ndesigns:\n  - {name: a, feed: records, steps: [build_from_records]}\n  - {name: b, feed: records, steps: [build_from_records]}\n",
+    )
+    .expect("spec");
+    let (path, said) = write(&nulls, &["--at", "10%"], "n.parquet");
+    assert!(said.contains("at missing weights 10%"), "{said}");
+    let df = parquet(&path);
+    let share = df.column("kilograms").expect("column").null_count() as f64 / df.height() as f64;
+    assert!((share - 0.10).abs() < 3.0 * (0.1f64 * 0.9 / 40_000.0).sqrt(), "null share {share}");
+    assert_eq!(df.column("line").expect("column").null_count(), 0);
+}
+
+#[test]
+fn one_of_several_related_tables_is_the_one_sweep_builds() {
+    // sql-filter-join: `members` has 1/20 of the swept rows, `deliveries` all of them, and
+    // deliveries.member_id refers to members.member_id.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let spec = workload("sql-filter-join.yaml");
+    let want = swept_tables(&spec, 10_000);
+    for (name, rows) in [("members", 500), ("deliveries", 10_000)] {
+        let path = dir.path().join(format!("{name}.parquet"));
+        let out = table(&[spec.to_str().expect("utf8"), "--rows", "10k", "--table", name, "--write", path.to_str().expect("utf8")]);
+        assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+        let got = ParquetReader::new(std::fs::File::open(&path).expect("open")).finish().expect("readable");
+        assert_eq!(got.height(), rows);
+        let (_, df) = want.iter().find(|(n, _)| n == name).expect("table");
+        assert_eq!(framecost::table::fingerprint(&got), framecost::table::fingerprint(df), "{name}");
+    }
+}
+
+#[test]
+fn at_is_refused_where_it_does_not_apply() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let groups = workload("group-count.yaml");
+    let columns = workload("column-growth.yaml");
+    let tiny = Path::new(env!("CARGO_MANIFEST_DIR")).join(SPEC);
+    for (spec, args, words) in [
+        (&groups, vec!["--at", "100k"], vec!["from 1 to the table's 64000 rows", "sweeps groups", "from 16 to 16k"]),
+        (&groups, vec!["--at", "16k", "--rows", "4k"], vec!["the table's 4000 rows"]),
+        (&groups, vec!["--at", "lots"], vec!["found `lots`", "such as 100 or 10k"]),
+        (&groups, vec!["--at", "1.5"], vec!["whole number"]),
+        (&columns, vec!["--at", "0"], vec!["from 1 to", "sweeps columns"]),
+        (&tiny, vec!["--at", "4"], vec!["--at: `tiny-ledger` sweeps rows", "--rows alone"]),
+        (&tiny, vec![], vec!["--rows is needed", "up to 128k"]),
+        (&groups, vec!["--at", "1k", "--table", "ledger"], vec!["no table `ledger`"]),
+    ] {
+        let mut a = vec![spec.to_str().expect("utf8"), "--write", "t.parquet"];
+        a.extend(args.iter().copied());
+        let out = Command::cargo_bin("framecost").expect("binary").current_dir(dir.path()).arg("table").args(&a).output().expect("runs");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+        for w in words {
+            assert!(err.contains(w), "{args:?}: `{w}` not in: {err}");
+        }
     }
     assert!(only_file_in(dir.path()).is_empty(), "nothing may be written: {:?}", only_file_in(dir.path()));
 }

@@ -130,17 +130,39 @@ pub(super) fn check_sweep(c: &mut Checker, spec: &WorkloadSpec, columns: &[Colum
     (out, Some(AxisPlan { name, set: sw.set, column: sw.column.clone(), rows }))
 }
 
-/// One swept value as written, checked and stored as a whole number.
-fn value(set: AxisSet, raw: &Y, rows: u64, column: Option<&ColumnPlan>) -> Result<u64, String> {
+/// A swept value written on the command line (`framecost table --at`), checked as lint
+/// checks an entry of `values:` — against `rows`, the first table's rows it will be written
+/// at — and returned as the whole number the plan stores (shares and exponents in
+/// millionths). `columns` are the first table's.
+pub fn value_at(axis: &AxisPlan, columns: &[ColumnPlan], text: &str, rows: u64) -> Result<u64, String> {
+    let column = axis.column.as_deref().and_then(|name| columns.iter().find(|c| c.name == name));
+    let Some(v) = number(&Y::String(text.to_string())) else {
+        return Err(format!("expected {}, found `{text}`", expected(axis.set)));
+    };
+    checked(axis.set, v, rows, column)
+}
+
+/// The number a swept value stands for (`10k`, `12.5%`, `0.5`), if it is one.
+fn number(raw: &Y) -> Option<f64> {
     let number = match raw {
         Y::Number(n) => n.as_f64(),
         Y::String(t) if t.trim_end().ends_with('%') => super::units::parse_share(t).ok(),
         Y::String(t) => super::units::parse_rows(t).ok().map(|v| v as f64).or_else(|| t.trim().parse::<f64>().ok()),
         _ => None,
     };
-    let Some(v) = number.filter(|v| v.is_finite()) else {
+    number.filter(|v| v.is_finite())
+}
+
+/// One swept value as written, checked and stored as a whole number.
+fn value(set: AxisSet, raw: &Y, rows: u64, column: Option<&ColumnPlan>) -> Result<u64, String> {
+    let Some(v) = number(raw) else {
         return Err(format!("expected {}, found {}", expected(set), super::validate::yaml_kind_of(raw)));
     };
+    checked(set, v, rows, column)
+}
+
+/// A swept value's number checked for its axis, as the whole number the plan stores.
+fn checked(set: AxisSet, v: f64, rows: u64, column: Option<&ColumnPlan>) -> Result<u64, String> {
     match set {
         AxisSet::Distinct => {
             let hi = rows.min(1_000_000_000);

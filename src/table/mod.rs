@@ -4,8 +4,12 @@
 //! plan and seed give the same table bit for bit, and a column is unaffected by its
 //! neighbours. Orders other than `random` are made after drawing (sorting, runs). A
 //! newcomer must know: [`fingerprint`] hashes contents in row order independent of chunking,
-//! which is what lets differently-built outputs be compared.
+//! which is what lets differently-built outputs be compared; and every column is filled by
+//! `fill.rs`'s loops from a per-row closure, so keep those closures free of per-row branches
+//! on what is fixed for the column (write one closure per case instead): that is what lets
+//! them vectorise.
 
+mod fill;
 pub mod permute;
 pub mod related;
 pub mod rng;
@@ -62,56 +66,83 @@ fn validity(c: &ColumnPlan, seed: u64, span: Range<u64>) -> Option<Bitmap> {
     let st = Stream::new(seed, &c.name, NULLS);
     let cut = (c.nulls * u64::MAX as f64) as u64;
     let (start, rows) = (span.start, span.end - span.start);
-    Some(bits(rows, |i| st.at(start + i) >= cut))
+    Some(fill::bits(rows, |i| st.at(start + i) >= cut))
 }
 
-/// A bitmap of `rows` bits, bit i = `set(i)`, built eight rows per byte in parallel.
-fn bits(rows: u64, set: impl Fn(u64) -> bool + Sync) -> Bitmap {
-    let bytes: Vec<u8> = (0..rows.div_ceil(8) as usize)
-        .into_par_iter()
-        .with_min_len(1 << 12)
-        .map(|b| {
-            let b = b as u64;
-            let mut byte = 0u8;
-            for bit in 0..8u64 {
-                let i = b * 8 + bit;
-                if i < rows && set(i) {
-                    byte |= 1 << bit;
-                }
-            }
-            byte
-        })
-        .collect();
-    Bitmap::from_u8_vec(bytes, rows as usize)
-}
-
-/// Draws pool ranks 0..d for every row: uniform or Zipf, then put in the column's order.
-fn ranks(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, d: u64) -> Vec<u64> {
+/// Values of a column drawn from a pool of `d` (pool rank k → `value(k)`), in the column's
+/// order: ranks uniform, or Zipf when the column is skewed.
+fn ranked<T: Copy + PartialOrd + Send>(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, d: u64, value: impl Fn(u64) -> T + Sync) -> Vec<T> {
     let st = Stream::new(seed, &c.name, VALUES);
+    // Two loops, not one with a test per row, so each stays branch-free.
+    match (c.skew > 0.0).then(|| Alias::zipf(d, c.skew)) {
+        Some(a) => ordered(c, rows, span, |i| value(a.draw(st.at(i)))),
+        None => ordered(c, rows, span, |i| value(st.below(i, d))),
+    }
+}
+
+/// Rows `span` of a column in random or clustered order holding `look[k % p]` for each
+/// row's pool rank k (p = `look.len()`, smaller than d only when the pool was cut to the
+/// table's rows).
+fn pooled<T: Copy + Send + Sync>(c: &ColumnPlan, seed: u64, span: Range<u64>, d: u64, look: &[T]) -> Vec<T> {
+    let st = Stream::new(seed, &c.name, VALUES);
+    let p = look.len() as u64;
+    // SAFETY: every index is reduced below p, the table's length.
+    let at = |k: u64| unsafe { *look.get_unchecked(k as usize) };
     let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
-    let draw = |i: u64| match &alias {
-        Some(a) => a.draw(st.at(i)),
-        None => st.below(i, d),
-    };
-    ordered(c, rows, span, draw)
+    // One loop per case, so none tests per row what is fixed for the column.
+    match (&alias, p < d) {
+        (Some(a), false) => spread(c, span, |i| at(a.draw(st.at(i)))),
+        (Some(a), true) => spread(c, span, |i| at(a.draw(st.at(i)) % p)),
+        (None, false) => spread(c, span, |i| at(st.below(i, d))),
+        (None, true) => spread(c, span, |i| at(st.below(i, d) % p)),
+    }
+}
+
+/// Largest pool whose values are computed once into a table rather than per row.
+const POOL_TABLE: u64 = 1 << 16;
+
+/// `value(k)` for pool ranks k in `0..d`, through a table computed once when the pool is
+/// small and the span at least as long (a table read instead of 128-bit arithmetic per row).
+fn pool_values<T: Copy + PartialOrd + Send + Sync>(
+    c: &ColumnPlan,
+    seed: u64,
+    rows: u64,
+    span: Range<u64>,
+    d: u64,
+    value: impl Fn(u64) -> T + Sync,
+) -> Vec<T> {
+    if d <= POOL_TABLE && d <= span.end - span.start {
+        let table: Vec<T> = (0..d).map(&value).collect();
+        // SAFETY: ranks are below d, the table's length.
+        ranked(c, seed, rows, span, d, |k| unsafe { *table.get_unchecked(k as usize) })
+    } else {
+        ranked(c, seed, rows, span, d, value)
+    }
 }
 
 /// Produce the values of rows `span` (of `rows`) from a per-row drawing function, in the
 /// column's order. Random and clustered orders make only the span; sorted orders make the
 /// whole column and slice it.
 pub(crate) fn ordered<T: Copy + PartialOrd + Send>(c: &ColumnPlan, rows: u64, span: Range<u64>, draw: impl Fn(u64) -> T + Sync) -> Vec<T> {
-    let par = |r: Range<u64>| (r.start as usize..r.end as usize).into_par_iter().with_min_len(1 << 14);
     match c.order {
-        Order::Random => par(span).map(|i| draw(i as u64)).collect(),
-        Order::Clustered => par(span).map(|i| draw(i as u64 / c.run)).collect(),
+        Order::Random | Order::Clustered => spread(c, span, draw),
         Order::Sorted | Order::Reverse => {
-            let mut v: Vec<T> = par(0..rows).map(|i| draw(i as u64)).collect();
+            let mut v: Vec<T> = fill::collect(0..rows, draw);
             v.par_sort_unstable_by(|a, b| a.partial_cmp(b).unwrap_or(std::cmp::Ordering::Equal));
             if c.order == Order::Reverse {
                 v.reverse();
             }
             slice_span(v, rows, span)
         }
+    }
+}
+
+/// Rows `span` of a column in random or clustered order (row i drawn as i, or as its run
+/// `i / run`): made for the span alone.
+fn spread<T: Copy + Send>(c: &ColumnPlan, span: Range<u64>, draw: impl Fn(u64) -> T + Sync) -> Vec<T> {
+    match c.order {
+        Order::Clustered => fill::collect_runs(span, c.run, draw),
+        _ => fill::collect(span, draw),
     }
 }
 
@@ -135,57 +166,49 @@ fn pooled_int(k: u64, d: u64, lo: i64, hi: i64) -> i64 {
     (lo as i128 + (pos as u128 * span / (d as u128 - 1)) as i128) as i64
 }
 
-fn int_values(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, lo: i64, hi: i64) -> Vec<i64> {
+/// An int (or date) column's values, each passed through `conv` (the storage type).
+fn int_values<T: Copy + PartialOrd + Send + Sync>(
+    c: &ColumnPlan,
+    seed: u64,
+    rows: u64,
+    span: Range<u64>,
+    lo: i64,
+    hi: i64,
+    conv: impl Fn(i64) -> T + Sync,
+) -> Vec<T> {
+    let width = (hi as i128 - lo as i128 + 1) as u128;
     match c.distinct {
         Some(d) => {
-            let width = (hi as i128 - lo as i128 + 1) as u128;
             let d = d.min(width.min(u64::MAX as u128) as u64);
-            if c.order == Order::Random || c.order == Order::Clustered {
-                ranks(c, seed, rows, span, d).into_iter().map(|k| pooled_int(k, d, lo, hi)).collect()
-            } else {
-                let st = Stream::new(seed, &c.name, VALUES);
-                let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
-                ordered(c, rows, span, |i| {
-                    let k = match &alias {
-                        Some(a) => a.draw(st.at(i)),
-                        None => st.below(i, d),
-                    };
-                    pooled_int(k, d, lo, hi)
-                })
-            }
+            pool_values(c, seed, rows, span, d, |k| conv(pooled_int(k, d, lo, hi)))
         }
         None => {
             let st = Stream::new(seed, &c.name, VALUES);
-            let width = (hi as i128 - lo as i128 + 1) as u128;
             if width > u64::MAX as u128 {
-                ordered(c, rows, span, |i| st.at(i) as i64)
+                ordered(c, rows, span, |i| conv(st.at(i) as i64))
             } else {
                 let width = width as u64;
-                ordered(c, rows, span, |i| (lo as i128 + st.below(i, width) as i128) as i64)
+                // lo + the draw, taken modulo 2⁶⁴ (the sum is in [lo, hi], so it is exact).
+                ordered(c, rows, span, |i| conv(lo.wrapping_add(st.below(i, width) as i64)))
             }
         }
     }
 }
 
 fn float_values(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, lo: f64, hi: f64) -> Vec<f64> {
-    let st = Stream::new(seed, &c.name, VALUES);
     match c.distinct {
-        Some(d) => {
-            let alias = (c.skew > 0.0).then(|| Alias::zipf(d, c.skew));
-            ordered(c, rows, span, |i| {
-                let k = match &alias {
-                    Some(a) => a.draw(st.at(i)),
-                    None => st.below(i, d),
-                };
-                if d <= 1 {
-                    lo
-                } else {
-                    let pos = if d % SCATTER == 0 { k } else { (k as u128 * SCATTER as u128 % d as u128) as u64 };
-                    lo + (hi - lo) * pos as f64 / (d - 1) as f64
-                }
-            })
+        Some(d) => pool_values(c, seed, rows, span, d, |k| {
+            if d <= 1 {
+                lo
+            } else {
+                let pos = if d % SCATTER == 0 { k } else { (k as u128 * SCATTER as u128 % d as u128) as u64 };
+                lo + (hi - lo) * pos as f64 / (d - 1) as f64
+            }
+        }),
+        None => {
+            let st = Stream::new(seed, &c.name, VALUES);
+            ordered(c, rows, span, |i| lo + (hi - lo) * st.unit(i))
         }
-        None => ordered(c, rows, span, |i| lo + (hi - lo) * st.unit(i)),
     }
 }
 
@@ -197,8 +220,8 @@ fn key_values(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>) -> Vec<i64
     }
     let st = Stream::new(seed, &c.name, SHUFFLE);
     let mut v: Vec<i64> = match c.order {
-        Order::Sorted => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| i as i64).collect(),
-        Order::Reverse => (0..rows as usize).into_par_iter().with_min_len(1 << 14).map(|i| rows as i64 - 1 - i as i64).collect(),
+        Order::Sorted => fill::collect(0..rows, |i| i as i64),
+        Order::Reverse => fill::collect(0..rows, |i| rows as i64 - 1 - i as i64),
         Order::Random => permute::random_order(&st, rows),
         Order::Clustered => {
             // Sorted runs of `run` keys, the runs themselves in shuffled order.
@@ -266,7 +289,7 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, ref_rows: Opti
             };
             let v = match ref_rows {
                 Some(n) => related::reference_values(c, seed, rows, span, n),
-                None => int_values(c, seed, rows, span, lo, hi),
+                None => int_values(c, seed, rows, span, lo, hi, |x| x),
             };
             Int64Chunked::from_vec_validity(name, v, valid).into_series()
         }
@@ -283,16 +306,17 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, ref_rows: Opti
                 RangePlan::Date(a, b) => (a as i64, b as i64),
                 _ => (18262, 21914),
             };
-            let v: Vec<i32> = int_values(c, seed, rows, span, lo, hi).into_iter().map(|x| x as i32).collect();
+            // Dates are days in i32; the range is checked to fit.
+            let v: Vec<i32> = int_values(c, seed, rows, span, lo, hi, |x| x as i32);
             Int32Chunked::from_vec_validity(name, v, valid).into_date().into_series()
         }
         ColumnKind::Bool => {
             let st = Stream::new(seed, &c.name, VALUES);
             let cut = (c.true_share * u64::MAX as f64) as u64;
             let ca = if c.order == Order::Random {
-                // Straight into bits, eight rows per byte, in parallel (the span alone).
+                // Straight into bits, 64 rows per word, in parallel (the span alone).
                 let start = span.start;
-                BooleanChunked::from_bitmap(name, bits(span.end - span.start, |i| st.at(start + i) < cut))
+                BooleanChunked::from_bitmap(name, fill::bits(span.end - span.start, |i| st.at(start + i) < cut))
             } else {
                 BooleanChunked::from_slice(name, &ordered(c, rows, span, |i| st.at(i) < cut))
             };
@@ -304,13 +328,35 @@ fn column(c: &ColumnPlan, seed: u64, rows: u64, span: Range<u64>, ref_rows: Opti
         }
         ColumnKind::Text | ColumnKind::Category => {
             let d = c.distinct.unwrap_or(100).max(1);
-            let pool: Vec<String> = (0..d.min(rows.max(1))).map(|k| word(seed, &c.name, k, d, c.length)).collect();
+            let pool: Vec<String> =
+                (0..d.min(rows.max(1)) as usize).into_par_iter().with_min_len(1 << 10).map(|k| word(seed, &c.name, k as u64, d, c.length)).collect();
             // Ranks beyond the pool built (only when d > rows) are folded into it.
-            let r = ranks(c, seed, rows, span, d);
-            if c.kind == ColumnKind::Category {
-                text::category(name, &pool, &r, valid)?
-            } else {
-                text::text(name, &pool, &r, valid)
+            match (c.order, c.kind) {
+                (Order::Sorted | Order::Reverse, _) => {
+                    // Sorted by rank (the words sort in rank order), then looked up.
+                    let r = ranked(c, seed, rows, span, d, |k| k);
+                    if c.kind == ColumnKind::Category {
+                        text::category(name, &pool, &r, valid)?
+                    } else {
+                        text::text(name, &pool, &r, valid)
+                    }
+                }
+                (_, ColumnKind::Category) => {
+                    let (dtype, ids) = text::register(&pool)?;
+                    let codes = if c.skew > 0.0 && ids.len() as u64 == d {
+                        // The Zipf table gives ids directly (one table read fewer per row).
+                        let st = Stream::new(seed, &c.name, VALUES);
+                        let a = Alias::zipf(d, c.skew).relabel(|k| ids[k as usize]);
+                        spread(c, span, |i| a.draw(st.at(i)) as u32)
+                    } else {
+                        pooled(c, seed, span, d, &ids)
+                    };
+                    text::category_from_ids(name, &dtype, codes, valid)?
+                }
+                _ => match text::pool_views(&pool) {
+                    Some((views, buffer)) => text::text_from_views(name, pooled(c, seed, span, d, &views), buffer, valid),
+                    None => text::text(name, &pool, &ranked(c, seed, rows, span, d, |k| k), valid),
+                },
             }
         }
     };

@@ -9,8 +9,7 @@
 use super::rng::Stream;
 use rayon::prelude::*;
 
-/// Rows per parallel task.
-const GRAIN: usize = 1 << 14;
+use super::fill::{self, GRAIN};
 
 /// A pseudo-random permutation of 0..rows (one key per row, each exactly once).
 pub fn random_order(st: &Stream, rows: u64) -> Vec<i64> {
@@ -29,17 +28,37 @@ pub fn random_order(st: &Stream, rows: u64) -> Vec<i64> {
         }
         (l << half) | r
     };
-    (0..rows as usize)
-        .into_par_iter()
-        .with_min_len(GRAIN)
-        .map(|i| {
-            let mut x = feistel(i as u64);
-            while x >= rows {
-                x = feistel(x);
+    let mut keys = fill::collect(0..rows, |i| feistel(i) as i64);
+    if 1u64 << (2 * half) == rows {
+        // The network's domain is exactly 0..rows: every key already landed.
+        return keys;
+    }
+    // Cycle walking: a key that landed at or past `rows` is sent through the network again
+    // until it lands below. Done per chunk on the keys still walking, each pass one
+    // vectorised loop over them alone.
+    keys.par_chunks_mut(GRAIN).for_each(|chunk| {
+        if !chunk.iter().fold(false, |any, &x| any | (x as u64 >= rows)) {
+            return;
+        }
+        let (mut at, mut walking): (Vec<usize>, Vec<u64>) =
+            chunk.iter().enumerate().filter(|(_, &x)| x as u64 >= rows).map(|(j, &x)| (j, x as u64)).unzip();
+        while !walking.is_empty() {
+            fill::map_in_place(&mut walking, feistel);
+            let mut kept = 0;
+            for m in 0..walking.len() {
+                if walking[m] < rows {
+                    chunk[at[m]] = walking[m] as i64;
+                } else {
+                    at[kept] = at[m];
+                    walking[kept] = walking[m];
+                    kept += 1;
+                }
             }
-            x as i64
-        })
-        .collect()
+            at.truncate(kept);
+            walking.truncate(kept);
+        }
+    });
+    keys
 }
 
 /// Apply the duplicated-key rule: row i (i ≥ 1) is a repeat when `du.at(i) < cut`, and then

@@ -35,7 +35,7 @@ impl Stream {
     /// A number in `0..n` for row `i` (multiply-high mapping, Lemire 2019).
     #[inline(always)]
     pub fn below(&self, i: u64, n: u64) -> u64 {
-        ((self.at(i) as u128 * n as u128) >> 64) as u64
+        mul_high(self.at(i), n)
     }
 
     /// A float in [0, 1) for row `i`.
@@ -45,24 +45,49 @@ impl Stream {
     }
 }
 
+/// The high 64 bits of `x · n`. For `n` below 2³² the product is taken in two 32-bit halves
+/// (exactly the same number: `x·n = 2³²·(xh·n) + xl·n`, and the low part's carry is
+/// `xl·n >> 32`), which vectorises where a 128-bit product does not.
+#[inline(always)]
+pub fn mul_high(x: u64, n: u64) -> u64 {
+    if n >> 32 == 0 {
+        ((x >> 32) * n + ((x & 0xffff_ffff) * n >> 32)) >> 32
+    } else {
+        ((x as u128 * n as u128) >> 64) as u64
+    }
+}
+
 /// Walker/Vose alias table: draws index k with probability proportional to weights[k] in O(1).
+///
+/// Stored for speed without changing a draw: the coin `c · 2⁻⁵³ < prob[k]` (c a 53-bit
+/// integer) is tested as `c < ⌈prob[k] · 2⁵³⌉` (the scaling by a power of two is exact), and
+/// each slot packs its two outcomes, `k` and its alias, into one word, so a draw is two
+/// table reads and a shift, with no branch on random data. [`Alias::relabel`] packs other
+/// outcomes (a category id for k) into the same slots.
 #[derive(Debug, Clone)]
 pub struct Alias {
-    prob: Vec<f64>,
-    alias: Vec<u32>,
+    cut: Vec<u64>,
+    /// Low half: the outcome when the coin is under the cut; high half: otherwise.
+    both: Vec<u64>,
 }
 
 impl Alias {
-    /// Zipf weights 1/(k+1)^s over `n` values.
+    /// Zipf weights 1/(k+1)^s over `n` values (`n` below 2³²).
     pub fn zipf(n: u64, s: f64) -> Alias {
         let w: Vec<f64> = (0..n).map(|k| 1.0 / ((k + 1) as f64).powf(s)).collect();
-        Alias::new(&w)
+        Alias::new(w)
     }
 
-    pub fn new(weights: &[f64]) -> Alias {
+    /// The table for `weights` (fewer than 2³² of them), whose buffer it reuses.
+    pub fn new(weights: Vec<f64>) -> Alias {
         let n = weights.len();
+        // More would take over 100 GiB to build; the memory guard refuses such sizes first.
+        debug_assert!(n as u64 <= u32::MAX as u64, "an alias table holds fewer than 2^32 values");
         let total: f64 = weights.iter().sum();
-        let mut prob: Vec<f64> = weights.iter().map(|w| w * n as f64 / total).collect();
+        let mut prob = weights;
+        for w in prob.iter_mut() {
+            *w = *w * n as f64 / total;
+        }
         let mut alias = vec![0u32; n];
         let (mut small, mut large): (Vec<usize>, Vec<usize>) = (0..n).partition(|&i| prob[i] < 1.0);
         while let (Some(s), Some(&l)) = (small.pop(), large.last()) {
@@ -76,21 +101,30 @@ impl Alias {
         for i in large.into_iter().chain(small) {
             prob[i] = 1.0;
         }
-        Alias { prob, alias }
+        const SCALE: f64 = (1u64 << 53) as f64;
+        let cut: Vec<u64> = prob.into_iter().map(|p| (p * SCALE).ceil().max(0.0) as u64).collect();
+        let both = alias.iter().enumerate().map(|(k, &a)| k as u64 | (a as u64) << 32).collect();
+        Alias { cut, both }
+    }
+
+    /// The same draws with each outcome k replaced by `f(k)`.
+    pub fn relabel(&self, f: impl Fn(u64) -> u32) -> Alias {
+        let both = self.both.iter().map(|&b| f(b & 0xffff_ffff) as u64 | (f(b >> 32) as u64) << 32).collect();
+        Alias { cut: self.cut.clone(), both }
     }
 
     /// Draw with one random word.
     #[inline(always)]
     pub fn draw(&self, word: u64) -> u64 {
-        let n = self.prob.len() as u64;
-        let k = ((word as u128 * n as u128) >> 64) as usize;
+        let n = self.cut.len() as u64;
+        let k = mul_high(word, n) as usize;
         // The low 53 bits after removing the index bits give the coin.
-        let coin = ((word.wrapping_mul(n)) >> 11) as f64 * (1.0 / (1u64 << 53) as f64);
-        if coin < self.prob[k] {
-            k as u64
-        } else {
-            self.alias[k] as u64
-        }
+        let coin = word.wrapping_mul(n) >> 11;
+        debug_assert!(k < self.cut.len());
+        // SAFETY: k = ⌊word·n / 2⁶⁴⌋ < n, the length of both tables (no bounds check, so
+        // the loops that call this vectorise).
+        let (cut, both) = unsafe { (*self.cut.get_unchecked(k), *self.both.get_unchecked(k)) };
+        (both >> (((coin >= cut) as u64) << 5)) & 0xffff_ffff
     }
 }
 

@@ -13,23 +13,18 @@ use polars_arrow::bitmap::Bitmap;
 use polars_arrow::datatypes::ArrowDataType;
 use rayon::prelude::*;
 
-/// Rows per parallel task.
-const GRAIN: usize = 1 << 14;
+use super::fill::GRAIN;
 
-/// A text column: row i holds `pool[ranks[i] % pool.len()]` (null where `valid` says so).
-pub fn text(name: PlSmallStr, pool: &[String], ranks: &[u64], valid: Option<Bitmap>) -> Series {
+/// The pool's words as views: each word longer than 12 bytes is copied once into the
+/// returned buffer, and its view points there (None when the words would not fit the
+/// views' 32-bit offsets).
+pub fn pool_views(pool: &[String]) -> Option<(Vec<View>, Vec<u8>)> {
     let long: usize = pool.iter().filter(|w| w.len() > View::MAX_INLINE_SIZE as usize).map(String::len).sum();
     if long > u32::MAX as usize {
-        // Views address their buffer with 32-bit offsets: fall back to one string per row.
-        let p = pool.len() as u64;
-        let ca: StringChunked = match &valid {
-            Some(bm) => ranks.iter().zip(bm.iter()).map(|(&k, ok)| ok.then(|| pool[(k % p) as usize].as_str())).collect(),
-            None => ranks.iter().map(|&k| Some(pool[(k % p) as usize].as_str())).collect(),
-        };
-        return ca.with_name(name).into_series();
+        return None;
     }
     let mut buffer: Vec<u8> = Vec::with_capacity(long);
-    let views_of_pool: Vec<View> = pool
+    let views = pool
         .iter()
         .map(|w| {
             let offset = buffer.len() as u32;
@@ -39,26 +34,63 @@ pub fn text(name: PlSmallStr, pool: &[String], ranks: &[u64], valid: Option<Bitm
             View::new_from_bytes(w.as_bytes(), 0, offset)
         })
         .collect();
-    let p = pool.len() as u64;
-    let views: Vec<View> = ranks.par_iter().with_min_len(GRAIN).map(|&k| views_of_pool[(k % p) as usize]).collect();
+    Some((views, buffer))
+}
+
+/// A text column from rows' views of the pool made by [`pool_views`] (with its buffer).
+pub fn text_from_views(name: PlSmallStr, views: Vec<View>, buffer: Vec<u8>, valid: Option<Bitmap>) -> Series {
     let buffers = if buffer.is_empty() { Vec::new() } else { vec![buffer.into()] };
-    // SAFETY: every view was made by `View::new_from_bytes` from a valid UTF-8 word, and its
-    // offset points at that word's bytes in buffer 0 (words of up to 12 bytes are inline).
+    // SAFETY: every view is a copy of one `pool_views` made by `View::new_from_bytes` from a
+    // valid UTF-8 word, and its offset points at that word's bytes in buffer 0 (words of up
+    // to 12 bytes are inline).
     let arr = unsafe { Utf8ViewArray::new_unchecked_unknown_md(ArrowDataType::Utf8View, views.into(), buffers.into(), valid, None) };
     StringChunked::with_chunk(name, arr).into_series()
+}
+
+/// A text column: row i holds `pool[ranks[i] % pool.len()]` (null where `valid` says so).
+pub fn text(name: PlSmallStr, pool: &[String], ranks: &[u64], valid: Option<Bitmap>) -> Series {
+    let p = pool.len() as u64;
+    let Some((views_of_pool, buffer)) = pool_views(pool) else {
+        // Views address their buffer with 32-bit offsets: fall back to one string per row.
+        let ca: StringChunked = match &valid {
+            Some(bm) => ranks.iter().zip(bm.iter()).map(|(&k, ok)| ok.then(|| pool[(k % p) as usize].as_str())).collect(),
+            None => ranks.iter().map(|&k| Some(pool[(k % p) as usize].as_str())).collect(),
+        };
+        return ca.with_name(name).into_series();
+    };
+    let views: Vec<View> = ranks.par_iter().with_min_len(GRAIN).map(|&k| views_of_pool[(k % p) as usize]).collect();
+    text_from_views(name, views, buffer, valid)
+}
+
+/// The categorical dtype columns are made with (the global categories) and the pool's words'
+/// ids in it, registered once.
+pub fn register(pool: &[String]) -> PolarsResult<(DataType, Vec<u32>)> {
+    let dtype = DataType::from_categories(Categories::global());
+    let DataType::Categorical(_, mapping) = &dtype else { unreachable!("from_categories gives a categorical dtype") };
+    let ids: Vec<u32> = pool.iter().map(|w| mapping.insert_cat(w)).collect::<PolarsResult<_>>()?;
+    Ok((dtype, ids))
+}
+
+/// A categorical column from rows' ids, each one that [`register`] gave for `dtype`.
+pub fn category_from_ids(name: PlSmallStr, dtype: &DataType, codes: Vec<u32>, valid: Option<Bitmap>) -> PolarsResult<Series> {
+    let phys = UInt32Chunked::from_vec_validity(name, codes, valid);
+    if dtype.cat_physical()? == CategoricalPhysical::U32 {
+        // SAFETY: every id was given by `insert_cat` on this dtype's categories, so it is in
+        // range; the dtype is categorical with 32-bit ids. (The checked constructor looks
+        // every row's id up in the mapping again.)
+        return Ok(unsafe { Categorical32Chunked::from_cats_and_dtype_unchecked(phys, dtype.clone()) }.into_series());
+    }
+    let phys = phys.into_series().cast(&DataType::from(dtype.cat_physical()?))?;
+    Series::from_cats_and_dtype(&phys, dtype, false)
 }
 
 /// A categorical column straight from pool ranks: the pool's words are registered once and
 /// each row gets its word's category id, so no row's text is built or hashed.
 pub fn category(name: PlSmallStr, pool: &[String], ranks: &[u64], valid: Option<Bitmap>) -> PolarsResult<Series> {
-    let dtype = DataType::from_categories(Categories::global());
-    let DataType::Categorical(_, mapping) = &dtype else { unreachable!("from_categories gives a categorical dtype") };
-    let ids: Vec<u32> = pool.iter().map(|w| mapping.insert_cat(w)).collect::<PolarsResult<_>>()?;
+    let (dtype, ids) = register(pool)?;
     let p = ids.len() as u64;
     let codes: Vec<u32> = ranks.par_iter().with_min_len(GRAIN).map(|&k| ids[(k % p) as usize]).collect();
-    let phys = UInt32Chunked::from_vec_validity(name, codes, valid).into_series();
-    let phys = phys.cast(&DataType::from(dtype.cat_physical()?))?;
-    Series::from_cats_and_dtype(&phys, &dtype, false)
+    category_from_ids(name, &dtype, codes, valid)
 }
 
 #[cfg(test)]

@@ -7,27 +7,31 @@
 //! write leaves the old file (if any) untouched; and [`file_bytes`] is the size estimate the
 //! `table` command checks against free disk before anything is generated.
 
-use crate::plan::{ColumnPlan, Plan};
+use crate::plan::{ColumnPlan, TablePlan};
+use crate::spec::suggest::closest;
 use crate::spec::model::ColumnKind;
 use polars::prelude::*;
 use std::fs::File;
 use std::path::{Path, PathBuf};
 
-/// The name a workload's single `table:` answers to (`--table data`).
-///
-/// Seam for several named tables: when the spec grows `tables:`, [`columns_of`] looks the
-/// name up among them; everything downstream takes a column list and does not change.
+/// The name a workload's single `table:` answers to (`--table data`) whatever its `name:`.
 pub const SINGLE_TABLE: &str = "data";
 
-/// The columns of the table called `name` in a plan (None: the only table).
-pub fn columns_of<'a>(plan: &'a Plan, name: Option<&str>) -> Result<&'a [ColumnPlan], String> {
-    match name {
-        None | Some(SINGLE_TABLE) => Ok(&plan.columns),
-        Some(other) => {
-            let hint = crate::spec::suggest::closest(other, [SINGLE_TABLE]).map(|s| format!(" (did you mean `{s}`?)")).unwrap_or_default();
-            Err(format!("`{}` has no table `{other}`{hint}; its tables: {SINGLE_TABLE}", plan.name))
-        }
-    }
+/// The table called `name` among a workload's tables (None: the first). `workload` names
+/// the workload in the message when there is no such table.
+pub fn table_of<'a>(tables: &'a [TablePlan], name: Option<&str>, workload: &str) -> Result<&'a TablePlan, String> {
+    let found = match name {
+        None => tables.first(),
+        Some(n) => tables.iter().find(|t| t.name == n).or_else(|| (n == SINGLE_TABLE && tables.len() == 1).then(|| &tables[0])),
+    };
+    found.ok_or_else(|| {
+        let asked = name.unwrap_or_default();
+        let names: Vec<&str> = tables.iter().map(|t| t.name.as_str()).collect();
+        let hint = closest(asked, names.iter().copied().chain((tables.len() == 1).then_some(SINGLE_TABLE)))
+            .map(|s| format!(" (did you mean `{s}`?)"))
+            .unwrap_or_default();
+        format!("`{workload}` has no table `{asked}`{hint}; its tables: {}", names.join(", "))
+    })
 }
 
 /// File formats a table can be written in.
