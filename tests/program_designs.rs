@@ -20,7 +20,12 @@ fn adapter() -> String {
     repo().join("adapters/python/framecost_worker.py").display().to_string()
 }
 
+/// One sweep at a time: the test harness runs this file's tests in parallel threads, and two
+/// Python sweeps sharing the two cores would time each other rather than their designs.
+static ONE_AT_A_TIME: std::sync::Mutex<()> = std::sync::Mutex::new(());
+
 fn sweep(args: &[&str], spec: &Path, run: &Path, tmp: &Path) -> std::process::Output {
+    let _turn = ONE_AT_A_TIME.lock().unwrap_or_else(|e| e.into_inner());
     Command::cargo_bin("framecost")
         .expect("binary")
         .env("TMPDIR", tmp)
