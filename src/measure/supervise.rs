@@ -321,7 +321,8 @@ fn cut_from(points: &Path, start: u64, plan: &Plan, pos: usize) -> std::io::Resu
             break;
         }
         let at_or_after = |rows: u64| plan.sizes.iter().position(|&s| s == rows).is_none_or(|k| k >= pos);
-        let later = match serde_json::from_slice::<Record>(line) {
+        let rec = serde_json::from_slice::<Record>(line);
+        let later = match &rec {
             Ok(Record::Point(p)) => p.workload == plan.name && at_or_after(p.rows),
             Ok(Record::Table(t)) => t.workload == plan.name && at_or_after(t.rows),
             Ok(Record::Comparison(c)) => c.workload == plan.name && at_or_after(c.rows),
@@ -331,7 +332,7 @@ fn cut_from(points: &Path, start: u64, plan: &Plan, pos: usize) -> std::io::Resu
         if later {
             break;
         }
-        if matches!(serde_json::from_slice::<Record>(line), Ok(Record::Point(ref p)) if p.workload == plan.name) {
+        if matches!(&rec, Ok(Record::Point(p)) if p.workload == plan.name) {
             kept_points += 1;
         }
         keep += line.len();
