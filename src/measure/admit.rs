@@ -70,13 +70,21 @@ pub fn predict_ns(history: &[(u64, f64)], rows: u64) -> Option<f64> {
 
 /// The decision for each design at one size: `Ok(())` to run it, or why it is skipped.
 /// A design whose point at this size is already written gets neither (it is left out).
-pub fn admit(plan: &Plan, rows: u64, states: &[DesignState], opts: &SweepOptions, elapsed_run_s: f64) -> Vec<Option<Result<(), SkipInfo>>> {
+/// `peaks` are the designs' measured peaks and `limit` the memory the size may count on,
+/// as the size's table record states them.
+pub fn admit(
+    plan: &Plan,
+    rows: u64,
+    states: &[DesignState],
+    opts: &SweepOptions,
+    elapsed_run_s: f64,
+    peaks: &[Vec<(u64, f64)>],
+    limit: &super::memory::MemoryLimit,
+) -> Vec<Option<Result<(), SkipInfo>>> {
     let b = plan.budget;
-    let peaks: Vec<Vec<(u64, f64)>> = states.iter().map(|s| s.peaks.clone()).collect();
-    let limit = super::memory::memory_limit();
     // A hard limit (ulimit, cgroup) cannot be forced past: the allocation would fail, so
     // such a size is refused even with --force.
-    let mut refused = super::inputs::refusals(plan, rows, &peaks, &limit, opts.memory_share, opts.force);
+    let mut refused = super::inputs::refusals(plan, rows, peaks, limit, opts.memory_share, opts.force);
     (0..plan.designs.len())
         .map(|i| {
             let st = &states[i];

@@ -211,10 +211,7 @@ pub struct MemoryLimit {
 pub fn memory_limit() -> MemoryLimit {
     let mut best = MemoryLimit { bytes: super::machine::available_memory(), source: "available memory".into(), hard: false };
     let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
-    let status_kib = |key: &str| -> Option<u64> {
-        let line = status.lines().find(|l| l.starts_with(key))?;
-        line[key.len()..].trim().trim_end_matches("kB").trim().parse::<u64>().ok().map(|k| k * 1024)
-    };
+    let status_kib = |key: &str| status_bytes(&status, key);
     let mut consider = |bytes: Option<u64>, source: &str| {
         if let Some(b) = bytes {
             if b < best.bytes {
@@ -238,6 +235,12 @@ pub fn memory_limit() -> MemoryLimit {
         }
     }
     best
+}
+
+/// A `kB` field of `/proc/self/status` text (`VmSize:`, `VmData:`…), in bytes.
+pub fn status_bytes(status: &str, key: &str) -> Option<u64> {
+    let line = status.lines().find(|l| l.starts_with(key))?;
+    line[key.len()..].trim().trim_end_matches("kB").trim().parse::<u64>().ok().map(|k| k * 1024)
 }
 
 /// The allowance a supervising parent set as this process's `RLIMIT_DATA` (0: none).

@@ -258,7 +258,10 @@ impl<'p> SizeRun<'p, '_> {
     /// Measure every admitted design at one size. True when a stop was asked for.
     fn one_size(&mut self, rows: u64) -> Result<bool, RunError> {
         let plan = self.plan;
-        let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64());
+        // Read once: admission judges by them and the table record states them.
+        let peaks: Vec<Vec<(u64, f64)>> = self.states.iter().map(|s| s.peaks.clone()).collect();
+        let limit = super::memory::memory_limit();
+        let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit);
         let mut runnable = Vec::new();
         for (i, d) in decisions.into_iter().enumerate() {
             match d {
@@ -273,7 +276,7 @@ impl<'p> SizeRun<'p, '_> {
         if runnable.is_empty() {
             return Ok(false);
         }
-        let inputs = self.prepare(rows, &runnable)?;
+        let inputs = self.prepare(rows, &runnable, &peaks, limit.bytes)?;
         let (mut active, _program_files) = self.activate(rows, &runnable, &inputs)?;
         let mut measured: Vec<MeasuredRow> = Vec::new();
         super::sampling::first_runs(plan, rows, &mut active, &mut self.programs, self.progress, self.min_sample_ns);
@@ -309,10 +312,9 @@ impl<'p> SizeRun<'p, '_> {
     }
 
     /// The size's tables (untimed), with their record written.
-    fn prepare(&mut self, rows: u64, runnable: &[usize]) -> Result<super::inputs::SizeInputs, RunError> {
+    fn prepare(&mut self, rows: u64, runnable: &[usize], peaks: &[Vec<(u64, f64)>], available: u64) -> Result<super::inputs::SizeInputs, RunError> {
         let plan = self.plan;
-        let peaks: Vec<Vec<(u64, f64)>> = self.states.iter().map(|s| s.peaks.clone()).collect();
-        let est = super::memory::estimate(plan, rows, &peaks);
+        let est = super::memory::estimate(plan, rows, peaks);
         let w = super::alloc::Window::open();
         let t0 = Instant::now();
         let engines = |e: EngineChoice| runnable.iter().any(|&i| plan.designs[i].engine == e);
@@ -332,7 +334,7 @@ impl<'p> SizeRun<'p, '_> {
             generate_alloc_bytes: gen_alloc.bytes,
             table_bytes_estimate: est.table,
             memory_estimate_bytes: est.total(),
-            available_memory_bytes: super::memory::memory_limit().bytes,
+            available_memory_bytes: available,
         }))?;
         Ok(inputs)
     }

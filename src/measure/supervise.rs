@@ -180,11 +180,8 @@ pub const MEMORY_ENV: &str = "FRAMECOST_CHILD_MIB";
 fn allowance() -> u64 {
     let cap = std::env::var(MEMORY_ENV).ok().and_then(|v| v.trim().parse::<u64>().ok()).filter(|&m| m > 0).map(|m| m.saturating_mul(1 << 20));
     let room = super::memory::memory_limit().bytes;
-    let held = std::fs::read_to_string("/proc/self/status")
-        .ok()
-        .and_then(|s| s.lines().find(|l| l.starts_with("VmData:")).and_then(|l| l[7..].trim().trim_end_matches("kB").trim().parse::<u64>().ok()))
-        .unwrap_or(0)
-        * 1024;
+    let status = std::fs::read_to_string("/proc/self/status").unwrap_or_default();
+    let held = super::memory::status_bytes(&status, "VmData:").unwrap_or(0);
     let natural = room.saturating_add(held).max(256 << 20);
     cap.map_or(natural, |c| c.min(natural))
 }
