@@ -62,40 +62,9 @@ pub fn run(args: Args) -> i32 {
         Ok(p) => p,
         Err(e) => return fail(e),
     };
-    if let (Some(_), None) = (&args.at, &plan.axis) {
-        return fail(format!("--at: `{}` sweeps rows (`sizes:`), not another axis; its table at a size is written with --rows alone", plan.name));
-    }
-    let rows = match (&args.rows, &plan.axis) {
-        (Some(text), _) => match crate::spec::units::parse_rows(text) {
-            Ok(0) => return fail("--rows: expected at least 1 row"),
-            Ok(n) if n > crate::spec::validate::MAX_ROWS => return fail(format!("--rows: expected at most 10^10 rows, found {n}")),
-            Ok(n) => n,
-            Err(e) => return fail(format!("--rows: expected {e}")),
-        },
-        (None, Some(axis)) => axis.rows,
-        (None, None) => {
-            let largest = plan.sizes.last().map(|&n| crate::spec::units::rows_label(n)).unwrap_or_else(|| "10k".into());
-            return fail(format!("--rows is needed: `{}` sweeps rows (its `sizes:` go up to {largest}), so say how many to write, e.g. --rows {largest}", plan.name));
-        }
-    };
-    // The swept value, when the workload sweeps another axis and one was asked for.
-    let at = match (&args.at, &plan.axis) {
-        (None, _) | (_, None) => None,
-        (Some(text), Some(axis)) => match crate::spec::axis::value_at(axis, &plan.columns, text, rows) {
-            Ok(x) => Some(x),
-            Err(e) => {
-                let over = axis.column.as_deref().map(|c| format!("`{}` of column `{c}`", axis.set.label())).unwrap_or_else(|| "the number of columns".into());
-                let (first, last) = (plan.sizes.first().copied().unwrap_or(0), plan.sizes.last().copied().unwrap_or(0));
-                return fail(format!(
-                    "--at {text}: {e} (`{}` sweeps {} — {over} — from {} to {} at {} rows)",
-                    plan.name,
-                    axis.name,
-                    axis.value_label(first as f64),
-                    axis.value_label(last as f64),
-                    crate::spec::units::rows_label(rows)
-                ));
-            }
-        },
+    let (rows, at) = match point(&args, &plan) {
+        Ok(p) => p,
+        Err(e) => return fail(e),
     };
     let tables = match at {
         Some(x) => plan.tables_at(x),
@@ -175,4 +144,45 @@ pub fn run(args: Args) -> i32 {
             crate::exit::RUN_FAILED
         }
     }
+}
+
+/// The rows to write and, for a workload that sweeps another axis, the swept value asked
+/// for with `--at` (checked by the rule `values:` entries follow).
+fn point(args: &Args, plan: &crate::plan::Plan) -> Result<(u64, Option<u64>), String> {
+    if let (Some(_), None) = (&args.at, &plan.axis) {
+        return Err(format!("--at: `{}` sweeps rows (`sizes:`), not another axis; its table at a size is written with --rows alone", plan.name));
+    }
+    let rows = match (&args.rows, &plan.axis) {
+        (Some(text), _) => match crate::spec::units::parse_rows(text) {
+            Ok(0) => return Err("--rows: expected at least 1 row".into()),
+            Ok(n) if n > crate::spec::validate::MAX_ROWS => return Err(format!("--rows: expected at most 10^10 rows, found {n}")),
+            Ok(n) => n,
+            Err(e) => return Err(format!("--rows: expected {e}")),
+        },
+        (None, Some(axis)) => axis.rows,
+        (None, None) => {
+            let largest = plan.sizes.last().map(|&n| crate::spec::units::rows_label(n)).unwrap_or_else(|| "10k".into());
+            return Err(format!("--rows is needed: `{}` sweeps rows (its `sizes:` go up to {largest}), so say how many to write, e.g. --rows {largest}", plan.name));
+        }
+    };
+    // The swept value, when the workload sweeps another axis and one was asked for.
+    let at = match (&args.at, &plan.axis) {
+        (None, _) | (_, None) => None,
+        (Some(text), Some(axis)) => match crate::spec::axis::value_at(axis, &plan.columns, text, rows) {
+            Ok(x) => Some(x),
+            Err(e) => {
+                let over = axis.column.as_deref().map(|c| format!("`{}` of column `{c}`", axis.set.label())).unwrap_or_else(|| "the number of columns".into());
+                let (first, last) = (plan.sizes.first().copied().unwrap_or(0), plan.sizes.last().copied().unwrap_or(0));
+                return Err(format!(
+                    "--at {text}: {e} (`{}` sweeps {} — {over} — from {} to {} at {} rows)",
+                    plan.name,
+                    axis.name,
+                    axis.value_label(first as f64),
+                    axis.value_label(last as f64),
+                    crate::spec::units::rows_label(rows)
+                ));
+            }
+        },
+    };
+    Ok((rows, at))
 }
