@@ -166,6 +166,7 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
 /// Sweep one plan, writing every record as it is made.
 pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let b = plan.budget;
+    super::alloc::steady_thresholds();
     // Program designs: one work folder each in a temp folder for the whole sweep, and a
     // worker started now (its hello says what it runs on, for the header).
     let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {
