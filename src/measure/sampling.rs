@@ -47,6 +47,8 @@ pub struct Active<'a> {
     /// A program design: peak resident size of each sample and the size before it (bytes).
     pub resident: Vec<(u64, Option<u64>)>,
     pub is_program: bool,
+    /// The machine's CPU ticks when its interleaved sampling began (hygiene).
+    pub cpu_at_start: Option<super::hygiene::CpuSnapshot>,
 }
 
 impl<'a> Active<'a> {
@@ -65,6 +67,7 @@ impl<'a> Active<'a> {
             allocs: Vec::new(),
             spent_s: 0.0,
             switches: (0, 0.0),
+            cpu_at_start: None,
             output: None,
             stop: None,
             error,
@@ -268,6 +271,12 @@ pub fn interleave<'a>(
     for a in active.iter_mut().filter(|a| !a.sampling()) {
         done(a, &probe_runs, programs)?;
     }
+    // A program design's own process would count as another process for every design
+    // sampled beside it in the same rounds: no others' share at such a size.
+    let at_start = if active.iter().any(|a| a.is_program) { None } else { super::hygiene::cpu_snapshot() };
+    for a in active.iter_mut() {
+        a.cpu_at_start = at_start;
+    }
     loop {
         if super::interrupt::requested() {
             return Ok((probe_runs, true));
@@ -339,6 +348,15 @@ fn decide(a: &Active, b: &Budget, run_elapsed_s: f64) -> Option<StopReason> {
     None
 }
 
+/// Other processes' share of the machine while `a` was sampled; not judged for a program,
+/// whose own process is not this one.
+fn others_share(a: &Active) -> Option<f64> {
+    if a.is_program {
+        return None;
+    }
+    super::hygiene::others_share(a.cpu_at_start?, super::hygiene::cpu_snapshot()?)
+}
+
 /// The point's record from what was sampled.
 pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDesign>]) -> Measured {
     // A program's CPU time can be unreadable (NaN) for a sample; the median is over the rest.
@@ -384,7 +402,7 @@ pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<Progr
         alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
         output: a.output.clone(),
         spent_s: a.spent_s,
-        disturbance: Some(super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1))),
+        disturbance: Some(super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1), others_share(a))),
         bimodal: super::hygiene::bimodal(&a.samples),
     }
 }

@@ -354,9 +354,14 @@ pub struct Disturbance {
     pub probe_cpu_share: Option<f64>,
     /// Involuntary context switches of the process per second of sampling this design.
     pub switches_per_s: Option<f64>,
+    /// Share of the machine's CPU time used by other processes (and other guests of the
+    /// hypervisor) while this design was sampled; absent in runs before it was measured.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub others_share: Option<f64>,
     /// One-minute load average per core when the size ended.
     pub load_per_core: Option<f64>,
-    /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`).
+    /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`) or other
+    /// processes used more than a quarter of the machine ("other-processes").
     pub busy: bool,
     pub reasons: Vec<String>,
 }
