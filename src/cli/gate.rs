@@ -234,7 +234,8 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
             said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(v), times(v)));
         }
     }
-    let unclear = pts.iter().filter(|p| p.call == Call::Unclear).count();
+    let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy).count();
     let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
     if said.is_empty() {
         let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
@@ -246,6 +247,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     if unclear > 0 {
         said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
+    }
+    if busy > 0 {
+        said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
     }
     let first = format!("  {d:<name_w$}  ");
     let rest = " ".repeat(first.chars().count());
