@@ -167,6 +167,7 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
 pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let b = plan.budget;
     super::alloc::steady_thresholds();
+    super::scrub::prepare();
     // Program designs: one work folder each in a temp folder for the whole sweep, and a
     // worker started now (its hello says what it runs on, for the header).
     let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {

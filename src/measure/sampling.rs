@@ -290,6 +290,8 @@ pub fn interleave<'a>(
                 break;
             }
             any = true;
+            // The same (cold) caches before every sample, whoever ran before it (scrub.rs).
+            super::scrub::caches();
             let t = Instant::now();
             let watch = watchdog::arm(a.index, rows, "a sample", watchdog::limit_for(b.per_point_s));
             let sw0 = super::hygiene::involuntary_switches();
