@@ -15,6 +15,7 @@
 //! atomically: under a temporary name in the same folder, then renamed. Exit 0 on success,
 //! 2 for bad input or a refused size, 3 when writing failed.
 
+use super::Failure;
 use crate::units::bytes;
 use crate::table::write::{self, FileFormat};
 use std::path::PathBuf;
@@ -45,15 +46,14 @@ pub struct Args {
     pub force: bool,
 }
 
-fn fail(msg: impl std::fmt::Display) -> i32 {
-    eprintln!("framecost table: {msg}");
-    crate::exit::BAD_INPUT
+fn fail(msg: impl std::fmt::Display) -> Result<(), Failure> {
+    Err(super::failure::usage(msg))
 }
 
 /// Share of available memory or free disk one write may use (the sweep's own rule).
 const SHARE: f64 = 0.8;
 
-pub fn run(args: Args) -> i32 {
+pub fn run(args: Args) -> Result<(), Failure> {
     let format = match FileFormat::from_path(&args.write) {
         Ok(f) => f,
         Err(e) => return fail(e),
@@ -110,10 +110,7 @@ pub fn run(args: Args) -> i32 {
     }
     let mut df = match crate::table::related::generate_table_span(&tables, table, plan.seed, plan.related, swept, 0..rows) {
         Ok(df) => df,
-        Err(e) => {
-            eprintln!("framecost table: could not build the table of `{}` at {rows} rows: {e}", plan.name);
-            return crate::exit::RUN_FAILED;
-        }
+        Err(e) => return Err(Failure::Run(format!("could not build the table of `{}` at {rows} rows: {e}", plan.name))),
     };
     let mut what = format!("`{}`", plan.name);
     if tables.len() > 1 {
@@ -137,12 +134,9 @@ pub fn run(args: Args) -> i32 {
                 bytes(need_disk),
                 fingerprint
             );
-            crate::exit::OK
+            Ok(())
         }
-        Err(e) => {
-            eprintln!("framecost table: {e}");
-            crate::exit::RUN_FAILED
-        }
+        Err(e) => Err(Failure::Run(e)),
     }
 }
 

@@ -2,8 +2,11 @@
 
 pub mod color;
 pub mod digest;
+pub mod error;
 pub mod page;
 pub mod plot;
 pub mod report;
 pub mod terminal;
 pub mod units;
+
+pub use error::DrawError;

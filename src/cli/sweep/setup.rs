@@ -4,6 +4,7 @@
 //! workloads from the same command line.
 
 use super::{fail, write_failed, Args};
+use crate::cli::{Failure, Problem};
 use crate::measure::runner::{self, SweepOptions};
 use crate::plan::Plan;
 use crate::results::writer::RunWriter;
@@ -114,31 +115,26 @@ pub fn program_commands(plans: &[Plan]) -> Vec<String> {
 }
 
 /// Every workload of the command line, checked, with its overrides applied.
-pub fn load_plans(a: &Args) -> Result<Vec<Plan>, i32> {
+pub fn load_plans(a: &Args) -> Result<Vec<Plan>, Failure> {
     let files = crate::cli::expand_paths(&a.paths).map_err(fail)?;
     // Check everything before running anything.
     let mut plans = Vec::new();
-    let mut bad = false;
+    let mut bad = Vec::new();
     for f in &files {
         match crate::spec::load(f) {
             Ok(p) => plans.push(p),
-            Err(e) => {
-                eprintln!("{e}");
-                bad = true;
-            }
+            Err(e) => bad.push(Problem::Located(e)),
         }
     }
     for name in &a.builtin {
         match crate::builtin::load(name) {
             Ok(p) => plans.push(p),
-            Err(e) => {
-                eprintln!("framecost sweep: --builtin: {e}");
-                bad = true;
-            }
+            Err(e) => bad.push(Problem::Said(format!("--builtin: {e}"))),
         }
     }
-    if bad {
-        return Err(fail("fix the workload files above (nothing was run)"));
+    if !bad.is_empty() {
+        bad.push(Problem::Said("fix the workload files above (nothing was run)".into()));
+        return Err(Failure::Workloads(bad));
     }
     for p in plans.iter_mut() {
         adjust(p, a).map_err(fail)?;
@@ -148,37 +144,24 @@ pub fn load_plans(a: &Args) -> Result<Vec<Plan>, i32> {
 
 /// A measuring child of an isolated sweep (see `measure::supervise`): measure one workload
 /// into the parent's run folder, report over the pipe, print nothing else but errors.
-pub fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, String>) -> i32 {
-    let order = match order {
-        Ok(o) => o,
-        Err(e) => return fail(e),
-    };
-    let plans = match load_plans(a) {
-        Ok(p) => p,
-        Err(code) => return code,
-    };
-    let Some(plan) = plans.get(order.workload) else { return fail(format!("the measuring order names workload {} of {}", order.workload, plans.len())) };
+pub fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, String>) -> Result<(), Failure> {
+    let order = order.map_err(fail)?;
+    let plans = load_plans(a)?;
+    let Some(plan) = plans.get(order.workload) else { return Err(fail(format!("the measuring order names workload {} of {}", order.workload, plans.len()))) };
     if plan.spec_hash != order.spec_hash {
-        return fail(format!("`{}` changed since the sweep started; nothing more was measured", plan.file));
+        return Err(fail(format!("`{}` changed since the sweep started; nothing more was measured", plan.file)));
     }
     crate::measure::worker::connect(order.fd);
     crate::measure::interrupt::install_quiet();
     if let Some(b) = order.allowance {
         crate::measure::memory::set_allowance(b);
     }
-    let mut out = match RunWriter::append(&order.dir) {
-        Ok(w) => w,
-        Err(e) => return write_failed(e),
-    };
+    let mut out = RunWriter::append(&order.dir).map_err(write_failed)?;
     let opts = SweepOptions { force: a.force, resume: order.resume, ..SweepOptions::default() };
-    match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress) {
-        Ok(o) if o.interrupted || crate::measure::interrupt::requested() => crate::exit::INTERRUPTED,
-        Ok(_) => crate::exit::OK,
-        Err(runner::RunError::Write(w)) => write_failed(w),
-        Err(other) => {
-            eprintln!("framecost sweep: {other}");
-            crate::exit::RUN_FAILED
-        }
+    // The parent speaks for an interrupted child: it says nothing itself.
+    match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress)? {
+        o if o.interrupted || crate::measure::interrupt::requested() => Err(Failure::Interrupted(None)),
+        _ => Ok(()),
     }
 }
 
