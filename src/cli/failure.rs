@@ -90,6 +90,10 @@ impl Failure {
                 .collect(),
             Failure::Regression => Vec::new(),
             Failure::Sweep(RunError::Write(w)) => own(format!("could not write results: {w}")),
+            Failure::Sweep(RunError::Lost { workload, restarts, last }) => {
+                let why = crate::present::causes::words(last, crate::results::Axis(None));
+                own(format!("could not measure `{workload}`: its measuring process ended abnormally {restarts} times; the last: {why}"))
+            }
             Failure::Sweep(other) => own(other.to_string()),
             Failure::SweepEnded { failures, mismatches, report } => {
                 let mut v = Vec::new();

@@ -106,6 +106,8 @@ pub enum Command {
 /// Run the command line; returns the process exit code. Every command's failure goes
 /// through [`Failure::report`], the one place that words it and picks the code.
 pub fn main() -> i32 {
+    // Measurement records why points were skipped as numbers; present words them.
+    crate::results::cause::word_with(crate::present::causes::words);
     let args: Vec<std::ffi::OsString> = std::env::args_os().collect();
     let cmd = ColorWhen::from_args(&args).apply(command());
     let cli = match cmd.try_get_matches_from(args).and_then(|m| Cli::from_arg_matches(&m)) {

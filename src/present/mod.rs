@@ -1,5 +1,6 @@
 //! Presentation: everything people read. Works from saved results only.
 
+pub mod causes;
 pub mod color;
 pub mod digest;
 pub mod error;

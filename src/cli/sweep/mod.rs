@@ -169,13 +169,13 @@ fn memory_plan(plans: &[Plan], a: &Args) -> bool {
         }
         if let Some(free) = crate::measure::memory::available_disk(&std::env::temp_dir()) {
             if est.disk > free as f64 * share {
-                refused.push(format!("{} at {} rows writes {}; {} free on disk", p.name, rows_label(largest), est.describe_disk(), crate::units::bytes(free as f64)));
+                refused.push(format!("{} at {} rows writes {}; {} free on disk", p.name, rows_label(largest), crate::present::causes::disk_need(est.disk), crate::units::bytes(free as f64)));
             }
         }
         let refusals = crate::measure::inputs::refusals(p, largest, &[], &limit, share, false);
         for (d, why) in p.designs.iter().zip(&refusals) {
             if let Some(why) = why.as_ref().filter(|w| w.reason == crate::results::SkipReason::Memory) {
-                refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), why.detail));
+                refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), crate::present::causes::skip_words(why, crate::results::Axis(p.axis.as_ref()))));
             }
         }
     }

@@ -87,8 +87,8 @@ pub fn plan_lines(p: &Plan, n: u64) -> Vec<String> {
         .filter(|e| p.designs.iter().any(|d| d.engine == *e))
         .collect();
     let line = |e: crate::measure::memory::Estimate, who: &str| {
-        let disk = if e.disk > 0.0 { format!("; writes {}", e.describe_disk()) } else { String::new() };
-        format!("{who}needs {}{disk}", e.describe())
+        let disk = if e.disk > 0.0 { format!("; writes {}", crate::present::causes::disk_need(e.disk)) } else { String::new() };
+        format!("{who}needs {}", crate::present::causes::memory_need(&e.need())) + &disk
     };
     if engines.len() < 2 && !engines.contains(&EngineChoice::Streaming) {
         return vec![line(crate::measure::memory::estimate(p, n, &[]), "")];
