@@ -56,8 +56,7 @@ pub enum RunError {
     Table { workload: String, rows: u64, message: String },
     #[error("could not measure `{workload}`: {message}")]
     Worker { workload: String, message: String },
-    /// The measuring process ended abnormally `restarts` times; `last` is why the last
-    /// one ended (worded by `present::causes`, as `cli::failure` prints it).
+    /// The measuring process ended abnormally `restarts` times, the last because of `last`.
     #[error("could not measure `{workload}`: its measuring process ended abnormally {restarts} times")]
     Lost { workload: String, restarts: usize, last: SkipCause },
 }
