@@ -57,11 +57,14 @@ pub fn resolve(arg: &str, store: &Path) -> PathBuf {
 
 pub fn run(a: Args) -> Result<(), Failure> {
     let bad = |m: String| Err(Failure::Usage(m));
+    // The workload's `gate.threshold` is parsed and bounded by the same two functions.
     let threshold = match a.threshold.as_deref().map(parse_share).transpose() {
-        Ok(Some(t)) if !(t > 0.0 && t <= 10.0) => return bad(format!("--threshold: expected above 0% and at most 1000%, found {t}")),
         Ok(t) => t,
         Err(e) => return bad(format!("--threshold: expected {e}")),
     };
+    if let Some(m) = threshold.and_then(crate::spec::limits::threshold_problem) {
+        return bad(format!("--threshold: {m}"));
+    }
     if !(a.alpha > 0.0 && a.alpha < 1.0) {
         return bad(format!("--alpha: expected a level between 0 and 1, found {}", a.alpha));
     }

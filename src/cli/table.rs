@@ -149,7 +149,8 @@ fn point(args: &Args, plan: &crate::plan::Plan) -> Result<(u64, Option<u64>), St
     let rows = match (&args.rows, &plan.axis) {
         (Some(text), _) => match crate::spec::units::parse_rows(text) {
             Ok(0) => return Err("--rows: expected at least 1 row".into()),
-            Ok(n) if n > crate::spec::validate::MAX_ROWS => return Err(format!("--rows: expected at most 10^10 rows, found {n}")),
+            // The bound of a `sizes:` entry, checked by the same rule.
+            Ok(n) if crate::spec::limits::size_problem(n).is_some() => return Err(format!("--rows: {}", crate::spec::limits::size_problem(n).unwrap_or_default())),
             Ok(n) => n,
             Err(e) => return Err(format!("--rows: expected {e}")),
         },

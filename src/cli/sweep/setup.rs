@@ -27,19 +27,20 @@ pub fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
         }
         plan.sizes = v;
     }
-    if let Some(s) = &a.point_budget {
-        plan.budget.per_point_s = positive(parse_seconds(s), "--point-budget")?;
+    // Each value is parsed by the parser the YAML's own value goes through (a duration, a
+    // share) and bounded below by `budget_problems`, as the spec's `budget:` is.
+    let parsed = |v: &Option<String>, flag: &str, parse: fn(&str) -> Result<f64, String>| v.as_deref().map(parse).transpose().map_err(|e| format!("{flag}: expected {e}"));
+    if let Some(x) = parsed(&a.point_budget, "--point-budget", parse_seconds)? {
+        plan.budget.per_point_s = x;
     }
-    if let Some(s) = &a.run_budget {
-        plan.budget.whole_run_s = positive(parse_seconds(s), "--run-budget")?;
+    if let Some(x) = parsed(&a.run_budget, "--run-budget", parse_seconds)? {
+        plan.budget.whole_run_s = x;
     }
-    if let Some(s) = &a.precision {
-        plan.budget.precision = parse_share(s).map_err(|e| format!("--precision: expected {e}"))?;
+    if let Some(x) = parsed(&a.precision, "--precision", parse_share)? {
+        plan.budget.precision = x;
     }
     if let Some(m) = a.max_samples {
-        if m < plan.budget.min_samples.min(6) {
-            return Err(format!("--max-samples: expected at least {}", plan.budget.min_samples.min(6)));
-        }
+        // Fewer samples at most also means fewer at least, so the two stay in order.
         plan.budget.max_samples = m;
         plan.budget.min_samples = plan.budget.min_samples.min(m);
     }
@@ -69,14 +70,6 @@ pub fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
         return Err(format!("--sizes: with these sizes, {m}"));
     }
     Ok(())
-}
-
-fn positive(v: Result<f64, String>, flag: &str) -> Result<f64, String> {
-    match v {
-        Ok(x) if x > 0.0 && x.is_finite() => Ok(x),
-        Ok(x) => Err(format!("{flag}: expected a duration above zero, found {x} s")),
-        Err(e) => Err(format!("{flag}: expected {e}")),
-    }
 }
 
 /// What `--plan` says about one size: one line, or one per engine when designs differ in it.
