@@ -103,6 +103,32 @@ mod tests {
         assert_eq!(s.detail, "needs about 2.8 GiB");
     }
 
+    /// A tampered cause: a negative budget makes the line damaged; a terminal escape in a
+    /// name is made visible.
+    #[test]
+    fn tampered_causes_are_caught() {
+        let point = |c: SkipCause| {
+            crate::results::Record::Point(crate::results::PointRecord {
+                workload: "w".into(),
+                design: "d".into(),
+                rows: 1000,
+                measured: None,
+                skipped: Some(SkipInfo::failed(c)),
+                setup_ns: None,
+            })
+        };
+        let bad = point(SkipCause::PointBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: -5.0 });
+        assert!(!crate::results::sane::plausible(&bad));
+        let deep = point(SkipCause::FailedAt { at: 0, cause: Box::new(SkipCause::Step { message: "x".into() }) });
+        assert!(!crate::results::sane::plausible(&deep), "a swept value of 0 is no size");
+        let need = MemoryNeed { table: 1.0, records: 0.0, generator: 0.0, working: 0.0 };
+        let odd = point(SkipCause::Memory { need, engine: "memory\u{1b}[2J".into(), limit_bytes: 1, limit_source: "x".into(), share: 0.8, hard: false });
+        assert!(crate::results::sane::plausible(&odd));
+        let crate::results::Record::Point(p) = crate::results::sane::tidy(odd) else { panic!("a point") };
+        let Some(SkipCause::Memory { engine, .. }) = p.skipped.and_then(|s| s.cause) else { panic!("a memory cause") };
+        assert!(!engine.contains('\u{1b}'), "{engine}");
+    }
+
     /// Every cause survives a round trip through the file format.
     #[test]
     fn causes_round_trip() {
