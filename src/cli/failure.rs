@@ -23,6 +23,8 @@ pub enum Failure {
     Usage(String),
     /// Workload files that do not check, each problem in turn (exit 2).
     Workloads(Vec<Problem>),
+    /// Designs that are programs, not allowed to run: their commands (exit 2).
+    ProgramsNotAllowed(Vec<String>),
     /// The gate found a regression; its answer has been printed (exit 1).
     Regression,
     /// A run failed: a table could not be built or written (exit 3).
@@ -64,7 +66,7 @@ impl Failure {
         match self {
             Failure::CommandLine(e) if e.use_stderr() => exit::BAD_INPUT,
             Failure::CommandLine(_) => exit::OK,
-            Failure::Usage(_) | Failure::Workloads(_) => exit::BAD_INPUT,
+            Failure::Usage(_) | Failure::Workloads(_) | Failure::ProgramsNotAllowed(_) => exit::BAD_INPUT,
             Failure::Regression => exit::REGRESSION,
             Failure::Run(_) | Failure::History { .. } => exit::RUN_FAILED,
             Failure::Sweep(RunError::Write(_)) => exit::WRITE_FAILED,
@@ -88,6 +90,12 @@ impl Failure {
                     Problem::Said(m) => (true, m.clone()),
                 })
                 .collect(),
+            Failure::ProgramsNotAllowed(commands) => {
+                let mut v = vec![(true, "these workloads have designs that are programs; they would run:".to_string())];
+                v.extend(commands.iter().map(|c| (false, format!("  {c}"))));
+                v.push((true, "nothing was run: read the commands above, then add --allow-programs to run them".into()));
+                v
+            }
             Failure::Regression => Vec::new(),
             Failure::Sweep(RunError::Write(w)) => own(format!("could not write results: {w}")),
             Failure::Sweep(RunError::Lost { workload, restarts, last }) => {
@@ -141,4 +149,40 @@ impl Failure {
 /// A usage failure from anything that displays: the common short form.
 pub fn usage(m: impl std::fmt::Display) -> Failure {
     Failure::Usage(m.to_string())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Each ending keeps the code `--help` documents for it, and says what it always said.
+    #[test]
+    fn each_failure_has_its_documented_code_and_words() {
+        let draw = || DrawError::Drawing("backend refused".into());
+        let cases: Vec<(Failure, i32, &str)> = vec![
+            (Failure::Usage("--at: expected a row count".into()), exit::BAD_INPUT, "--at: expected a row count"),
+            (Failure::Workloads(vec![Problem::Said("1 of 2 file(s) have problems".into())]), exit::BAD_INPUT, "1 of 2 file(s)"),
+            (Failure::ProgramsNotAllowed(vec!["w/d: python3 x.py".into()]), exit::BAD_INPUT, "  w/d: python3 x.py"),
+            (Failure::Regression, exit::REGRESSION, ""),
+            (Failure::Run("could not build the table".into()), exit::RUN_FAILED, "could not build"),
+            (Failure::Sweep(RunError::Stopped { workload: "w".into(), code: 3 }), exit::RUN_FAILED, "exit code 3"),
+            (Failure::SweepEnded { failures: 2, mismatches: 0, report: None }, exit::RUN_FAILED, "2 failed point(s), 0 size(s)"),
+            (Failure::SweepEnded { failures: 0, mismatches: 0, report: Some(draw()) }, exit::WRITE_FAILED, "the pictures and reports: backend refused"),
+            (Failure::History { workload: "w".into(), error: draw() }, exit::RUN_FAILED, "w: backend refused"),
+            (Failure::Report(draw()), exit::WRITE_FAILED, "could not write the report: backend refused"),
+            (Failure::Write("could not write: broken pipe".into()), exit::WRITE_FAILED, "could not write: broken pipe"),
+            (Failure::Interrupted(Some((PathBuf::from("r"), 3))), exit::INTERRUPTED, "3 finished point(s) are in r/points.jsonl"),
+            (Failure::Interrupted(None), exit::INTERRUPTED, ""),
+        ];
+        for (f, code, words) in cases {
+            assert_eq!(f.code(), code, "{f:?}");
+            assert!(exit::ALL.iter().any(|(c, _)| *c == code), "{code} is documented");
+            let said: Vec<String> = f.lines().into_iter().map(|(_, l)| l).collect();
+            if words.is_empty() {
+                assert!(said.is_empty(), "{f:?} says nothing itself: {said:?}");
+            } else {
+                assert!(said.iter().any(|l| l.contains(words)), "{f:?}: {said:?}");
+            }
+        }
+    }
 }

@@ -54,8 +54,8 @@ pub enum RunError {
     Write(#[from] WriteError),
     #[error("could not build the synthetic table of `{workload}` at {rows} rows: {message}")]
     Table { workload: String, rows: u64, message: String },
-    #[error("could not measure `{workload}`: {message}")]
-    Worker { workload: String, message: String },
+    #[error("could not measure `{workload}`: its measuring process stopped with exit code {code} (its message is above)")]
+    Stopped { workload: String, code: i32 },
     /// The measuring process ended abnormally `restarts` times, the last because of `last`.
     #[error("could not measure `{workload}`: its measuring process ended abnormally {restarts} times")]
     Lost { workload: String, restarts: usize, last: SkipCause },

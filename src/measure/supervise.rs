@@ -88,10 +88,7 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
                 )))
             }
             Some(c @ (crate::exit::BAD_INPUT | crate::exit::RUN_FAILED)) => {
-                break Err(RunError::Worker {
-                    workload: plan.name.clone(),
-                    message: format!("its measuring process stopped with exit code {c} (its message is above)"),
-                })
+                break Err(RunError::Stopped { workload: plan.name.clone(), code: c })
             }
             _ => {}
         }

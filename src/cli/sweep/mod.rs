@@ -117,11 +117,7 @@ pub fn run(a: Args) -> Result<(), Failure> {
     // Programs run with the user's permissions: only when allowed, and never unannounced.
     let commands = program_commands(&plans);
     if !commands.is_empty() && !a.allow_programs && !a.plan {
-        eprintln!("framecost sweep: these workloads have designs that are programs; they would run:");
-        for c in &commands {
-            eprintln!("  {c}");
-        }
-        return Err(fail("nothing was run: read the commands above, then add --allow-programs to run them"));
+        return Err(Failure::ProgramsNotAllowed(commands));
     }
     if memory_plan(&plans, &a) {
         return Ok(());
