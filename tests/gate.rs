@@ -90,7 +90,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
                 design: "build".into(),
                 rows: n,
                 measured: None,
-                skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, detail: String::new() }),
+                skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, cause: None, detail: String::new() }),
                 setup_ns: None,
             }));
             continue;
