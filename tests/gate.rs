@@ -53,6 +53,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
         yardstick: Yardstick { kernel: "test".into(), median_ns: yard, rounds_ns: vec![yard] },
         available_memory_bytes: 1 << 34,
         forced: false,
+        cache_sweep_bytes: None,
     }));
     r.push(Record::Workload(WorkloadHeader {
         workload: "ledger".into(),

@@ -62,7 +62,7 @@ pub fn workload_header(plan: &Plan, programs: &[Option<ProgramDesign>]) -> Recor
 }
 
 /// Start a run: the header record with machine, clock and yardstick.
-pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool) -> RunHeader {
+pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool, warm_caches: bool) -> RunHeader {
     let started = now_text();
     RunHeader {
         schema: SCHEMA.to_string(),
@@ -74,6 +74,7 @@ pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool) -> RunHe
         yardstick: super::machine::yardstick(),
         available_memory_bytes: available_memory(),
         forced,
+        cache_sweep_bytes: (!warm_caches).then(super::scrub::bytes),
     }
 }
 

@@ -40,11 +40,13 @@ pub struct SweepOptions {
     pub seed: u64,
     /// Start at a later size, after an earlier measuring process ended abnormally.
     pub resume: Option<super::worker::Resume>,
+    /// Leave the caches as the previous sample left them (no sweep before each sample).
+    pub warm_caches: bool,
 }
 
 impl Default for SweepOptions {
     fn default() -> Self {
-        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c, resume: None }
+        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c, resume: None, warm_caches: false }
     }
 }
 
@@ -170,7 +172,10 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
 pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let b = plan.budget;
     super::alloc::steady_thresholds();
-    super::scrub::prepare();
+    super::scrub::set_enabled(!opts.warm_caches);
+    if !opts.warm_caches {
+        super::scrub::prepare();
+    }
     // Program designs: one work folder each in a temp folder for the whole sweep, and a
     // worker started now (its hello says what it runs on, for the header).
     let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {

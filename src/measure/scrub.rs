@@ -16,7 +16,21 @@
 //! cache line at a time. Reading 48 MiB takes 2–4 ms here, once per sample (not per run of
 //! a batch).
 
+use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::OnceLock;
+
+/// Off with `sweep --warm-caches`: samples then find the caches as the previous one left them.
+static ENABLED: AtomicBool = AtomicBool::new(true);
+
+/// Sweep before every sample (the default) or not.
+pub fn set_enabled(on: bool) {
+    ENABLED.store(on, Ordering::Relaxed);
+}
+
+/// Size of the buffer read by [`caches`], in bytes.
+pub fn bytes() -> u64 {
+    (buffer().len() * 8) as u64
+}
 
 /// Bytes between the loads that touch the buffer: one per cache line.
 const LINE: usize = 64;
@@ -60,6 +74,9 @@ pub fn prepare() {
 /// derived from the reads so the compiler cannot drop them.
 #[inline(never)]
 pub fn caches() -> u64 {
+    if !ENABLED.load(Ordering::Relaxed) {
+        return 0;
+    }
     let buf = buffer();
     let step = LINE / 8;
     let mut acc = 0u64;

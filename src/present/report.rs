@@ -46,6 +46,13 @@ fn machine_lines(r: &RunResults) -> Vec<(String, String)> {
         ("versions".into(), format!("framecost {}, polars {} ({} threads)", m.framecost_version, m.polars_version, m.polars_threads)),
         ("clock".into(), format!("read cost {:.1} ns, step {:.0} ns", h.clock.read_cost_ns, h.clock.observed_step_ns)),
         ("yardstick".into(), format!("{} — {}", time_ns(h.yardstick.median_ns), h.yardstick.kernel)),
+        (
+            "caches".into(),
+            match h.cache_sweep_bytes {
+                Some(b) => format!("swept before every sample (a {} read): each sample starts cold", bytes(b as f64)),
+                None => "left as the previous sample left them (--warm-caches, or a run before cache sweeps)".into(),
+            },
+        ),
     ]
 }
 

@@ -61,6 +61,11 @@ pub struct RunHeader {
     pub available_memory_bytes: u64,
     /// Whether size refusals for memory were overridden.
     pub forced: bool,
+    /// Bytes of the buffer read before every sample to sweep the caches (`measure::scrub`);
+    /// absent when `--warm-caches` left them as the previous sample did, and in runs made
+    /// before the sweep existed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cache_sweep_bytes: Option<u64>,
 }
 
 /// A workload about to be swept.

@@ -79,6 +79,12 @@ pub struct Args {
     /// allocates past the memory available takes framecost down with it.
     #[arg(long)]
     pub in_process: bool,
+    /// Do not sweep the processor's caches before each sample: a sample then finds whatever
+    /// the design sampled before it left there (warm for small tables, and dependent on the
+    /// order of the designs). By default every sample starts with cold caches, as a step over
+    /// data larger than the caches does.
+    #[arg(long)]
+    pub warm_caches: bool,
 }
 
 /// The decision for one finished workload, in a few words, for the piped progress line.
@@ -210,9 +216,9 @@ fn run_dir(a: &Args, plans: &[Plan]) -> PathBuf {
 /// The run header, then every workload measured (in a child process each, or here with
 /// `--in-process`): the counts of failed points and mismatched sizes, or the failure.
 fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, usize), Failure> {
-    let opts = SweepOptions { force: a.force, ..SweepOptions::default() };
+    let opts = SweepOptions { force: a.force, warm_caches: a.warm_caches, ..SweepOptions::default() };
     let clock = crate::measure::clock::calibrate();
-    let mut header = runner::run_header(std::env::args().collect(), clock, a.force);
+    let mut header = runner::run_header(std::env::args().collect(), clock, a.force, a.warm_caches);
     if plans.iter().any(|p| p.axis.is_some()) {
         header.schema = crate::results::AXIS_SCHEMA.to_string();
     }
