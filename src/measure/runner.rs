@@ -13,7 +13,7 @@ use super::clock::ClockInfo;
 use super::equivalence::compare;
 use super::program::{ProgramDesign, ProgramInputs};
 use super::sampling::{make_input, run_step, Active};
-use crate::patterns::sql::RunContext;
+use crate::patterns::{Allowed, RunContext};
 use crate::patterns::{Records, Value};
 use crate::plan::{DesignPlan, Plan};
 use crate::results::writer::{RunWriter, WriteError};
@@ -362,10 +362,13 @@ impl<'p> SizeRun<'p, '_> {
         let mut active = Vec::new();
         for &i in runnable {
             let d = &plan.designs[i];
-            let (ctx, mut error) = match inputs.context(d.engine) {
+            let (mut ctx, mut error) = match inputs.context(d.engine) {
                 Ok(c) => (c, None),
                 Err(e) => (RunContext::default(), Some(e)),
             };
+            ctx.deadline = Some(Instant::now() + super::watchdog::limit_for(b.per_point_s));
+            // A workload with programs reaches the runner only with `--allow-programs`.
+            ctx.allowed = Allowed { programs: d.program.is_some(), oversize: self.opts.force };
             if let Some(p) = self.programs.get_mut(i).and_then(|p| p.as_mut()) {
                 let _watch = super::watchdog::arm(i, rows, "loading a program's input", super::watchdog::limit_for(b.per_point_s));
                 error = match &program_files {

@@ -1,12 +1,15 @@
 //! One step of a design read from YAML: its name found in the step registry (with a
 //! did-you-mean), its parameters typed against the step's `ParamDef`s — counts with their
-//! bounds, numbers and shares, choices, flags, text — and the step built from them.
+//! bounds, numbers and shares, choices, flags, text, columns by name or position (resolved
+//! against the table the step sees in `step_columns.rs`) — and the step built from them (a
+//! refusal of the constructor is located at the parameter it names).
 
 use super::locate::YamlPath;
 use super::limits::count_problem;
+use super::step_columns::{check_columns, SeenTable};
 use super::suggest::closest;
 use super::validate::Checker;
-use crate::patterns::{self, ParamKind, ParamValue, Params};
+use crate::patterns::{self, ColumnRef, ParamKind, ParamValue, Params, MAX_POSITION};
 use crate::plan::StepPlan;
 use serde_yaml::Value as Y;
 use std::collections::BTreeMap;
@@ -27,7 +30,8 @@ fn yaml_kind(v: &Y) -> &'static str {
     }
 }
 
-pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64) -> Option<StepPlan> {
+/// Check one step; `seen` is the table it receives when the checker can know it.
+pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64, seen: Option<&SeenTable>) -> Option<StepPlan> {
     let (name, params_raw): (String, Option<&Y>) = match raw {
         Y::String(s) => (s.clone(), None),
         Y::Mapping(m) if m.len() == 1 => {
@@ -120,6 +124,9 @@ pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64
                 }
             }
             (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
+            // A column by position (the older form) or by name.
+            (ParamKind::Column { .. }, Y::Number(n)) => n.as_u64().filter(|&x| x <= MAX_POSITION).map(|x| ParamValue::Column(ColumnRef::At(x as usize))),
+            (ParamKind::Column { .. }, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Column(ColumnRef::Named(t.clone()))),
             (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
             _ => None,
         };
@@ -140,6 +147,17 @@ pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64
     if c.issues.len() != before {
         return None;
     }
-    let runner: std::sync::Arc<dyn crate::patterns::Step> = std::sync::Arc::from((def.build)(&params));
+    if let Some(seen) = seen {
+        // A wrong column does not stop the design's chain from being checked.
+        check_columns(c, def, &params, &|p| given.contains_key(p), &pp, seen);
+    }
+    let runner = match (def.build)(&params) {
+        Ok(b) => std::sync::Arc::<dyn crate::patterns::Step>::from(b),
+        Err(e) => {
+            let at = e.param.map_or_else(|| pp.clone(), |p| pp.key(p));
+            c.at(&at, format!("step `{name}` cannot be built: {e}"), None);
+            return None;
+        }
+    };
     Some(StepPlan { def, label: params.describe(def.name), params, runner })
 }

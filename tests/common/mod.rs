@@ -7,7 +7,7 @@
 
 use framecost::measure::alloc::{AllocStats, Window};
 use framecost::measure::runner::run_design;
-use framecost::patterns::{OutputFacts, Value};
+use framecost::patterns::{OutputFacts, RunContext, Value};
 use framecost::plan::{DesignPlan, Plan};
 use polars::prelude::*;
 
@@ -19,8 +19,9 @@ pub fn design<'a>(plan: &'a Plan, name: &str) -> &'a DesignPlan {
 /// `input` after the design's `setup:` steps.
 pub fn set_up(d: &DesignPlan, input: Value) -> Result<Value, String> {
     let mut v = input;
+    let ctx = RunContext::default();
     for s in &d.setup {
-        v = s.runner.run(v).map_err(|e| e.to_string())?;
+        v = s.runner.run(v, &ctx).map_err(|e| e.to_string())?;
     }
     Ok(v)
 }
