@@ -92,7 +92,7 @@ pub(super) fn check_columns(c: &mut Checker, def: &StepDef, params: &Params, giv
         for (name, kind) in &seen.columns[first..first + count] {
             if !need.accepts(*kind) {
                 let whose = if count > 1 { format!("one of the {count} columns from {col}, ") } else { String::new() };
-                c.at(&at, format!("{what}: {whose}column `{name}` is {} (kind `{}`), but step `{}` needs {}", kind_words(*kind), kind.label(), def.name, need.label()), None);
+                c.at(&at, format!("{what}: {whose}column `{name}` holds {} (kind `{}`), but step `{}` needs {}", kind_words(*kind), kind.label(), def.name, need.label()), None);
                 break;
             }
         }

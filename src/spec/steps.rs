@@ -9,7 +9,7 @@ use super::limits::count_problem;
 use super::step_columns::{check_columns, SeenTable};
 use super::suggest::closest;
 use super::validate::Checker;
-use crate::patterns::{self, ColumnRef, ParamKind, ParamValue, Params, MAX_POSITION};
+use crate::patterns::{self, ColumnRef, ParamDef, ParamKind, ParamValue, Params, MAX_POSITION};
 use crate::plan::StepPlan;
 use serde_yaml::Value as Y;
 use std::collections::BTreeMap;
@@ -92,57 +92,8 @@ pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64
         let default_y: Y = serde_yaml::from_str(pd.default).unwrap_or(Y::Null);
         let v = raw.unwrap_or(&default_y);
         let vp = pp.key(pd.name);
-        let got = match (pd.kind, v) {
-            (ParamKind::Count { .. }, Y::Number(n)) => match n.as_u64() {
-                Some(x) => match count_problem(&pd.kind, x, largest) {
-                    None => Some(ParamValue::Count(x)),
-                    Some(m) => {
-                        c.at(&vp, format!("`{}`: {m}", pd.name), None);
-                        continue;
-                    }
-                },
-                _ => None,
-            },
-            (ParamKind::Number { min, max }, Y::Number(n)) => match n.as_f64() {
-                Some(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
-                _ => None,
-            },
-            // A share written with a percent sign: `15%` is 0.15.
-            (ParamKind::Number { min, max }, Y::String(t)) if t.trim_end().ends_with('%') => {
-                match crate::spec::units::parse_share(t) {
-                    Ok(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
-                    _ => None,
-                }
-            }
-            (ParamKind::Choice(opts), Y::String(s)) => {
-                if opts.contains(&s.as_str()) {
-                    Some(ParamValue::Choice(s.clone()))
-                } else {
-                    let hint = closest(s, opts.iter().copied()).map(|h| format!("did you mean `{h}`?"));
-                    c.at(&vp, format!("expected {}, found `{s}`", pd.kind.describe()), hint);
-                    continue;
-                }
-            }
-            (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
-            // A column by position (the older form) or by name.
-            (ParamKind::Column { .. }, Y::Number(n)) => n.as_u64().filter(|&x| x <= MAX_POSITION).map(|x| ParamValue::Column(ColumnRef::At(x as usize))),
-            (ParamKind::Column { .. }, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Column(ColumnRef::Named(t.clone()))),
-            (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
-            _ => None,
-        };
-        match got {
-            Some(g) => {
-                params.0.insert(pd.name.to_string(), g);
-            }
-            None => {
-                let found = match v {
-                    Y::Number(n) => n.to_string(),
-                    Y::String(s) => format!("`{s}`"),
-                    other => yaml_kind(other).to_string(),
-                };
-                c.at(&vp, format!("expected {} for `{}`, found {found}", pd.kind.describe(), pd.name), None);
-            }
-        }
+        let Some(got) = typed(c, pd, v, &vp, largest) else { continue };
+        params.0.insert(pd.name.to_string(), got);
     }
     if c.issues.len() != before {
         return None;
@@ -160,4 +111,55 @@ pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64
         }
     };
     Some(StepPlan { def, label: params.describe(def.name), params, runner })
+}
+
+/// One parameter's value typed against its kind; a problem is recorded at `vp` (and gives None).
+fn typed(c: &mut Checker, pd: &ParamDef, v: &Y, vp: &YamlPath, largest: u64) -> Option<ParamValue> {
+    let got = match (pd.kind, v) {
+        (ParamKind::Count { .. }, Y::Number(n)) => match n.as_u64() {
+            Some(x) => match count_problem(&pd.kind, x, largest) {
+                None => Some(ParamValue::Count(x)),
+                Some(m) => {
+                    c.at(vp, format!("`{}`: {m}", pd.name), None);
+                    return None;
+                }
+            },
+            _ => None,
+        },
+        (ParamKind::Number { min, max }, Y::Number(n)) => match n.as_f64() {
+            Some(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
+            _ => None,
+        },
+        // A share written with a percent sign: `15%` is 0.15.
+        (ParamKind::Number { min, max }, Y::String(t)) if t.trim_end().ends_with('%') => {
+            match crate::spec::units::parse_share(t) {
+                Ok(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
+                _ => None,
+            }
+        }
+        (ParamKind::Choice(opts), Y::String(s)) => {
+            if opts.contains(&s.as_str()) {
+                Some(ParamValue::Choice(s.clone()))
+            } else {
+                let hint = closest(s, opts.iter().copied()).map(|h| format!("did you mean `{h}`?"));
+                c.at(vp, format!("expected {}, found `{s}`", pd.kind.describe()), hint);
+                return None;
+            }
+        }
+        (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
+        // A column by position (the older form) or by name.
+        (ParamKind::Column { .. }, Y::Number(n)) => n.as_u64().filter(|&x| x <= MAX_POSITION).map(|x| ParamValue::Column(ColumnRef::At(x as usize))),
+        (ParamKind::Column { .. }, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Column(ColumnRef::Named(t.clone()))),
+        (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
+        _ => None,
+    };
+    if got.is_none() {
+        let found = match v {
+            Y::Number(n) => n.to_string(),
+            Y::String(s) => format!("`{s}`"),
+            other => yaml_kind(other).to_string(),
+        };
+        c.at(vp, format!("expected {} for `{}`, found {found}", pd.kind.describe(), pd.name), None);
+    }
+    got
 }
