@@ -85,6 +85,18 @@ impl Need {
         }
     }
 
+    /// What the column must hold, in words, for parameter docs ("numbers (int, key or float)").
+    pub fn holding(self) -> &'static str {
+        match self {
+            Need::Any => "anything",
+            Need::Integer => "integers (int or key)",
+            Need::Numeric => "numbers (int, key or float)",
+            Need::IntegerBacked => "integers, keys, dates or categories",
+            Need::Boolean => "true/false (bool)",
+            Need::Text => "text",
+        }
+    }
+
     /// The column kinds it accepts, in words ("a numeric column (int, key or float)").
     pub fn label(self) -> &'static str {
         match self {

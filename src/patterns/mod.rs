@@ -267,9 +267,9 @@ impl ParamKind {
             ParamKind::Number { min, max } => format!("a number from {min} to {max}"),
             ParamKind::Flag => "true or false".to_string(),
             ParamKind::Text => "text".to_string(),
-            ParamKind::Column { need, span: None } => format!("a column by name or position: {}", need.label()),
+            ParamKind::Column { need, span: None } => format!("a column (name or position) holding {}", need.holding()),
             ParamKind::Column { need, span: Some(count) } => {
-                format!("the first of `{count}` consecutive columns, by name or position: each {}", need.label().trim_start_matches("a ").trim_start_matches("an "))
+                format!("the first of `{count}` consecutive columns (name or position), each holding {}", need.holding())
             }
         }
     }
