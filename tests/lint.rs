@@ -51,6 +51,8 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("42-count-beyond-table.yaml", "12:44", &["`count`", "5 columns from `top_kg` (position 1) run past the end", "has 4 columns"]),
     // The table is followed through a set-up step that keeps its columns.
     ("43-column-after-setup.yaml", "14:16", &["`key`", "`kilograms` holds decimal numbers (kind `float`)", "needs an integer column"]),
+    // Built-in steps receive the first of several tables; a column of another is named there.
+    ("44-column-of-another-table.yaml", "17:28", &["no column `district` in table `deliveries`", "`district` is in table `members`"]),
 ];
 
 #[test]

@@ -17,7 +17,7 @@ use std::collections::HashSet;
 
 /// Check the designs; `first` is the table a design's first step receives (the workload's
 /// first table, at its widest point).
-pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan], first: (&str, &[ColumnPlan]), largest: u64) -> Vec<DesignPlan> {
+pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan], first: &SeenTable, largest: u64) -> Vec<DesignPlan> {
     if designs.is_empty() {
         c.at(path, "expected at least one design (one is tracked on its own growth; two or more are compared)", None);
     }
@@ -35,7 +35,7 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
         };
         let mut broken = false;
         // What the next step receives, while it is known.
-        let mut seen = Some(SeenTable::of(first.0, first.1, d.feed == Feed::Records));
+        let mut seen = Some(first.fed(d.feed == Feed::Records));
         let mut lists: [Vec<StepPlan>; 2] = [Vec::new(), Vec::new()];
         for (li, (key, raws)) in [("setup", &d.setup), ("steps", &d.steps)].into_iter().enumerate() {
             for (j, raw) in raws.iter().enumerate() {

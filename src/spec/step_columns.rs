@@ -21,14 +21,32 @@ pub(super) struct SeenTable {
     /// The table's name in the workload (`data` for a lone `table:`).
     pub name: String,
     pub columns: Vec<(String, ColumnKind)>,
+    /// The workload's other tables and their column names (built-in steps never see them;
+    /// a name found there gets a hint).
+    pub others: Vec<(String, Vec<String>)>,
 }
 
 impl SeenTable {
-    /// The table `name` with `columns`; `records` when the design's feed turns it into
-    /// records (categories become text there).
-    pub fn of(name: &str, columns: &[ColumnPlan], records: bool) -> SeenTable {
-        let kind = |k: ColumnKind| if records && k == ColumnKind::Category { ColumnKind::Text } else { k };
-        SeenTable { name: name.to_string(), columns: columns.iter().map(|c| (c.name.clone(), kind(c.kind))).collect() }
+    /// The first table, `name` with `columns`, beside the workload's `others`.
+    pub fn of(name: &str, columns: &[ColumnPlan], others: &[crate::plan::TablePlan]) -> SeenTable {
+        SeenTable {
+            name: name.to_string(),
+            columns: columns.iter().map(|c| (c.name.clone(), c.kind)).collect(),
+            others: others.iter().map(|t| (t.name.clone(), t.columns.iter().map(|c| c.name.clone()).collect())).collect(),
+        }
+    }
+
+    /// The same table as a design's feed gives it: as records, categories become text.
+    pub fn fed(&self, records: bool) -> SeenTable {
+        let mut t = self.clone();
+        if records {
+            for (_, k) in &mut t.columns {
+                if *k == ColumnKind::Category {
+                    *k = ColumnKind::Text;
+                }
+            }
+        }
+        t
     }
 
     /// The position of `c`, or why it is not there.
@@ -42,7 +60,11 @@ impl SeenTable {
             ColumnRef::Named(n) => match self.columns.iter().position(|(name, _)| name == n) {
                 Some(p) => Ok(p),
                 None => {
-                    let hint = closest(n, self.columns.iter().map(|(name, _)| name.as_str())).map(|s| format!("did you mean `{s}`?"));
+                    let elsewhere = self.others.iter().find(|(_, cols)| cols.contains(n)).map(|(t, _)| {
+                        format!("`{n}` is in table `{t}`; built-in steps receive the first table, `{}` — an `sql` step can join it in", self.name)
+                    });
+                    let near = || closest(n, self.columns.iter().map(|(name, _)| name.as_str())).map(|s| format!("did you mean `{s}`?"));
+                    let hint = elsewhere.or_else(near);
                     Err((format!("no column `{n}` in table `{}` (its columns: {})", self.name, self.listed()), hint))
                 }
             },

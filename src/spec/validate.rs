@@ -113,7 +113,8 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
         _ => columns.clone(),
     };
     let first_name = tables.first().map_or(super::tables::DEFAULT_TABLE, |t| t.name.as_str());
-    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns, (first_name, &widest), largest);
+    let first = super::step_columns::SeenTable::of(first_name, &widest, tables.get(1..).unwrap_or_default());
+    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns, &first, largest);
     for (i, d) in spec.designs.iter().enumerate() {
         if let Some(p) = &d.program {
             let plan = super::programs::check_program(&mut c, d, p, &root.key("designs").index(i), file, &table_names);
