@@ -114,7 +114,12 @@ impl Need {
 pub fn column_position(df: &DataFrame, c: &ColumnRef, step: &'static str) -> Result<usize, StepError> {
     let found = match c {
         ColumnRef::At(p) => (*p < df.width()).then_some(*p),
-        ColumnRef::Named(n) => df.get_column_index(n),
+        // Never `get_column_index` on a wide frame without a schema: it would build one (an
+        // allocation inside the timed region); comparing names allocates nothing.
+        ColumnRef::Named(n) => match df.cached_schema() {
+            Some(schema) => schema.index_of(n),
+            None => df.columns().iter().position(|col| col.name().as_str() == n),
+        },
     };
     found.ok_or_else(|| StepError::NoColumn { step, column: c.described(), width: df.width() })
 }
