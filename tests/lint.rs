@@ -53,6 +53,8 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("43-column-after-setup.yaml", "14:16", &["`key`", "`kilograms` holds decimal numbers (kind `float`)", "needs an integer column"]),
     // Built-in steps receive the first of several tables; a column of another is named there.
     ("44-column-of-another-table.yaml", "17:28", &["no column `district` in table `deliveries`", "`district` is in table `members`"]),
+    // A step's constructor refuses, located at the parameter it names.
+    ("45-same-column-twice.yaml", "10:42", &["step `group_shares` cannot be built", "`value` is the group column `grams` again"]),
 ];
 
 #[test]

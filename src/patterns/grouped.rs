@@ -10,7 +10,7 @@
 //! sweepable: with `rows_per_group` fixed, the groups grow with the rows. Values are
 //! integers so every design's sums are exact and the outputs compare bit for bit.
 
-use super::{column, column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, RunContext, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, BuildError, ColumnRef, Need, ParamDef, ParamKind, Params, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 
 const TOTALS: &[&str] = &["native", "per_group_fn", "partitions"];
@@ -55,7 +55,10 @@ practice: a user function called once per group is much slower than a native agg
         disk_factor: 0.0,
         private_input: false,
         keeps_columns: false,
-        build: |p| Ok(Box::new(GroupTotals { by: p.column("by")?, value: p.column("value")?, method: p.choice("method").to_string() })),
+        build: |p| {
+            let (by, value) = by_and_value(p)?;
+            Ok(Box::new(GroupTotals { by, value, method: p.choice("method").to_string() }))
+        },
     },
     StepDef {
         name: "group_shares",
@@ -72,9 +75,22 @@ and sort them back into row order: n log n for the sort plus allocations per gro
         disk_factor: 0.0,
         private_input: false,
         keeps_columns: false,
-        build: |p| Ok(Box::new(GroupShares { by: p.column("by")?, value: p.column("value")?, method: p.choice("method").to_string() })),
+        build: |p| {
+            let (by, value) = by_and_value(p)?;
+            Ok(Box::new(GroupShares { by, value, method: p.choice("method").to_string() }))
+        },
     },
 ];
+
+/// The group and value columns; the same column written twice is refused when the step is
+/// built (a name and a position of the same column only when it runs).
+fn by_and_value(p: &Params) -> Result<(ColumnRef, ColumnRef), BuildError> {
+    let (by, value) = (p.column("by")?, p.column("value")?);
+    if by == value {
+        return Err(BuildError { param: Some("value"), message: format!("`value` is the group column `{by}` again; the value column must be another") });
+    }
+    Ok((by, value))
+}
 
 fn names(df: &DataFrame, by: &ColumnRef, value: &ColumnRef, step: &'static str) -> Result<(PlSmallStr, PlSmallStr), StepError> {
     let b = column(df, by, Need::Any, step)?;
