@@ -131,3 +131,17 @@ fn a_named_column_that_moved_is_still_found() {
     let problems = common::lint_problems(&moved);
     assert!(problems.iter().any(|p| p.contains("`variety` holds text")), "{problems:?}");
 }
+
+#[test]
+fn the_checker_says_nothing_it_cannot_know() {
+    // After a transpose the columns are the rows: no check, the step decides when it runs.
+    let reshaped = "name: reshaped\ntable:\n  columns:\n    - {name: kilograms, kind: float}\n    - {name: variety, kind: text, distinct: 5}\nsizes: [1k]\ndesigns:\n  - {name: after-transpose, steps: [transpose_rows, {sum_across: {first: column_7, count: 3}}]}\n";
+    assert_eq!(common::lint_problems(reshaped), Vec::<String>::new());
+    // A sweep over the number of columns: a copy that exists at the widest point is a
+    // column of the table (`kilograms_2`, the second copy of `kilograms`).
+    let widened = "name: widened\ntable:\n  columns:\n    - {name: kilograms, kind: float}\n    - {name: variety, kind: text, distinct: 5}\nrows: 1k\nsweep: {axis: columns, set: columns, values: [2, 4, 8]}\ndesigns:\n  - {name: copy, steps: [{read_cells: {column: kilograms_2}}]}\n  - {name: far, steps: [{read_cells: {column: 6}}]}\n";
+    assert_eq!(common::lint_problems(widened), Vec::<String>::new());
+    let too_far = widened.replace("column: 6}", "column: 8}");
+    let problems = common::lint_problems(&too_far);
+    assert!(problems.iter().any(|p| p.contains("no column at position 8") && p.contains("has 8 columns")), "{problems:?}");
+}
