@@ -149,7 +149,14 @@ fn typed(c: &mut Checker, pd: &ParamDef, v: &Y, vp: &YamlPath, largest: u64) -> 
         (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
         // A column by position (the older form) or by name.
         (ParamKind::Column { .. }, Y::Number(n)) => n.as_u64().filter(|&x| x <= MAX_POSITION).map(|x| ParamValue::Column(ColumnRef::At(x as usize))),
-        (ParamKind::Column { .. }, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Column(ColumnRef::Named(t.clone()))),
+        // A name follows the rule of column names (it reaches labels and terminals).
+        (ParamKind::Column { .. }, Y::String(t)) if !t.trim().is_empty() => match super::limits::name_problem(t) {
+            None => Some(ParamValue::Column(ColumnRef::Named(t.clone()))),
+            Some(m) => {
+                c.at(vp, format!("`{}`: {m}", pd.name), None);
+                return None;
+            }
+        },
         (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
         _ => None,
     };
