@@ -314,32 +314,41 @@ impl std::fmt::Display for ParamValue {
 pub struct Params(pub BTreeMap<String, ParamValue>);
 
 impl Params {
+    /// The value of `name`. The checker fills every parameter of a step, so a miss is a
+    /// constructor asking for a name its step does not declare: the lib's tests build every
+    /// step and fail on it (elsewhere the accessors below fall back to a neutral value).
+    fn get(&self, name: &str) -> Option<&ParamValue> {
+        let v = self.0.get(name);
+        #[cfg(test)]
+        assert!(v.is_some(), "a step's constructor reads `{name}`, which it does not declare");
+        v
+    }
     pub fn count(&self, name: &str) -> u64 {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Count(v)) => *v,
             _ => 0,
         }
     }
     pub fn choice(&self, name: &str) -> &str {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Choice(v)) => v,
             _ => "",
         }
     }
     pub fn number(&self, name: &str) -> f64 {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Number(v)) => *v,
             _ => 0.0,
         }
     }
     pub fn text(&self, name: &str) -> &str {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Text(v)) => v,
             _ => "",
         }
     }
     pub fn flag(&self, name: &str) -> bool {
-        matches!(self.0.get(name), Some(ParamValue::Flag(true)))
+        matches!(self.get(name), Some(ParamValue::Flag(true)))
     }
     /// A column parameter; an error (not a silent default) when the checker left none.
     pub fn column(&self, name: &'static str) -> Result<ColumnRef, BuildError> {
@@ -421,6 +430,9 @@ impl OutputFacts {
         }
     }
 }
+
+#[cfg(test)]
+mod tests;
 
 pub(crate) fn polars_err(step: &'static str) -> impl FnOnce(PolarsError) -> StepError {
     move |source| StepError::Polars { step, source }
