@@ -60,6 +60,11 @@ print("predictions at the target (ms)")
 for key, vs in sorted(preds.items()):
     print(f"  {key[0]:<16} {key[1]:<26} " + " | ".join("-" if v is None else f"{v/1e6:.3g}" for v in vs))
 
+print("expect: entries not met in every run")
+for key, vs in sorted(expects.items()):
+    if not all(vs):
+        print(f"  {key[0]:<16} {key[1]:<26} {key[2]:<30} " + " | ".join("met" if v else "not met" for v in vs))
+
 n_w = len(verdicts)
 same_v = sum(1 for vs in verdicts.values() if len(set(vs)) == 1 and len(vs) == len(runs))
 cells = [vs for vs in classes.values() if any(v != "-" for v in vs)]

@@ -8,7 +8,7 @@
 
 mod common;
 
-use framecost::measure::runner::run_design;
+use common::run_design;
 use framecost::patterns::{OutputFacts, ParamValue, Value};
 use polars::prelude::*;
 

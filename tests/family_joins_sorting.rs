@@ -12,7 +12,7 @@
 
 mod common;
 
-use framecost::measure::runner::run_design;
+use common::run_design;
 use framecost::patterns::{OutputFacts, Value};
 use common::design;
 use std::collections::HashMap;

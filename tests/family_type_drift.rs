@@ -6,7 +6,7 @@
 
 mod common;
 
-use framecost::measure::runner::run_design;
+use common::run_design;
 use framecost::patterns::{OutputFacts, Value};
 use polars::prelude::*;
 

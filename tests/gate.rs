@@ -90,7 +90,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
                 design: "build".into(),
                 rows: n,
                 measured: None,
-                skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, detail: String::new() }),
+                skipped: Some(SkipInfo { reason: SkipReason::PredictedOverBudget, predicted_ns: Some(1e9), predicted_bytes: None, cause: None, detail: String::new() }),
                 setup_ns: None,
             }));
             continue;
@@ -381,4 +381,30 @@ fn an_exponent_rise_without_per_size_agreement_is_not_a_growth_regression() {
     assert!(!g.failed());
     let off = compare(&base, &new, &GateOptions { growth_rise: None, ..GateOptions::default() });
     assert!(off.workloads[0].growth.iter().all(|x| x.metric != "time"));
+}
+
+#[test]
+fn points_measured_on_a_busy_machine_are_never_called() {
+    // The same 20% slowdown as above, but the new run's sizes from 64k were measured while
+    // other processes took the machine: contention moves medians by more than a change of
+    // the code would, so those points are shown, called unclear, and fail nothing.
+    let base = run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let slow = |n: u64| if n >= 64_000 { 1.2 * linear(n) } else { linear(n) };
+    let mut new = run("b", 2, "cpu", 1e8, &slow, &lin_bytes, &[]);
+    for p in new.workloads[0].points.iter_mut().filter(|p| p.rows >= 64_000) {
+        let m = p.measured.as_mut().expect("measured");
+        m.disturbance = Some(Disturbance { others_share: Some(0.6), busy: true, reasons: vec!["other-processes".into()], ..Default::default() });
+    }
+    let g = compare(&base, &new, &GateOptions::default());
+    for p in &g.workloads[0].points {
+        if p.rows >= 64_000 {
+            assert_eq!(p.call, Call::Unclear, "at {} rows", p.rows);
+            assert!(p.busy && p.ratio > 1.1);
+        } else {
+            assert_eq!(p.call, Call::Same, "at {} rows", p.rows);
+            assert!(!p.busy);
+        }
+    }
+    assert_eq!(g.regressions + g.unconfirmed_regressions + g.growth_regressions, 0);
+    assert!(!g.failed());
 }

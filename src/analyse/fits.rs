@@ -4,7 +4,7 @@
 //! a pair of classes. Used by the analysis and by the gate (`fit_time`).
 
 use super::output::{ExponentOut, PredictionOut};
-use crate::fit::growth::{exponent_with_ci, fit_growth, GrowthClass, GrowthFit};
+use crate::fit::growth::{exponent_with_ci, fit_growth_with, GrowthClass, GrowthFit};
 use crate::fit::predict::predict;
 
 /// Fit how time grows over measured points `(rows, measured)`: the growth class on each
@@ -36,8 +36,15 @@ pub fn fit_time(measured: &[(u64, &crate::results::Measured)], seed: u64) -> (Re
     let exponent = exponent_with_ci(&per_size, 4, 1000, seed)
         .ok()
         .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used });
-    (fit_growth(&xs, &ys), exponent)
+    (fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY), exponent)
 }
+
+/// How closely a size's median time can be reproduced by another run on the same machine,
+/// as a relative standard deviation: the classes of time are compared with at least this
+/// much noise on every point (`fit::growth::fit_growth_with`). A size's own samples agree to
+/// a few percent, so without it a curvature of a few percent (the data outgrowing a cache)
+/// decided between neighbouring classes and flipped from run to run.
+pub const TIME_REPRODUCIBILITY: f64 = 0.05;
 
 /// The prediction of a fit at `rows`: its own class's interval, widened to cover the
 /// alternative class's interval when the data cannot tell the two apart.

@@ -2,6 +2,7 @@
 //! so a gate can compare against them later (`framecost gate NAME NEW`). A saved baseline is
 //! a copy of the run's `points.jsonl` and `summary.json` in `<store>/<NAME>/`.
 
+use super::failure::{usage, Failure};
 use crate::results::reader::RunResults;
 use std::path::PathBuf;
 
@@ -28,20 +29,14 @@ pub enum Action {
     List,
 }
 
-pub fn run(a: Args) -> i32 {
-    let bad = |m: String| {
-        eprintln!("framecost baseline: {m}");
-        crate::exit::BAD_INPUT
-    };
+pub fn run(a: Args) -> Result<(), Failure> {
+    let bad = |m: String| Err(Failure::Usage(m));
     match a.action {
         Action::Save { run, name, replace } => {
             if name.is_empty() || !name.chars().all(|c| c.is_ascii_alphanumeric() || "-_.".contains(c)) || name.starts_with('.') {
                 return bad(format!("expected a name of letters, digits, `-`, `_` or `.`, found `{name}`"));
             }
-            let r = match RunResults::read(&run) {
-                Ok(r) => r,
-                Err(e) => return bad(e.to_string()),
-            };
+            let r = RunResults::read(&run).map_err(usage)?;
             if !r.complete() {
                 return bad(format!("{} did not finish; only complete runs can be baselines", run.display()));
             }
@@ -59,12 +54,12 @@ pub fn run(a: Args) -> i32 {
                 }
             }
             println!("saved {} as baseline `{name}` in {}", run.display(), dir.display());
-            crate::exit::OK
+            Ok(())
         }
         Action::List => {
             let Ok(entries) = std::fs::read_dir(&a.store) else {
                 println!("no baselines in {}", a.store.display());
-                return crate::exit::OK;
+                return Ok(());
             };
             let mut rows: Vec<(String, String)> = entries
                 .filter_map(|e| e.ok())
@@ -83,7 +78,7 @@ pub fn run(a: Args) -> i32 {
             for (n, d) in rows {
                 println!("{n:<24} {d}");
             }
-            crate::exit::OK
+            Ok(())
         }
     }
 }

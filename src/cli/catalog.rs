@@ -3,6 +3,7 @@
 //! (so it works from any folder); `--long` adds each step's parameters and cost-model note;
 //! `--json` prints one document (`framecost.catalog/1`, see docs/results.md).
 
+use super::{Failure, Problem};
 use crate::plan::Plan;
 use std::path::PathBuf;
 
@@ -22,19 +23,16 @@ pub struct Args {
     pub json: bool,
 }
 
-/// The workloads to list: (label, plan) for each that loads; problems go to stderr.
-fn workloads(args: &Args) -> (Vec<(String, Plan)>, bool) {
+/// The workloads to list: (label, plan) for each that loads, and the problems of the others.
+fn workloads(args: &Args) -> (Vec<(String, Plan)>, Vec<Problem>) {
     let mut ok = Vec::new();
-    let mut bad = false;
+    let mut bad = Vec::new();
     match &args.folder {
         None => {
             for name in crate::builtin::names() {
                 match crate::builtin::load(name) {
                     Ok(p) => ok.push((crate::builtin::label(name), p)),
-                    Err(e) => {
-                        eprintln!("framecost catalog: built-in `{name}` does not load: {e}");
-                        bad = true;
-                    }
+                    Err(e) => bad.push(Problem::Said(format!("built-in `{name}` does not load: {e}"))),
                 }
             }
         }
@@ -44,17 +42,13 @@ fn workloads(args: &Args) -> (Vec<(String, Plan)>, bool) {
                     match crate::spec::load(&f) {
                         Ok(p) => ok.push((f.display().to_string(), p)),
                         Err(e) => {
-                            eprintln!("{e}");
-                            eprintln!("framecost catalog: {} does not load (left out of the list)", f.display());
-                            bad = true;
+                            bad.push(Problem::Located(e));
+                            bad.push(Problem::Said(format!("{} does not load (left out of the list)", f.display())));
                         }
                     }
                 }
             }
-            Err(e) => {
-                eprintln!("framecost catalog: {e}");
-                bad = true;
-            }
+            Err(e) => bad.push(Problem::Said(e)),
         },
     }
     (ok, bad)
@@ -89,15 +83,13 @@ fn json(args: &Args, list: &[(String, Plan)]) -> serde_json::Value {
     serde_json::json!({ "schema": SCHEMA, "source": source, "workloads": workloads, "steps": steps })
 }
 
-pub fn run(args: Args) -> i32 {
+pub fn run(args: Args) -> Result<(), Failure> {
     if let Some(folder) = &args.folder {
-        if let Err(e) = super::expand_paths(std::slice::from_ref(folder)) {
-            eprintln!("framecost catalog: {e}");
-            return crate::exit::BAD_INPUT;
-        }
+        super::expand_paths(std::slice::from_ref(folder)).map_err(Failure::Usage)?;
     }
     let (list, bad) = workloads(&args);
-    let code = if bad { crate::exit::BAD_INPUT } else { crate::exit::OK };
+    // The list is printed either way; the workloads that did not load make it a failure.
+    let code = if bad.is_empty() { Ok(()) } else { Err(Failure::Workloads(bad)) };
     if args.json {
         println!("{}", serde_json::to_string_pretty(&json(&args, &list)).unwrap_or_default());
         return code;

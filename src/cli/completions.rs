@@ -10,16 +10,10 @@ pub struct Args {
     pub shell: clap_complete::Shell,
 }
 
-pub fn run(a: Args) -> i32 {
+pub fn run(a: Args) -> Result<(), super::Failure> {
     let mut cmd = super::command();
     let mut out = Vec::new();
     clap_complete::generate(a.shell, &mut cmd, "framecost", &mut out);
     use std::io::Write;
-    match std::io::stdout().lock().write_all(&out) {
-        Ok(()) => crate::exit::OK,
-        Err(e) => {
-            eprintln!("framecost completions: could not write: {e}");
-            crate::exit::WRITE_FAILED
-        }
-    }
+    std::io::stdout().lock().write_all(&out).map_err(|e| super::Failure::Write(format!("could not write: {e}")))
 }

@@ -34,14 +34,8 @@ pub struct Args {
     pub json: bool,
 }
 
-pub fn run(a: Args) -> i32 {
-    let r = match crate::results::reader::RunResults::read(&a.run) {
-        Ok(r) => r,
-        Err(e) => {
-            eprintln!("framecost explain: {e}");
-            return crate::exit::BAD_INPUT;
-        }
-    };
+pub fn run(a: Args) -> Result<(), super::Failure> {
+    let r = crate::results::reader::RunResults::read(&a.run).map_err(super::failure::usage)?;
     let parse = |v: &Option<String>, flag: &str| -> Result<Option<u64>, String> {
         match v {
             None => Ok(None),
@@ -50,16 +44,13 @@ pub fn run(a: Args) -> i32 {
     };
     let opts = match (parse(&a.at, "--at"), parse(&a.fit_up_to, "--fit-up-to")) {
         (Ok(at), Ok(fit_up_to)) => AnalyseOptions { at, fit_up_to, top_sizes: a.top_sizes },
-        (Err(e), _) | (_, Err(e)) => {
-            eprintln!("framecost explain: {e}");
-            return crate::exit::BAD_INPUT;
-        }
+        (Err(e), _) | (_, Err(e)) => return Err(super::Failure::Usage(e)),
     };
     let analysed = Analysed::new(&r, &opts);
     if a.json {
         let doc = analysed.document(SCHEMA);
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
-        return crate::exit::OK;
+        return Ok(());
     }
     if !r.complete() {
         println!("this run did not finish (interrupted or killed): what follows is drawn from the points measured before it stopped\n");
@@ -134,7 +125,7 @@ pub fn run(a: Args) -> i32 {
         }
         println!();
     }
-    crate::exit::OK
+    Ok(())
 }
 
 /// The optimized plan of each `sql` step, as recorded with the run (older runs have none).

@@ -3,6 +3,7 @@
 //! significant rank test, or started to scale worse. Exit 0 when nothing got worse, 2 for
 //! bad input. BASELINE is a run folder or the name of a saved baseline.
 
+use super::Failure;
 use crate::results::reader::RunResults;
 use crate::spec::units::parse_share;
 use crate::track::gate::{compare, Call, GateOptions, GateReport};
@@ -54,16 +55,16 @@ pub fn resolve(arg: &str, store: &Path) -> PathBuf {
     store.join(arg)
 }
 
-pub fn run(a: Args) -> i32 {
-    let bad = |m: String| {
-        eprintln!("framecost gate: {m}");
-        crate::exit::BAD_INPUT
-    };
+pub fn run(a: Args) -> Result<(), Failure> {
+    let bad = |m: String| Err(Failure::Usage(m));
+    // The workload's `gate.threshold` is parsed and bounded by the same two functions.
     let threshold = match a.threshold.as_deref().map(parse_share).transpose() {
-        Ok(Some(t)) if !(t > 0.0 && t <= 10.0) => return bad(format!("--threshold: expected above 0% and at most 1000%, found {t}")),
         Ok(t) => t,
         Err(e) => return bad(format!("--threshold: expected {e}")),
     };
+    if let Some(m) = threshold.and_then(crate::spec::limits::threshold_problem) {
+        return bad(format!("--threshold: {m}"));
+    }
     if !(a.alpha > 0.0 && a.alpha < 1.0) {
         return bad(format!("--alpha: expected a level between 0 and 1, found {}", a.alpha));
     }
@@ -110,10 +111,9 @@ pub fn run(a: Args) -> i32 {
         print!("{}", render(&report));
     }
     if report.failed() {
-        crate::exit::REGRESSION
-    } else {
-        crate::exit::OK
+        return Err(Failure::Regression);
     }
+    Ok(())
 }
 
 /// The gate's answer as text, decision first and within the terminal's width: the result,
@@ -234,7 +234,8 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
             said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(v), times(v)));
         }
     }
-    let unclear = pts.iter().filter(|p| p.call == Call::Unclear).count();
+    let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy).count();
     let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
     if said.is_empty() {
         let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
@@ -246,6 +247,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     if unclear > 0 {
         said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
+    }
+    if busy > 0 {
+        said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
     }
     let first = format!("  {d:<name_w$}  ");
     let rest = " ".repeat(first.chars().count());

@@ -4,6 +4,7 @@
 //! runs found a change marked, and the same changes listed. Runs whose workload file changed
 //! (the spec hash in the workload header differs from the run before) are marked in both.
 
+use super::Failure;
 use crate::present::plot::{spec_changes, RunMark};
 use crate::units::{escaped, size_label};
 use crate::results::reader::RunResults;
@@ -20,10 +21,9 @@ pub struct Args {
     pub out: Option<PathBuf>,
 }
 
-pub fn run(a: Args) -> i32 {
+pub fn run(a: Args) -> Result<(), Failure> {
     let Ok(entries) = std::fs::read_dir(&a.dir) else {
-        eprintln!("framecost history: cannot list {}", a.dir.display());
-        return crate::exit::BAD_INPUT;
+        return Err(Failure::Usage(format!("cannot list {}", a.dir.display())));
     };
     let mut runs: Vec<RunResults> = entries
         .filter_map(|e| e.ok())
@@ -37,8 +37,7 @@ pub fn run(a: Args) -> i32 {
         k(x).cmp(&k(y))
     });
     if runs.len() < 2 {
-        eprintln!("framecost history: {} holds {} complete run(s); two or more are needed", a.dir.display(), runs.len());
-        return crate::exit::BAD_INPUT;
+        return Err(Failure::Usage(format!("{} holds {} complete run(s); two or more are needed", a.dir.display(), runs.len())));
     }
     let out = a.out.clone().unwrap_or_else(|| a.dir.join("history"));
     // Changes between consecutive runs: (index of the later run, design, rows, worse?).
@@ -78,13 +77,8 @@ pub fn run(a: Args) -> i32 {
                 series.iter().position(|s| s.0 == id).map(|k| RunMark { run: k, design: c.2.clone(), rows: c.3, worse: c.4 })
             })
             .collect();
-        match crate::present::plot::draw_history(&out, name, &series, &marks) {
-            Ok(p) => println!("{}: {} runs → {}", escaped(name), series.len(), p.display()),
-            Err(e) => {
-                eprintln!("framecost history: {}: {e}", escaped(name));
-                return crate::exit::RUN_FAILED;
-            }
-        }
+        let p = crate::present::plot::draw_history(&out, name, &series, &marks).map_err(|error| Failure::History { workload: name.clone(), error })?;
+        println!("{}: {} runs → {}", escaped(name), series.len(), p.display());
         // In run order: where the workload file changed (its spec hash differs from the run
         // before), then what the gate found at that run.
         let edits = spec_changes(&series);
@@ -102,5 +96,5 @@ pub fn run(a: Args) -> i32 {
             }
         }
     }
-    crate::exit::OK
+    Ok(())
 }

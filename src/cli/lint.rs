@@ -5,6 +5,7 @@
 //! stdout). `--json` prints one document instead (`framecost.lint/1`, see docs/results.md).
 //! Exit 0 when all files are sound, 2 otherwise.
 
+use super::{Failure, Problem};
 use std::path::PathBuf;
 
 /// Schema of the `--json` document.
@@ -21,15 +22,10 @@ pub struct Args {
     pub json: bool,
 }
 
-pub fn run(args: Args) -> i32 {
-    let files = match super::expand_paths(&args.paths) {
-        Ok(f) => f,
-        Err(e) => {
-            eprintln!("framecost lint: {e}");
-            return crate::exit::BAD_INPUT;
-        }
-    };
+pub fn run(args: Args) -> Result<(), Failure> {
+    let files = super::expand_paths(&args.paths).map_err(Failure::Usage)?;
     let mut bad = 0;
+    let mut problems = Vec::new();
     let mut docs = Vec::new();
     for f in &files {
         match crate::spec::load(f) {
@@ -63,7 +59,7 @@ pub fn run(args: Args) -> i32 {
                         .collect();
                     docs.push(serde_json::json!({ "file": f.display().to_string(), "ok": false, "problems": problems }));
                 } else {
-                    eprintln!("{errs}");
+                    problems.push(Problem::Located(errs));
                 }
             }
         }
@@ -72,11 +68,10 @@ pub fn run(args: Args) -> i32 {
         let doc = serde_json::json!({ "schema": SCHEMA, "files": docs, "files_with_problems": bad });
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
     } else if bad > 0 {
-        eprintln!("framecost lint: {bad} of {} file(s) have problems", files.len());
+        problems.push(Problem::Said(format!("{bad} of {} file(s) have problems", files.len())));
     }
     if bad > 0 {
-        crate::exit::BAD_INPUT
-    } else {
-        crate::exit::OK
+        return Err(Failure::Workloads(problems));
     }
+    Ok(())
 }

@@ -95,27 +95,17 @@ fn write_pages(dir: &Path) -> Result<usize, String> {
     Ok(pages.len())
 }
 
-pub fn run(a: Args) -> i32 {
+pub fn run(a: Args) -> Result<(), super::Failure> {
+    use super::Failure;
     match &a.out {
-        Some(dir) => match write_pages(dir) {
-            Ok(n) => {
-                println!("{n} manual pages in {}", dir.display());
-                crate::exit::OK
-            }
-            Err(e) => {
-                eprintln!("framecost manual: could not write the pages: {e}");
-                crate::exit::WRITE_FAILED
-            }
-        },
+        Some(dir) => {
+            let n = write_pages(dir).map_err(|e| Failure::Write(format!("could not write the pages: {e}")))?;
+            println!("{n} manual pages in {}", dir.display());
+            Ok(())
+        }
         None => {
             let page = pages().map(|mut p| p.swap_remove(0).1);
-            match page.and_then(|p| std::io::stdout().lock().write_all(&p)) {
-                Ok(()) => crate::exit::OK,
-                Err(e) => {
-                    eprintln!("framecost manual: could not write: {e}");
-                    crate::exit::WRITE_FAILED
-                }
-            }
+            page.and_then(|p| std::io::stdout().lock().write_all(&p)).map_err(|e| Failure::Write(format!("could not write: {e}")))
         }
     }
 }

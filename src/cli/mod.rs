@@ -4,6 +4,7 @@ pub mod baseline;
 pub mod catalog;
 pub mod completions;
 pub mod explain;
+pub mod failure;
 pub mod gate;
 pub mod history;
 pub mod lint;
@@ -15,6 +16,7 @@ pub mod sweep;
 pub mod table;
 
 use clap::{CommandFactory, FromArgMatches, Parser, Subcommand};
+pub use failure::{Failure, Problem};
 
 /// How the cost of table-pipeline designs grows with the data.
 #[derive(Debug, Parser)]
@@ -101,19 +103,27 @@ pub enum Command {
     Manual(manual::Args),
 }
 
-/// Run the command line; returns the process exit code.
+/// Run the command line; returns the process exit code. Every command's failure goes
+/// through [`Failure::report`], the one place that words it and picks the code.
 pub fn main() -> i32 {
+    // Measurement records why points were skipped as numbers; present words them.
+    crate::results::cause::word_with(crate::present::causes::words);
     let args: Vec<std::ffi::OsString> = std::env::args_os().collect();
     let cmd = ColorWhen::from_args(&args).apply(command());
     let cli = match cmd.try_get_matches_from(args).and_then(|m| Cli::from_arg_matches(&m)) {
         Ok(c) => c,
-        Err(e) => {
-            let code = if e.use_stderr() { crate::exit::BAD_INPUT } else { crate::exit::OK };
-            let _ = e.print();
-            return code;
-        }
+        Err(e) => return Failure::CommandLine(e).report("framecost"),
     };
-    match cli.command {
+    let name = cli.command.name();
+    match dispatch(cli.command) {
+        Ok(()) => crate::exit::OK,
+        Err(f) => f.report(name),
+    }
+}
+
+/// Run one command.
+pub fn dispatch(command: Command) -> Result<(), Failure> {
+    match command {
         Command::Sweep(a) => sweep::run(a),
         Command::Lint(a) => lint::run(a),
         Command::Catalog(a) => catalog::run(a),
@@ -127,6 +137,27 @@ pub fn main() -> i32 {
         Command::Shape(a) => shape::run(a),
         Command::Completions(a) => completions::run(a),
         Command::Manual(a) => manual::run(a),
+    }
+}
+
+impl Command {
+    /// The command's name as typed, for its messages (`framecost NAME: …`).
+    pub fn name(&self) -> &'static str {
+        match self {
+            Command::Sweep(_) => "sweep",
+            Command::Lint(_) => "lint",
+            Command::Catalog(_) => "catalog",
+            Command::Explain(_) => "explain",
+            Command::Gate(_) => "gate",
+            Command::Baseline(_) => "baseline",
+            Command::History(_) => "history",
+            Command::Recap(_) => "recap",
+            Command::Report(_) => "report",
+            Command::Table(_) => "table",
+            Command::Shape(_) => "shape",
+            Command::Completions(_) => "completions",
+            Command::Manual(_) => "manual",
+        }
     }
 }
 

@@ -37,22 +37,16 @@ pub fn document(schema: &str, an: &Analysed) -> serde_json::Value {
     })
 }
 
-pub fn run(args: Args) -> i32 {
-    match RunResults::read(&args.run) {
-        Ok(r) if args.json => {
-            let mut doc = document(SCHEMA, &Analysed::new(&r, &AnalyseOptions::default()));
-            doc["run"] = args.run.display().to_string().into();
-            println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
-            crate::exit::OK
-        }
-        Ok(r) => {
-            use crate::present::terminal::{render_with, Options, Style};
-            print!("{}", render_with(&Analysed::new(&r, &AnalyseOptions::default()), Style::detect(), Options::detect(args.long)));
-            crate::exit::OK
-        }
-        Err(e) => {
-            eprintln!("framecost recap: {e}");
-            crate::exit::BAD_INPUT
-        }
+pub fn run(args: Args) -> Result<(), super::Failure> {
+    let r = RunResults::read(&args.run).map_err(super::failure::usage)?;
+    let analysed = Analysed::new(&r, &AnalyseOptions::default());
+    if args.json {
+        let mut doc = document(SCHEMA, &analysed);
+        doc["run"] = args.run.display().to_string().into();
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+    } else {
+        use crate::present::terminal::{render_with, Options, Style};
+        print!("{}", render_with(&analysed, Style::detect(), Options::detect(args.long)));
     }
+    Ok(())
 }

@@ -4,6 +4,7 @@
 //! (or `--out DIR`).
 
 use crate::analyse::AnalyseOptions;
+use super::failure::{usage, Failure};
 use crate::spec::units::parse_rows;
 use std::path::PathBuf;
 
@@ -20,40 +21,21 @@ pub struct Args {
     pub at: Option<String>,
 }
 
-pub fn run(a: Args) -> i32 {
-    let r = match crate::results::reader::RunResults::read(&a.run) {
-        Ok(r) => r,
-        Err(e) => {
-            eprintln!("framecost report: {e}");
-            return crate::exit::BAD_INPUT;
-        }
-    };
-    let at = match a.at.as_deref().map(parse_rows).transpose() {
-        Ok(v) => v,
-        Err(e) => {
-            eprintln!("framecost report: --at: expected {e}");
-            return crate::exit::BAD_INPUT;
-        }
-    };
+pub fn run(a: Args) -> Result<(), Failure> {
+    let r = crate::results::reader::RunResults::read(&a.run).map_err(usage)?;
+    let at = a.at.as_deref().map(parse_rows).transpose().map_err(|e| usage(format!("--at: expected {e}")))?;
     let dir = a.out.clone().unwrap_or_else(|| if a.run.is_dir() { a.run.clone() } else { a.run.parent().map(PathBuf::from).unwrap_or_default() });
     let analysed = crate::explain::Analysed::new(&r, &AnalyseOptions { at, ..AnalyseOptions::default() });
-    match crate::present::report::write(&dir, &analysed) {
-        Ok(w) => {
-            println!(
-                "report: {}\n        {}\ntables: {}\n        {}\n        {}\npictures: {} files in {}",
-                w.html.display(),
-                w.markdown.display(),
-                dir.join("points.parquet").display(),
-                dir.join("samples.parquet").display(),
-                w.csv.display(),
-                w.pictures.len(),
-                dir.join("pictures").display()
-            );
-            crate::exit::OK
-        }
-        Err(e) => {
-            eprintln!("framecost report: could not write the report: {e}");
-            crate::exit::WRITE_FAILED
-        }
-    }
+    let w = crate::present::report::write(&dir, &analysed).map_err(Failure::Report)?;
+    println!(
+        "report: {}\n        {}\ntables: {}\n        {}\n        {}\npictures: {} files in {}",
+        w.html.display(),
+        w.markdown.display(),
+        dir.join("points.parquet").display(),
+        dir.join("samples.parquet").display(),
+        w.csv.display(),
+        w.pictures.len(),
+        dir.join("pictures").display()
+    );
+    Ok(())
 }

@@ -16,6 +16,7 @@
 //! (`schema: framecost.shape/1`). CSV cells `NA`, `N/A`, `NULL`, `null`, `NaN`, `None` and
 //! empty cells are null unless `--null` names others. Exit 0 on success, 2 for bad input.
 
+use super::Failure;
 use crate::shape::{self, read::ReadOptions, ShapeOptions};
 use std::path::{Path, PathBuf};
 
@@ -48,9 +49,8 @@ pub struct Args {
     pub force: bool,
 }
 
-fn fail(msg: impl std::fmt::Display) -> i32 {
-    eprintln!("framecost shape: {msg}");
-    crate::exit::BAD_INPUT
+fn fail(msg: impl std::fmt::Display) -> Result<(), Failure> {
+    Err(super::failure::usage(msg))
 }
 
 /// Where each table's skeleton goes.
@@ -96,7 +96,7 @@ fn report(outcome: &shape::ShapeOutcome) -> String {
     s
 }
 
-pub fn run(args: Args) -> i32 {
+pub fn run(args: Args) -> Result<(), Failure> {
     let mut read = ReadOptions::default();
     if !args.nulls.is_empty() {
         read.null_markers = args.nulls.clone();
@@ -143,7 +143,7 @@ pub fn run(args: Args) -> i32 {
             Ok(s) => println!("{s}"),
             Err(e) => return fail(format!("could not write JSON: {e}")),
         }
-        return crate::exit::OK;
+        return Ok(());
     }
     let text = report(&outcome);
     if args.out.is_some() {
@@ -156,5 +156,5 @@ pub fn run(args: Args) -> i32 {
         print!("{}", docs.join("---\n"));
         eprint!("{text}");
     }
-    crate::exit::OK
+    Ok(())
 }

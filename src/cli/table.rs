@@ -15,6 +15,7 @@
 //! atomically: under a temporary name in the same folder, then renamed. Exit 0 on success,
 //! 2 for bad input or a refused size, 3 when writing failed.
 
+use super::Failure;
 use crate::units::bytes;
 use crate::table::write::{self, FileFormat};
 use std::path::PathBuf;
@@ -45,15 +46,14 @@ pub struct Args {
     pub force: bool,
 }
 
-fn fail(msg: impl std::fmt::Display) -> i32 {
-    eprintln!("framecost table: {msg}");
-    crate::exit::BAD_INPUT
+fn fail(msg: impl std::fmt::Display) -> Result<(), Failure> {
+    Err(super::failure::usage(msg))
 }
 
 /// Share of available memory or free disk one write may use (the sweep's own rule).
 const SHARE: f64 = 0.8;
 
-pub fn run(args: Args) -> i32 {
+pub fn run(args: Args) -> Result<(), Failure> {
     let format = match FileFormat::from_path(&args.write) {
         Ok(f) => f,
         Err(e) => return fail(e),
@@ -110,10 +110,7 @@ pub fn run(args: Args) -> i32 {
     }
     let mut df = match crate::table::related::generate_table_span(&tables, table, plan.seed, plan.related, swept, 0..rows) {
         Ok(df) => df,
-        Err(e) => {
-            eprintln!("framecost table: could not build the table of `{}` at {rows} rows: {e}", plan.name);
-            return crate::exit::RUN_FAILED;
-        }
+        Err(e) => return Err(Failure::Run(format!("could not build the table of `{}` at {rows} rows: {e}", plan.name))),
     };
     let mut what = format!("`{}`", plan.name);
     if tables.len() > 1 {
@@ -137,12 +134,9 @@ pub fn run(args: Args) -> i32 {
                 bytes(need_disk),
                 fingerprint
             );
-            crate::exit::OK
+            Ok(())
         }
-        Err(e) => {
-            eprintln!("framecost table: {e}");
-            crate::exit::RUN_FAILED
-        }
+        Err(e) => Err(Failure::Run(e)),
     }
 }
 
@@ -155,7 +149,8 @@ fn point(args: &Args, plan: &crate::plan::Plan) -> Result<(u64, Option<u64>), St
     let rows = match (&args.rows, &plan.axis) {
         (Some(text), _) => match crate::spec::units::parse_rows(text) {
             Ok(0) => return Err("--rows: expected at least 1 row".into()),
-            Ok(n) if n > crate::spec::validate::MAX_ROWS => return Err(format!("--rows: expected at most 10^10 rows, found {n}")),
+            // The bound of a `sizes:` entry, checked by the same rule.
+            Ok(n) if crate::spec::limits::size_problem(n).is_some() => return Err(format!("--rows: {}", crate::spec::limits::size_problem(n).unwrap_or_default())),
             Ok(n) => n,
             Err(e) => return Err(format!("--rows: expected {e}")),
         },

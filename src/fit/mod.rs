@@ -37,7 +37,7 @@ pub mod sample;
 use std::fmt;
 
 pub use growth::{
-    admissible_slopes, curve_at, doubling_ratios, exponent_with_ci, fit_growth, loglog_slope, Candidate,
+    admissible_slopes, curve_at, doubling_ratios, exponent_with_ci, fit_growth, fit_growth_with, loglog_slope, Candidate,
     ExponentEstimate, GrowthClass, GrowthFit, Rejection, Term,
 };
 pub use lsq::{solve, LsqFit};

@@ -9,7 +9,7 @@
 
 use super::runner::SweepOptions;
 use crate::plan::Plan;
-use crate::results::{Measured, SkipInfo, SkipReason, StopReason};
+use crate::results::{Measured, SkipCause, SkipInfo, SkipReason, StopReason};
 
 /// What later sizes learn from a design's earlier ones.
 #[derive(Debug, Default, Clone)]
@@ -31,25 +31,16 @@ impl DesignState {
         self.history.push((rows, m.median_ns));
         self.peaks.push((rows, m.program.map(|p| p.peak_resident_bytes as f64).unwrap_or(m.alloc.peak_live as f64)));
         if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
-            self.blocked = Some(SkipInfo {
-                reason: SkipReason::SmallerSizeOverBudget,
-                predicted_ns: None,
-                predicted_bytes: None,
-                detail: format!(
-                    "at {} the {} point budget allowed only {} of {} samples (one run {})",
-                    plan.axis_point(rows),
-                    crate::units::time_ns(b.per_point_s * 1e9),
-                    m.samples_ns.len(),
-                    b.min_samples,
-                    crate::units::time_ns(m.median_ns)
-                ),
-            });
+            let cause = SkipCause::TooFewSamples { at: rows, budget_ns: b.per_point_s * 1e9, samples: m.samples_ns.len() as u64, needed: b.min_samples, run_ns: m.median_ns };
+            self.blocked = Some(SkipInfo::new(SkipReason::SmallerSizeOverBudget, cause));
         }
     }
 
     /// Learn that the design failed at `rows`: it is not run at larger sizes.
-    pub fn learn_failed(&mut self, plan: &Plan, rows: u64, info: &SkipInfo) {
-        self.blocked = Some(SkipInfo { detail: format!("failed at {}: {}", plan.axis_point(rows), info.detail), ..info.clone() });
+    pub fn learn_failed(&mut self, rows: u64, info: &SkipInfo) {
+        // A record from before causes were recorded carries its prose as the step's text.
+        let cause = info.cause.clone().unwrap_or_else(|| SkipCause::Step { message: info.detail.clone() });
+        self.blocked = Some(SkipInfo { cause: Some(SkipCause::FailedAt { at: rows, cause: Box::new(cause) }), detail: String::new(), ..info.clone() });
     }
 }
 
@@ -104,32 +95,12 @@ pub fn admit(
             };
             let cost_s = pred * opts.runs_needed / 1e9;
             if cost_s > b.per_point_s {
-                return Some(Err(SkipInfo {
-                    reason: SkipReason::PredictedOverBudget,
-                    predicted_ns: Some(pred),
-                    predicted_bytes: None,
-                    detail: format!(
-                        "one run predicted at {}; {} runs need {} > {} point budget",
-                        crate::units::time_ns(pred),
-                        opts.runs_needed,
-                        crate::units::time_ns(cost_s * 1e9),
-                        crate::units::time_ns(b.per_point_s * 1e9)
-                    ),
-                }));
+                let cause = SkipCause::PointBudget { predicted_ns: pred, runs: opts.runs_needed, budget_ns: b.per_point_s * 1e9 };
+                return Some(Err(SkipInfo { predicted_ns: Some(pred), ..SkipInfo::new(SkipReason::PredictedOverBudget, cause) }));
             }
             if elapsed_run_s + cost_s > b.whole_run_s {
-                return Some(Err(SkipInfo {
-                    reason: SkipReason::RunBudget,
-                    predicted_ns: Some(pred),
-                    predicted_bytes: None,
-                    detail: format!(
-                        "{} runs at {} would pass the {} run budget ({} used)",
-                        opts.runs_needed,
-                        crate::units::time_ns(pred),
-                        crate::units::time_ns(b.whole_run_s * 1e9),
-                        crate::units::time_ns(elapsed_run_s * 1e9)
-                    ),
-                }));
+                let cause = SkipCause::RunBudget { predicted_ns: pred, runs: opts.runs_needed, budget_ns: b.whole_run_s * 1e9, used_ns: elapsed_run_s * 1e9 };
+                return Some(Err(SkipInfo { predicted_ns: Some(pred), ..SkipInfo::new(SkipReason::RunBudget, cause) }));
             }
             Some(Ok(()))
         })

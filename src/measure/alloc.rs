@@ -92,6 +92,41 @@ impl Window {
     }
 }
 
+/// The system allocator's thresholds, fixed for the measuring process.
+///
+/// glibc adapts its thresholds as the process runs: the first time a large block that came
+/// from `mmap` is freed, blocks up to that size start coming from the heap instead, and the
+/// heap is handed back to the system whenever its free top passes twice that size. Whether
+/// a sample pays for fresh pages then depends on what the other designs, sampled in turn,
+/// happened to allocate and free before it, not on the design being measured: six sweeps of
+/// `workloads/type-drift.yaml` on this project's 2-core machine had 15 bimodal points of
+/// 180 with the adaptive thresholds (one cast at 256k rows: 100 µs samples, then twenty at
+/// 800 µs, then 80 µs again) and 1 of 180 with them fixed.
+///
+/// Fixed where glibc starts: blocks of 128 KiB and more always come fresh from the system
+/// (and pay for their pages as they are first touched), smaller ones are reused from the
+/// heap, which is only trimmed past 2 GiB free. That is the regime of the sizes that matter:
+/// a column of a million rows is megabytes, and a pipeline run once over the full data
+/// touches fresh memory. Fixing the thresholds high instead (32 MiB, glibc's largest) kept
+/// the small sizes free of page faults and moved the change of regime to where the blocks
+/// pass 32 MiB: a self-join whose table of pairs crosses it between 4,000 and 8,000 rows went
+/// from ×4.8 to ×6.5 per doubling there, so fits on the smaller sizes predicted it far too
+/// low; with 128 KiB it grew ×3.4, ×4.8, ×4.3 from 500 to 4,000 rows. The allocation
+/// counters above do not change. Called once, before the first size is measured; later
+/// calls do nothing.
+pub fn steady_thresholds() {
+    static ONCE: std::sync::Once = std::sync::Once::new();
+    ONCE.call_once(|| {
+        #[cfg(all(target_os = "linux", target_env = "gnu"))]
+        // SAFETY: mallopt only changes the allocator's tuning values; it is called before the
+        // measuring threads allocate, and glibc serialises it against allocation anyway.
+        unsafe {
+            libc::mallopt(libc::M_MMAP_THRESHOLD, 128 << 10);
+            libc::mallopt(libc::M_TRIM_THRESHOLD, i32::MAX);
+        }
+    });
+}
+
 /// Bytes live in the whole process right now.
 pub fn live_bytes() -> u64 {
     LIVE.load(Relaxed)

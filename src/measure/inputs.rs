@@ -10,7 +10,7 @@ use super::memory;
 use crate::patterns::sql::RunContext;
 use crate::patterns::storage::TempFolder;
 use crate::plan::Plan;
-use crate::results::{SkipInfo, SkipReason};
+use crate::results::{SkipCause, SkipInfo, SkipReason};
 use crate::spec::model::EngineChoice;
 use polars::prelude::*;
 use std::path::PathBuf;
@@ -118,37 +118,24 @@ pub fn refusals(plan: &Plan, rows: u64, peaks: &[Vec<(u64, f64)>], limit: &memor
                 return None;
             }
             if est.total() > avail as f64 * share {
-                return Some(SkipInfo {
-                    reason: SkipReason::Memory,
-                    predicted_ns: None,
-                    predicted_bytes: Some(est.total()),
-                    detail: format!(
-                        "needs {} on the {} engine; {} allowed by {}, {:.0}% of it may be used ({})",
-                        est.describe(),
-                        plan.designs[i].engine.label(),
-                        crate::units::bytes(avail as f64),
-                        limit.source,
-                        share * 100.0,
-                        if limit.hard { "a hard limit: --force cannot lift it" } else { "--force to run anyway" }
-                    ),
-                });
+                let cause = SkipCause::Memory {
+                    need: est.need(),
+                    engine: plan.designs[i].engine.label().to_string(),
+                    limit_bytes: avail,
+                    limit_source: limit.source.to_string(),
+                    share,
+                    hard: limit.hard,
+                };
+                return Some(SkipInfo { predicted_bytes: Some(est.total()), ..SkipInfo::new(SkipReason::Memory, cause) });
             }
             if force {
                 return None;
             }
             match free_disk {
-                Some(free) if est.disk > 0.0 && est.disk > free as f64 * share => Some(SkipInfo {
-                    reason: SkipReason::Disk,
-                    predicted_ns: None,
-                    predicted_bytes: Some(est.disk),
-                    detail: format!(
-                        "writes {}; {} free in {}, {:.0}% of it may be used (--force to run anyway)",
-                        est.describe_disk(),
-                        crate::units::bytes(free as f64),
-                        std::env::temp_dir().display(),
-                        share * 100.0
-                    ),
-                }),
+                Some(free) if est.disk > 0.0 && est.disk > free as f64 * share => {
+                    let cause = SkipCause::Disk { disk_bytes: est.disk, free_bytes: free, folder: std::env::temp_dir().display().to_string(), share };
+                    Some(SkipInfo { predicted_bytes: Some(est.disk), ..SkipInfo::new(SkipReason::Disk, cause) })
+                }
                 _ => None,
             }
         })

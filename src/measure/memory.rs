@@ -41,18 +41,9 @@ impl Estimate {
     pub fn total(&self) -> f64 {
         self.table + self.records + self.generator + self.working
     }
-    pub fn describe_disk(&self) -> String {
-        format!("about {} in the temp folder", crate::units::bytes(self.disk))
-    }
-    pub fn describe(&self) -> String {
-        format!(
-            "about {} (table {}, records {}, generator {}, largest design's working memory {})",
-            crate::units::bytes(self.total()),
-            crate::units::bytes(self.table),
-            crate::units::bytes(self.records),
-            crate::units::bytes(self.generator),
-            crate::units::bytes(self.working)
-        )
+    /// The memory part, as results record it (worded by `present::causes::memory_need`).
+    pub fn need(&self) -> crate::results::MemoryNeed {
+        crate::results::MemoryNeed { table: self.table, records: self.records, generator: self.generator, working: self.working }
     }
 }
 

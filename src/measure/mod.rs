@@ -14,6 +14,7 @@ pub mod memory;
 pub mod program;
 pub mod runner;
 pub mod sampling;
+pub mod scrub;
 pub mod supervise;
 pub mod stats;
 pub mod watchdog;

@@ -13,8 +13,7 @@ use super::clock::ClockInfo;
 use super::equivalence::compare;
 use super::program::{ProgramDesign, ProgramInputs};
 use super::sampling::{make_input, run_step, Active};
-use crate::patterns::{Allowed, RunContext};
-use crate::patterns::{Records, Value};
+use crate::patterns::{Allowed, Records, RunContext, Value};
 use crate::plan::{DesignPlan, Plan};
 use crate::results::writer::{RunWriter, WriteError};
 use crate::results::*;
@@ -54,8 +53,11 @@ pub enum RunError {
     Write(#[from] WriteError),
     #[error("could not build the synthetic table of `{workload}` at {rows} rows: {message}")]
     Table { workload: String, rows: u64, message: String },
-    #[error("could not measure `{workload}`: {message}")]
-    Worker { workload: String, message: String },
+    #[error("could not measure `{workload}`: its measuring process stopped with exit code {code} (its message is above)")]
+    Stopped { workload: String, code: i32 },
+    /// The measuring process ended abnormally `restarts` times, the last because of `last`.
+    #[error("could not measure `{workload}`: its measuring process ended abnormally {restarts} times")]
+    Lost { workload: String, restarts: usize, last: SkipCause },
 }
 
 /// What a workload's sweep ended with.
@@ -124,8 +126,8 @@ fn finish_point(
         Record::Point(PointRecord { workload: plan.name.clone(), design: a.design.name.clone(), rows, measured: m, skipped: s, setup_ns: a.setup_ns })
     };
     if let Some(err) = &a.error {
-        let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: err.clone() };
-        st.learn_failed(plan, rows, &info);
+        let info = SkipInfo::failed(err.clone());
+        st.learn_failed(rows, &info);
         out.write(point(None, Some(info)))?;
         outcome.failures += 1;
         return Ok(());
@@ -156,7 +158,7 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
         }
         match (&p.measured, &p.skipped) {
             (Some(m), _) => states[i].learn_measured(plan, p.rows, m),
-            (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(plan, p.rows, s),
+            (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(p.rows, s),
             _ => {}
         }
     }
@@ -166,6 +168,8 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
 /// Sweep one plan, writing every record as it is made.
 pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let b = plan.budget;
+    super::alloc::steady_thresholds();
+    super::scrub::prepare();
     // Program designs: one work folder each in a temp folder for the whole sweep, and a
     // worker started now (its hello says what it runs on, for the header).
     let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {
@@ -248,7 +252,7 @@ impl<'p> SizeRun<'p, '_> {
     fn failed_before(&mut self, rows: u64, failed: &[(usize, SkipInfo)]) -> Result<(), RunError> {
         for (i, info) in failed.iter().filter(|(i, _)| *i < self.plan.designs.len()) {
             self.skip_point(rows, *i, info.clone())?;
-            self.states[*i].learn_failed(self.plan, rows, info);
+            self.states[*i].learn_failed(rows, info);
             self.states[*i].written_at = Some(rows);
             self.outcome.failures += 1;
         }
@@ -362,20 +366,18 @@ impl<'p> SizeRun<'p, '_> {
         let mut active = Vec::new();
         for &i in runnable {
             let d = &plan.designs[i];
-            let (mut ctx, mut error) = match inputs.context(d.engine) {
-                Ok(c) => (c, None),
-                Err(e) => (RunContext::default(), Some(e)),
+            let (ctx, mut error) = match inputs.context(d.engine) {
+                Ok(c) => (c.limited(Instant::now() + super::watchdog::limit_for(b.per_point_s), Allowed::of(d.program.is_some(), self.opts.force)), None),
+                Err(message) => (RunContext::default(), Some(SkipCause::Step { message })),
             };
-            ctx.deadline = Some(Instant::now() + super::watchdog::limit_for(b.per_point_s));
-            // A workload with programs reaches the runner only with `--allow-programs`.
-            ctx.allowed = Allowed { programs: d.program.is_some(), oversize: self.opts.force };
             if let Some(p) = self.programs.get_mut(i).and_then(|p| p.as_mut()) {
                 let _watch = super::watchdog::arm(i, rows, "loading a program's input", super::watchdog::limit_for(b.per_point_s));
                 error = match &program_files {
                     Some(Ok(files)) => p.start_size(files, plan.rows_at(rows), super::sampling::program_limit(&b, 0.0)).err(),
                     Some(Err(e)) => Some(e.clone()),
                     None => Some("its input files were not written".into()),
-                };
+                }
+                .map(super::sampling::program);
             }
             // Untimed set-up steps, once per size.
             let mut feed = design_feed(d, &df, &records);
@@ -385,7 +387,7 @@ impl<'p> SizeRun<'p, '_> {
                 match run_step(s, feed.clone(), &ctx) {
                     Ok(v) => feed = v,
                     Err(e) => {
-                        error = Some(format!("set-up step {}: {e}", s.label));
+                        error = Some(SkipCause::Setup { step: s.label.clone(), cause: Box::new(e) });
                         break;
                     }
                 }

@@ -41,16 +41,19 @@ pub struct Active<'a> {
     pub switches: (u64, f64),
     pub output: Option<OutputFacts>,
     pub stop: Option<StopReason>,
-    pub error: Option<String>,
+    /// Why it failed at this size (a failed point is written).
+    pub error: Option<SkipCause>,
     /// Its point has been written.
     pub written: bool,
     /// A program design: peak resident size of each sample and the size before it (bytes).
     pub resident: Vec<(u64, Option<u64>)>,
     pub is_program: bool,
+    /// The machine's CPU ticks when its interleaved sampling began (hygiene).
+    pub cpu_at_start: Option<super::hygiene::CpuSnapshot>,
 }
 
 impl<'a> Active<'a> {
-    pub fn new(index: usize, design: &'a DesignPlan, feed: Value, ctx: RunContext, setup_ns: Option<f64>, error: Option<String>) -> Active<'a> {
+    pub fn new(index: usize, design: &'a DesignPlan, feed: Value, ctx: RunContext, setup_ns: Option<f64>, error: Option<SkipCause>) -> Active<'a> {
         Active {
             index,
             design,
@@ -65,6 +68,7 @@ impl<'a> Active<'a> {
             allocs: Vec::new(),
             spent_s: 0.0,
             switches: (0, 0.0),
+            cpu_at_start: None,
             output: None,
             stop: None,
             error,
@@ -81,14 +85,14 @@ impl<'a> Active<'a> {
 }
 
 /// Run one design's steps on one input (with no workload tables: for tests of built-in steps).
-pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, String> {
+pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, SkipCause> {
     run_design_in(design, input, &RunContext::default())
 }
 
 /// Run one design's steps on one input, with the size's tables in `ctx`. A step that
 /// panics (a capacity overflow on an absurd parameter, say) becomes an error of this run,
 /// so the sweep goes on.
-pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Result<Value, String> {
+pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Result<Value, SkipCause> {
     caught(|| {
         let mut v = input;
         for s in &design.steps {
@@ -99,13 +103,16 @@ pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Res
 }
 
 /// Run one (set-up) step, a panic becoming an error.
-pub fn run_step(s: &crate::plan::StepPlan, input: Value, ctx: &RunContext) -> Result<Value, String> {
+pub fn run_step(s: &crate::plan::StepPlan, input: Value, ctx: &RunContext) -> Result<Value, SkipCause> {
     caught(|| s.runner.run(input, ctx).map_err(|e| e.to_string()))
 }
 
-/// Run step work with a panic turned into an error that names it.
-fn caught(work: impl FnOnce() -> Result<Value, String>) -> Result<Value, String> {
-    std::panic::catch_unwind(std::panic::AssertUnwindSafe(work)).unwrap_or_else(|p| Err(format!("a step panicked: {}", panic_text(p.as_ref()))))
+/// Run step work, its error (its own text) and a panic kept apart as causes.
+fn caught(work: impl FnOnce() -> Result<Value, String>) -> Result<Value, SkipCause> {
+    match std::panic::catch_unwind(std::panic::AssertUnwindSafe(work)) {
+        Ok(r) => r.map_err(|message| SkipCause::Step { message }),
+        Err(p) => Err(SkipCause::Panic { message: panic_text(p.as_ref()) }),
+    }
 }
 
 /// The message of a caught panic.
@@ -123,9 +130,9 @@ pub fn make_input(feed: &Value, private: bool) -> Value {
 
 /// Time `batch` runs as one sample. Inputs are built before the clock starts and the
 /// outputs dropped after it stops.
-fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
+fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), SkipCause> {
     let mut inputs: Vec<Value> = (0..a.batch).map(|_| make_input(&a.feed, a.private)).collect();
-    let mut outputs: Vec<Result<Value, String>> = Vec::with_capacity(a.batch as usize);
+    let mut outputs: Vec<Result<Value, SkipCause>> = Vec::with_capacity(a.batch as usize);
     let cpu0 = process_cpu_ns();
     let w = Window::open();
     let t0 = Instant::now();
@@ -153,10 +160,10 @@ fn sample(a: &Active) -> Result<(f64, f64, AllocStats, Option<Value>), String> {
 type Taken = (f64, f64, AllocStats, Option<Value>, Option<(u64, Option<u64>)>);
 
 /// Take one sample of a design: its steps in this process, or its program.
-fn take(a: &Active, programs: &mut [Option<ProgramDesign>], b: &Budget) -> Result<Taken, String> {
+fn take(a: &Active, programs: &mut [Option<ProgramDesign>], b: &Budget) -> Result<Taken, SkipCause> {
     match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
         Some(p) => {
-            let s = p.sample(a.batch, program_limit(b, a.spent_s))?;
+            let s = p.sample(a.batch, program_limit(b, a.spent_s)).map_err(program)?;
             Ok((s.ns_per_run, s.cpu_ns_per_run, AllocStats::default(), None, s.peak_resident.map(|p| (p, s.resident_before))))
         }
         None => sample(a).map(|(ns, cpu, alloc, out)| (ns, cpu, alloc, out, None)),
@@ -171,12 +178,21 @@ pub fn program_limit(b: &Budget, spent_s: f64) -> std::time::Duration {
 
 /// A sample that ended in an error: a failure of the design, or — when the sweep was
 /// interrupted while a program ran — a stop that keeps what was measured.
-pub fn failed(a: &mut Active, e: String) {
-    if e == super::program::INTERRUPTED && super::interrupt::requested() {
-        a.stop = Some(StopReason::Interrupted);
-    } else {
-        a.error = Some(e);
+pub fn failed(a: &mut Active, e: SkipCause) {
+    match e {
+        SkipCause::Program { message } if message == super::program::INTERRUPTED && super::interrupt::requested() => a.stop = Some(StopReason::Interrupted),
+        e => a.error = Some(e),
     }
+}
+
+/// What a program design's handle reported, as a cause.
+pub fn program(message: String) -> SkipCause {
+    SkipCause::Program { message }
+}
+
+/// An error of the check of a design's output, as a cause.
+fn output_check(message: String) -> SkipCause {
+    SkipCause::Step { message }
 }
 
 /// The first run of each design: learn its speed, choose the batch, record its output.
@@ -194,12 +210,12 @@ pub fn first_runs(plan: &Plan, rows: u64, active: &mut [Active], programs: &mut 
         // The output to compare: a step's first result, or what the program saved.
         let first = first.and_then(|(ns, cpu, alloc, out_v, peak)| {
             let facts = match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
-                Some(p) => match p.output(program_limit(&b, a.spent_s + ns / 1e9))? {
+                Some(p) => match p.output(program_limit(&b, a.spent_s + ns / 1e9)).map_err(program)? {
                     // How the file was read back says nothing about the program's storage.
-                    Some(df) => Some(OutputFacts { chunks: 0, ..facts_for_comparison(plan, &Value::Frame(df))? }),
+                    Some(df) => Some(OutputFacts { chunks: 0, ..facts_for_comparison(plan, &Value::Frame(df)).map_err(output_check)? }),
                     None => None,
                 },
-                None => out_v.as_ref().map(|v| facts_for_comparison(plan, v)).transpose()?,
+                None => out_v.as_ref().map(|v| facts_for_comparison(plan, v)).transpose().map_err(output_check)?,
             };
             Ok((ns, cpu, alloc, facts, peak))
         });
@@ -268,6 +284,12 @@ pub fn interleave<'a>(
     for a in active.iter_mut().filter(|a| !a.sampling()) {
         done(a, &probe_runs, programs)?;
     }
+    // A program design's own process would count as another process for every design
+    // sampled beside it in the same rounds: no others' share at such a size.
+    let at_start = if active.iter().any(|a| a.is_program) { None } else { super::hygiene::cpu_snapshot() };
+    for a in active.iter_mut() {
+        a.cpu_at_start = at_start;
+    }
     loop {
         if super::interrupt::requested() {
             return Ok((probe_runs, true));
@@ -281,6 +303,8 @@ pub fn interleave<'a>(
                 break;
             }
             any = true;
+            // The same (cold) caches before every sample, whoever ran before it (scrub.rs).
+            super::scrub::caches();
             let t = Instant::now();
             let watch = watchdog::arm(a.index, rows, "a sample", watchdog::limit_for(b.per_point_s));
             let sw0 = super::hygiene::involuntary_switches();
@@ -339,6 +363,15 @@ fn decide(a: &Active, b: &Budget, run_elapsed_s: f64) -> Option<StopReason> {
     None
 }
 
+/// Other processes' share of the machine while `a` was sampled; not judged for a program,
+/// whose own process is not this one.
+fn others_share(a: &Active) -> Option<f64> {
+    if a.is_program {
+        return None;
+    }
+    super::hygiene::others_share(a.cpu_at_start?, super::hygiene::cpu_snapshot()?)
+}
+
 /// The point's record from what was sampled.
 pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<ProgramDesign>]) -> Measured {
     // A program's CPU time can be unreadable (NaN) for a sample; the median is over the rest.
@@ -384,7 +417,7 @@ pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<Progr
         alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
         output: a.output.clone(),
         spent_s: a.spent_s,
-        disturbance: Some(super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1))),
+        disturbance: Some(super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1), others_share(a))),
         bimodal: super::hygiene::bimodal(&a.samples),
     }
 }

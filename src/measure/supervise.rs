@@ -29,7 +29,7 @@ use super::runner::{Outcome, Progress, RunError};
 use super::worker::{Event, Order, Resume};
 use crate::plan::Plan;
 use crate::results::writer::{RunWriter, WriteError};
-use crate::results::{ClockInfo, EquivalenceStatus, Record, SkipInfo, SkipReason};
+use crate::results::{ClockInfo, EquivalenceStatus, Record, SkipCause, SkipInfo, SkipReason};
 use std::io::Read;
 use std::os::unix::process::{CommandExt, ExitStatusExt};
 use std::path::Path;
@@ -88,10 +88,7 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
                 )))
             }
             Some(c @ (crate::exit::BAD_INPUT | crate::exit::RUN_FAILED)) => {
-                break Err(RunError::Worker {
-                    workload: plan.name.clone(),
-                    message: format!("its measuring process stopped with exit code {c} (its message is above)"),
-                })
+                break Err(RunError::Stopped { workload: plan.name.clone(), code: c })
             }
             _ => {}
         }
@@ -101,10 +98,7 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
         }
         restarts += 1;
         if restarts > plan.designs.len() + 1 {
-            break Err(RunError::Worker {
-                workload: plan.name.clone(),
-                message: format!("its measuring process ended abnormally {restarts} times; the last: {}", describe(&status, &seen, allowance)),
-            });
+            break Err(RunError::Lost { workload: plan.name.clone(), restarts, last: cause(&status, &seen, allowance) });
         }
         let pos = seen
             .armed
@@ -116,7 +110,8 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
             .unwrap_or(0);
         let kept = cut_from(&points, start, plan, pos).map_err(|e| io_error(&points, e))?;
         progress.rewound(kept);
-        let info = SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: describe(&status, &seen, allowance) };
+        let info = SkipInfo::failed(cause(&status, &seen, allowance));
+        let why = crate::results::cause::worded(&cause(&status, &seen, allowance), crate::results::Axis(plan.axis.as_ref()));
         let mut failed = resume.take().filter(|r| r.from == pos).map(|r| r.failed).unwrap_or_default();
         match &seen.armed {
             Some(a) if a.design < plan.designs.len() => failed.push((a.design, info)),
@@ -128,7 +123,7 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
                 "\nframecost sweep: `{}` at {}: {}; every design fails there, going on",
                 crate::units::escaped(&plan.name),
                 plan.axis_point(plan.sizes.get(pos).copied().unwrap_or(0)),
-                describe(&status, &seen, allowance)
+                why
             );
         }
         if let Some(a) = &seen.armed {
@@ -138,7 +133,7 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
                 crate::units::escaped(&plan.name),
                 crate::units::escaped(who),
                 plan.axis_point(a.size),
-                describe(&status, &seen, allowance)
+                why
             );
         }
         resume = Some(Resume { from: pos, elapsed_s: began.elapsed().as_secs_f64(), failed });
@@ -280,28 +275,13 @@ fn relay(plan: &Plan, ev: Event, seen: &mut Watched, progress: &dyn Progress) {
     }
 }
 
-/// Why a child ended, in words, for the failed point.
-fn describe(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -> String {
-    let what = seen.armed.as_ref().map(|a| a.what.as_str()).unwrap_or("the preparation of the size's inputs");
-    let units = |ns: f64| crate::units::time_ns(ns);
+/// Why a child ended, in numbers, for the failed point: a runaway it was stopped for, or
+/// how it ended (signal or exit code) and what it was doing.
+fn cause(status: &std::process::ExitStatus, seen: &Watched, allowance: u64) -> SkipCause {
     if let (Some(took), Some(a)) = (seen.runaway, &seen.armed) {
-        return format!(
-            "{what} ran for {}, past its limit of {} (twice the point budget, at least the budget + 5 s); its measuring process was stopped",
-            units(took.as_nanos() as f64),
-            units(a.limit.as_nanos() as f64)
-        );
+        return SkipCause::Runaway { during: a.what.clone(), ran_ns: took.as_nanos() as f64, limit_ns: a.limit.as_nanos() as f64, stopped: true };
     }
-    let allowed = crate::units::bytes(allowance as f64);
-    match (status.signal(), status.code()) {
-        (Some(libc::SIGKILL), _) => {
-            format!("its measuring process was killed (SIGKILL) during {what}, most likely by the system for lack of memory (it was allowed {allowed})")
-        }
-        (Some(libc::SIGABRT), _) => format!("its measuring process aborted during {what}: most likely an allocation failed past the {allowed} it was allowed"),
-        (Some(sig), _) => format!("its measuring process ended with signal {sig} during {what}"),
-        (None, Some(101)) => format!("its measuring process panicked during {what}"),
-        (None, Some(c)) => format!("its measuring process ended with exit code {c} during {what}"),
-        (None, None) => format!("its measuring process ended during {what}"),
-    }
+    SkipCause::Lost { during: seen.armed.as_ref().map(|a| a.what.clone()), signal: status.signal(), code: status.code(), allowed_bytes: allowance }
 }
 
 /// Cut `points.jsonl` back to the records written before size number `pos` of this

@@ -13,7 +13,7 @@
 //! disarming take two uncontended mutex operations and no allocation (names are given once
 //! per workload with [`names`]); the thread wakes every 50 ms and allocates nothing.
 
-use crate::results::{PointRecord, Record, SkipInfo, SkipReason};
+use crate::results::{PointRecord, Record, SkipCause, SkipInfo};
 use std::io::Write;
 use std::path::PathBuf;
 use std::sync::{Mutex, OnceLock};
@@ -108,19 +108,12 @@ fn watch() {
             Ok(n) => (n.0.clone(), n.1.get(index).cloned().unwrap_or_else(|| format!("design {index}"))),
             Err(_) => (String::new(), format!("design {index}")),
         };
-        let detail = format!(
-            "{what} ran for {}, past its limit of {} (twice the point budget, at least the budget + 5 s), and could not be stopped from inside; the sweep was ended here",
-            crate::units::time_ns(took.as_nanos() as f64),
-            crate::units::time_ns(limit.as_nanos() as f64)
-        );
-        let rec = Record::Point(PointRecord {
-            workload,
-            design: design.clone(),
-            rows,
-            measured: None,
-            skipped: Some(SkipInfo { reason: SkipReason::Failed, predicted_ns: None, predicted_bytes: None, detail: detail.clone() }),
-            setup_ns: None,
-        });
+        let cause = SkipCause::Runaway { during: what.to_string(), ran_ns: took.as_nanos() as f64, limit_ns: limit.as_nanos() as f64, stopped: false };
+        let mut point = PointRecord { workload, design: design.clone(), rows, measured: None, skipped: Some(SkipInfo::failed(cause)), setup_ns: None };
+        // The runaway's words name no swept value, so the axis is not needed.
+        crate::results::cause::fill_detail(&mut point, None);
+        let detail = point.skipped.as_ref().map(|s| s.detail.clone()).unwrap_or_default();
+        let rec = Record::Point(point);
         if let Ok(line) = serde_json::to_string(&rec) {
             if let Ok(mut f) = std::fs::OpenOptions::new().append(true).open(&path) {
                 let _ = f.write_all(format!("{line}\n").as_bytes());

@@ -45,7 +45,20 @@ impl Default for RunContext {
     }
 }
 
+impl Allowed {
+    /// What reaches a design's runs: `programs` for a program design (a workload with
+    /// programs reaches the runner only with `--allow-programs`), `oversize` as `--force`.
+    pub fn of(programs: bool, oversize: bool) -> Allowed {
+        Allowed { programs, oversize }
+    }
+}
+
 impl RunContext {
+    /// The same context with the run's deadline and what the user allowed.
+    pub fn limited(self, deadline: Instant, allowed: Allowed) -> RunContext {
+        RunContext { deadline: Some(deadline), allowed, ..self }
+    }
+
     /// A context for a sweep: the system's temp folder read now (outside any timed region).
     pub fn for_sweep(tables: Vec<(String, LazyFrame)>, engine: EngineChoice) -> RunContext {
         RunContext { tables, engine, temp: std::env::temp_dir(), ..RunContext::default() }

@@ -11,6 +11,7 @@
 
 use crate::explain::Analysed;
 use crate::present::page::{self, Part};
+use crate::present::DrawError;
 use crate::units::{bytes, time_ns};
 use crate::results::reader::RunResults;
 use std::path::{Path, PathBuf};
@@ -49,10 +50,10 @@ fn machine_lines(r: &RunResults) -> Vec<(String, String)> {
 }
 
 /// Draw and write everything for an analysed run into `dir`.
-pub fn write(dir: &Path, an: &Analysed) -> Result<Written, String> {
+pub fn write(dir: &Path, an: &Analysed) -> Result<Written, DrawError> {
     let r = an.results;
     // The tables for notebooks first: they need no drawing, so a picture that fails cannot cost them.
-    let exports = crate::results::export::write(dir, r)?;
+    let exports = crate::results::export::write(dir, r).map_err(DrawError::Tables)?;
     let pic_dir = dir.join("pictures");
     let mut parts = Vec::new();
     let mut pictures = Vec::new();
@@ -71,7 +72,7 @@ pub fn write(dir: &Path, an: &Analysed) -> Result<Written, String> {
     let html = page::html(r, &parts, &machine, &again)?;
     let markdown = dir.join("report.md");
     let html_path = dir.join("report.html");
-    let io = |p: &Path, t: &str| crate::results::writer::write_atomic(p, t).map_err(|e| e.to_string());
+    let io = |p: &Path, t: &str| crate::results::writer::write_atomic(p, t);
     io(&markdown, &md)?;
     io(&html_path, &html)?;
     Ok(Written { markdown, html: html_path, csv: exports.csv, pictures })

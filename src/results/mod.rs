@@ -9,6 +9,7 @@
 //! add fields with `#[serde(default)]` so older files still read; anything else is a new
 //! schema version.
 
+pub mod cause;
 pub mod export;
 pub mod reader;
 pub mod sane;
@@ -16,6 +17,7 @@ pub mod schema;
 pub mod summary;
 pub mod writer;
 
+pub use cause::{MemoryNeed, SkipCause};
 pub use schema::{AllocStats, Axis, AxisPlan, AxisSet, Budget, ClockInfo, ColumnKind, ColumnPlan, MachineFingerprint, Order, OutputFacts, RangePlan, Yardstick};
 use serde::{Deserialize, Serialize};
 
@@ -227,7 +229,25 @@ pub struct SkipInfo {
     pub predicted_ns: Option<f64>,
     /// Estimated peak memory (bytes), for memory refusals.
     pub predicted_bytes: Option<f64>,
+    /// Why, in numbers (absent in runs made before it was recorded: read `detail`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cause: Option<SkipCause>,
+    /// Why, in words: all that older runs have; newer runs write the cause's words here
+    /// too, so an older reader shows them. Readers word `cause` when there is one.
+    #[serde(default)]
     pub detail: String,
+}
+
+impl SkipInfo {
+    /// A skip for `reason` because of `cause` (worded when it is written).
+    pub fn new(reason: SkipReason, cause: SkipCause) -> SkipInfo {
+        SkipInfo { reason, predicted_ns: None, predicted_bytes: None, cause: Some(cause), detail: String::new() }
+    }
+
+    /// A failed point because of `cause`.
+    pub fn failed(cause: SkipCause) -> SkipInfo {
+        SkipInfo::new(SkipReason::Failed, cause)
+    }
 }
 
 /// One design at one size.
@@ -354,9 +374,14 @@ pub struct Disturbance {
     pub probe_cpu_share: Option<f64>,
     /// Involuntary context switches of the process per second of sampling this design.
     pub switches_per_s: Option<f64>,
+    /// Share of the machine's CPU time used by other processes (and other guests of the
+    /// hypervisor) while this design was sampled; absent in runs before it was measured.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub others_share: Option<f64>,
     /// One-minute load average per core when the size ended.
     pub load_per_core: Option<f64>,
-    /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`).
+    /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`) or other
+    /// processes used more than a quarter of the machine ("other-processes").
     pub busy: bool,
     pub reasons: Vec<String>,
 }

@@ -34,7 +34,7 @@ fn ratio_ok(v: f64) -> bool {
 pub fn plausible(rec: &Record) -> bool {
     match rec {
         Record::Point(p) => rows_ok(p.rows) && p.measured.as_ref().is_none_or(measured_ok) && p.skipped.as_ref().is_none_or(|s| {
-            opt_ok(s.predicted_ns, |v| v.is_finite() && v >= 0.0) && opt_ok(s.predicted_bytes, |v| v.is_finite() && v >= 0.0)
+            opt_ok(s.predicted_ns, |v| v.is_finite() && v >= 0.0) && opt_ok(s.predicted_bytes, |v| v.is_finite() && v >= 0.0) && s.cause.as_ref().is_none_or(cause_ok)
         }),
         Record::Comparison(c) => {
             rows_ok(c.rows)
@@ -44,6 +44,40 @@ pub fn plausible(rec: &Record) -> bool {
         Record::Table(t) => rows_ok(t.rows) && time_ok(t.generate_ns) && t.table_bytes_estimate.is_finite() && t.memory_estimate_bytes.is_finite(),
         Record::Workload(h) => h.sizes.iter().all(|&n| rows_ok(n)) && h.target.is_none_or(rows_ok),
         Record::Run(_) | Record::End(_) => true,
+    }
+}
+
+/// A cause's numbers: amounts never below zero, swept values in range.
+fn cause_ok(c: &SkipCause) -> bool {
+    let amount = |v: &f64| v.is_finite() && *v >= 0.0;
+    match c {
+        SkipCause::PointBudget { predicted_ns, runs, budget_ns } => [predicted_ns, runs, budget_ns].into_iter().all(amount),
+        SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns } => [predicted_ns, runs, budget_ns, used_ns].into_iter().all(amount),
+        SkipCause::TooFewSamples { at, budget_ns, run_ns, .. } => rows_ok(*at) && amount(budget_ns) && amount(run_ns),
+        SkipCause::Memory { need, share, .. } => [&need.table, &need.records, &need.generator, &need.working, share].into_iter().all(amount),
+        SkipCause::Disk { disk_bytes, share, .. } => amount(disk_bytes) && amount(share),
+        SkipCause::Runaway { ran_ns, limit_ns, .. } => amount(ran_ns) && amount(limit_ns),
+        SkipCause::Setup { cause, .. } => cause_ok(cause),
+        SkipCause::FailedAt { at, cause } => rows_ok(*at) && cause_ok(cause),
+        SkipCause::Step { .. } | SkipCause::Panic { .. } | SkipCause::Program { .. } | SkipCause::Lost { .. } => true,
+    }
+}
+
+/// A cause's names with control characters made visible (a step's or program's own message
+/// is left as it is, like the older `detail`: it may span lines).
+fn clean_cause(c: &mut SkipCause) {
+    match c {
+        SkipCause::Memory { engine, limit_source, .. } => [engine, limit_source].into_iter().for_each(clean),
+        SkipCause::Disk { folder, .. } => clean(folder),
+        SkipCause::Setup { step, cause } => {
+            clean(step);
+            clean_cause(cause);
+        }
+        SkipCause::Lost { during, .. } => during.iter_mut().for_each(clean),
+        SkipCause::Runaway { during, .. } => clean(during),
+        SkipCause::FailedAt { cause, .. } => clean_cause(cause),
+        SkipCause::Step { .. } | SkipCause::Panic { .. } | SkipCause::Program { .. } => {}
+        SkipCause::PointBudget { .. } | SkipCause::RunBudget { .. } | SkipCause::TooFewSamples { .. } => {}
     }
 }
 
@@ -83,6 +117,9 @@ pub fn tidy(mut rec: Record) -> Record {
         Record::Point(p) => {
             clean(&mut p.workload);
             clean(&mut p.design);
+            if let Some(s) = &mut p.skipped {
+                s.cause.iter_mut().for_each(clean_cause);
+            }
         }
         Record::Comparison(c) => {
             clean(&mut c.workload);

@@ -68,7 +68,11 @@ impl RunWriter {
     }
 
     /// Append one record and make it durable before returning.
-    pub fn write(&mut self, rec: Record) -> Result<(), WriteError> {
+    pub fn write(&mut self, mut rec: Record) -> Result<(), WriteError> {
+        if let Record::Point(p) = &mut rec {
+            let axis = self.results.workloads.iter().rev().find(|w| w.header.workload == p.workload).and_then(|w| w.header.axis.as_ref());
+            super::cause::fill_detail(p, axis);
+        }
         let mut line = serde_json::to_string(&rec)?;
         line.push('\n');
         let path = self.dir.join("points.jsonl");

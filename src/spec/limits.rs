@@ -69,6 +69,17 @@ pub fn budget_problems(b: &Budget) -> Vec<(&'static str, String)> {
     out
 }
 
+/// A gate threshold (a share of the baseline's time) out of bounds: the workload's
+/// `gate.threshold` and `gate --threshold` are checked by this one rule.
+pub fn threshold_problem(t: f64) -> Option<String> {
+    (!(t > 0.0 && t <= 10.0)).then(|| format!("expected a threshold above 0% and at most 1000%, found {t}"))
+}
+
+/// One size out of bounds (a `sizes:` entry, a `--sizes` value).
+pub fn size_problem(n: u64) -> Option<String> {
+    (n == 0 || n > MAX_ROWS).then(|| format!("expected a size from 1 to 10^10 rows, found {n}"))
+}
+
 /// Problems with a list of sizes (already sorted): each from 1 row to [`MAX_ROWS`], at most
 /// [`MAX_SIZES`] of them.
 pub fn sizes_problems(sizes: &[u64]) -> Vec<String> {
@@ -76,11 +87,7 @@ pub fn sizes_problems(sizes: &[u64]) -> Vec<String> {
     if sizes.is_empty() {
         out.push("expected at least one size".to_string());
     }
-    for &n in sizes {
-        if n == 0 || n > MAX_ROWS {
-            out.push(format!("expected a size from 1 to 10^10 rows, found {n}"));
-        }
-    }
+    out.extend(sizes.iter().filter_map(|&n| size_problem(n)));
     if sizes.len() > MAX_SIZES {
         out.push(format!("expected at most {MAX_SIZES} sizes, found {}", sizes.len()));
     }

@@ -133,10 +133,8 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
     }
 
     let gate_threshold = spec.gate.as_ref().and_then(|g| g.threshold).map(|t| t.0);
-    if let Some(t) = gate_threshold {
-        if !(t > 0.0 && t <= 10.0) {
-            c.at(&root.key("gate").key("threshold"), format!("expected a threshold above 0% and at most 1000%, found {t}"), None);
-        }
+    if let Some(m) = gate_threshold.and_then(super::limits::threshold_problem) {
+        c.at(&root.key("gate").key("threshold"), m, None);
     }
     if !c.issues.is_empty() {
         return Err(c.issues);
@@ -169,8 +167,8 @@ pub(super) fn check_sizes(c: &mut Checker, sizes: &SizeLadder, path: &YamlPath) 
             }
             let mut seen = HashSet::new();
             for (i, s) in list.iter().enumerate() {
-                if s.0 == 0 || s.0 > MAX_ROWS {
-                    c.at(&path.index(i), format!("expected a size from 1 to 10^10 rows, found {}", s.0), None);
+                if let Some(m) = super::limits::size_problem(s.0) {
+                    c.at(&path.index(i), m, None);
                 } else if !seen.insert(s.0) {
                     c.at(&path.index(i), format!("size {} is listed twice", s.0), None);
                 }

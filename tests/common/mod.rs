@@ -8,7 +8,6 @@
 #![allow(dead_code)]
 
 use framecost::measure::alloc::{AllocStats, Window};
-use framecost::measure::runner::run_design;
 use framecost::patterns::{find_step, ColumnRef, OutputFacts, ParamKind, ParamValue, Params, RunContext, Step, Value};
 use framecost::plan::{DesignPlan, Plan};
 use polars::prelude::*;
@@ -16,6 +15,11 @@ use polars::prelude::*;
 /// The design called `name` (panics when the test's own workload has none).
 pub fn design<'a>(plan: &'a Plan, name: &str) -> &'a DesignPlan {
     plan.designs.iter().find(|d| d.name == name).expect("design")
+}
+
+/// The design's timed steps on `input`; a failure in the words the terminal shows.
+pub fn run_design(d: &DesignPlan, input: Value) -> Result<Value, String> {
+    framecost::measure::runner::run_design(d, input).map_err(|e| framecost::present::causes::words(&e, framecost::results::Axis(None)))
 }
 
 /// `input` after the design's `setup:` steps.

@@ -10,6 +10,7 @@
 mod progress;
 mod setup;
 
+use super::Failure;
 use crate::measure::runner::{self, SweepOptions};
 use crate::plan::Plan;
 use crate::present::terminal::{render_with, Options, Style};
@@ -90,76 +91,56 @@ fn workload_answer(r: &crate::results::reader::RunResults, name: &str) -> String
 /// Schema of the `--json` document (docs/results.md).
 pub const SCHEMA: &str = "framecost.sweep/1";
 
-fn fail(msg: impl std::fmt::Display) -> i32 {
-    eprintln!("framecost sweep: {msg}");
-    crate::exit::BAD_INPUT
+fn fail(msg: impl std::fmt::Display) -> Failure {
+    Failure::Usage(msg.to_string())
 }
 
 /// After Ctrl-C or SIGTERM: a partial summary, where the run is, how to redraw it.
-fn interrupted(out: &RunWriter) -> i32 {
-    let dir = out.dir().display();
+fn interrupted(out: &RunWriter) -> Failure {
     if let Err(e) = out.finish_interrupted() {
         return write_failed(e);
     }
     let points = out.results.workloads.iter().map(|w| w.points.len()).sum::<usize>();
-    eprintln!("framecost sweep: interrupted; {points} finished point(s) are in {dir}/points.jsonl (partial summary: {dir}/summary.json)");
-    eprintln!("framecost sweep: redraw it with `framecost report {dir}`, or see it with `framecost recap {dir}`");
-    crate::exit::INTERRUPTED
+    Failure::Interrupted(Some((out.dir().to_path_buf(), points)))
 }
 
 /// Results could not be written: one message form and one exit code wherever it happens.
-fn write_failed(msg: impl std::fmt::Display) -> i32 {
-    eprintln!("framecost sweep: could not write results: {msg}");
-    crate::exit::WRITE_FAILED
+fn write_failed(msg: impl std::fmt::Display) -> Failure {
+    Failure::Write(format!("could not write results: {msg}"))
 }
 
-pub fn run(a: Args) -> i32 {
+pub fn run(a: Args) -> Result<(), Failure> {
     if let Some(order) = crate::measure::worker::order() {
         return measure_as_child(&a, order);
     }
-    let plans = match load_plans(&a) {
-        Ok(p) => p,
-        Err(code) => return code,
-    };
+    let plans = load_plans(&a)?;
     // Programs run with the user's permissions: only when allowed, and never unannounced.
     let commands = program_commands(&plans);
     if !commands.is_empty() && !a.allow_programs && !a.plan {
-        eprintln!("framecost sweep: these workloads have designs that are programs; they would run:");
-        for c in &commands {
-            eprintln!("  {c}");
-        }
-        return fail("nothing was run: read the commands above, then add --allow-programs to run them");
+        return Err(Failure::ProgramsNotAllowed(commands));
     }
-    if let Some(code) = memory_plan(&plans, &a) {
-        return code;
+    if memory_plan(&plans, &a) {
+        return Ok(());
     }
     let dir = run_dir(&a, &plans);
     if dir.join("points.jsonl").exists() {
-        return fail(format!("{} already holds a run; choose another --out", dir.display()));
+        return Err(fail(format!("{} already holds a run; choose another --out", dir.display())));
     }
-    let mut out = match RunWriter::create(&dir) {
-        Ok(w) => w,
-        Err(e) => return write_failed(e),
-    };
+    let mut out = RunWriter::create(&dir).map_err(write_failed)?;
     crate::measure::interrupt::install();
     if a.in_process {
         crate::measure::watchdog::start(dir.join("points.jsonl"));
     }
     let started = Instant::now();
-    let (failures, mismatches) = match measure_all(&plans, &a, &mut out) {
-        Ok(counts) => counts,
-        Err(code) => return code,
-    };
-    if let Err(e) = out.write(Record::End(runner::end_record(started, mismatches))) {
-        return write_failed(e);
-    }
+    let (failures, mismatches) = measure_all(&plans, &a, &mut out)?;
+    out.write(Record::End(runner::end_record(started, mismatches))).map_err(write_failed)?;
     finish(&a, &dir, &out, failures, mismatches)
 }
 
 /// The memory plan: the largest size of each workload against what may be used now. With
-/// `--plan`, print it and every size's estimate and stop (`Some(exit code)`); otherwise warn
-/// about what will be refused.
-fn memory_plan(plans: &[Plan], a: &Args) -> Option<i32> {
+/// `--plan`, print it and every size's estimate and stop (true: the command is done);
+/// otherwise warn about what will be refused.
+fn memory_plan(plans: &[Plan], a: &Args) -> bool {
     let limit = crate::measure::memory::memory_limit();
     let share = SweepOptions::default().memory_share;
     let mut refused = Vec::new();
@@ -184,13 +165,13 @@ fn memory_plan(plans: &[Plan], a: &Args) -> Option<i32> {
         }
         if let Some(free) = crate::measure::memory::available_disk(&std::env::temp_dir()) {
             if est.disk > free as f64 * share {
-                refused.push(format!("{} at {} rows writes {}; {} free on disk", p.name, rows_label(largest), est.describe_disk(), crate::units::bytes(free as f64)));
+                refused.push(format!("{} at {} rows writes {}; {} free on disk", p.name, rows_label(largest), crate::present::causes::disk_need(est.disk), crate::units::bytes(free as f64)));
             }
         }
         let refusals = crate::measure::inputs::refusals(p, largest, &[], &limit, share, false);
         for (d, why) in p.designs.iter().zip(&refusals) {
             if let Some(why) = why.as_ref().filter(|w| w.reason == crate::results::SkipReason::Memory) {
-                refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), why.detail));
+                refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), crate::present::causes::skip_words(why, crate::results::Axis(p.axis.as_ref()))));
             }
         }
     }
@@ -202,12 +183,12 @@ fn memory_plan(plans: &[Plan], a: &Args) -> Option<i32> {
         for r in &refused {
             println!("would refuse: {r}{}", if a.force { " (but --force is set)" } else { "" });
         }
-        return Some(crate::exit::OK);
+        return true;
     }
     for r in &refused {
         eprintln!("framecost sweep: {r}; {}", if a.force { "running anyway (--force)" } else { "sizes that do not fit will be refused (--force runs them anyway)" });
     }
-    None
+    false
 }
 
 /// The run folder: `--out`, or a new `reports/<workload>-<date>-<time>`.
@@ -227,8 +208,8 @@ fn run_dir(a: &Args, plans: &[Plan]) -> PathBuf {
 }
 
 /// The run header, then every workload measured (in a child process each, or here with
-/// `--in-process`): the counts of failed points and mismatched sizes, or the exit code.
-fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, usize), i32> {
+/// `--in-process`): the counts of failed points and mismatched sizes, or the failure.
+fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, usize), Failure> {
     let opts = SweepOptions { force: a.force, ..SweepOptions::default() };
     let clock = crate::measure::clock::calibrate();
     let mut header = runner::run_header(std::env::args().collect(), clock, a.force);
@@ -261,13 +242,7 @@ fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, 
             }
             Err(e) => {
                 clear(&bar);
-                return Err(match e {
-                    runner::RunError::Write(w) => write_failed(w),
-                    other => {
-                        eprintln!("framecost sweep: {other}");
-                        crate::exit::RUN_FAILED
-                    }
-                });
+                return Err(Failure::Sweep(e));
             }
         }
     }
@@ -278,11 +253,8 @@ fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, 
 /// After the measurements: the summary, the analysis, the pictures and pages, and what the
 /// terminal shows — all from the results as read back from disk, exactly as `explain`,
 /// `report` and `recap` will read them later, so they agree.
-fn finish(a: &Args, dir: &Path, out: &RunWriter, failures: usize, mismatches: usize) -> i32 {
-    let summary_path = match out.finish() {
-        Ok(p) => p,
-        Err(e) => return write_failed(e),
-    };
+fn finish(a: &Args, dir: &Path, out: &RunWriter, failures: usize, mismatches: usize) -> Result<(), Failure> {
+    let summary_path = out.finish().map_err(write_failed)?;
     // Everything after the measurements is drawn from the results as read back from disk,
     // exactly as `explain`, `report` and `recap` will read them later, so they agree.
     let saved = crate::results::reader::RunResults::read(dir).unwrap_or_else(|_| out.results.clone());
@@ -290,13 +262,8 @@ fn finish(a: &Args, dir: &Path, out: &RunWriter, failures: usize, mismatches: us
     // `framecost explain` recomputes it), the pictures and pages, and the summary.
     let analysed = crate::explain::Analysed::new(&saved, &crate::analyse::AnalyseOptions::default());
     let doc = analysed.document(super::explain::SCHEMA);
-    if let Err(e) = crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()) {
-        return write_failed(e);
-    }
-    let report = crate::present::report::write(&dir, &analysed);
-    if let Err(e) = &report {
-        eprintln!("framecost sweep: could not write results: the pictures and reports: {e} (the measurements are kept; `framecost report` redraws them)");
-    }
+    crate::results::writer::write_atomic(&dir.join("analysis.json"), &serde_json::to_string_pretty(&doc).unwrap_or_default()).map_err(write_failed)?;
+    let report = crate::present::report::write(dir, &analysed);
     if a.json {
         let mut doc = super::recap::document(SCHEMA, &analysed);
         doc["run"] = dir.display().to_string().into();
@@ -323,13 +290,10 @@ fn finish(a: &Args, dir: &Path, out: &RunWriter, failures: usize, mismatches: us
             println!("tables:  {} (also samples.parquet, points.csv)", dir.join("points.parquet").display());
         }
     }
-    if failures > 0 || mismatches > 0 {
-        eprintln!("framecost sweep: {failures} failed point(s), {mismatches} size(s) where outputs differed");
-        return crate::exit::RUN_FAILED;
+    // The measurements are safe on disk, but not everything asked for may have been written.
+    let report = report.err();
+    if failures > 0 || mismatches > 0 || report.is_some() {
+        return Err(Failure::SweepEnded { failures, mismatches, report });
     }
-    if report.is_err() {
-        // The measurements are safe on disk, but not everything asked for could be written.
-        return crate::exit::WRITE_FAILED;
-    }
-    crate::exit::OK
+    Ok(())
 }

@@ -4,6 +4,7 @@
 //! workloads from the same command line.
 
 use super::{fail, write_failed, Args};
+use crate::cli::{Failure, Problem};
 use crate::measure::runner::{self, SweepOptions};
 use crate::plan::Plan;
 use crate::results::writer::RunWriter;
@@ -26,19 +27,20 @@ pub fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
         }
         plan.sizes = v;
     }
-    if let Some(s) = &a.point_budget {
-        plan.budget.per_point_s = positive(parse_seconds(s), "--point-budget")?;
+    // Each value is parsed by the parser the YAML's own value goes through (a duration, a
+    // share) and bounded below by `budget_problems`, as the spec's `budget:` is.
+    let parsed = |v: &Option<String>, flag: &str, parse: fn(&str) -> Result<f64, String>| v.as_deref().map(parse).transpose().map_err(|e| format!("{flag}: expected {e}"));
+    if let Some(x) = parsed(&a.point_budget, "--point-budget", parse_seconds)? {
+        plan.budget.per_point_s = x;
     }
-    if let Some(s) = &a.run_budget {
-        plan.budget.whole_run_s = positive(parse_seconds(s), "--run-budget")?;
+    if let Some(x) = parsed(&a.run_budget, "--run-budget", parse_seconds)? {
+        plan.budget.whole_run_s = x;
     }
-    if let Some(s) = &a.precision {
-        plan.budget.precision = parse_share(s).map_err(|e| format!("--precision: expected {e}"))?;
+    if let Some(x) = parsed(&a.precision, "--precision", parse_share)? {
+        plan.budget.precision = x;
     }
     if let Some(m) = a.max_samples {
-        if m < plan.budget.min_samples.min(6) {
-            return Err(format!("--max-samples: expected at least {}", plan.budget.min_samples.min(6)));
-        }
+        // Fewer samples at most also means fewer at least, so the two stay in order.
         plan.budget.max_samples = m;
         plan.budget.min_samples = plan.budget.min_samples.min(m);
     }
@@ -70,14 +72,6 @@ pub fn adjust(plan: &mut Plan, a: &Args) -> Result<(), String> {
     Ok(())
 }
 
-fn positive(v: Result<f64, String>, flag: &str) -> Result<f64, String> {
-    match v {
-        Ok(x) if x > 0.0 && x.is_finite() => Ok(x),
-        Ok(x) => Err(format!("{flag}: expected a duration above zero, found {x} s")),
-        Err(e) => Err(format!("{flag}: expected {e}")),
-    }
-}
-
 /// What `--plan` says about one size: one line, or one per engine when designs differ in it.
 pub fn plan_lines(p: &Plan, n: u64) -> Vec<String> {
     use crate::spec::model::EngineChoice;
@@ -86,8 +80,8 @@ pub fn plan_lines(p: &Plan, n: u64) -> Vec<String> {
         .filter(|e| p.designs.iter().any(|d| d.engine == *e))
         .collect();
     let line = |e: crate::measure::memory::Estimate, who: &str| {
-        let disk = if e.disk > 0.0 { format!("; writes {}", e.describe_disk()) } else { String::new() };
-        format!("{who}needs {}{disk}", e.describe())
+        let disk = if e.disk > 0.0 { format!("; writes {}", crate::present::causes::disk_need(e.disk)) } else { String::new() };
+        format!("{who}needs {}", crate::present::causes::memory_need(&e.need())) + &disk
     };
     if engines.len() < 2 && !engines.contains(&EngineChoice::Streaming) {
         return vec![line(crate::measure::memory::estimate(p, n, &[]), "")];
@@ -114,31 +108,26 @@ pub fn program_commands(plans: &[Plan]) -> Vec<String> {
 }
 
 /// Every workload of the command line, checked, with its overrides applied.
-pub fn load_plans(a: &Args) -> Result<Vec<Plan>, i32> {
+pub fn load_plans(a: &Args) -> Result<Vec<Plan>, Failure> {
     let files = crate::cli::expand_paths(&a.paths).map_err(fail)?;
     // Check everything before running anything.
     let mut plans = Vec::new();
-    let mut bad = false;
+    let mut bad = Vec::new();
     for f in &files {
         match crate::spec::load(f) {
             Ok(p) => plans.push(p),
-            Err(e) => {
-                eprintln!("{e}");
-                bad = true;
-            }
+            Err(e) => bad.push(Problem::Located(e)),
         }
     }
     for name in &a.builtin {
         match crate::builtin::load(name) {
             Ok(p) => plans.push(p),
-            Err(e) => {
-                eprintln!("framecost sweep: --builtin: {e}");
-                bad = true;
-            }
+            Err(e) => bad.push(Problem::Said(format!("--builtin: {e}"))),
         }
     }
-    if bad {
-        return Err(fail("fix the workload files above (nothing was run)"));
+    if !bad.is_empty() {
+        bad.push(Problem::Said("fix the workload files above (nothing was run)".into()));
+        return Err(Failure::Workloads(bad));
     }
     for p in plans.iter_mut() {
         adjust(p, a).map_err(fail)?;
@@ -148,37 +137,24 @@ pub fn load_plans(a: &Args) -> Result<Vec<Plan>, i32> {
 
 /// A measuring child of an isolated sweep (see `measure::supervise`): measure one workload
 /// into the parent's run folder, report over the pipe, print nothing else but errors.
-pub fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, String>) -> i32 {
-    let order = match order {
-        Ok(o) => o,
-        Err(e) => return fail(e),
-    };
-    let plans = match load_plans(a) {
-        Ok(p) => p,
-        Err(code) => return code,
-    };
-    let Some(plan) = plans.get(order.workload) else { return fail(format!("the measuring order names workload {} of {}", order.workload, plans.len())) };
+pub fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, String>) -> Result<(), Failure> {
+    let order = order.map_err(fail)?;
+    let plans = load_plans(a)?;
+    let Some(plan) = plans.get(order.workload) else { return Err(fail(format!("the measuring order names workload {} of {}", order.workload, plans.len()))) };
     if plan.spec_hash != order.spec_hash {
-        return fail(format!("`{}` changed since the sweep started; nothing more was measured", plan.file));
+        return Err(fail(format!("`{}` changed since the sweep started; nothing more was measured", plan.file)));
     }
     crate::measure::worker::connect(order.fd);
     crate::measure::interrupt::install_quiet();
     if let Some(b) = order.allowance {
         crate::measure::memory::set_allowance(b);
     }
-    let mut out = match RunWriter::append(&order.dir) {
-        Ok(w) => w,
-        Err(e) => return write_failed(e),
-    };
+    let mut out = RunWriter::append(&order.dir).map_err(write_failed)?;
     let opts = SweepOptions { force: a.force, resume: order.resume, ..SweepOptions::default() };
-    match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress) {
-        Ok(o) if o.interrupted || crate::measure::interrupt::requested() => crate::exit::INTERRUPTED,
-        Ok(_) => crate::exit::OK,
-        Err(runner::RunError::Write(w)) => write_failed(w),
-        Err(other) => {
-            eprintln!("framecost sweep: {other}");
-            crate::exit::RUN_FAILED
-        }
+    // The parent speaks for an interrupted child: it says nothing itself.
+    match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress)? {
+        o if o.interrupted || crate::measure::interrupt::requested() => Err(Failure::Interrupted(None)),
+        _ => Ok(()),
     }
 }
 

@@ -56,13 +56,13 @@ pub struct Candidate {
 }
 
 /// AICc of a weighted fit with `n` points and `k` parameters (see module doc).
-fn aicc(rss: f64, n: usize, k: usize) -> f64 {
+fn aicc(rss: f64, n: usize, k: usize, noise_floor: f64) -> f64 {
     if n <= k + 1 {
         return f64::INFINITY;
     }
     let nf = n as f64;
     let kf = k as f64;
-    let sigma2 = (rss / nf).max(EXACT_FIT_FLOOR * EXACT_FIT_FLOOR);
+    let sigma2 = (rss / nf + noise_floor * noise_floor).max(EXACT_FIT_FLOOR * EXACT_FIT_FLOOR);
     nf * sigma2.ln()
         + nf * (1.0 + (2.0 * std::f64::consts::PI).ln())
         + 2.0 * kf
@@ -88,7 +88,7 @@ fn model_top_slope(terms: &[(Term, f64)], sizes: &[f64]) -> Option<f64> {
 /// Fit one class with every subset of its lower-order terms (leading term
 /// kept), keep the subsets whose coefficients are all ≥ 0, and return the one
 /// with the lowest AICc (module doc).
-pub(super) fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weights: &[f64], top_slope: f64) -> Candidate {
+pub(super) fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weights: &[f64], top_slope: f64, noise_floor: f64) -> Candidate {
     let all = class.terms();
     let lower = all.len() - 1;
     let mut best: Option<(Vec<Term>, LsqFit, f64)> = None;
@@ -113,7 +113,7 @@ pub(super) fn fit_class(class: GrowthClass, sizes: &[f64], values: &[f64], weigh
         if fit.coef.iter().any(|c| *c < 0.0) {
             continue;
         }
-        let score = aicc(fit.rss, sizes.len(), subset.len() + 1);
+        let score = aicc(fit.rss, sizes.len(), subset.len() + 1, noise_floor);
         if best.as_ref().is_none_or(|b| score < b.2) {
             best = Some((subset, fit, score));
         }
@@ -177,12 +177,12 @@ mod tests {
     #[test]
     fn aicc_counts_variance_as_a_parameter() {
         // Hand computation: N = 10, k = 3: penalty 2k + 2k(k+1)/(N−k−1) = 6 + 4 = 10.
-        let base = aicc(0.5, 10, 3)
+        let base = aicc(0.5, 10, 3, 0.0)
             - 10.0 * (0.05f64).ln()
             - 10.0 * (1.0 + (2.0 * std::f64::consts::PI).ln());
         assert!((base - 10.0).abs() < 1e-12, "{base}");
         // k = 2: 4 + 12/7.
-        let base = aicc(0.5, 10, 2)
+        let base = aicc(0.5, 10, 2, 0.0)
             - 10.0 * (0.05f64).ln()
             - 10.0 * (1.0 + (2.0 * std::f64::consts::PI).ln());
         assert!((base - (4.0 + 12.0 / 7.0)).abs() < 1e-12, "{base}");

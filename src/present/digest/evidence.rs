@@ -63,7 +63,7 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
         let pts = w.design_points(&d.name);
         let failed: Vec<_> = pts.iter().filter(|p| p.skipped.as_ref().is_some_and(|s| s.reason == SkipReason::Failed)).collect();
         if let Some(p) = failed.first() {
-            let detail = p.skipped.as_ref().map(|s| s.detail.as_str()).unwrap_or("");
+            let detail = p.skipped.as_ref().map(|s| crate::present::causes::skip_words(s, ax)).unwrap_or_default();
             long.push(sentence(&format!("`{}` failed at {} {axis}: {detail}", d.name, ax.value(p.rows))));
             tags.push(format!("`{}` failed", d.name));
         }

@@ -86,7 +86,7 @@ pre.again{white-space:pre-wrap;word-break:break-all}dl.machine{display:grid;grid
 @media (max-width:700px){.answer{grid-template-columns:1fr}main{padding:12px}}";
 
 /// The HTML page.
-pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reproduce: &str) -> Result<String, String> {
+pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reproduce: &str) -> Result<String, crate::present::DrawError> {
     let mut s = String::new();
     let id = r.run.as_ref().map(|h| h.run_id.clone()).unwrap_or_default();
     let _ = write!(
@@ -150,7 +150,7 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
 
 /// One workload's section: the job, the answer, why, what to watch, the grid of times, the
 /// scaling picture, how each cost grows, the evidence, then what is folded away.
-fn section(k: usize, p: &Part) -> Result<String, String> {
+fn section(k: usize, p: &Part) -> Result<String, crate::present::DrawError> {
     let mut s = String::new();
     let ax = p.w.header.axis();
     let axis = ax.name();
@@ -247,7 +247,7 @@ fn section(k: usize, p: &Part) -> Result<String, String> {
 
 /// Folded under `<details>`: memory, the designs with their recipes and query plans, and
 /// the fits in detail.
-fn folded(p: &Part) -> Result<String, String> {
+fn folded(p: &Part) -> Result<String, crate::present::DrawError> {
     let w = p.w;
     let ax = w.header.axis();
     let axis = ax.name();

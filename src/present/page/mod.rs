@@ -189,7 +189,7 @@ fn time_cell(w: &WorkloadResults, design: &str, n: u64) -> (String, String, usiz
         (None, Some(sk)) => {
             let main = sk.predicted_ns.map(|p| format!("~{}", time_ns(p))).unwrap_or_else(|| "—".into());
             let second = if sk.reason == SkipReason::Failed { "failed" } else { "not run" };
-            (main, second.into(), 8, format!("{}: {}", sk.reason.label(), sk.detail))
+            (main, second.into(), 8, format!("{}: {}", sk.reason.label(), crate::present::causes::skip_words(sk, w.header.axis())))
         }
         _ => ("—".into(), String::new(), 9, String::new()),
     }

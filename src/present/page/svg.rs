@@ -50,8 +50,10 @@ pub fn compact_svg(svg: &str) -> String {
     out
 }
 
-pub(super) fn svg_inline(p: &Picture) -> Result<String, String> {
-    let svg = std::fs::read_to_string(&p.svg).map_err(|e| format!("{}: {e}", p.svg.display()))?;
+use crate::present::DrawError;
+
+pub(super) fn svg_inline(p: &Picture) -> Result<String, DrawError> {
+    let svg = std::fs::read_to_string(&p.svg).map_err(|error| DrawError::Read { path: p.svg.clone(), error })?;
     // Inline SVG needs no namespace declaration in HTML; leaving it out keeps the page free
     // of any URL at all. The XML prologue goes too.
     let svg = match svg.find("<svg") {

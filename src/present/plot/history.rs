@@ -271,7 +271,7 @@ fn short_hash(h: &str) -> String {
 /// Draw a history picture as SVG and PNG; returns the SVG path.
 pub fn draw_history(dir: &Path, workload: &str, runs: &[(String, &WorkloadResults)], changes: &[RunMark]) -> Res<PathBuf> {
     ensure_font();
-    std::fs::create_dir_all(dir).map_err(err)?;
+    std::fs::create_dir_all(dir).map_err(crate::present::DrawError::Folder)?;
     let stem = crate::results::writer::file_stem(workload);
     let svg_path = dir.join(format!("{stem}-history.svg"));
     let png_path = dir.join(format!("{stem}-history.png"));

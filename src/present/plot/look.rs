@@ -82,10 +82,8 @@ pub fn tint(c: RGBColor, keep: f64) -> RGBColor {
     RGBColor(m(c.0, PAPER.0), m(c.1, PAPER.1), m(c.2, PAPER.2))
 }
 
-pub type Res<T> = Result<T, String>;
-pub fn err<E: std::fmt::Display>(e: E) -> String {
-    e.to_string()
-}
+pub type Res<T> = Result<T, crate::present::DrawError>;
+pub use crate::present::error::drawing as err;
 pub type Area<DB> = DrawingArea<DB, Shift>;
 
 /// A marker's outline as a polygon around `(x, y)` (the circle is drawn as a circle).

@@ -171,7 +171,7 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
     let ax = w.header.axis();
     let axis = ax.name();
     ensure_font();
-    std::fs::create_dir_all(dir).map_err(err)?;
+    std::fs::create_dir_all(dir).map_err(crate::present::DrawError::Folder)?;
     // The workload name comes from a results file: never a path of its own.
     let name = crate::results::writer::file_stem(&w.header.workload);
     // The size for the distribution picture: the largest with every design measured, or
@@ -197,7 +197,7 @@ pub fn draw_all(dir: &Path, w: &WorkloadResults, a: &WorkloadAnalysis) -> Res<Ve
 
 /// Write an SVG by temp file and rename (never through an existing file or symlink).
 fn write_svg(path: &Path, text: &str) -> Res<()> {
-    crate::results::writer::write_atomic(path, text).map(|_| ()).map_err(|e| e.to_string())
+    Ok(crate::results::writer::write_atomic(path, text).map(|_| ())?)
 }
 
 /// Draw a PNG into a fresh temp file beside `path`, then rename it over `path`.
@@ -208,5 +208,5 @@ fn write_png(path: &Path, size: (u32, u32), draw: impl FnOnce(DrawingArea<BitMap
         drawn.as_ref().map(|_| ()).map_err(|e| std::io::Error::other(e.to_string()))
     });
     drawn?;
-    written.map(|_| ()).map_err(|e| e.to_string())
+    Ok(written.map(|_| ())?)
 }

@@ -177,7 +177,7 @@ fn details(p: &Parts, style: Style, o: Options) -> String {
     let skips: Vec<String> = w
         .points
         .iter()
-        .filter_map(|p| p.skipped.as_ref().map(|sk| format!("{} at {} {axis}: {} — {}", p.design, ax.value(p.rows), sk.reason.label(), sk.detail)))
+        .filter_map(|p| p.skipped.as_ref().map(|sk| format!("{} at {} {axis}: {} — {}", p.design, ax.value(p.rows), sk.reason.label(), crate::present::causes::skip_words(sk, ax))))
         .collect();
     if !skips.is_empty() {
         let _ = writeln!(s, "\n  {}", style.bold("not run"));

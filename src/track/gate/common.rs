@@ -79,6 +79,7 @@ mod tests {
             p_value: Some(1e-6),
             call: if ratio > 1.1 { Call::Regression } else { Call::Same },
             confirmed: ratio > 1.1,
+            busy: false,
         }
     }
 

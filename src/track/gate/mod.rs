@@ -18,6 +18,9 @@
 //! unchanged code) — or when its allocated-bytes exponent (exact counts) rose by 0.15 or
 //! more. Points missing from either run are reported, not ignored.
 //!
+//! Points measured on a busy machine (`Measured::is_contaminated`) in either run are
+//! compared and shown but never called a regression or an improvement: `unclear`.
+//!
 //! Machine speed: each size of a run also times a fixed drift probe in the same rounds as
 //! the designs, so a ratio can be divided by how much faster or slower the machine itself
 //! was at that size (a busy neighbour, a slower machine, another polars build affects the
@@ -117,6 +120,10 @@ pub struct PointGate {
     /// the design was compared at one size only). Only confirmed changes fail the gate.
     #[serde(default)]
     pub confirmed: bool,
+    /// Either run measured this point on a busy machine: a change beyond the threshold is
+    /// called `unclear`, never a regression or an improvement.
+    #[serde(default)]
+    pub busy: bool,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
