@@ -10,7 +10,7 @@
 
 mod common;
 
-use common::{run, Seen};
+use common::{at, lint_problems, run, run_bare, Seen};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -25,20 +25,19 @@ table:
     - {name: organic, kind: bool}
 sizes: [1k]
 designs:
-  - {name: cell-1k, steps: [{read_cells: {column: 1, reads: 1000, via: table_cell}}]}
-  - {name: cell-4k, steps: [{read_cells: {column: 1, reads: 4000, via: table_cell}}]}
-  - {name: row-1k, steps: [{read_cells: {column: 1, reads: 1000, via: table_row}}]}
-  - {name: row-4k, steps: [{read_cells: {column: 1, reads: 4000, via: table_row}}]}
-  - {name: typed-1k, steps: [{read_cells: {column: 1, reads: 1000, via: typed_get}}]}
-  - {name: typed-4k, steps: [{read_cells: {column: 1, reads: 4000, via: typed_get}}]}
-  - {name: slice-1k, steps: [{read_cells: {column: 1, reads: 1000, via: slice}}]}
-  - {name: slice-4k, steps: [{read_cells: {column: 1, reads: 4000, via: slice}}]}
-  - {name: chunked-slice-4k, setup: [{split_storage: {pieces: 16}}], steps: [{read_cells: {column: 1, reads: 4000, via: slice}}]}
-  - {name: chunked-typed-4k, setup: [{split_storage: {pieces: 16}}], steps: [{read_cells: {column: 1, reads: 4000, via: typed_get}}]}
-  - {name: copy-4k, steps: [{copy_to_vector: {column: 1}}, {read_vector_cells: {reads: 4000}}]}
-  - {name: prebuilt-4k, setup: [{copy_to_vector: {column: 1}}], steps: [{read_vector_cells: {reads: 4000}}]}
-  - {name: text-column, steps: [{read_cells: {column: 3, reads: 10}}]}
-  - {name: no-column, steps: [{read_cells: {column: 9, reads: 10}}]}
+  - {name: cell-1k, steps: [{read_cells: {column: kilograms, reads: 1000, via: table_cell}}]}
+  - {name: cell-4k, steps: [{read_cells: {column: kilograms, reads: 4000, via: table_cell}}]}
+  - {name: row-1k, steps: [{read_cells: {column: kilograms, reads: 1000, via: table_row}}]}
+  - {name: row-4k, steps: [{read_cells: {column: kilograms, reads: 4000, via: table_row}}]}
+  - {name: typed-1k, steps: [{read_cells: {column: kilograms, reads: 1000, via: typed_get}}]}
+  - {name: typed-4k, steps: [{read_cells: {column: kilograms, reads: 4000, via: typed_get}}]}
+  - {name: slice-1k, steps: [{read_cells: {column: kilograms, reads: 1000, via: slice}}]}
+  - {name: slice-4k, steps: [{read_cells: {column: kilograms, reads: 4000, via: slice}}]}
+  - {name: chunked-slice-4k, setup: [{split_storage: {pieces: 16}}], steps: [{read_cells: {column: kilograms, reads: 4000, via: slice}}]}
+  - {name: chunked-typed-4k, setup: [{split_storage: {pieces: 16}}], steps: [{read_cells: {column: kilograms, reads: 4000, via: typed_get}}]}
+  - {name: copy-4k, steps: [{copy_to_vector: {column: kilograms}}, {read_vector_cells: {reads: 4000}}]}
+  - {name: prebuilt-4k, setup: [{copy_to_vector: {column: kilograms}}], steps: [{read_vector_cells: {reads: 4000}}]}
+  - {name: by-position, steps: [{read_cells: {column: 1, reads: 4000, via: slice}}]}
 "#;
 
 fn cells(df: &DataFrame) -> (i64, f64) {
@@ -91,7 +90,19 @@ fn table_api_reads_cost_more_than_typed_reads() {
     let chunked = a("chunked-slice-4k");
     assert!(chunked.bytes >= 8 * n && chunked.bytes > 10 * slice4.bytes, "chunked slice: {}", chunked.bytes);
 
-    // Bad inputs are errors, not panics.
-    assert!(run(&plan, "text-column", &table).is_err_and(|e| e.contains("not numeric")));
-    assert!(run(&plan, "no-column", &table).is_err_and(|e| e.contains("no column at position 9")));
+    // The older form, a column by position, reads the same cells, and finding a column by
+    // name (in a five-column table, so polars would build a schema to look it up) costs the
+    // run no allocation more than by position.
+    let by_position = get("by-position");
+    assert_eq!(cells(&by_position.df), (read, sum));
+    assert_eq!((by_position.alloc.count, by_position.alloc.bytes), (slice4.count, slice4.bytes), "by name vs by position");
+
+    // Bad columns: refused by the checker at their place, and by the step itself on a
+    // table the checker never saw (errors, not panics).
+    let bad = SPEC.replace("by-position, steps: [{read_cells: {column: 1, reads: 4000, via: slice}}]}", "by-position, steps: [{read_cells: {column: variety, reads: 10}}]}");
+    let problems = lint_problems(&bad);
+    assert!(problems.iter().any(|p| p.contains("column `variety` holds text") && p.contains("needs a numeric column")), "{problems:?}");
+    let reads = ("reads", framecost::patterns::ParamValue::Count(10));
+    assert!(run_bare("read_cells", &[("column", at(3)), reads.clone()], &table).is_err_and(|e| e.contains("is str, not a numeric column")));
+    assert!(run_bare("read_cells", &[("column", at(9)), reads], &table).is_err_and(|e| e.contains("no column at position 9")));
 }

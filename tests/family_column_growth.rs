@@ -23,15 +23,15 @@ table:
     - {name: variety, kind: text, distinct: 14}
 sizes: [1k]
 designs:
-  - {name: between, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: 1, columns: 8, reads: between}}]}
-  - {name: between-16, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: 1, columns: 16, reads: between}}]}
-  - {name: kept, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: 1, columns: 8, reads: between_kept}}]}
-  - {name: first, setup: [{split_storage: {pieces: 32}}], steps: [consolidate_table, {grow_columns: {source: 1, columns: 8, reads: between}}]}
-  - {name: after, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: 1, columns: 8, reads: after}}]}
-  - {name: after-16, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: 1, columns: 16, reads: after}}]}
-  - {name: at-once, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: 1, columns: 8, how: all_at_once, reads: after}}]}
-  - {name: f64-none, steps: [{grow_columns: {source: 1, columns: 8, reads: none}}]}
-  - {name: f32-none, steps: [{grow_columns: {source: 1, columns: 8, reads: none, dtype: f32}}]}
+  - {name: between, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: kilograms, columns: 8, reads: between}}]}
+  - {name: between-16, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: kilograms, columns: 16, reads: between}}]}
+  - {name: kept, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: kilograms, columns: 8, reads: between_kept}}]}
+  - {name: first, setup: [{split_storage: {pieces: 32}}], steps: [consolidate_table, {grow_columns: {source: kilograms, columns: 8, reads: between}}]}
+  - {name: after, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: kilograms, columns: 8, reads: after}}]}
+  - {name: after-16, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: kilograms, columns: 16, reads: after}}]}
+  - {name: at-once, setup: [{split_storage: {pieces: 32}}], steps: [{grow_columns: {source: kilograms, columns: 8, how: all_at_once, reads: after}}]}
+  - {name: f64-none, steps: [{grow_columns: {source: kilograms, columns: 8, reads: none}}]}
+  - {name: f32-none, steps: [{grow_columns: {source: kilograms, columns: 8, reads: none, dtype: f32}}]}
 "#;
 
 fn chunks_of(s: &Seen, col: &str) -> usize {

@@ -9,7 +9,7 @@
 mod common;
 
 use common::run_design;
-use framecost::patterns::{OutputFacts, Value};
+use framecost::patterns::{OutputFacts, ParamValue, Value};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -26,13 +26,13 @@ table:
     - {name: variety, kind: text, distinct: 14, length: [5, 10]}
 sizes: [1k]
 designs:
-  - {name: function, steps: [{sum_across: {first: 2, count: 3, how: function, decimals: 3}}]}
-  - {name: arithmetic, steps: [{sum_across: {first: 2, count: 3, how: arithmetic, decimals: 3}}]}
-  - {name: transpose-numeric, steps: [{select_columns: {first: 2, count: 3}}, transpose_rows, {sum_transposed: {first: 0, count: 3, decimals: 3}}]}
+  - {name: function, steps: [{sum_across: {first: top_kg, count: 3, how: function, decimals: 3}}]}
+  - {name: arithmetic, steps: [{sum_across: {first: top_kg, count: 3, how: arithmetic, decimals: 3}}]}
+  - {name: transpose-numeric, steps: [{select_columns: {first: top_kg, count: 3}}, transpose_rows, {sum_transposed: {first: 0, count: 3, decimals: 3}}]}
   - {name: transpose-all, steps: [transpose_rows, {sum_transposed: {first: 2, count: 3, decimals: 3}}]}
   - {name: only-transpose-all, steps: [transpose_rows]}
-  - {name: only-transpose-numeric, steps: [{select_columns: {first: 2, count: 3}}, transpose_rows]}
-  - {name: sum-text, steps: [{sum_across: {first: 5, count: 2}}]}
+  - {name: only-transpose-numeric, steps: [{select_columns: {first: top_kg, count: 3}}, transpose_rows]}
+  - {name: by-position, steps: [{sum_across: {first: 2, count: 3, how: function, decimals: 3}}]}
 "#;
 
 #[test]
@@ -84,7 +84,15 @@ fn transposing_mixed_columns_goes_through_text_and_costs_far_more() {
     assert!(bytes[2] > 5 * bytes[1], "transposing the numbers: {} vs {}", bytes[2], bytes[1]);
     assert!(bytes[3] > 5 * bytes[2], "transposing everything through text: {} vs {}", bytes[3], bytes[2]);
 
-    // Summing text is refused, not guessed.
-    let err = run_design(d("sum-text"), Value::Frame(df.clone())).err().expect("text cannot be summed");
-    assert!(err.contains("only numbers"), "{err}");
+    // The older form, columns by position, sums the same cells.
+    let by_position = run_design(d("by-position"), Value::Frame(df.clone())).expect("sums");
+    assert_eq!(OutputFacts::of(&by_position).fingerprint, facts[0].fingerprint);
+
+    // Summing text is refused, not guessed: by the checker at its place, and by the step
+    // on a table the checker never saw.
+    let bad = SPEC.replace("by-position, steps: [{sum_across: {first: 2, count: 3, how: function, decimals: 3}}]}", "by-position, steps: [{sum_across: {first: picked_on, count: 2}}]}");
+    let problems = common::lint_problems(&bad);
+    assert!(problems.iter().any(|p| p.contains("column `picked_on` holds dates") && p.contains("needs a numeric column")), "{problems:?}");
+    let err = common::run_bare("sum_across", &[("first", common::at(5)), ("count", ParamValue::Count(2))], &df).err().expect("text cannot be summed");
+    assert!(err.contains("not a numeric column"), "{err}");
 }

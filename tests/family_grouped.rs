@@ -23,14 +23,14 @@ table:
     - {name: variety, kind: text, distinct: 14}
 sizes: [1k]
 designs:
-  - {name: totals-native, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_totals: {by: 0, value: 1, method: native}}]}
-  - {name: totals-fn, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_totals: {by: 0, value: 1, method: per_group_fn}}]}
-  - {name: totals-parts, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_totals: {by: 0, value: 1, method: partitions}}]}
-  - {name: shares-window, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_shares: {by: 0, value: 1, method: window}}]}
-  - {name: shares-join, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_shares: {by: 0, value: 1, method: join_back}}]}
-  - {name: shares-fn, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_shares: {by: 0, value: 1, method: per_group_fn}}]}
-  - {name: shares-parts, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_shares: {by: 0, value: 1, method: partitions}}]}
-  - {name: text-value, steps: [{group_totals: {by: 0, value: 2}}]}
+  - {name: totals-native, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_totals: {by: crew, value: grams, method: native}}]}
+  - {name: totals-fn, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_totals: {by: crew, value: grams, method: per_group_fn}}]}
+  - {name: totals-parts, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_totals: {by: crew, value: grams, method: partitions}}]}
+  - {name: shares-window, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_shares: {by: crew, value: grams, method: window}}]}
+  - {name: shares-join, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_shares: {by: crew, value: grams, method: join_back}}]}
+  - {name: shares-fn, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_shares: {by: crew, value: grams, method: per_group_fn}}]}
+  - {name: shares-parts, setup: [{assign_groups: {column: crew, rows_per_group: 8}}], steps: [{group_shares: {by: crew, value: grams, method: partitions}}]}
+  - {name: by-position, setup: [{assign_groups: {column: 0, rows_per_group: 8}}], steps: [{group_totals: {by: 0, value: 1, method: native}}]}
 "#;
 
 #[test]
@@ -52,6 +52,8 @@ fn per_group_functions_allocate_per_group_and_agree_with_native() {
             assert_eq!(s.facts.fingerprint, t[0].facts.fingerprint, "{name} agrees with native at {n}");
             counts[totals.iter().position(|x| x == name).expect("known")].push(s.alloc.count);
         }
+        // The older form, columns by position, gives the same totals.
+        assert_eq!(get("by-position").facts.fingerprint, t[0].facts.fingerprint, "positions agree with names at {n}");
         let crates: i64 = t[0].df.column("crates").expect("crates").i64().expect("i64").sum().unwrap_or(0);
         let nonnull = n as i64 - table.column("grams").expect("grams").null_count() as i64;
         assert_eq!(crates, nonnull, "counts cover every non-null value");
@@ -85,6 +87,11 @@ fn per_group_functions_allocate_per_group_and_agree_with_native() {
     assert!(counts[1][1] - counts[1][0] >= 20 * extra, "per-group fn: {:?}", counts[1]);
     assert!(counts[0][1] - counts[0][0] <= 2 * extra, "native: {:?}", counts[0]);
 
-    assert!(run(&plan, "text-value", &framecost::table::generate(&plan.columns, plan.seed, 100).expect("table"))
-        .is_err_and(|e| e.contains("not an integer column")));
+    // A text value column: refused by the checker at its place, and by the step on a table
+    // the checker never saw.
+    let bad = SPEC.replace("steps: [{group_totals: {by: 0, value: 1, method: native}}]}", "steps: [{group_totals: {by: crew, value: variety}}]}");
+    let problems = common::lint_problems(&bad);
+    assert!(problems.iter().any(|p| p.contains("column `variety` holds text") && p.contains("needs an integer column")), "{problems:?}");
+    let small = framecost::table::generate(&plan.columns, plan.seed, 100).expect("table");
+    assert!(common::run_bare("group_totals", &[("by", common::at(0)), ("value", common::at(2))], &small).is_err_and(|e| e.contains("not an integer column")));
 }

@@ -28,13 +28,13 @@ table:
     - {name: kilograms, kind: float, range: [0.5, 950.0]}
 sizes: [1k]
 designs:
-  - {name: hash, steps: [{hash_join: {column: 0}}]}
-  - {name: flag-hash, steps: [{flag_sorted: {column: 0}}, {hash_join: {column: 0}}]}
-  - {name: merge, steps: [{flag_sorted: {column: 0}}, {merge_join: {column: 0}}]}
-  - {name: merge-unflagged, steps: [{merge_join: {column: 0}}]}
-  - {name: sort, steps: [{sort_rows: {column: 0}}]}
-  - {name: flag-only, steps: [{flag_sorted: {column: 0}}]}
-  - {name: flag-unsorted, steps: [{flag_sorted: {column: 1}}]}
+  - {name: hash, steps: [{hash_join: {column: parcel}}]}
+  - {name: flag-hash, steps: [{flag_sorted: {column: parcel}}, {hash_join: {column: parcel}}]}
+  - {name: merge, steps: [{flag_sorted: {column: parcel}}, {merge_join: {column: parcel}}]}
+  - {name: merge-unflagged, steps: [{merge_join: {column: parcel}}]}
+  - {name: sort, steps: [{sort_rows: {column: parcel}}]}
+  - {name: flag-only, steps: [{flag_sorted: {column: parcel}}]}
+  - {name: flag-unsorted, steps: [{flag_sorted: {column: crate}}]}
 "#;
 
 #[test]

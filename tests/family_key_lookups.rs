@@ -25,19 +25,19 @@ table:
     - {name: parcel, kind: int, range: [1, 20]}
 sizes: [1k]
 designs:
-  - {name: binary, setup: [{mark_sorted: {column: 0}}], steps: [{lookup_sorted: {key: 0, value: 1, probes: 800}}]}
-  - {name: scan, steps: [{lookup_scan: {key: 0, value: 1, probes: 800}}]}
-  - {name: hash-in-run, steps: [{build_key_index: {key: 0, value: 1}}, {probe_key_index: {probes: 800}}]}
-  - {name: hash-prebuilt, setup: [{build_key_index: {key: 0, value: 1}}], steps: [{probe_key_index: {probes: 800}}]}
-  - {name: join, steps: [{join_wanted_keys: {key: 0, value: 1, probes: 800}}]}
-  - {name: unflagged, steps: [{lookup_sorted: {key: 0, value: 1, probes: 800}}]}
-  - {name: unsorted-scan, steps: [{lookup_scan: {key: 2, value: 1, probes: 800}}]}
-  - {name: unsorted-hash, setup: [{build_key_index: {key: 2, value: 1}}], steps: [{probe_key_index: {probes: 800}}]}
-  - {name: unsorted-join, steps: [{join_wanted_keys: {key: 2, value: 1, probes: 800}}]}
-  - {name: pairs-scan, steps: [{lookup_pairs_scan: {first: 3, second: 4, probes: 300}}]}
-  - {name: pairs-full, setup: [{build_pair_index: {first: 3, second: 4, level: full}}], steps: [{probe_pair_index: {probes: 300}}]}
-  - {name: pairs-prefix, setup: [{build_pair_index: {first: 3, second: 4, level: prefix}}], steps: [{probe_pair_index: {probes: 300}}]}
-  - {name: float-key, steps: [{lookup_scan: {key: 1, value: 0, probes: 10}}]}
+  - {name: binary, setup: [{mark_sorted: {column: tag}}], steps: [{lookup_sorted: {key: tag, value: kilograms, probes: 800}}]}
+  - {name: scan, steps: [{lookup_scan: {key: tag, value: kilograms, probes: 800}}]}
+  - {name: hash-in-run, steps: [{build_key_index: {key: tag, value: kilograms}}, {probe_key_index: {probes: 800}}]}
+  - {name: hash-prebuilt, setup: [{build_key_index: {key: tag, value: kilograms}}], steps: [{probe_key_index: {probes: 800}}]}
+  - {name: join, steps: [{join_wanted_keys: {key: tag, value: kilograms, probes: 800}}]}
+  - {name: unflagged, steps: [{lookup_sorted: {key: tag, value: kilograms, probes: 800}}]}
+  - {name: unsorted-scan, steps: [{lookup_scan: {key: shuffled, value: kilograms, probes: 800}}]}
+  - {name: unsorted-hash, setup: [{build_key_index: {key: shuffled, value: kilograms}}], steps: [{probe_key_index: {probes: 800}}]}
+  - {name: unsorted-join, steps: [{join_wanted_keys: {key: shuffled, value: kilograms, probes: 800}}]}
+  - {name: pairs-scan, steps: [{lookup_pairs_scan: {first: farm, second: parcel, probes: 300}}]}
+  - {name: pairs-full, setup: [{build_pair_index: {first: farm, second: parcel, level: full}}], steps: [{probe_pair_index: {probes: 300}}]}
+  - {name: pairs-prefix, setup: [{build_pair_index: {first: farm, second: parcel, level: prefix}}], steps: [{probe_pair_index: {probes: 300}}]}
+  - {name: by-position, steps: [{lookup_scan: {key: 0, value: 1, probes: 800}}]}
 "#;
 
 fn probes_of(df: &DataFrame) -> Vec<i64> {
@@ -98,5 +98,10 @@ fn every_lookup_finds_the_same_rows_and_indexes_cost_what_they_should() {
 
     // Refusals, not panics: a key not flagged sorted, a key that is not an integer column.
     assert!(run(&plan, "unflagged", &table).is_err_and(|e| e.contains("not flagged sorted")));
-    assert!(run(&plan, "float-key", &table).is_err_and(|e| e.contains("not an integer column")));
+    assert!(common::run_bare("lookup_scan", &[("key", common::at(1)), ("value", common::at(0))], &table).is_err_and(|e| e.contains("not an integer column")));
+    let bad = SPEC.replace("by-position, steps: [{lookup_scan: {key: 0, value: 1, probes: 800}}]}", "by-position, steps: [{lookup_scan: {key: kilograms, value: 0}}]}");
+    let problems = common::lint_problems(&bad);
+    assert!(problems.iter().any(|p| p.contains("column `kilograms` holds decimal numbers") && p.contains("needs an integer column")), "{problems:?}");
+    // The older form, columns by position, finds the same rows.
+    assert_eq!(run(&plan, "by-position", &table).expect("scans").facts.fingerprint, run(&plan, "scan", &table).expect("scans").facts.fingerprint);
 }

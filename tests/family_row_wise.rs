@@ -25,12 +25,11 @@ table:
     - {name: farm, kind: category, distinct: 40}
 sizes: [1k]
 designs:
-  - {name: row, steps: [{payout_per_row: {a: 1, b: 2, flag: 3, access: row}}]}
-  - {name: reused, steps: [{payout_per_row: {a: 1, b: 2, flag: 3, access: row_reused}}]}
-  - {name: typed, steps: [{payout_per_row: {a: 1, b: 2, flag: 3, access: typed}}]}
-  - {name: expression, steps: [{payout_expression: {a: 1, b: 2, flag: 3}}]}
-  - {name: wrong-type, steps: [{payout_expression: {a: 4, b: 2, flag: 3}}]}
-  - {name: wrong-flag, steps: [{payout_per_row: {a: 1, b: 2, flag: 1}}]}
+  - {name: row, steps: [{payout_per_row: {a: gross, b: tare, flag: organic, access: row}}]}
+  - {name: reused, steps: [{payout_per_row: {a: gross, b: tare, flag: organic, access: row_reused}}]}
+  - {name: typed, steps: [{payout_per_row: {a: gross, b: tare, flag: organic, access: typed}}]}
+  - {name: expression, steps: [{payout_expression: {a: gross, b: tare, flag: organic}}]}
+  - {name: by-position, steps: [{payout_expression: {a: 1, b: 2, flag: 3}}]}
 "#;
 
 #[test]
@@ -79,6 +78,14 @@ fn per_row_functions_agree_with_expressions_and_allocate_per_row() {
     assert!(bytes(0) > 5 * bytes(3), "row-per-call bytes {} vs expression {}", bytes(0), bytes(3));
 
     // Wrong column types are refused with a message, not a panic.
-    assert!(run(&plan, "wrong-type", &table).is_err_and(|e| e.contains("expected i64")));
-    assert!(run(&plan, "wrong-flag", &table).is_err_and(|e| e.contains("expected bool")));
+    let a = |p: usize| common::at(p);
+    assert!(common::run_bare("payout_expression", &[("a", a(4)), ("b", a(2)), ("flag", a(3))], &table).is_err_and(|e| e.contains("is str, not an integer column")));
+    assert!(common::run_bare("payout_per_row", &[("a", a(1)), ("b", a(2)), ("flag", a(1))], &table).is_err_and(|e| e.contains("is i64, not a bool column")));
+    // The checker refuses them first, at their place.
+    let bad = SPEC.replace("by-position, steps: [{payout_expression: {a: 1, b: 2, flag: 3}}]}", "by-position, steps: [{payout_expression: {a: variety, b: tare, flag: gross}}]}");
+    let problems = common::lint_problems(&bad);
+    assert!(problems.iter().any(|p| p.contains("`variety` holds text") && p.contains("needs an integer column")), "{problems:?}");
+    assert!(problems.iter().any(|p| p.contains("`gross` holds whole numbers") && p.contains("needs a bool column")), "{problems:?}");
+    // The older form, columns by position, computes the same payouts.
+    assert_eq!(run(&plan, "by-position", &table).expect("runs").facts.fingerprint, run(&plan, "expression", &table).expect("runs").facts.fingerprint);
 }

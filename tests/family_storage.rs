@@ -16,7 +16,7 @@
 //! disturb.
 
 use framecost::patterns::storage::{Stored, STORED};
-use framecost::patterns::{find_step, Params, ParamValue, Value};
+use framecost::patterns::{find_step, Params, ParamValue, RunContext, Value};
 use polars::prelude::*;
 
 const SPEC: &str = r#"
@@ -97,8 +97,8 @@ fn files_carry_their_format_signatures_and_round_trip_exactly() {
     let mut data_fp: Option<String> = None;
     for format in ["parquet", "ipc", "csv"] {
         for layout in ["per_key", "one_file"] {
-            let step = (write.build)(&params(format, layout));
-            let v = step.run(Value::Frame(df.clone())).expect("writes");
+            let step = (write.build)(&params(format, layout)).expect("builds");
+            let v = step.run(Value::Frame(df.clone()), &RunContext::default()).expect("writes");
             let stored = v.clone().into_custom::<Stored>("test", STORED).expect("stored files");
             let folder = stored.folder.path().to_path_buf();
             assert!(folder.starts_with(std::env::temp_dir()), "files stay in the temp directory");
@@ -130,7 +130,7 @@ fn files_carry_their_format_signatures_and_round_trip_exactly() {
             // Read back: the evidence columns report the bytes; the data are the table's.
             let mut p = Params::default();
             p.0.insert("evidence".into(), ParamValue::Flag(true));
-            let back = match (read.build)(&p).run(v).expect("reads") {
+            let back = match (read.build)(&p).expect("builds").run(v, &RunContext::default()).expect("reads") {
                 Value::Frame(f) => f,
                 _ => panic!("a table"),
             };
@@ -162,7 +162,7 @@ fn files_carry_their_format_signatures_and_round_trip_exactly() {
     // Errors clean up too, and nothing is left behind.
     let mut bad = params("parquet", "per_key");
     bad.0.insert("column".into(), ParamValue::Count(99));
-    let err = (write.build)(&bad).run(Value::Frame(df.clone())).err().expect("no column 99");
+    let err = (write.build)(&bad).expect("builds").run(Value::Frame(df.clone()), &RunContext::default()).err().expect("no column 99");
     assert!(err.to_string().contains("no column at position 99"), "{err}");
     // A failure after the folder exists: CSV cannot hold a list column, so the first write fails.
     let lists = df
@@ -171,7 +171,7 @@ fn files_carry_their_format_signatures_and_round_trip_exactly() {
         .select([col("parcel"), col("variety").str().split(lit("a")).alias("pieces")])
         .collect()
         .expect("a list column");
-    let err = (write.build)(&params("csv", "per_key")).run(Value::Frame(lists)).err().expect("CSV has no lists");
+    let err = (write.build)(&params("csv", "per_key")).expect("builds").run(Value::Frame(lists), &RunContext::default()).err().expect("CSV has no lists");
     assert!(err.to_string().contains("write_files"), "{err}");
     assert_eq!(our_folders(), before, "no temp folder of this process is left behind, even after errors");
     let _ = plan;

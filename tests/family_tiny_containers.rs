@@ -20,9 +20,9 @@ table:
     - {name: grade, kind: text, distinct: 4}
 sizes: [1k]
 designs:
-  - {name: series, setup: [{join_text: {first: 0, count: 4}}], steps: [{split_per_row: {container: series}}]}
-  - {name: table, setup: [{join_text: {first: 0, count: 4}}], steps: [{split_per_row: {container: table}}]}
-  - {name: native, setup: [{join_text: {first: 0, count: 4}}], steps: [split_native]}
+  - {name: series, setup: [{join_text: {first: farm, count: 4}}], steps: [{split_per_row: {container: series}}]}
+  - {name: table, setup: [{join_text: {first: farm, count: 4}}], steps: [{split_per_row: {container: table}}]}
+  - {name: native, setup: [{join_text: {first: farm, count: 4}}], steps: [split_native]}
 "#;
 
 #[test]

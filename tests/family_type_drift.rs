@@ -21,13 +21,13 @@ table:
     - {name: empty_readings, kind: float, nulls: 100%}
 sizes: [1k]
 designs:
-  - {name: empty-cells, steps: [{fill_cells: {column: 2, start: empty}}]}
-  - {name: typed-cells, steps: [{fill_cells: {column: 2, start: typed, declared: float}}]}
-  - {name: one-cast, steps: [{cast_column: {column: 2, declared: float}}]}
-  - {name: empty-cells-no-values, steps: [{fill_cells: {column: 3, start: empty}}]}
-  - {name: note-text, steps: [{cast_column: {column: 2}}, {write_cell: {column: 2, row: 0.5, value: text}}]}
-  - {name: note-null, steps: [{cast_column: {column: 2}}, {write_cell: {column: 2, row: 0.5, value: missing}}]}
-  - {name: fraction-into-int, steps: [{write_cell: {column: 2, row: 0.0, value: fraction}}]}
+  - {name: empty-cells, steps: [{fill_cells: {column: kilograms, start: empty}}]}
+  - {name: typed-cells, steps: [{fill_cells: {column: kilograms, start: typed, declared: float}}]}
+  - {name: one-cast, steps: [{cast_column: {column: kilograms, declared: float}}]}
+  - {name: empty-cells-no-values, steps: [{fill_cells: {column: empty_readings, start: empty}}]}
+  - {name: note-text, steps: [{cast_column: {column: kilograms}}, {write_cell: {column: 2, row: 0.5, value: text}}]}
+  - {name: note-null, steps: [{cast_column: {column: kilograms}}, {write_cell: {column: 2, row: 0.5, value: missing}}]}
+  - {name: fraction-into-int, steps: [{write_cell: {column: kilograms, row: 0.0, value: fraction}}]}
   - name: strict
     setup: [{split_into_pieces: {parts: 4, column: 2, retype: float}}]
     steps: [{stack_pieces: {mode: strict}}]

@@ -44,6 +44,17 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("36-bad-reference.yaml", "13:50", &["no column `membr_id`", "did you mean `member_id`?"]),
     ("37-bad-table-rows.yaml", "6:11", &["1/zero"]),
     ("38-sql-aggregate-without-group-by.yaml", "20:30", &["`member_id` is neither in a GROUP BY nor inside an aggregate", "SUM"]),
+    // Step columns: resolved against the table plan, by name or by position.
+    ("39-wrong-column-name.yaml", "11:30", &["no column `kilogram` in table `data`", "crate_id, kilograms, variety", "did you mean `kilograms`?"]),
+    ("40-text-column-for-number.yaml", "11:43", &["`value`", "column `variety` holds text (kind `text`)", "needs an integer column"]),
+    ("41-position-beyond-table.yaml", "12:30", &["no column at position 9", "has 4 columns (positions 0 to 3)"]),
+    ("42-count-beyond-table.yaml", "12:44", &["`count`", "5 columns from `top_kg` (position 1) run past the end", "has 4 columns"]),
+    // The table is followed through a set-up step that keeps its columns.
+    ("43-column-after-setup.yaml", "14:16", &["`key`", "`kilograms` holds decimal numbers (kind `float`)", "needs an integer column"]),
+    // Built-in steps receive the first of several tables; a column of another is named there.
+    ("44-column-of-another-table.yaml", "17:28", &["no column `district` in table `deliveries`", "`district` is in table `members`"]),
+    // A step's constructor refuses, located at the parameter it names.
+    ("45-same-column-twice.yaml", "10:42", &["step `group_shares` cannot be built", "`value` is the group column `grams` again"]),
 ];
 
 #[test]

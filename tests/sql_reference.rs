@@ -48,7 +48,7 @@ fn check(workload: &str, rows: u64) -> Vec<usize> {
     for d in &plan.designs {
         assert_eq!(d.steps.len(), 1, "{workload}/{}: one sql step per design", d.name);
         let query = d.steps[0].params.text("query");
-        let ctx = RunContext { tables: tables.iter().map(|(n, df)| (n.clone(), df.clone().lazy())).collect(), engine: d.engine };
+        let ctx = RunContext { tables: tables.iter().map(|(n, df)| (n.clone(), df.clone().lazy())).collect(), engine: d.engine, ..RunContext::default() };
         let lf = plan_query(query, &ctx, tables[0].1.clone()).expect("query plans");
         let out = collect(lf, d.engine).expect("query runs");
         assert!(out.height() > 0, "{workload}/{}: an empty result checks nothing", d.name);

@@ -75,9 +75,7 @@ fn json(args: &Args, list: &[(String, Plan)]) -> serde_json::Value {
                 "takes": s.takes.label(),
                 "gives": s.gives.label(),
                 "cost_note": s.cost_note,
-                "params": s.params.iter().map(|p| serde_json::json!({
-                    "name": p.name, "kind": p.kind.describe(), "default": p.default, "doc": p.doc,
-                })).collect::<Vec<_>>(),
+                "params": s.params.iter().map(param_json).collect::<Vec<_>>(),
             })
         })
         .collect();
@@ -122,4 +120,17 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
     }
     code
+}
+
+/// One step parameter; a column parameter also says what its column must hold (`needs`,
+/// the column kinds accepted) and, for a run of columns, which parameter counts them.
+fn param_json(p: &crate::patterns::ParamDef) -> serde_json::Value {
+    let mut v = serde_json::json!({ "name": p.name, "kind": p.kind.describe(), "default": p.default, "doc": p.doc });
+    if let crate::patterns::ParamKind::Column { need, span } = p.kind {
+        v["needs"] = serde_json::json!(need.label());
+        if let Some(count) = span {
+            v["run_length"] = serde_json::json!(count);
+        }
+    }
+    v
 }

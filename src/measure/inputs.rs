@@ -68,7 +68,7 @@ impl SizeInputs {
                     .collect::<Result<_, _>>()?
             }
         };
-        Ok(RunContext { tables, engine })
+        Ok(RunContext::for_sweep(tables, engine))
     }
 }
 

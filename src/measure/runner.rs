@@ -13,8 +13,7 @@ use super::clock::ClockInfo;
 use super::equivalence::compare;
 use super::program::{ProgramDesign, ProgramInputs};
 use super::sampling::{make_input, run_step, Active};
-use crate::patterns::sql::RunContext;
-use crate::patterns::{Records, Value};
+use crate::patterns::{Allowed, Records, RunContext, Value};
 use crate::plan::{DesignPlan, Plan};
 use crate::results::writer::{RunWriter, WriteError};
 use crate::results::*;
@@ -373,7 +372,7 @@ impl<'p> SizeRun<'p, '_> {
         for &i in runnable {
             let d = &plan.designs[i];
             let (ctx, mut error) = match inputs.context(d.engine) {
-                Ok(c) => (c, None),
+                Ok(c) => (c.limited(Instant::now() + super::watchdog::limit_for(b.per_point_s), Allowed::of(d.program.is_some(), self.opts.force)), None),
                 Err(message) => (RunContext::default(), Some(SkipCause::Step { message })),
             };
             if let Some(p) = self.programs.get_mut(i).and_then(|p| p.as_mut()) {

@@ -96,7 +96,7 @@ pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Res
     caught(|| {
         let mut v = input;
         for s in &design.steps {
-            v = s.runner.run_in(v, ctx).map_err(|e| e.to_string())?;
+            v = s.runner.run(v, ctx).map_err(|e| e.to_string())?;
         }
         Ok(v)
     })
@@ -104,7 +104,7 @@ pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Res
 
 /// Run one (set-up) step, a panic becoming an error.
 pub fn run_step(s: &crate::plan::StepPlan, input: Value, ctx: &RunContext) -> Result<Value, SkipCause> {
-    caught(|| s.runner.run_in(input, ctx).map_err(|e| e.to_string()))
+    caught(|| s.runner.run(input, ctx).map_err(|e| e.to_string()))
 }
 
 /// Run step work, its error (its own text) and a panic kept apart as causes.

@@ -9,7 +9,7 @@
 //! only on the row count, so outputs compare exactly; the cost of a run is set by `reads`,
 //! not by the rows, except where a whole column is copied.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 use std::sync::Arc;
 
@@ -18,7 +18,7 @@ const VIA: &[&str] = &["table_cell", "table_row", "typed_get", "slice"];
 /// The name of the family's own value: a column copied into a plain vector.
 pub const PLAIN_VECTOR: &str = "plain vector";
 
-const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the numeric column to read" };
+const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::column(Need::Numeric), default: "0", doc: "the numeric column to read" };
 const READS: ParamDef = ParamDef { name: "reads", kind: ParamKind::count(1, 10_000_000), default: "10000", doc: "cells read per run" };
 
 /// The steps of this family.
@@ -38,9 +38,10 @@ least 10× more per element than indexing a plain array.",
         memory_factor: 1.5,
         disk_factor: 0.0,
         private_input: false,
+        keeps_columns: false,
         build: |p| {
-            Box::new(ReadCells {
-                column: p.count("column") as usize,
+            Ok(Box::new(ReadCells {
+                column: p.column("column")?,
                 reads: p.count("reads") as usize,
                 via: match p.choice("via") {
                     "table_row" => Via::TableRow,
@@ -48,7 +49,7 @@ least 10× more per element than indexing a plain array.",
                     "slice" => Via::Slice,
                     _ => Via::TableCell,
                 },
-            })
+            }))
         },
     },
     StepDef {
@@ -62,7 +63,8 @@ linear in rows in time and bytes, whatever the number of reads that follow.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(CopyToVector { column: p.count("column") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(CopyToVector { column: p.column("column")? })),
     },
     StepDef {
         name: "read_vector_cells",
@@ -74,7 +76,8 @@ linear in rows in time and bytes, whatever the number of reads that follow.",
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(ReadVector { reads: p.count("reads") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(ReadVector { reads: p.count("reads") as usize })),
     },
 ];
 
@@ -102,17 +105,6 @@ fn result(step: &'static str, read: i64, sum: f64) -> Result<Value, StepError> {
     Ok(Value::Frame(DataFrame::new(1, cols).map_err(polars_err(step))?))
 }
 
-fn numeric_column<'a>(df: &'a DataFrame, pos: usize, step: &'static str) -> Result<&'a Column, StepError> {
-    let c = df
-        .columns()
-        .get(pos)
-        .ok_or_else(|| StepError::Value { step, message: format!("no column at position {pos} (the table has {})", df.width()) })?;
-    if !c.dtype().is_primitive_numeric() {
-        return Err(StepError::Value { step, message: format!("column `{}` is {}, not numeric", c.name(), c.dtype()) });
-    }
-    Ok(c)
-}
-
 /// Values of a numeric column as 64-bit floats (shared when it already is one).
 fn as_f64(c: &Column, step: &'static str) -> Result<Float64Chunked, StepError> {
     let s = c.as_materialized_series().cast(&DataType::Float64).map_err(polars_err(step))?;
@@ -132,16 +124,18 @@ enum Via {
 }
 
 struct ReadCells {
-    column: usize,
+    column: ColumnRef,
     reads: usize,
     via: Via,
 }
 
 impl Step for ReadCells {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "read_cells";
         let df = input.into_frame(NAME)?;
-        numeric_column(&df, self.column, NAME)?;
+        column(&df, &self.column, Need::Numeric, NAME)?;
+        // Found once per run: the reads below go by position, as before.
+        let at = column_position(&df, &self.column, NAME)?;
         let n = df.height();
         if n == 0 {
             return Err(no_rows(NAME));
@@ -157,7 +151,7 @@ impl Step for ReadCells {
             Via::TableCell => {
                 for k in 0..self.reads {
                     // Through the table every time, as a loop over `df[col][i]` would.
-                    let c = df.select_at_idx(self.column).ok_or_else(|| no_rows(NAME))?;
+                    let c = df.select_at_idx(at).ok_or_else(|| no_rows(NAME))?;
                     let av = c.get(position(k, self.reads, n)).map_err(polars_err(NAME))?;
                     add(av.extract::<f64>());
                 }
@@ -165,17 +159,17 @@ impl Step for ReadCells {
             Via::TableRow => {
                 for k in 0..self.reads {
                     let row = df.get_row(position(k, self.reads, n)).map_err(polars_err(NAME))?;
-                    add(row.0.get(self.column).and_then(|av| av.extract::<f64>()));
+                    add(row.0.get(at).and_then(|av| av.extract::<f64>()));
                 }
             }
             Via::TypedGet => {
-                let ca = as_f64(&df.columns()[self.column], NAME)?;
+                let ca = as_f64(&df.columns()[at], NAME)?;
                 for k in 0..self.reads {
                     add(ca.get(position(k, self.reads, n)));
                 }
             }
             Via::Slice => {
-                let ca = as_f64(&df.columns()[self.column], NAME)?;
+                let ca = as_f64(&df.columns()[at], NAME)?;
                 let ca = ca.rechunk();
                 let arr = ca.downcast_iter().next().ok_or_else(|| no_rows(NAME))?;
                 let values = arr.values().as_slice();
@@ -207,14 +201,14 @@ pub struct PlainVector {
 }
 
 struct CopyToVector {
-    column: usize,
+    column: ColumnRef,
 }
 
 impl Step for CopyToVector {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "copy_to_vector";
         let df = input.into_frame(NAME)?;
-        let c = numeric_column(&df, self.column, NAME)?;
+        let c = column(&df, &self.column, Need::Numeric, NAME)?;
         let ca = as_f64(c, NAME)?;
         let mut values = Vec::with_capacity(ca.len());
         let mut present = Vec::with_capacity(ca.len());
@@ -231,7 +225,7 @@ struct ReadVector {
 }
 
 impl Step for ReadVector {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "read_vector_cells";
         let v = input.into_custom::<PlainVector>(NAME, PLAIN_VECTOR)?;
         let n = v.values.len();

@@ -10,7 +10,7 @@
 //! column does not copy the others (unlike block-stored tables); what fragments is each
 //! column's chunk list, and derived columns inherit the chunking of their source.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 
 const HOW: &[&str] = &["one_at_a_time", "all_at_once"];
@@ -30,7 +30,8 @@ in pieces, not rows). Meant for `setup:`: it gives the fragmented starting point
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SplitStorage { pieces: p.count("pieces").max(1) as usize }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(SplitStorage { pieces: p.count("pieces").max(1) as usize })),
     },
     StepDef {
         name: "consolidate_table",
@@ -44,7 +45,8 @@ memory at the peak.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |_| Box::new(ConsolidateTable),
+        keeps_columns: true,
+        build: |_| Ok(Box::new(ConsolidateTable)),
     },
     StepDef {
         name: "grow_columns",
@@ -59,7 +61,7 @@ after it is made, one more pass and a second buffer per column. Time and bytes g
 rows in every case. per_column: k = columns × the table's width, so over a `set: columns` sweep \
 reads: between copies about 1.5·w² columns (n² in the columns) and the designs reading once stay linear.",
         params: &[
-            ParamDef { name: "source", kind: ParamKind::position(), default: "0", doc: "position of the numeric column the new columns derive from" },
+            ParamDef { name: "source", kind: ParamKind::column(Need::Numeric), default: "0", doc: "the numeric column the new columns derive from" },
             ParamDef { name: "columns", kind: ParamKind::count(1, 10_000).costing(64.0, 8.0), default: "8", doc: "how many derived columns to add" },
             ParamDef { name: "how", kind: ParamKind::Choice(HOW), default: "one_at_a_time", doc: "add each column as it is made, or build them all and add them in one go" },
             ParamDef {
@@ -81,9 +83,10 @@ reads: between copies about 1.5·w² columns (n² in the columns) and the design
         memory_factor: 4.0,
         disk_factor: 0.0,
         private_input: false,
+        keeps_columns: false,
         build: |p| {
-            Box::new(GrowColumns {
-                source: p.count("source") as usize,
+            Ok(Box::new(GrowColumns {
+                source: p.column("source")?,
                 columns: p.count("columns").max(1) as usize,
                 all_at_once: p.choice("how") == "all_at_once",
                 reads: match p.choice("reads") {
@@ -94,7 +97,7 @@ reads: between copies about 1.5·w² columns (n² in the columns) and the design
                 },
                 f32: p.choice("dtype") == "f32",
                 per_column: p.flag("per_column"),
-            })
+            }))
         },
     },
 ];
@@ -104,7 +107,7 @@ struct SplitStorage {
 }
 
 impl Step for SplitStorage {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "split_storage";
         let df = input.into_frame(NAME)?;
         let n = df.height();
@@ -131,7 +134,7 @@ impl Step for SplitStorage {
 struct ConsolidateTable;
 
 impl Step for ConsolidateTable {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         let mut df = input.into_frame("consolidate_table")?;
         df.rechunk_mut();
         Ok(Value::Frame(df))
@@ -147,7 +150,7 @@ enum Reads {
 }
 
 struct GrowColumns {
-    source: usize,
+    source: ColumnRef,
     columns: usize,
     all_at_once: bool,
     reads: Reads,
@@ -186,19 +189,16 @@ fn contiguous_read(df: &mut DataFrame, keep: bool, step: &'static str) -> Result
 }
 
 impl Step for GrowColumns {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "grow_columns";
         let mut df = input.into_frame(NAME)?;
-        let Some(src) = df.columns().get(self.source) else {
-            return Err(StepError::Value { step: NAME, message: format!("no column at position {} (the table has {})", self.source, df.width()) });
-        };
-        if !src.dtype().is_primitive_numeric() {
-            return Err(StepError::Value { step: NAME, message: format!("column `{}` is {}, not numeric", src.name(), src.dtype()) });
-        }
+        let src = column(&df, &self.source, Need::Numeric, NAME)?;
+        // Found once per run: the new columns go to the end, so the source keeps its place.
+        let source = column_position(&df, &self.source, NAME)?;
         let src_name = src.name().to_string();
         let make = |df: &DataFrame, j: usize| -> Result<Column, StepError> {
             // Looked up afresh: with reads kept, the source itself may have been consolidated.
-            let s = df.columns()[self.source].as_materialized_series();
+            let s = df.columns()[source].as_materialized_series();
             let s = s.cast(&DataType::Float64).map_err(polars_err(NAME))?;
             let ca = s.f64().map_err(polars_err(NAME))?;
             let out = (ca * factor(j)).with_name(format!("{src_name}_tier{j}").into()).into_series();

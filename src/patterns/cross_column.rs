@@ -9,7 +9,7 @@
 //! dominated by per-column overhead (far more than the cells themselves), and its output
 //! dtype is the common type of *all* the table's columns — text as soon as one is text.
 
-use super::{polars_err, ParamDef, ParamKind, Params, Step, StepDef, StepError, Value, ValueKind};
+use super::{column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, Params, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 
 const HOW: &[&str] = &["function", "arithmetic"];
@@ -19,9 +19,22 @@ const DECIMALS: ParamDef = ParamDef {
     default: "6",
     doc: "round the total to this many decimals (half to even), so designs that add in another order agree",
 };
-const RANGE: &[ParamDef] = &[
-    ParamDef { name: "first", kind: ParamKind::position(), default: "0", doc: "position of the first column summed (0 = first)" },
-    ParamDef { name: "count", kind: ParamKind::count(1, super::MAX_POSITION), default: "2", doc: "how many consecutive columns are summed" },
+const COUNT: ParamDef = ParamDef { name: "count", kind: ParamKind::count(1, super::MAX_POSITION), default: "2", doc: "how many consecutive columns are summed" };
+const SUMMED: &[ParamDef] =
+    &[ParamDef { name: "first", kind: ParamKind::columns_from(Need::Numeric, "count"), default: "0", doc: "the first column summed" }, COUNT];
+const KEPT: &[ParamDef] = &[
+    ParamDef { name: "first", kind: ParamKind::columns_from(Need::Any, "count"), default: "0", doc: "the first column kept" },
+    ParamDef { name: "count", kind: ParamKind::count(1, super::MAX_POSITION), default: "2", doc: "how many consecutive columns are kept" },
+];
+/// The transposed table has no column names to go by: its rows are the original columns.
+const CELLS: &[ParamDef] = &[
+    ParamDef {
+        name: "first",
+        kind: ParamKind::count(0, super::MAX_POSITION),
+        default: "0",
+        doc: "position of the first original column summed (0 = first): the first cell of each transposed column",
+    },
+    COUNT,
 ];
 
 /// Name of the output column of every reduction here.
@@ -39,8 +52,8 @@ with three or more columns polars' sum_horizontal adds them as a parallel reduct
 order of the additions — and in floating point the last bit of the result — is not left to right; \
 the `decimals` rounding makes the designs comparable.",
         params: &[
-            RANGE[0],
-            RANGE[1],
+            SUMMED[0],
+            SUMMED[1],
             ParamDef { name: "how", kind: ParamKind::Choice(HOW), default: "function", doc: "polars' sum_horizontal, or a chain of `+`" },
             DECIMALS,
         ],
@@ -49,26 +62,28 @@ the `decimals` rounding makes the designs comparable.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
+        keeps_columns: false,
         build: |p| {
-            Box::new(SumAcross {
-                first: p.count("first") as usize,
+            Ok(Box::new(SumAcross {
+                first: p.column("first")?,
                 count: p.count("count") as usize,
                 arithmetic: p.choice("how") == "arithmetic",
                 decimals: decimals(p),
-            })
+            }))
         },
     },
     StepDef {
         name: "select_columns",
         summary: "keep only a run of consecutive columns",
         cost_note: "Shares the kept columns' buffers: constant time and bytes (a column list).",
-        params: RANGE,
+        params: KEPT,
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SelectColumns { first: p.count("first") as usize, count: p.count("count") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SelectColumns { first: p.column("first")?, count: p.count("count") as usize })),
     },
     StepDef {
         name: "transpose_rows",
@@ -84,7 +99,8 @@ text each number is formatted once here and parsed again by the reduction.",
         memory_factor: 8.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |_| Box::new(TransposeRows),
+        keeps_columns: false,
+        build: |_| Ok(Box::new(TransposeRows)),
     },
     StepDef {
         name: "sum_transposed",
@@ -92,13 +108,14 @@ text each number is formatted once here and parsed again by the reduction.",
         cost_note: "For every column (one per original row): cast to Float64 — parsing text when the \
 transpose went through text, where anything not a number becomes null and is skipped — then add \
 the chosen cells in order. Linear in the cells, with a fixed cost per column that dominates.",
-        params: &[RANGE[0], RANGE[1], DECIMALS],
+        params: &[CELLS[0], CELLS[1], DECIMALS],
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SumTransposed { first: p.count("first") as usize, count: p.count("count") as usize, decimals: decimals(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SumTransposed { first: p.count("first") as usize, count: p.count("count") as usize, decimals: decimals(p) })),
     },
 ];
 
@@ -114,7 +131,8 @@ fn rounded_total(step: &'static str, df: DataFrame, decimals: u32) -> Result<Dat
         .map_err(polars_err(step))
 }
 
-fn run_of_columns(step: &'static str, df: &DataFrame, first: usize, count: usize) -> Result<Vec<PlSmallStr>, StepError> {
+fn run_of_columns(step: &'static str, df: &DataFrame, first: &ColumnRef, count: usize) -> Result<Vec<PlSmallStr>, StepError> {
+    let first = column_position(df, first, step)?;
     if first.checked_add(count).is_none_or(|end| end > df.width()) {
         return Err(StepError::Value {
             step,
@@ -125,21 +143,21 @@ fn run_of_columns(step: &'static str, df: &DataFrame, first: usize, count: usize
 }
 
 struct SumAcross {
-    first: usize,
+    first: ColumnRef,
     count: usize,
     arithmetic: bool,
     decimals: u32,
 }
 
 impl Step for SumAcross {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "sum_across";
         let df = input.into_frame(NAME)?;
-        let names = run_of_columns(NAME, &df, self.first, self.count)?;
+        let names = run_of_columns(NAME, &df, &self.first, self.count)?;
         for n in &names {
             let dt = df.column(n.as_str()).map_err(polars_err(NAME))?.dtype();
-            if !dt.is_primitive_numeric() {
-                return Err(StepError::Value { step: NAME, message: format!("column `{n}` has dtype {dt}; only numbers can be summed") });
+            if !Need::Numeric.accepts_dtype(dt) {
+                return Err(StepError::ColumnKind { step: NAME, column: n.to_string(), dtype: dt.to_string(), need: Need::Numeric.label() });
             }
         }
         let exprs: Vec<Expr> = names.iter().map(|n| col(n.clone()).cast(DataType::Float64)).collect();
@@ -156,15 +174,15 @@ impl Step for SumAcross {
 }
 
 struct SelectColumns {
-    first: usize,
+    first: ColumnRef,
     count: usize,
 }
 
 impl Step for SelectColumns {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "select_columns";
         let df = input.into_frame(NAME)?;
-        let names = run_of_columns(NAME, &df, self.first, self.count)?;
+        let names = run_of_columns(NAME, &df, &self.first, self.count)?;
         Ok(Value::Frame(df.select(names).map_err(polars_err(NAME))?))
     }
 }
@@ -172,7 +190,7 @@ impl Step for SelectColumns {
 struct TransposeRows;
 
 impl Step for TransposeRows {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "transpose_rows";
         let mut df = input.into_frame(NAME)?;
         if df.width() == 0 || df.height() == 0 {
@@ -202,7 +220,7 @@ struct SumTransposed {
 }
 
 impl Step for SumTransposed {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "sum_transposed";
         let df = input.into_frame(NAME)?;
         let end = self.first.saturating_add(self.count);

@@ -10,15 +10,15 @@
 //! sweepable: with `rows_per_group` fixed, the groups grow with the rows. Values are
 //! integers so every design's sums are exact and the outputs compare bit for bit.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, BuildError, ColumnRef, Need, ParamDef, ParamKind, Params, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 
 const TOTALS: &[&str] = &["native", "per_group_fn", "partitions"];
 const SHARES: &[&str] = &["window", "join_back", "per_group_fn", "partitions"];
 const ROW: &str = "__row";
 
-const BY: ParamDef = ParamDef { name: "by", kind: ParamKind::position(), default: "0", doc: "position of the group column" };
-const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::position(), default: "1", doc: "position of the integer value column" };
+const BY: ParamDef = ParamDef { name: "by", kind: ParamKind::column(Need::Any), default: "0", doc: "the group column" };
+const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::column(Need::Integer), default: "1", doc: "the integer value column" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[
@@ -28,7 +28,7 @@ pub const STEPS: &[StepDef] = &[
         cost_note: "One pass and one new column of n integers: linear in rows. Meant for `setup:`; on a key \
 column (a permutation of 0..n) every group gets about `rows_per_group` rows.",
         params: &[
-            ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the integer column to turn into a group number" },
+            ParamDef { name: "column", kind: ParamKind::column(Need::Integer), default: "0", doc: "the integer column to turn into a group number" },
             ParamDef { name: "rows_per_group", kind: ParamKind::per_rows(1, 10_000_000_000), default: "16", doc: "rows per group on average" },
         ],
         takes: ValueKind::Frame,
@@ -36,7 +36,8 @@ column (a permutation of 0..n) every group gets about `rows_per_group` rows.",
         memory_factor: 1.5,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(AssignGroups { column: p.count("column") as usize, rows_per_group: p.count("rows_per_group").max(1) }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(AssignGroups { column: p.column("column")?, rows_per_group: p.count("rows_per_group").max(1) })),
     },
     StepDef {
         name: "group_totals",
@@ -53,7 +54,11 @@ practice: a user function called once per group is much slower than a native agg
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(GroupTotals { by: p.count("by") as usize, value: p.count("value") as usize, method: p.choice("method").to_string() }),
+        keeps_columns: false,
+        build: |p| {
+            let (by, value) = by_and_value(p)?;
+            Ok(Box::new(GroupTotals { by, value, method: p.choice("method").to_string() }))
+        },
     },
     StepDef {
         name: "group_shares",
@@ -69,23 +74,30 @@ and sort them back into row order: n log n for the sort plus allocations per gro
         memory_factor: 4.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(GroupShares { by: p.count("by") as usize, value: p.count("value") as usize, method: p.choice("method").to_string() }),
+        keeps_columns: false,
+        build: |p| {
+            let (by, value) = by_and_value(p)?;
+            Ok(Box::new(GroupShares { by, value, method: p.choice("method").to_string() }))
+        },
     },
 ];
 
-fn names(df: &DataFrame, by: usize, value: usize, step: &'static str) -> Result<(PlSmallStr, PlSmallStr), StepError> {
-    let get = |pos: usize| {
-        df.columns()
-            .get(pos)
-            .ok_or_else(|| StepError::Value { step, message: format!("no column at position {pos} (the table has {})", df.width()) })
-    };
-    let (b, v) = (get(by)?, get(value)?);
+/// The group and value columns; the same column written twice is refused when the step is
+/// built (a name and a position of the same column only when it runs).
+fn by_and_value(p: &Params) -> Result<(ColumnRef, ColumnRef), BuildError> {
+    let (by, value) = (p.column("by")?, p.column("value")?);
     if by == value {
+        return Err(BuildError { param: Some("value"), message: format!("`value` is the group column `{by}` again; the value column must be another") });
+    }
+    Ok((by, value))
+}
+
+fn names(df: &DataFrame, by: &ColumnRef, value: &ColumnRef, step: &'static str) -> Result<(PlSmallStr, PlSmallStr), StepError> {
+    let b = column(df, by, Need::Any, step)?;
+    if column_position(df, by, step)? == column_position(df, value, step)? {
         return Err(StepError::Value { step, message: "the group column and the value column must differ".into() });
     }
-    if !v.dtype().is_integer() {
-        return Err(StepError::Value { step, message: format!("value column `{}` is {}, not an integer column", v.name(), v.dtype()) });
-    }
+    let v = column(df, value, Need::Integer, step)?;
     for reserved in [ROW, "crates", "total", "heaviest", "share"] {
         if df.get_column_index(reserved).is_some() {
             return Err(StepError::Value { step, message: format!("the table already has a column `{reserved}`, which this step writes") });
@@ -98,27 +110,22 @@ fn names(df: &DataFrame, by: usize, value: usize, step: &'static str) -> Result<
 }
 
 struct AssignGroups {
-    column: usize,
+    column: ColumnRef,
     rows_per_group: u64,
 }
 
 impl Step for AssignGroups {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "assign_groups";
         let mut df = input.into_frame(NAME)?;
-        let c = df
-            .columns()
-            .get(self.column)
-            .ok_or_else(|| StepError::Value { step: NAME, message: format!("no column at position {}", self.column) })?;
-        if !c.dtype().is_integer() {
-            return Err(StepError::Value { step: NAME, message: format!("column `{}` is {}, not an integer column", c.name(), c.dtype()) });
-        }
+        let at = column_position(&df, &self.column, NAME)?;
+        let c = column(&df, &self.column, Need::Integer, NAME)?;
         let groups = (df.height() as u64 / self.rows_per_group).max(1) as i64;
         let s = c.as_materialized_series().cast(&DataType::Int64).map_err(polars_err(NAME))?;
         let ca = s.i64().map_err(polars_err(NAME))?;
         let out: Int64Chunked = ca.apply_values(|v| v.rem_euclid(groups));
         let out = out.with_name(c.name().clone()).into_series().into_column();
-        df.replace_column(self.column, out).map_err(polars_err(NAME))?;
+        df.replace_column(at, out).map_err(polars_err(NAME))?;
         Ok(Value::Frame(df))
     }
 }
@@ -141,16 +148,16 @@ fn user_totals(group: &DataFrame, by: &str, value: &str) -> PolarsResult<DataFra
 }
 
 struct GroupTotals {
-    by: usize,
-    value: usize,
+    by: ColumnRef,
+    value: ColumnRef,
     method: String,
 }
 
 impl Step for GroupTotals {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "group_totals";
         let df = input.into_frame(NAME)?;
-        let (by, value) = names(&df, self.by, self.value, NAME)?;
+        let (by, value) = names(&df, &self.by, &self.value, NAME)?;
         let sort = SortMultipleOptions::default();
         let out = match self.method.as_str() {
             "per_group_fn" => {
@@ -204,16 +211,16 @@ fn user_shares(mut group: DataFrame, value: &str) -> PolarsResult<DataFrame> {
 }
 
 struct GroupShares {
-    by: usize,
-    value: usize,
+    by: ColumnRef,
+    value: ColumnRef,
     method: String,
 }
 
 impl Step for GroupShares {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "group_shares";
         let df = input.into_frame(NAME)?;
-        let (by, value) = names(&df, self.by, self.value, NAME)?;
+        let (by, value) = names(&df, &self.by, &self.value, NAME)?;
         let share_of = |total: Expr| (col(value.clone()).cast(DataType::Float64) / total.cast(DataType::Float64)).alias("share");
         let mut out = match self.method.as_str() {
             "join_back" => {

@@ -12,12 +12,14 @@
 //! the sorted flag; `merge_join` is framecost's own sorted-merge join, to show what the
 //! flag could buy.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 use polars::series::IsSorted;
 
-const COLUMN: ParamDef =
-    ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the key column (0 = first)" };
+const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::column(Need::Any), default: "0", doc: "the key column" };
+/// The merge compares keys as integers.
+const MERGE_KEY: ParamDef =
+    ParamDef { name: "column", kind: ParamKind::column(Need::IntegerBacked), default: "0", doc: "the key column (integers, keys, dates or categories)" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[
@@ -36,7 +38,8 @@ fails if it is not ascending; with verify: false a wrong flag silently gives wro
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(FlagSorted { column: p.count("column") as usize, verify: p.flag("verify") }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(FlagSorted { column: p.column("column")?, verify: p.flag("verify") })),
     },
     StepDef {
         name: "hash_join",
@@ -51,7 +54,8 @@ grow much faster than the input.",
         memory_factor: 4.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SelfJoin { column: p.count("column") as usize, merge: false }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SelfJoin { column: p.column("column")?, merge: false })),
     },
     StepDef {
         name: "merge_join",
@@ -60,13 +64,14 @@ grow much faster than the input.",
 linear in the input plus the output, with no hash table (less memory, sequential access). Refuses \
 keys without the ascending sorted flag. Its output is in key order and carries the flag, so a \
 following sort on the key is free.",
-        params: &[COLUMN],
+        params: &[MERGE_KEY],
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 4.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SelfJoin { column: p.count("column") as usize, merge: true }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SelfJoin { column: p.column("column")?, merge: true })),
     },
     StepDef {
         name: "sort_rows",
@@ -81,15 +86,15 @@ into new buffers, so bytes grow linearly with the rows either way.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SortRows { column: p.count("column") as usize }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(SortRows { column: p.column("column")? })),
     },
 ];
 
-fn column_name(step: &'static str, df: &DataFrame, pos: usize) -> Result<PlSmallStr, StepError> {
-    df.columns().get(pos).map(|c| c.name().clone()).ok_or_else(|| StepError::Value {
-        step,
-        message: format!("the table has {} columns, so there is no column at position {pos}", df.width()),
-    })
+/// The key's position and name in `df`.
+fn key_column(step: &'static str, df: &DataFrame, key: &ColumnRef) -> Result<(usize, PlSmallStr), StepError> {
+    let at = column_position(df, key, step)?;
+    Ok((at, df.columns()[at].name().clone()))
 }
 
 /// The key as i64 values (integer, date and other integer-backed keys only).
@@ -117,45 +122,45 @@ fn is_ascending(keys: &[Option<i64>]) -> bool {
 }
 
 struct FlagSorted {
-    column: usize,
+    column: ColumnRef,
     verify: bool,
 }
 
 impl Step for FlagSorted {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "flag_sorted";
         let df = input.into_frame(NAME)?;
-        let name = column_name(NAME, &df, self.column)?;
+        let (at, name) = key_column(NAME, &df, &self.column)?;
         if self.verify {
-            let keys = key_values(NAME, &df.columns()[self.column])?;
+            let keys = key_values(NAME, &df.columns()[at])?;
             if !is_ascending(&keys) {
                 return Err(StepError::Value { step: NAME, message: format!("column `{name}` is not in ascending order") });
             }
         }
         let height = df.height();
         let mut cols = df.into_columns();
-        cols[self.column].set_sorted_flag(IsSorted::Ascending);
+        cols[at].set_sorted_flag(IsSorted::Ascending);
         Ok(Value::Frame(DataFrame::new(height, cols).map_err(polars_err(NAME))?))
     }
 }
 
 struct SelfJoin {
-    column: usize,
+    column: ColumnRef,
     merge: bool,
 }
 
 impl Step for SelfJoin {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         let step: &'static str = if self.merge { "merge_join" } else { "hash_join" };
         let df = input.into_frame(step)?;
-        let key = column_name(step, &df, self.column)?;
+        let (at, key) = key_column(step, &df, &self.column)?;
         if !self.merge {
             let mut args = JoinArgs::new(JoinType::Inner);
             args.maintain_order = MaintainOrderJoin::LeftRight;
             let out = df.join(&df, [key.as_str()], [key.as_str()], args, None).map_err(polars_err(step))?;
             return Ok(Value::Frame(out));
         }
-        let kc = &df.columns()[self.column];
+        let kc = column(&df, &self.column, Need::IntegerBacked, step)?;
         if kc.is_sorted_flag() != IsSorted::Ascending {
             return Err(StepError::Value {
                 step,
@@ -175,7 +180,7 @@ impl Step for SelfJoin {
             let name: PlSmallStr = if clash { format!("{}_right", c.name()).into() } else { c.name().clone() };
             cols.push(c.with_name(name));
         }
-        cols[self.column].set_sorted_flag(IsSorted::Ascending);
+        cols[at].set_sorted_flag(IsSorted::Ascending);
         Ok(Value::Frame(DataFrame::new(height, cols).map_err(polars_err(step))?))
     }
 }
@@ -216,14 +221,14 @@ pub fn merge_pairs(left: &[Option<i64>], right: &[Option<i64>]) -> (Vec<IdxSize>
 }
 
 struct SortRows {
-    column: usize,
+    column: ColumnRef,
 }
 
 impl Step for SortRows {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "sort_rows";
         let df = input.into_frame(NAME)?;
-        let key = column_name(NAME, &df, self.column)?;
+        let (_, key) = key_column(NAME, &df, &self.column)?;
         let out = df
             .sort([key.as_str()], SortMultipleOptions::default().with_maintain_order(true))
             .map_err(polars_err(NAME))?;

@@ -10,6 +10,8 @@
 
 pub mod cell_reads;
 pub mod column_growth;
+pub mod columns;
+pub mod context;
 pub mod cross_column;
 pub mod grouped;
 pub mod joins_sorting;
@@ -26,6 +28,8 @@ use polars::prelude::*;
 use std::collections::BTreeMap;
 use std::sync::Arc;
 pub use crate::results::schema::OutputFacts;
+pub use columns::{column, column_position, record_position, ColumnRef, Need};
+pub use context::{Allowed, RunContext};
 
 /// Every family of steps. Register a new family here (one line).
 pub const FAMILIES: &[(&str, &[StepDef])] = &[
@@ -154,19 +158,30 @@ pub enum StepError {
         #[source]
         source: PolarsError,
     },
+    #[error("step `{step}`: no {column} (the table has {width} columns)")]
+    NoColumn { step: &'static str, column: String, width: usize },
+    #[error("step `{step}`: column `{column}` is {dtype}, not {need}")]
+    ColumnKind { step: &'static str, column: String, dtype: String, need: &'static str },
 }
+
+/// Why a step could not be built from its checked parameters; `param` names the parameter
+/// at fault (the spec checker locates the problem there), else the step itself.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+#[error("{message}")]
+pub struct BuildError {
+    pub param: Option<&'static str>,
+    pub message: String,
+}
+
+/// What a step's constructor returns.
+pub type Built = Result<Box<dyn Step>, BuildError>;
 
 /// One runnable step with its parameters resolved.
 pub trait Step: Send + Sync {
     /// Run the step. This is the timed region: do no set-up here that a real pipeline
-    /// would not also do.
-    fn run(&self, input: Value) -> Result<Value, StepError>;
-
-    /// Run the step with the size's run context (the workload's tables, the engine).
-    /// Steps that need only their input keep this default.
-    fn run_in(&self, input: Value, _ctx: &sql::RunContext) -> Result<Value, StepError> {
-        self.run(input)
-    }
+    /// would not also do. `ctx` holds what the run may see besides its input (the size's
+    /// tables, the temp folder, the deadline, what the user allowed).
+    fn run(&self, input: Value, ctx: &RunContext) -> Result<Value, StepError>;
 }
 
 /// Largest column position a step parameter may name (tables have at most
@@ -211,12 +226,20 @@ pub enum ParamKind {
     Flag,
     /// Free text (a query).
     Text,
+    /// A column of the table the step receives, by name (or by position, the older form),
+    /// holding what `need` says. With `span`, the column starts a run of consecutive
+    /// columns whose length is the count parameter of that name.
+    Column { need: Need, span: Option<&'static str> },
 }
 
 impl ParamKind {
-    /// A column position (0 = first).
-    pub const fn position() -> ParamKind {
-        ParamKind::Count { min: 0, max: Max::Fixed(MAX_POSITION), cost: Cost::NONE }
+    /// A column the step reads, holding what `need` says.
+    pub const fn column(need: Need) -> ParamKind {
+        ParamKind::Column { need, span: None }
+    }
+    /// The first of `count` consecutive columns (`count` names the count parameter).
+    pub const fn columns_from(need: Need, count: &'static str) -> ParamKind {
+        ParamKind::Column { need, span: Some(count) }
     }
     /// A whole number from `min` to `max` that builds nothing.
     pub const fn count(min: u64, max: u64) -> ParamKind {
@@ -244,6 +267,10 @@ impl ParamKind {
             ParamKind::Number { min, max } => format!("a number from {min} to {max}"),
             ParamKind::Flag => "true or false".to_string(),
             ParamKind::Text => "text".to_string(),
+            ParamKind::Column { need, span: None } => format!("a column (name or position) holding {}", need.holding()),
+            ParamKind::Column { need, span: Some(count) } => {
+                format!("the first of `{count}` consecutive columns (name or position), each holding {}", need.holding())
+            }
         }
     }
 }
@@ -266,6 +293,7 @@ pub enum ParamValue {
     Number(f64),
     Flag(bool),
     Text(String),
+    Column(ColumnRef),
 }
 
 impl std::fmt::Display for ParamValue {
@@ -276,6 +304,7 @@ impl std::fmt::Display for ParamValue {
             ParamValue::Number(v) => write!(f, "{v}"),
             ParamValue::Flag(v) => write!(f, "{v}"),
             ParamValue::Text(v) => write!(f, "\"{}\"", v.split_whitespace().collect::<Vec<_>>().join(" ")),
+            ParamValue::Column(c) => write!(f, "{c}"),
         }
     }
 }
@@ -285,32 +314,49 @@ impl std::fmt::Display for ParamValue {
 pub struct Params(pub BTreeMap<String, ParamValue>);
 
 impl Params {
+    /// The value of `name`. The checker fills every parameter of a step, so a miss is a
+    /// constructor asking for a name its step does not declare: the lib's tests build every
+    /// step and fail on it (elsewhere the accessors below fall back to a neutral value).
+    fn get(&self, name: &str) -> Option<&ParamValue> {
+        let v = self.0.get(name);
+        #[cfg(test)]
+        assert!(v.is_some(), "a step's constructor reads `{name}`, which it does not declare");
+        v
+    }
     pub fn count(&self, name: &str) -> u64 {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Count(v)) => *v,
             _ => 0,
         }
     }
     pub fn choice(&self, name: &str) -> &str {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Choice(v)) => v,
             _ => "",
         }
     }
     pub fn number(&self, name: &str) -> f64 {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Number(v)) => *v,
             _ => 0.0,
         }
     }
     pub fn text(&self, name: &str) -> &str {
-        match self.0.get(name) {
+        match self.get(name) {
             Some(ParamValue::Text(v)) => v,
             _ => "",
         }
     }
     pub fn flag(&self, name: &str) -> bool {
-        matches!(self.0.get(name), Some(ParamValue::Flag(true)))
+        matches!(self.get(name), Some(ParamValue::Flag(true)))
+    }
+    /// A column parameter; an error (not a silent default) when the checker left none.
+    pub fn column(&self, name: &'static str) -> Result<ColumnRef, BuildError> {
+        match self.0.get(name) {
+            Some(ParamValue::Column(c)) => Ok(c.clone()),
+            Some(ParamValue::Count(p)) => Ok(ColumnRef::At(*p as usize)),
+            _ => Err(BuildError { param: Some(name), message: format!("expected a column for `{name}`") }),
+        }
     }
     /// `name{a=1, b=x}`, for labels and results.
     pub fn describe(&self, step: &str) -> String {
@@ -343,7 +389,11 @@ pub struct StepDef {
     /// The step modifies or consumes its input table, so each run gets a private deep copy
     /// made outside the timed region.
     pub private_input: bool,
-    pub build: fn(&Params) -> Box<dyn Step>,
+    /// It gives a table with the same columns (names, kinds, order) as the one it takes,
+    /// so the columns of the steps after it can still be checked against the table plan.
+    pub keeps_columns: bool,
+    /// Turns checked parameters into the runnable step; may refuse with a [`BuildError`].
+    pub build: fn(&Params) -> Built,
 }
 
 /// Every registered step, in family order.
@@ -380,6 +430,9 @@ impl OutputFacts {
         }
     }
 }
+
+#[cfg(test)]
+mod tests;
 
 pub(crate) fn polars_err(step: &'static str) -> impl FnOnce(PolarsError) -> StepError {
     move |source| StepError::Polars { step, source }

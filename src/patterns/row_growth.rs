@@ -6,7 +6,7 @@
 //! timed region) and ends with a table, so the designs' outputs can be compared cell by
 //! cell.
 
-use super::{polars_err, ParamDef, ParamKind, Params, Records, Step, StepDef, StepError, Value, ValueKind};
+use super::{polars_err, ParamDef, ParamKind, Params, Records, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::frame::row::AnyValueBuffer;
 use polars::prelude::*;
 
@@ -36,7 +36,8 @@ later read pays for the fragmentation.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(AppendRows { batch: p.count("batch").max(1) as usize, consolidate: consolidate(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(AppendRows { batch: p.count("batch").max(1) as usize, consolidate: consolidate(p) })),
     },
     StepDef {
         name: "extend_rows",
@@ -52,7 +53,8 @@ it.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(ExtendRows { batch: p.count("batch").max(1) as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(ExtendRows { batch: p.count("batch").max(1) as usize })),
     },
     StepDef {
         name: "build_from_records",
@@ -82,7 +84,8 @@ a slowdown by that fraction that allocates nothing",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(BuildFromRecords { extra_passes: p.count("extra_passes"), slowdown: p.number("slowdown") }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(BuildFromRecords { extra_passes: p.count("extra_passes"), slowdown: p.number("slowdown") })),
     },
 ];
 
@@ -114,7 +117,7 @@ struct AppendRows {
 }
 
 impl Step for AppendRows {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "append_rows";
         let recs = records(NAME, input)?;
         let mut acc = DataFrame::empty_with_schema(&recs.schema);
@@ -137,7 +140,7 @@ struct ExtendRows {
 }
 
 impl Step for ExtendRows {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "extend_rows";
         let recs = records(NAME, input)?;
         let mut acc = DataFrame::empty_with_schema(&recs.schema);
@@ -160,7 +163,7 @@ struct BuildFromRecords {
 }
 
 impl Step for BuildFromRecords {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "build_from_records";
         let recs = records(NAME, input)?;
         let t0 = std::time::Instant::now();

@@ -11,16 +11,16 @@
 //! the expression implement the same rule, including how nulls fall, so the outputs agree
 //! cell for cell; what differs is the work per row.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, Params, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::frame::row::Row;
 use polars::prelude::*;
 
 const ACCESS: &[&str] = &["row", "row_reused", "typed"];
 const OUT: &str = "payout";
 
-const A: ParamDef = ParamDef { name: "a", kind: ParamKind::position(), default: "0", doc: "position of the first integer column (gross)" };
-const B: ParamDef = ParamDef { name: "b", kind: ParamKind::position(), default: "1", doc: "position of the integer column subtracted (tare)" };
-const FLAG: ParamDef = ParamDef { name: "flag", kind: ParamKind::position(), default: "2", doc: "position of the boolean column that raises the rate" };
+const A: ParamDef = ParamDef { name: "a", kind: ParamKind::column(Need::Integer), default: "0", doc: "the integer column of the gross weight" };
+const B: ParamDef = ParamDef { name: "b", kind: ParamKind::column(Need::Integer), default: "1", doc: "the integer column subtracted (tare)" };
+const FLAG: ParamDef = ParamDef { name: "flag", kind: ParamKind::column(Need::Boolean), default: "2", doc: "the boolean column that raises the rate" };
 
 /// The steps of this family.
 pub const STEPS: &[StepDef] = &[
@@ -39,15 +39,16 @@ a table API costs at least 10× more per element than plain array work.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
+        keeps_columns: false,
         build: |p| {
-            Box::new(PerRow {
-                cols: (p.count("a") as usize, p.count("b") as usize, p.count("flag") as usize),
+            Ok(Box::new(PerRow {
+                cols: three(p)?,
                 access: match p.choice("access") {
                     "row_reused" => Access::RowReused,
                     "typed" => Access::Typed,
                     _ => Access::Row,
                 },
-            })
+            }))
         },
     },
     StepDef {
@@ -61,7 +62,8 @@ rows with a small constant, a few temporary columns of n values.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Expression { cols: (p.count("a") as usize, p.count("b") as usize, p.count("flag") as usize) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(Expression { cols: three(p)? })),
     },
 ];
 
@@ -85,22 +87,25 @@ fn bool_of(v: &AnyValue) -> Option<bool> {
     }
 }
 
-/// Check the three columns and return their names.
-fn check(df: &DataFrame, (a, b, f): (usize, usize, usize), step: &'static str) -> Result<[PlSmallStr; 3], StepError> {
-    let get = |pos: usize, want: DataType| -> Result<PlSmallStr, StepError> {
-        let c = df
-            .columns()
-            .get(pos)
-            .ok_or_else(|| StepError::Value { step, message: format!("no column at position {pos} (the table has {})", df.width()) })?;
-        if c.dtype() != &want {
-            return Err(StepError::Value { step, message: format!("column `{}` is {}, expected {want}", c.name(), c.dtype()) });
+/// The gross, tare and flag columns of the parameters.
+fn three(p: &Params) -> Result<[ColumnRef; 3], super::BuildError> {
+    Ok([p.column("a")?, p.column("b")?, p.column("flag")?])
+}
+
+/// Check the three columns and return their positions and names.
+fn check(df: &DataFrame, [a, b, f]: &[ColumnRef; 3], step: &'static str) -> Result<([usize; 3], [PlSmallStr; 3]), StepError> {
+    let get = |c: &ColumnRef, need: Need, want: DataType| -> Result<(usize, PlSmallStr), StepError> {
+        let col = column(df, c, need, step)?;
+        if col.dtype() != &want {
+            return Err(StepError::ColumnKind { step, column: col.name().to_string(), dtype: col.dtype().to_string(), need: need.label() });
         }
-        Ok(c.name().clone())
+        Ok((column_position(df, c, step)?, col.name().clone()))
     };
     if df.get_column_index(OUT).is_some() {
         return Err(StepError::Value { step, message: format!("the table already has a column `{OUT}`") });
     }
-    Ok([get(a, DataType::Int64)?, get(b, DataType::Int64)?, get(f, DataType::Boolean)?])
+    let (a, b, f) = (get(a, Need::Integer, DataType::Int64)?, get(b, Need::Integer, DataType::Int64)?, get(f, Need::Boolean, DataType::Boolean)?);
+    Ok(([a.0, b.0, f.0], [a.1, b.1, f.1]))
 }
 
 #[derive(Clone, Copy)]
@@ -111,16 +116,15 @@ enum Access {
 }
 
 struct PerRow {
-    cols: (usize, usize, usize),
+    cols: [ColumnRef; 3],
     access: Access,
 }
 
 impl Step for PerRow {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "payout_per_row";
         let mut df = input.into_frame(NAME)?;
-        let [an, bn, fname] = check(&df, self.cols, NAME)?;
-        let (a, b, f) = self.cols;
+        let ([a, b, f], [an, bn, fname]) = check(&df, &self.cols, NAME)?;
         let n = df.height();
         let out: Int64Chunked = match self.access {
             Access::Row => {
@@ -155,14 +159,14 @@ impl Step for PerRow {
 }
 
 struct Expression {
-    cols: (usize, usize, usize),
+    cols: [ColumnRef; 3],
 }
 
 impl Step for Expression {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "payout_expression";
         let df = input.into_frame(NAME)?;
-        let [a, b, f] = check(&df, self.cols, NAME)?;
+        let (_, [a, b, f]) = check(&df, &self.cols, NAME)?;
         let rate = when(col(f)).then(lit(13i64)).otherwise(lit(10i64));
         let out = df
             .lazy()

@@ -9,6 +9,7 @@
 //! newcomer must know: the query is parsed and planned inside the timed region too, as a
 //! real pipeline would; the plan itself is recorded once, from the query check.
 
+pub use super::context::RunContext;
 use super::{ParamDef, ParamKind, Params, Step, StepDef, StepError, Value, ValueKind};
 use crate::spec::model::EngineChoice;
 use polars::prelude::*;
@@ -39,28 +40,16 @@ tables, sorted runs) rather than the tables themselves. The optimized plan is re
     memory_factor: 3.0,
     disk_factor: 0.0,
     private_input: false,
-    build: |p: &Params| Box::new(Sql { query: p.text("query").to_string() }),
+    keeps_columns: false,
+    build: |p: &Params| Ok(Box::new(Sql { query: p.text("query").to_string() })),
 }];
-
-/// What a step may see besides its input: the workload's tables for this size, ready to
-/// scan, and the engine the design runs on.
-#[derive(Clone, Default)]
-pub struct RunContext {
-    /// Every table by name, first table first (in memory, or scans of Parquet chunks).
-    pub tables: Vec<(String, LazyFrame)>,
-    pub engine: EngineChoice,
-}
 
 struct Sql {
     query: String,
 }
 
 impl Step for Sql {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
-        self.run_in(input, &RunContext::default())
-    }
-
-    fn run_in(&self, input: Value, ctx: &RunContext) -> Result<Value, StepError> {
+    fn run(&self, input: Value, ctx: &RunContext) -> Result<Value, StepError> {
         let df = input.into_frame(NAME)?;
         let lf = plan_query(&self.query, ctx, df).map_err(|source| StepError::Polars { step: NAME, source })?;
         collect(lf, ctx.engine).map(Value::Frame).map_err(|source| StepError::Polars { step: NAME, source })

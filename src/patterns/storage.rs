@@ -6,12 +6,13 @@
 //! (Parquet, Arrow IPC, CSV). Formats that carry a schema and per-file metadata (footers,
 //! dictionaries, statistics) pay that overhead once per file, so for many tiny tables the
 //! metadata can outweigh the data. A newcomer must know: files are written only inside a
-//! fresh folder of the system's temp directory made for one step run
+//! fresh folder of the run context's temp folder (the system's, read once before timing)
+//! made for one step run
 //! (`framecost-<pid>-<counter>`, never reused, never outside it) and that folder is removed
 //! when the value holding it is dropped — after `read_files`, or on any error — so
 //! `write_files` must be followed by `read_files` in the same design.
 
-use super::{polars_err, ParamDef, ParamKind, Step, StepDef, StepError, Value, ValueKind};
+use super::{column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 use std::fs::File;
 use std::path::{Path, PathBuf};
@@ -43,23 +44,24 @@ the table.",
                 default: "per_key",
                 doc: "one file per key value, or one file holding every key (rows grouped by key)",
             },
-            ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the key column (0 = first)" },
+            ParamDef { name: "column", kind: ParamKind::column(Need::Any), default: "0", doc: "the key column" },
         ],
         takes: ValueKind::Frame,
         gives: ValueKind::Custom(STORED),
         memory_factor: 3.0,
         disk_factor: 4.0,
         private_input: false,
+        keeps_columns: false,
         build: |p| {
-            Box::new(WriteFiles {
+            Ok(Box::new(WriteFiles {
                 format: match p.choice("format") {
                     "ipc" => Format::Ipc,
                     "csv" => Format::Csv,
                     _ => Format::Parquet,
                 },
                 per_key: p.choice("layout") != "one_file",
-                column: p.count("column") as usize,
-            })
+                column: p.column("column")?,
+            }))
         },
     },
     StepDef {
@@ -81,7 +83,8 @@ travel with its output. Removing the folder is part of the timed work.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(ReadFiles { evidence: p.flag("evidence") }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(ReadFiles { evidence: p.flag("evidence") })),
     },
 ];
 
@@ -110,9 +113,15 @@ pub struct TempFolder {
 }
 
 impl TempFolder {
-    /// Make a new, empty folder `framecost-<pid>-<counter>`; never reuses an existing one.
+    /// Make a new, empty folder `framecost-<pid>-<counter>` in the system's temp folder;
+    /// never reuses an existing one.
     pub fn create() -> std::io::Result<TempFolder> {
-        let base = std::env::temp_dir();
+        TempFolder::create_in(&std::env::temp_dir())
+    }
+
+    /// The same, in `base` (a run's context names it, so a step need not read the
+    /// environment inside the timed region).
+    pub fn create_in(base: &Path) -> std::io::Result<TempFolder> {
         let mut last = None;
         for _ in 0..16 {
             let n = COUNTER.fetch_add(1, Ordering::Relaxed);
@@ -162,17 +171,14 @@ fn io_err(step: &'static str, what: &str, path: &Path, e: std::io::Error) -> Ste
 struct WriteFiles {
     format: Format,
     per_key: bool,
-    column: usize,
+    column: ColumnRef,
 }
 
 impl Step for WriteFiles {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "write_files";
         let df = input.into_frame(NAME)?;
-        let key = df.columns().get(self.column).map(|c| c.name().clone()).ok_or_else(|| StepError::Value {
-            step: NAME,
-            message: format!("the table has {} columns, so there is no column at position {}", df.width(), self.column),
-        })?;
+        let key = df.columns()[column_position(&df, &self.column, NAME)?].name().clone();
         // Row numbers of each key value, in order of first appearance.
         let groups: Vec<Vec<IdxSize>> = {
             let gb = df.group_by_stable([key.as_str()]).map_err(polars_err(NAME))?;
@@ -184,7 +190,8 @@ impl Step for WriteFiles {
                 })
                 .collect()
         };
-        let folder = TempFolder::create().map_err(|e| io_err(NAME, "could not create a temp folder in", &std::env::temp_dir(), e))?;
+        let base = ctx.temp_base();
+        let folder = TempFolder::create_in(&base).map_err(|e| io_err(NAME, "could not create a temp folder in", &base, e))?;
         let mut stored = Stored {
             folder,
             files: Vec::new(),
@@ -223,7 +230,7 @@ struct ReadFiles {
 }
 
 impl Step for ReadFiles {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "read_files";
         let stored: Arc<Stored> = input.into_custom(NAME, STORED)?;
         // CSV carries no types: read text as text (categorical columns too), then cast.

@@ -8,7 +8,7 @@
 //! their memory behaviour differs — a slice is cheap *because* it keeps the whole parent
 //! table's buffers alive.
 
-use super::{polars_err, ParamDef, ParamKind, Params, Step, StepDef, StepError, Value, ValueKind};
+use super::{polars_err, ParamDef, ParamKind, Params, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 
 const RANGE_PARAMS: &[ParamDef] = &[
@@ -42,7 +42,8 @@ keeps the whole parent table alive in memory.",
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Keep { how: How::Slice, range: RowRange::from(p) }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(Keep { how: How::Slice, range: RowRange::from(p) })),
     },
     StepDef {
         name: "keep_by_mask",
@@ -57,7 +58,8 @@ A scattered mask copies the kept rows of every column (bytes ∝ kept rows). Tim
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Keep { how: How::Mask, range: RowRange::from(p) }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(Keep { how: How::Mask, range: RowRange::from(p) })),
     },
     StepDef {
         name: "keep_by_index",
@@ -71,7 +73,8 @@ slower than a straight copy on long columns.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Keep { how: How::Gather, range: RowRange::from(p) }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(Keep { how: How::Gather, range: RowRange::from(p) })),
     },
     StepDef {
         name: "keep_deep_copy",
@@ -85,7 +88,8 @@ large table must outlive it.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Keep { how: How::DeepCopy, range: RowRange::from(p) }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(Keep { how: How::DeepCopy, range: RowRange::from(p) })),
     },
 ];
 
@@ -121,7 +125,7 @@ struct Keep {
 }
 
 impl Step for Keep {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         let name: &'static str = match self.how {
             How::Slice => "keep_slice",
             How::Mask => "keep_by_mask",

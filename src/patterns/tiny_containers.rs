@@ -9,15 +9,14 @@
 //! strings wrapped in one cost far more than the strings themselves; every design here
 //! ends with the same `parts` list column.
 
-use super::{polars_err, ParamDef, ParamKind, Params, Step, StepDef, StepError, Value, ValueKind};
+use super::{column, column_position, polars_err, ColumnRef, Need, ParamDef, ParamKind, Params, RunContext, Step, StepDef, StepError, Value, ValueKind};
 use polars::prelude::*;
 
 const SEPARATORS: &[&str] = &["/", "-", ",", ";", " "];
 const CONTAINERS: &[&str] = &["series", "table"];
 const SEP: ParamDef =
     ParamDef { name: "sep", kind: ParamKind::Choice(SEPARATORS), default: "/", doc: "the separator between parts" };
-const COLUMN: ParamDef =
-    ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the text column (0 = first)" };
+const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::column(Need::Text), default: "0", doc: "the text column" };
 /// Name of the output column.
 pub const PARTS: &str = "parts";
 /// Name of the label column `join_text` makes.
@@ -31,7 +30,7 @@ pub const STEPS: &[StepDef] = &[
         cost_note: "Casts each chosen column to text and concatenates them row by row into one new \
 text column: linear time and bytes (the label's characters). Usually set-up for the split steps.",
         params: &[
-            ParamDef { name: "first", kind: ParamKind::position(), default: "0", doc: "position of the first column joined" },
+            ParamDef { name: "first", kind: ParamKind::columns_from(Need::Any, "count"), default: "0", doc: "the first column joined" },
             ParamDef { name: "count", kind: ParamKind::count(1, super::MAX_POSITION), default: "2", doc: "how many consecutive columns are joined" },
             SEP,
         ],
@@ -40,7 +39,8 @@ text column: linear time and bytes (the label's characters). Usually set-up for 
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(JoinText { first: p.count("first") as usize, count: p.count("count") as usize, sep: sep(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(JoinText { first: p.column("first")?, count: p.count("count") as usize, sep: sep(p) })),
     },
     StepDef {
         name: "split_per_row",
@@ -64,9 +64,8 @@ times the size of the parts themselves (bytes and allocation count ∝ rows × c
         memory_factor: 6.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| {
-            Box::new(SplitPerRow { column: p.count("column") as usize, sep: sep(p), table: p.choice("container") == "table" })
-        },
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SplitPerRow { column: p.column("column")?, sep: sep(p), table: p.choice("container") == "table" })),
     },
     StepDef {
         name: "split_native",
@@ -80,7 +79,8 @@ per part, with a handful of allocations whatever the row count.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SplitNative { column: p.count("column") as usize, sep: sep(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SplitNative { column: p.column("column")?, sep: sep(p) })),
     },
 ];
 
@@ -89,48 +89,43 @@ fn sep(p: &Params) -> &'static str {
     SEPARATORS.iter().copied().find(|x| *x == s).unwrap_or("/")
 }
 
-fn text_column(step: &'static str, df: &DataFrame, pos: usize) -> Result<StringChunked, StepError> {
-    let c = df.columns().get(pos).ok_or_else(|| StepError::Value {
-        step,
-        message: format!("the table has {} columns, so there is no column at position {pos}", df.width()),
-    })?;
-    match c.dtype() {
-        DataType::String => Ok(c.as_materialized_series().str().map_err(polars_err(step))?.clone()),
-        dt => Err(StepError::Value { step, message: format!("column `{}` has dtype {dt}; this step splits text", c.name()) }),
-    }
+fn text_column(step: &'static str, df: &DataFrame, c: &ColumnRef) -> Result<StringChunked, StepError> {
+    let c = column(df, c, Need::Text, step)?;
+    Ok(c.as_materialized_series().str().map_err(polars_err(step))?.clone())
 }
 
 struct JoinText {
-    first: usize,
+    first: ColumnRef,
     count: usize,
     sep: &'static str,
 }
 
 impl Step for JoinText {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "join_text";
         let df = input.into_frame(NAME)?;
-        let end = self.first.saturating_add(self.count);
+        let first = column_position(&df, &self.first, NAME)?;
+        let end = first.saturating_add(self.count);
         if end > df.width() {
-            return Err(StepError::Value { step: NAME, message: format!("columns {}..{end} asked for, but the table has {} columns", self.first, df.width()) });
+            return Err(StepError::Value { step: NAME, message: format!("columns {first}..{end} asked for, but the table has {} columns", df.width()) });
         }
-        let exprs: Vec<Expr> = df.columns()[self.first..end].iter().map(|c| col(c.name().clone()).cast(DataType::String)).collect();
+        let exprs: Vec<Expr> = df.columns()[first..end].iter().map(|c| col(c.name().clone()).cast(DataType::String)).collect();
         let out = df.lazy().select([concat_str(exprs, self.sep, false).alias(LABEL)]).collect().map_err(polars_err(NAME))?;
         Ok(Value::Frame(out))
     }
 }
 
 struct SplitPerRow {
-    column: usize,
+    column: ColumnRef,
     sep: &'static str,
     table: bool,
 }
 
 impl Step for SplitPerRow {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "split_per_row";
         let df = input.into_frame(NAME)?;
-        let ca = text_column(NAME, &df, self.column)?;
+        let ca = text_column(NAME, &df, &self.column)?;
         let mut containers: Vec<Option<Series>> = Vec::with_capacity(ca.len());
         for v in ca.iter() {
             let Some(text) = v else {
@@ -161,15 +156,15 @@ impl Step for SplitPerRow {
 }
 
 struct SplitNative {
-    column: usize,
+    column: ColumnRef,
     sep: &'static str,
 }
 
 impl Step for SplitNative {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "split_native";
         let df = input.into_frame(NAME)?;
-        let ca = text_column(NAME, &df, self.column)?;
+        let ca = text_column(NAME, &df, &self.column)?;
         let name = ca.name().clone();
         let out = df
             .lazy()

@@ -1,10 +1,13 @@
 //! The designs of a workload checked and resolved into [`DesignPlan`]s: names, the chain of
 //! set-up and timed steps (each step must take what the one before gives, and the last must
 //! give a table), what `engine: streaming` allows, and the growth classes and dtypes a
-//! design is expected to show. Each step itself is read by `steps.rs`.
+//! design is expected to show. Each step itself is read by `steps.rs`; the table each step
+//! receives is followed down the chain as far as it can be known (the workload's first
+//! table, kept by steps that keep its columns), so column parameters are checked there.
 
 use super::locate::YamlPath;
 use super::model::*;
+use super::step_columns::SeenTable;
 use super::steps::check_step;
 use super::suggest::closest;
 use super::validate::Checker;
@@ -12,7 +15,9 @@ use crate::patterns::ValueKind;
 use crate::plan::{ColumnPlan, DesignPlan, StepPlan};
 use std::collections::HashSet;
 
-pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan], largest: u64) -> Vec<DesignPlan> {
+/// Check the designs; `first` is the table a design's first step receives (the workload's
+/// first table, at its widest point).
+pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan], first: &SeenTable, largest: u64) -> Vec<DesignPlan> {
     if designs.is_empty() {
         c.at(path, "expected at least one design (one is tracked on its own growth; two or more are compared)", None);
     }
@@ -29,6 +34,8 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
             Feed::Records => ValueKind::Records,
         };
         let mut broken = false;
+        // What the next step receives, while it is known.
+        let mut seen = Some(first.fed(d.feed == Feed::Records));
         let mut lists: [Vec<StepPlan>; 2] = [Vec::new(), Vec::new()];
         for (li, (key, raws)) in [("setup", &d.setup), ("steps", &d.steps)].into_iter().enumerate() {
             for (j, raw) in raws.iter().enumerate() {
@@ -36,7 +43,7 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
                     break;
                 }
                 let sp = p.key(key).index(j);
-                let Some(step) = check_step(c, raw, &sp, largest) else {
+                let Some(step) = check_step(c, raw, &sp, largest, seen.as_ref()) else {
                     // The chain cannot be judged past a step we could not read.
                     broken = true;
                     break;
@@ -55,6 +62,9 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
                     );
                 }
                 flowing = step.def.gives;
+                if !step.def.keeps_columns {
+                    seen = None;
+                }
                 lists[li].push(step);
             }
         }

@@ -16,6 +16,7 @@ pub mod model;
 pub mod programs;
 pub mod queries;
 pub mod sql_rules;
+mod step_columns;
 mod steps;
 pub mod suggest;
 pub mod tables;

@@ -32,7 +32,7 @@ pub(super) fn check_queries(c: &mut Checker, text: &str, tables: &[TablePlan], d
     names.push(crate::spec::tables::DEFAULT_TABLE.to_string());
     let columns: Vec<String> = empties.iter().flat_map(|(_, df)| df.get_column_names_owned()).map(|s| s.to_string()).collect();
     for (i, d) in designs.iter_mut().enumerate() {
-        let ctx = RunContext { tables: empties.iter().map(|(n, df)| (n.clone(), df.clone().lazy())).collect(), engine: d.engine };
+        let ctx = RunContext { tables: empties.iter().map(|(n, df)| (n.clone(), df.clone().lazy())).collect(), engine: d.engine, ..RunContext::default() };
         // What flows into the next step: None once a built-in step has changed it unseen.
         let mut data: Option<DataFrame> = empties.first().map(|(_, df)| df.clone());
         let mut plans = Vec::new();

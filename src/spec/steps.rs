@@ -1,12 +1,15 @@
 //! One step of a design read from YAML: its name found in the step registry (with a
 //! did-you-mean), its parameters typed against the step's `ParamDef`s — counts with their
-//! bounds, numbers and shares, choices, flags, text — and the step built from them.
+//! bounds, numbers and shares, choices, flags, text, columns by name or position (resolved
+//! against the table the step sees in `step_columns.rs`) — and the step built from them (a
+//! refusal of the constructor is located at the parameter it names).
 
 use super::locate::YamlPath;
 use super::limits::count_problem;
+use super::step_columns::{check_columns, SeenTable};
 use super::suggest::closest;
 use super::validate::Checker;
-use crate::patterns::{self, ParamKind, ParamValue, Params};
+use crate::patterns::{self, ColumnRef, ParamDef, ParamKind, ParamValue, Params, MAX_POSITION};
 use crate::plan::StepPlan;
 use serde_yaml::Value as Y;
 use std::collections::BTreeMap;
@@ -27,7 +30,8 @@ fn yaml_kind(v: &Y) -> &'static str {
     }
 }
 
-pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64) -> Option<StepPlan> {
+/// Check one step; `seen` is the table it receives when the checker can know it.
+pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64, seen: Option<&SeenTable>) -> Option<StepPlan> {
     let (name, params_raw): (String, Option<&Y>) = match raw {
         Y::String(s) => (s.clone(), None),
         Y::Mapping(m) if m.len() == 1 => {
@@ -88,58 +92,81 @@ pub(super) fn check_step(c: &mut Checker, raw: &Y, path: &YamlPath, largest: u64
         let default_y: Y = serde_yaml::from_str(pd.default).unwrap_or(Y::Null);
         let v = raw.unwrap_or(&default_y);
         let vp = pp.key(pd.name);
-        let got = match (pd.kind, v) {
-            (ParamKind::Count { .. }, Y::Number(n)) => match n.as_u64() {
-                Some(x) => match count_problem(&pd.kind, x, largest) {
-                    None => Some(ParamValue::Count(x)),
-                    Some(m) => {
-                        c.at(&vp, format!("`{}`: {m}", pd.name), None);
-                        continue;
-                    }
-                },
-                _ => None,
-            },
-            (ParamKind::Number { min, max }, Y::Number(n)) => match n.as_f64() {
-                Some(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
-                _ => None,
-            },
-            // A share written with a percent sign: `15%` is 0.15.
-            (ParamKind::Number { min, max }, Y::String(t)) if t.trim_end().ends_with('%') => {
-                match crate::spec::units::parse_share(t) {
-                    Ok(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
-                    _ => None,
-                }
-            }
-            (ParamKind::Choice(opts), Y::String(s)) => {
-                if opts.contains(&s.as_str()) {
-                    Some(ParamValue::Choice(s.clone()))
-                } else {
-                    let hint = closest(s, opts.iter().copied()).map(|h| format!("did you mean `{h}`?"));
-                    c.at(&vp, format!("expected {}, found `{s}`", pd.kind.describe()), hint);
-                    continue;
-                }
-            }
-            (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
-            (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
-            _ => None,
-        };
-        match got {
-            Some(g) => {
-                params.0.insert(pd.name.to_string(), g);
-            }
-            None => {
-                let found = match v {
-                    Y::Number(n) => n.to_string(),
-                    Y::String(s) => format!("`{s}`"),
-                    other => yaml_kind(other).to_string(),
-                };
-                c.at(&vp, format!("expected {} for `{}`, found {found}", pd.kind.describe(), pd.name), None);
-            }
-        }
+        let Some(got) = typed(c, pd, v, &vp, largest) else { continue };
+        params.0.insert(pd.name.to_string(), got);
     }
     if c.issues.len() != before {
         return None;
     }
-    let runner: std::sync::Arc<dyn crate::patterns::Step> = std::sync::Arc::from((def.build)(&params));
+    if let Some(seen) = seen {
+        // A wrong column does not stop the design's chain from being checked.
+        check_columns(c, def, &params, &|p| given.contains_key(p), &pp, seen);
+    }
+    let runner = match (def.build)(&params) {
+        Ok(b) => std::sync::Arc::<dyn crate::patterns::Step>::from(b),
+        Err(e) => {
+            let at = e.param.map_or_else(|| pp.clone(), |p| pp.key(p));
+            c.at(&at, format!("step `{name}` cannot be built: {e}"), None);
+            return None;
+        }
+    };
     Some(StepPlan { def, label: params.describe(def.name), params, runner })
+}
+
+/// One parameter's value typed against its kind; a problem is recorded at `vp` (and gives None).
+fn typed(c: &mut Checker, pd: &ParamDef, v: &Y, vp: &YamlPath, largest: u64) -> Option<ParamValue> {
+    let got = match (pd.kind, v) {
+        (ParamKind::Count { .. }, Y::Number(n)) => match n.as_u64() {
+            Some(x) => match count_problem(&pd.kind, x, largest) {
+                None => Some(ParamValue::Count(x)),
+                Some(m) => {
+                    c.at(vp, format!("`{}`: {m}", pd.name), None);
+                    return None;
+                }
+            },
+            _ => None,
+        },
+        (ParamKind::Number { min, max }, Y::Number(n)) => match n.as_f64() {
+            Some(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
+            _ => None,
+        },
+        // A share written with a percent sign: `15%` is 0.15.
+        (ParamKind::Number { min, max }, Y::String(t)) if t.trim_end().ends_with('%') => {
+            match crate::spec::units::parse_share(t) {
+                Ok(x) if x >= min && x <= max => Some(ParamValue::Number(x)),
+                _ => None,
+            }
+        }
+        (ParamKind::Choice(opts), Y::String(s)) => {
+            if opts.contains(&s.as_str()) {
+                Some(ParamValue::Choice(s.clone()))
+            } else {
+                let hint = closest(s, opts.iter().copied()).map(|h| format!("did you mean `{h}`?"));
+                c.at(vp, format!("expected {}, found `{s}`", pd.kind.describe()), hint);
+                return None;
+            }
+        }
+        (ParamKind::Flag, Y::Bool(b)) => Some(ParamValue::Flag(*b)),
+        // A column by position (the older form) or by name.
+        (ParamKind::Column { .. }, Y::Number(n)) => n.as_u64().filter(|&x| x <= MAX_POSITION).map(|x| ParamValue::Column(ColumnRef::At(x as usize))),
+        // A name follows the rule of column names (it reaches labels and terminals).
+        (ParamKind::Column { .. }, Y::String(t)) if !t.trim().is_empty() => match super::limits::name_problem(t) {
+            None => Some(ParamValue::Column(ColumnRef::Named(t.clone()))),
+            Some(m) => {
+                c.at(vp, format!("`{}`: {m}", pd.name), None);
+                return None;
+            }
+        },
+        (ParamKind::Text, Y::String(t)) if !t.trim().is_empty() => Some(ParamValue::Text(t.clone())),
+        _ => None,
+    };
+    if got.is_none() {
+        let found = match v {
+            Y::Number(n) => n.to_string(),
+            Y::String(s) => format!("`{s}`"),
+            other => yaml_kind(other).to_string(),
+        };
+        c.at(vp, format!("expected {} for `{}`, found {found}", pd.kind.describe(), pd.name), None);
+    }
+    got
 }

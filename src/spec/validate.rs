@@ -6,7 +6,8 @@
 //!
 //! This file holds the checker every part shares, the workload as a whole, sizes and the
 //! budget; the parts: tables (`tables.rs`), columns (`columns.rs`), the sweep
-//! (`axis.rs`), designs (`designs.rs`), one step and its parameters (`steps.rs`),
+//! (`axis.rs`), designs (`designs.rs`), one step and its parameters (`steps.rs`; its
+//! columns against the table it receives in `step_columns.rs`),
 //! programs (`programs.rs`), queries (`queries.rs`); the bounds every value must keep are
 //! in `limits.rs`.
 
@@ -105,7 +106,15 @@ pub fn check(file: &str, text: &str, spec: &WorkloadSpec, loc: &Locator) -> Resu
     }
     let budget = check_budget(&mut c, &spec.budget, &root.key("budget"));
     let table_names: Vec<String> = tables.iter().map(|t| t.name.clone()).collect();
-    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns, largest);
+    // Built-in steps receive the first table; on a sweep over the number of columns, at its
+    // widest (a column missing there is missing everywhere).
+    let widest = match &axis {
+        Some(a) if a.set == crate::plan::AxisSet::Columns => crate::plan::widen(&columns, sizes.last().copied().unwrap_or(0) as usize),
+        _ => columns.clone(),
+    };
+    let first_name = tables.first().map_or(super::tables::DEFAULT_TABLE, |t| t.name.as_str());
+    let first = super::step_columns::SeenTable::of(first_name, &widest, tables.get(1..).unwrap_or_default());
+    let mut designs = check_designs(&mut c, &spec.designs, &root.key("designs"), &columns, &first, largest);
     for (i, d) in spec.designs.iter().enumerate() {
         if let Some(p) = &d.program {
             let plan = super::programs::check_program(&mut c, d, p, &root.key("designs").index(i), file, &table_names);

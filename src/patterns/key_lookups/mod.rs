@@ -22,7 +22,7 @@ mod single;
 pub use pairs::PairIndex;
 pub use single::KeyIndex;
 
-use super::{polars_err, ParamDef, ParamKind, StepDef, StepError, Value, ValueKind};
+use super::{polars_err, Need, ParamDef, ParamKind, StepDef, StepError, Value, ValueKind};
 use pairs::{BuildPairIndex, PairsScan, ProbePairIndex};
 use polars::prelude::*;
 use single::{BuildKeyIndex, JoinWanted, Lookup, MarkSorted, ProbeKeyIndex};
@@ -31,11 +31,11 @@ use single::{BuildKeyIndex, JoinWanted, Lookup, MarkSorted, ProbeKeyIndex};
 pub const KEY_INDEX: &str = "key index";
 pub const PAIR_INDEX: &str = "pair index";
 
-const KEY: ParamDef = ParamDef { name: "key", kind: ParamKind::position(), default: "0", doc: "position of the integer key column" };
-const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::position(), default: "1", doc: "position of the column returned with each match" };
+const KEY: ParamDef = ParamDef { name: "key", kind: ParamKind::column(Need::Integer), default: "0", doc: "the integer key column" };
+const VALUE: ParamDef = ParamDef { name: "value", kind: ParamKind::column(Need::Any), default: "1", doc: "the column returned with each match" };
 const PROBES: ParamDef = ParamDef { name: "probes", kind: ParamKind::count(1, 1_000_000).costing(48.0, 0.0), default: "1000", doc: "wanted keys per run" };
-const FIRST: ParamDef = ParamDef { name: "first", kind: ParamKind::position(), default: "0", doc: "position of the first-level integer key column" };
-const SECOND: ParamDef = ParamDef { name: "second", kind: ParamKind::position(), default: "1", doc: "position of the second-level integer key column" };
+const FIRST: ParamDef = ParamDef { name: "first", kind: ParamKind::column(Need::Integer), default: "0", doc: "the first-level integer key column" };
+const SECOND: ParamDef = ParamDef { name: "second", kind: ParamKind::column(Need::Integer), default: "1", doc: "the second-level integer key column" };
 const LEVELS: &[&str] = &["full", "prefix"];
 
 /// The steps of this family.
@@ -45,13 +45,14 @@ pub const STEPS: &[StepDef] = &[
         summary: "check that a column is sorted ascending (no nulls) and set its sorted flag",
         cost_note: "One pass to verify the order, no copy of the values (the flag lives in the column's \
 metadata): linear in rows. Meant for `setup:`, so `lookup_sorted` can trust the flag.",
-        params: &[ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the column" }],
+        params: &[ParamDef { name: "column", kind: ParamKind::column(Need::Any), default: "0", doc: "the column" }],
         takes: ValueKind::Frame,
         gives: ValueKind::Frame,
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(MarkSorted { column: p.count("column") as usize }),
+        keeps_columns: true,
+        build: |p| Ok(Box::new(MarkSorted { column: p.column("column")? })),
     },
     StepDef {
         name: "lookup_sorted",
@@ -65,7 +66,8 @@ column that is not flagged sorted; a fragmented column is consolidated first (on
         memory_factor: 1.5,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Lookup { key: p.count("key") as usize, value: p.count("value") as usize, probes: p.count("probes") as usize, sorted: true }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(Lookup { key: p.column("key")?, value: p.column("value")?, probes: p.count("probes") as usize, sorted: true })),
     },
     StepDef {
         name: "lookup_scan",
@@ -78,7 +80,8 @@ of probes (and quadratic if the probes grow with the table). No allocation beyon
         memory_factor: 1.5,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(Lookup { key: p.count("key") as usize, value: p.count("value") as usize, probes: p.count("probes") as usize, sorted: false }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(Lookup { key: p.column("key")?, value: p.column("value")?, probes: p.count("probes") as usize, sorted: false })),
     },
     StepDef {
         name: "build_key_index",
@@ -92,7 +95,8 @@ column's size in memory.",
         memory_factor: 6.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(BuildKeyIndex { key: p.count("key") as usize, value: p.count("value") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(BuildKeyIndex { key: p.column("key")?, value: p.column("value")? })),
     },
     StepDef {
         name: "probe_key_index",
@@ -105,7 +109,8 @@ in rows (cache misses aside). No allocation beyond the output.",
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(ProbeKeyIndex { probes: p.count("probes") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(ProbeKeyIndex { probes: p.count("probes") as usize })),
     },
     StepDef {
         name: "join_wanted_keys",
@@ -119,7 +124,8 @@ Pays the whole build on every run, like a hash index built in the timed region."
         memory_factor: 4.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(JoinWanted { key: p.count("key") as usize, value: p.count("value") as usize, probes: p.count("probes") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(JoinWanted { key: p.column("key")?, value: p.column("value")?, probes: p.count("probes") as usize })),
     },
     StepDef {
         name: "lookup_pairs_scan",
@@ -132,7 +138,8 @@ linear in rows for a fixed number of probes, no allocation beyond the output.",
         memory_factor: 1.5,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(PairsScan { first: p.count("first") as usize, second: p.count("second") as usize, probes: p.count("probes") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(PairsScan { first: p.column("first")?, second: p.column("second")?, probes: p.count("probes") as usize })),
     },
     StepDef {
         name: "build_pair_index",
@@ -147,7 +154,8 @@ levels are shared by many rows.",
         memory_factor: 6.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(BuildPairIndex { first: p.count("first") as usize, second: p.count("second") as usize, prefix: p.choice("level") == "prefix" }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(BuildPairIndex { first: p.column("first")?, second: p.column("second")?, prefix: p.choice("level") == "prefix" })),
     },
     StepDef {
         name: "probe_pair_index",
@@ -161,7 +169,8 @@ prefix index.",
         memory_factor: 1.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(ProbePairIndex { probes: p.count("probes") as usize }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(ProbePairIndex { probes: p.count("probes") as usize })),
     },
 ];
 
@@ -176,12 +185,6 @@ fn is_miss(k: usize) -> bool {
 
 fn miss_key(k: usize) -> i64 {
     i64::MIN + k as i64
-}
-
-fn column_at<'a>(df: &'a DataFrame, pos: usize, step: &'static str) -> Result<&'a Column, StepError> {
-    df.columns()
-        .get(pos)
-        .ok_or_else(|| StepError::Value { step, message: format!("no column at position {pos} (the table has {})", df.width()) })
 }
 
 /// An integer column as contiguous 64-bit integers (a copy only when it must be cast or

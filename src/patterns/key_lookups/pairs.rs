@@ -2,8 +2,8 @@
 //! and a hash index on the whole pair (exact) or on the first level only (prefix, whose
 //! probes then filter by the second level).
 
-use super::{column_at, int_keys, is_miss, miss_key, no_rows, parts, position, valid_at, Found, PAIR_INDEX};
-use crate::patterns::{Step, StepError, Value};
+use super::{int_keys, is_miss, miss_key, no_rows, parts, position, valid_at, Found, PAIR_INDEX};
+use crate::patterns::{column, ColumnRef, Need, RunContext, Step, StepError, Value};
 use polars::prelude::*;
 use std::sync::Arc;
 
@@ -24,24 +24,24 @@ fn wanted_pairs(a: &Int64Chunked, b: &Int64Chunked, probes: usize) -> Vec<Option
         .collect()
 }
 
-fn pair_columns(df: &DataFrame, first: usize, second: usize, step: &'static str) -> Result<(Int64Chunked, Int64Chunked), StepError> {
+fn pair_columns(df: &DataFrame, first: &ColumnRef, second: &ColumnRef, step: &'static str) -> Result<(Int64Chunked, Int64Chunked), StepError> {
     if df.height() == 0 {
         return Err(no_rows(step));
     }
-    Ok((int_keys(column_at(df, first, step)?, step)?, int_keys(column_at(df, second, step)?, step)?))
+    Ok((int_keys(column(df, first, Need::Integer, step)?, step)?, int_keys(column(df, second, Need::Integer, step)?, step)?))
 }
 
 pub(super) struct PairsScan {
-    pub(super) first: usize,
-    pub(super) second: usize,
+    pub(super) first: ColumnRef,
+    pub(super) second: ColumnRef,
     pub(super) probes: usize,
 }
 
 impl Step for PairsScan {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "lookup_pairs_scan";
         let df = input.into_frame(NAME)?;
-        let (a, b) = pair_columns(&df, self.first, self.second, NAME)?;
+        let (a, b) = pair_columns(&df, &self.first, &self.second, NAME)?;
         let (av, avalid) = parts(&a);
         let (bv, bvalid) = parts(&b);
         let mut found = Found::default();
@@ -70,16 +70,16 @@ pub struct PairIndex {
 }
 
 pub(super) struct BuildPairIndex {
-    pub(super) first: usize,
-    pub(super) second: usize,
+    pub(super) first: ColumnRef,
+    pub(super) second: ColumnRef,
     pub(super) prefix: bool,
 }
 
 impl Step for BuildPairIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "build_pair_index";
         let df = input.into_frame(NAME)?;
-        let (a, b) = pair_columns(&df, self.first, self.second, NAME)?;
+        let (a, b) = pair_columns(&df, &self.first, &self.second, NAME)?;
         let map = {
             let (av, avalid) = parts(&a);
             let (bv, bvalid) = parts(&b);
@@ -107,7 +107,7 @@ pub(super) struct ProbePairIndex {
 }
 
 impl Step for ProbePairIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "probe_pair_index";
         let ix = input.into_custom::<PairIndex>(NAME, PAIR_INDEX)?;
         let (bv, _) = parts(&ix.second);

@@ -2,21 +2,22 @@
 //! a hash index from key to rows (built in the run or in `setup:`, then probed), and one
 //! join against a table of wanted keys.
 
-use super::{column_at, int_keys, no_rows, parts, valid_at, wanted, Found, KEY_INDEX};
-use crate::patterns::{polars_err, Step, StepError, Value};
+use super::{int_keys, no_rows, parts, valid_at, wanted, Found, KEY_INDEX};
+use crate::patterns::{column, column_position, polars_err, ColumnRef, Need, RunContext, Step, StepError, Value};
 use polars::prelude::*;
 use polars::series::IsSorted;
 use std::sync::Arc;
 
 pub(super) struct MarkSorted {
-    pub(super) column: usize,
+    pub(super) column: ColumnRef,
 }
 
 impl Step for MarkSorted {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "mark_sorted";
         let mut df = input.into_frame(NAME)?;
-        let c = column_at(&df, self.column, NAME)?;
+        let at = column_position(&df, &self.column, NAME)?;
+        let c = &df.columns()[at];
         if c.null_count() > 0 {
             return Err(StepError::Value { step: NAME, message: format!("column `{}` has nulls; a sorted key must not", c.name()) });
         }
@@ -27,24 +28,24 @@ impl Step for MarkSorted {
         }
         let mut c = c.clone();
         c.set_sorted_flag(IsSorted::Ascending);
-        df.replace_column(self.column, c).map_err(polars_err(NAME))?;
+        df.replace_column(at, c).map_err(polars_err(NAME))?;
         Ok(Value::Frame(df))
     }
 }
 
 pub(super) struct Lookup {
-    pub(super) key: usize,
-    pub(super) value: usize,
+    pub(super) key: ColumnRef,
+    pub(super) value: ColumnRef,
     pub(super) probes: usize,
     pub(super) sorted: bool,
 }
 
 impl Step for Lookup {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         let name: &'static str = if self.sorted { "lookup_sorted" } else { "lookup_scan" };
         let df = input.into_frame(name)?;
-        let kc = column_at(&df, self.key, name)?;
-        let vc = column_at(&df, self.value, name)?;
+        let kc = column(&df, &self.key, Need::Integer, name)?;
+        let vc = column(&df, &self.value, Need::Any, name)?;
         if df.height() == 0 {
             return Err(no_rows(name));
         }
@@ -90,16 +91,16 @@ pub struct KeyIndex {
 }
 
 pub(super) struct BuildKeyIndex {
-    pub(super) key: usize,
-    pub(super) value: usize,
+    pub(super) key: ColumnRef,
+    pub(super) value: ColumnRef,
 }
 
 impl Step for BuildKeyIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "build_key_index";
         let df = input.into_frame(NAME)?;
-        let keys = int_keys(column_at(&df, self.key, NAME)?, NAME)?;
-        let values = column_at(&df, self.value, NAME)?.clone();
+        let keys = int_keys(column(&df, &self.key, Need::Integer, NAME)?, NAME)?;
+        let values = column(&df, &self.value, Need::Any, NAME)?.clone();
         let mut map: PlHashMap<i64, Vec<IdxSize>> = PlHashMap::default();
         let (vals, valid) = parts(&keys);
         for (r, &x) in vals.iter().enumerate() {
@@ -116,7 +117,7 @@ pub(super) struct ProbeKeyIndex {
 }
 
 impl Step for ProbeKeyIndex {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "probe_key_index";
         let ix = input.into_custom::<KeyIndex>(NAME, KEY_INDEX)?;
         if ix.keys.is_empty() {
@@ -133,21 +134,21 @@ impl Step for ProbeKeyIndex {
 }
 
 pub(super) struct JoinWanted {
-    pub(super) key: usize,
-    pub(super) value: usize,
+    pub(super) key: ColumnRef,
+    pub(super) value: ColumnRef,
     pub(super) probes: usize,
 }
 
 impl Step for JoinWanted {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "join_wanted_keys";
         let df = input.into_frame(NAME)?;
         let n = df.height();
         if n == 0 {
             return Err(no_rows(NAME));
         }
-        let keys = int_keys(column_at(&df, self.key, NAME)?, NAME)?;
-        let vc = column_at(&df, self.value, NAME)?.clone();
+        let keys = int_keys(column(&df, &self.key, Need::Integer, NAME)?, NAME)?;
+        let vc = column(&df, &self.value, Need::Any, NAME)?.clone();
         let vname = vc.name().clone();
         if vname.as_str() == "probe" || vname.as_str() == "row" {
             return Err(StepError::Value { step: NAME, message: format!("the value column may not be called `{vname}`") });

@@ -3,8 +3,8 @@
 //! (`Cells`), and the steps that fill a column, cast it to the declared type, or write one
 //! value of another type into it.
 
-use super::{column_at, replace};
-use crate::patterns::{polars_err, Step, StepError, Value};
+use super::{replace};
+use crate::patterns::{column, polars_err, ColumnRef, Need, RunContext, Step, StepError, Value};
 use polars::prelude::*;
 
 /// One value as a dynamically typed table would hold it.
@@ -132,16 +132,16 @@ impl Cells {
 }
 
 pub(super) struct FillCells {
-    pub(super) column: usize,
+    pub(super) column: ColumnRef,
     pub(super) typed: bool,
     pub(super) declared: DataType,
 }
 
 impl Step for FillCells {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "fill_cells";
         let df = input.into_frame(NAME)?;
-        let src = column_at(NAME, &df, self.column)?;
+        let src = column(&df, &self.column, Need::Any, NAME)?.clone();
         let src = src.as_materialized_series().rechunk();
         let n = src.len();
         let mut cells = if self.typed {
@@ -180,31 +180,31 @@ impl Step for FillCells {
 }
 
 pub(super) struct CastColumn {
-    pub(super) column: usize,
+    pub(super) column: ColumnRef,
     pub(super) declared: DataType,
 }
 
 impl Step for CastColumn {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "cast_column";
         let df = input.into_frame(NAME)?;
-        let c = column_at(NAME, &df, self.column)?;
+        let c = column(&df, &self.column, Need::Any, NAME)?.clone();
         let c = c.strict_cast(&self.declared).map_err(polars_err(NAME))?;
         Ok(Value::Frame(replace(NAME, df, c)?))
     }
 }
 
 pub(super) struct WriteCell {
-    pub(super) column: usize,
+    pub(super) column: ColumnRef,
     pub(super) row: f64,
     pub(super) value: String,
 }
 
 impl Step for WriteCell {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "write_cell";
         let df = input.into_frame(NAME)?;
-        let c = column_at(NAME, &df, self.column)?;
+        let c = column(&df, &self.column, Need::Any, NAME)?.clone();
         let n = c.len();
         if n == 0 {
             return Err(StepError::Value { step: NAME, message: "the table has no rows to write into".into() });

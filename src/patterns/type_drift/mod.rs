@@ -20,14 +20,13 @@ mod pieces;
 
 pub use pieces::Pieces;
 
-use super::{polars_err, ParamDef, ParamKind, Params, StepDef, StepError, ValueKind};
+use super::{polars_err, Need, ParamDef, ParamKind, Params, StepDef, StepError, ValueKind};
 use cells::{CastColumn, FillCells, WriteCell};
 use pieces::{SplitIntoPieces, StackPieces};
 use polars::prelude::*;
 
 const DECLARED: &[&str] = &["float", "int", "text"];
-const COLUMN: ParamDef =
-    ParamDef { name: "column", kind: ParamKind::position(), default: "0", doc: "position of the column (0 = first)" };
+const COLUMN: ParamDef = ParamDef { name: "column", kind: ParamKind::column(Need::Any), default: "0", doc: "the column" };
 const DECLARED_PARAM: ParamDef =
     ParamDef { name: "declared", kind: ParamKind::Choice(DECLARED), default: "float", doc: "the dtype the schema declares: Float64, Int64 or String" };
 /// The name of the value `split_into_pieces` passes to `stack_pieces`.
@@ -55,7 +54,8 @@ the column, plus a copy per widening.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(FillCells { column: p.count("column") as usize, typed: p.choice("start") == "typed", declared: declared(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(FillCells { column: p.column("column")?, typed: p.choice("start") == "typed", declared: declared(p) })),
     },
     StepDef {
         name: "cast_column",
@@ -69,7 +69,8 @@ represented (strict cast).",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(CastColumn { column: p.count("column") as usize, declared: declared(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(CastColumn { column: p.column("column")?, declared: declared(p) })),
     },
     StepDef {
         name: "write_cell",
@@ -88,7 +89,8 @@ the dtype drifts and every later numeric operation on it fails or must parse.",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(WriteCell { column: p.count("column") as usize, row: p.number("row"), value: p.choice("value").to_string() }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(WriteCell { column: p.column("column")?, row: p.number("row"), value: p.choice("value").to_string() })),
     },
     StepDef {
         name: "split_into_pieces",
@@ -105,7 +107,8 @@ Usually set-up for `stack_pieces`.",
         memory_factor: 2.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(SplitIntoPieces { parts: p.count("parts").max(1) as usize, column: p.count("column") as usize, retype: p.choice("retype").to_string() }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(SplitIntoPieces { parts: p.count("parts").max(1) as usize, column: p.column("column")?, retype: p.choice("retype").to_string() })),
     },
     StepDef {
         name: "stack_pieces",
@@ -125,7 +128,8 @@ piece holds the column as text).",
         memory_factor: 3.0,
         disk_factor: 0.0,
         private_input: false,
-        build: |p| Box::new(StackPieces { mode: p.choice("mode").to_string(), column: p.count("column") as usize, declared: declared(p) }),
+        keeps_columns: false,
+        build: |p| Ok(Box::new(StackPieces { mode: p.choice("mode").to_string(), column: p.column("column")?, declared: declared(p) })),
     },
 ];
 
@@ -135,13 +139,6 @@ fn declared(p: &Params) -> DataType {
         "text" => DataType::String,
         _ => DataType::Float64,
     }
-}
-
-fn column_at(step: &'static str, df: &DataFrame, pos: usize) -> Result<Column, StepError> {
-    df.columns().get(pos).cloned().ok_or_else(|| StepError::Value {
-        step,
-        message: format!("the table has {} columns, so there is no column at position {pos}", df.width()),
-    })
 }
 
 /// Put `c` in place of the column of the same name, keeping its position.

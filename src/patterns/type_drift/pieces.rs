@@ -2,8 +2,8 @@
 //! pieces stacked back together: strictly, relaxed to a common supertype, or each cast to
 //! the declared schema first.
 
-use super::{column_at, replace, PIECES};
-use crate::patterns::{polars_err, Step, StepError, Value};
+use super::{replace, PIECES};
+use crate::patterns::{column, polars_err, ColumnRef, Need, RunContext, Step, StepError, Value};
 use polars::prelude::*;
 use std::sync::Arc;
 
@@ -12,15 +12,15 @@ pub struct Pieces(pub Vec<DataFrame>);
 
 pub(super) struct SplitIntoPieces {
     pub(super) parts: usize,
-    pub(super) column: usize,
+    pub(super) column: ColumnRef,
     pub(super) retype: String,
 }
 
 impl Step for SplitIntoPieces {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "split_into_pieces";
         let df = input.into_frame(NAME)?;
-        let c = column_at(NAME, &df, self.column)?;
+        let c = column(&df, &self.column, Need::Any, NAME)?.clone();
         let to = match self.retype.as_str() {
             "float" => Some(DataType::Float64),
             "text" => Some(DataType::String),
@@ -52,12 +52,12 @@ impl Step for SplitIntoPieces {
 
 pub(super) struct StackPieces {
     pub(super) mode: String,
-    pub(super) column: usize,
+    pub(super) column: ColumnRef,
     pub(super) declared: DataType,
 }
 
 impl Step for StackPieces {
-    fn run(&self, input: Value) -> Result<Value, StepError> {
+    fn run(&self, input: Value, _ctx: &RunContext) -> Result<Value, StepError> {
         const NAME: &str = "stack_pieces";
         let pieces: Arc<Pieces> = input.into_custom(NAME, PIECES)?;
         let Some(first) = pieces.0.first() else {
@@ -71,7 +71,7 @@ impl Step for StackPieces {
             }
             mode => {
                 let conform = mode == "conform";
-                let name = column_at(NAME, first, self.column)?.name().clone();
+                let name = column(first, &self.column, Need::Any, NAME)?.name().clone();
                 let fix = |p: &DataFrame| -> Result<DataFrame, StepError> {
                     if !conform {
                         return Ok(p.clone());
