@@ -11,6 +11,7 @@ pub mod inputs;
 pub mod interrupt;
 pub mod machine;
 pub mod memory;
+pub mod options;
 pub mod program;
 pub mod runner;
 pub mod sampling;

@@ -24,30 +24,8 @@ use std::time::Instant;
 
 pub use super::admit::predict_ns;
 pub use super::headers::{end_record, run_header};
+pub use super::options::SweepOptions;
 pub use super::sampling::{panic_text, run_design, run_design_in};
-
-/// Settings of a sweep that are not in the spec.
-#[derive(Debug, Clone)]
-pub struct SweepOptions {
-    /// Run sizes even when their estimated memory does not fit.
-    pub force: bool,
-    /// Share of the available memory one size may use.
-    pub memory_share: f64,
-    /// Runs (warm-up plus samples) a point must be predicted to afford; fewer and it is skipped.
-    pub runs_needed: f64,
-    /// Seed for the bootstrap of ratios.
-    pub seed: u64,
-    /// Start at a later size, after an earlier measuring process ended abnormally.
-    pub resume: Option<super::worker::Resume>,
-    /// Leave the caches as the previous sample left them (no sweep before each sample).
-    pub warm_caches: bool,
-}
-
-impl Default for SweepOptions {
-    fn default() -> Self {
-        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c, resume: None, warm_caches: false }
-    }
-}
 
 #[derive(Debug, thiserror::Error)]
 pub enum RunError {
@@ -171,10 +149,7 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
 pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunWriter, progress: &dyn Progress) -> Result<Outcome, RunError> {
     let b = plan.budget;
     super::alloc::steady_thresholds();
-    super::scrub::set_enabled(!opts.warm_caches);
-    if !opts.warm_caches {
-        super::scrub::prepare();
-    }
+    super::scrub::configure(opts.warm_caches);
     // Program designs: one work folder each in a temp folder for the whole sweep, and a
     // worker started now (its hello says what it runs on, for the header).
     let program_temp = if plan.designs.iter().any(|d| d.program.is_some()) {

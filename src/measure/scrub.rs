@@ -65,6 +65,14 @@ fn parse_size(s: &str) -> Option<usize> {
     num.parse::<usize>().ok()?.checked_mul(mult)
 }
 
+/// Sweep before every sample unless `warm_caches`; allocate the buffer now if so.
+pub fn configure(warm_caches: bool) {
+    set_enabled(!warm_caches);
+    if !warm_caches {
+        prepare();
+    }
+}
+
 /// Allocate the buffer now (before any timing), so the first sweep does not pay for it.
 pub fn prepare() {
     let _ = buffer();
