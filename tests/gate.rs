@@ -409,3 +409,18 @@ fn points_measured_on_a_busy_machine_are_never_called() {
     assert_eq!(g.regressions + g.unconfirmed_regressions + g.growth_regressions, 0);
     assert!(!g.failed());
 }
+
+#[test]
+fn a_slowdown_at_the_smallest_sizes_only_is_reported_but_does_not_fail() {
+    // 30% slower at the two smallest sizes, both confirmed by each other, nothing at the
+    // larger six: runs of microseconds move that much between runs of unchanged code.
+    let base = run("a", 31, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let bump = |n: u64| if n <= 2_000 { 1.3 * linear(n) } else { linear(n) };
+    let new = run("b", 32, "cpu", 1e8, &bump, &lin_bytes, &[]);
+    let g = compare(&base, &new, &GateOptions::default());
+    let small: Vec<_> = g.workloads[0].points.iter().filter(|p| p.rows <= 2_000).collect();
+    assert!(small.iter().all(|p| p.call == Call::Regression && !p.confirmed && p.small_only), "{small:?}");
+    assert_eq!(g.regressions, 0);
+    assert_eq!(g.unconfirmed_regressions, 2);
+    assert!(!g.failed());
+}

@@ -230,8 +230,12 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         said.push(format!("got faster at {}: {} the baseline's time{}", sizes(&faster), times(&faster), detail(&faster)));
     }
     for (v, word) in [(&slower1, "slower"), (&faster1, "faster")] {
-        if !v.is_empty() {
-            said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(v), times(v)));
+        let (small, lone): (Vec<_>, Vec<_>) = v.iter().copied().partition(|p| p.small_only);
+        if !lone.is_empty() {
+            said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(&lone), times(&lone)));
+        }
+        if !small.is_empty() {
+            said.push(format!("{word} at {} ({}), but not at its two largest sizes: reported, not failing", sizes(&small), times(&small)));
         }
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();

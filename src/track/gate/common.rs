@@ -80,6 +80,7 @@ mod tests {
             call: if ratio > 1.1 { Call::Regression } else { Call::Same },
             confirmed: ratio > 1.1,
             busy: false,
+            small_only: false,
         }
     }
 

@@ -8,7 +8,8 @@
 //! neighbouring size of the same design too (or the design was compared at one size only).
 //! Samples within one run share that run's conditions, so a single point can differ between
 //! two runs by more than its own samples suggest; a change in the code shows at more than
-//! one size. Unconfirmed regressions are reported, not hidden.
+//! one size — and, with four or more sizes compared, reaching one of the design's two
+//! largest sizes. Unconfirmed regressions are reported, not hidden.
 //!
 //! A design has a **growth regression** when its time exponent over the sizes both runs
 //! measured rose by 0.1 or more (`--growth-rise`) with the two bootstrap intervals apart
@@ -120,6 +121,10 @@ pub struct PointGate {
     /// the design was compared at one size only). Only confirmed changes fail the gate.
     #[serde(default)]
     pub confirmed: bool,
+    /// A change seen at neighbouring sizes, but only below the design's two largest compared
+    /// sizes (four or more compared): reported, not failing (see `points::confirm`).
+    #[serde(default)]
+    pub small_only: bool,
     /// Either run measured this point on a busy machine: a change beyond the threshold is
     /// called `unclear`, never a regression or an improvement.
     #[serde(default)]
