@@ -39,8 +39,11 @@ use crate::results::Disturbance;
 pub const PROBE_SHARE_FLOOR: f64 = 0.85;
 
 /// Above this share of the machine's CPU time used by other processes (or other guests of
-/// the hypervisor), a point is busy: on 2 cores, half of one core taken away.
-pub const OTHERS_SHARE_CEILING: f64 = 0.25;
+/// the hypervisor), a point is busy. One process competing for one of 2 cores reads 0.5 or
+/// more; three quiet catalog sweeps read up to 0.29 at a few sizes (the hypervisor's steal
+/// and kernel threads), so the ceiling sits between them (it was 0.25, which marked 28
+/// points of those quiet sweeps busy).
+pub const OTHERS_SHARE_CEILING: f64 = 0.35;
 
 /// Fewest clock ticks of machine time (cores × 10 ms ticks) a window needs before the others'
 /// share is judged: 50 ticks is a quarter of a second on 2 cores.
@@ -202,6 +205,7 @@ mod tests {
         let share = others_share(s0, s1).unwrap();
         assert!((share - 250.0 / 480.0).abs() < 1e-12, "{share}");
         let d = assess(&[(100.0, 100.0)], None, Some(share));
+        assert!(!assess(&[(100.0, 100.0)], None, Some(0.29)).busy, "a quiet machine's steal and kernel threads");
         assert!(d.busy && d.reasons == ["other-processes"], "{d:?}");
         // A window of a few ticks says nothing.
         let short = CpuSnapshot { busy: b0 + 10, total: t0 + 12, own: own(100, 20) };

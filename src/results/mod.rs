@@ -386,7 +386,7 @@ pub struct Disturbance {
     /// One-minute load average per core when the size ended.
     pub load_per_core: Option<f64>,
     /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`) or other
-    /// processes used more than a quarter of the machine ("other-processes").
+    /// processes used more than 35% of the machine ("other-processes").
     pub busy: bool,
     pub reasons: Vec<String>,
 }
