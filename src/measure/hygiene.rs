@@ -15,7 +15,8 @@
 //!   to its end. The probe alone misses contention: it runs for a few microseconds right
 //!   after a wake-up, which the scheduler favours, so a catalog swept beside a compiler
 //!   (load 2 per core) kept a probe share of 1.00 at every point. On a quiet machine the
-//!   others' share is a few percent (daemons); above [`OTHERS_SHARE_CEILING`] the point is
+//!   others' share is a few percent (daemons), up to about 0.3 at times on this project's
+//!   virtual machine (steal, kernel threads); above [`OTHERS_SHARE_CEILING`] the point is
 //!   busy. Ticks are 10 ms, so windows under [`OTHERS_MIN_TICKS`] of machine time say
 //!   nothing; program designs run in a process of their own, so theirs is not judged;
 //! - **involuntary context switches** of this process per second of sampling
