@@ -13,6 +13,7 @@ pub mod column_growth;
 pub mod columns;
 pub mod context;
 pub mod cross_column;
+mod defaults;
 pub mod grouped;
 pub mod joins_sorting;
 pub mod key_lookups;

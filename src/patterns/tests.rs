@@ -4,25 +4,14 @@
 
 use super::*;
 
-/// A step's parameters at their declared defaults, as the checker would fill them in.
+/// A step's parameters at their declared defaults; every choice default is one of its choices.
 fn defaults(def: &StepDef) -> Params {
-    let mut p = Params::default();
     for pd in def.params {
-        let d = pd.default;
-        let v = match pd.kind {
-            ParamKind::Count { .. } => ParamValue::Count(d.parse().expect("a whole-number default")),
-            ParamKind::Column { .. } => ParamValue::Column(ColumnRef::At(d.parse().expect("a position default"))),
-            ParamKind::Number { .. } => ParamValue::Number(d.parse().expect("a number default")),
-            ParamKind::Flag => ParamValue::Flag(d == "true"),
-            ParamKind::Choice(c) => {
-                assert!(c.contains(&d), "{}: default `{d}` of `{}` is not one of its choices", def.name, pd.name);
-                ParamValue::Choice(d.to_string())
-            }
-            ParamKind::Text => ParamValue::Text(d.to_string()),
-        };
-        p.0.insert(pd.name.to_string(), v);
+        if let ParamKind::Choice(c) = pd.kind {
+            assert!(c.contains(&pd.default), "{}: default `{}` of `{}` is not one of its choices", def.name, pd.default, pd.name);
+        }
     }
-    p
+    Params::defaults(def)
 }
 
 #[test]

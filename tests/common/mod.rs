@@ -8,7 +8,7 @@
 #![allow(dead_code)]
 
 use framecost::measure::alloc::{AllocStats, Window};
-use framecost::patterns::{find_step, ColumnRef, OutputFacts, ParamKind, ParamValue, Params, RunContext, Step, Value};
+use framecost::patterns::{find_step, ColumnRef, OutputFacts, ParamValue, Params, RunContext, Step, Value};
 use framecost::plan::{DesignPlan, Plan};
 use polars::prelude::*;
 
@@ -65,19 +65,7 @@ pub fn run(plan: &Plan, name: &str, table: &DataFrame) -> Result<Seen, String> {
 /// checker: what the run-time guard meets when an earlier step reshaped the table.
 pub fn bare_step(name: &str, given: &[(&str, ParamValue)]) -> Box<dyn Step> {
     let def = find_step(name).expect("a registered step");
-    let mut p = Params::default();
-    for pd in def.params {
-        let d = pd.default;
-        let v = match pd.kind {
-            ParamKind::Count { .. } => ParamValue::Count(d.parse().expect("a whole-number default")),
-            ParamKind::Column { .. } => ParamValue::Column(ColumnRef::At(d.parse().expect("a position default"))),
-            ParamKind::Number { .. } => ParamValue::Number(d.parse().expect("a number default")),
-            ParamKind::Flag => ParamValue::Flag(d == "true"),
-            ParamKind::Choice(_) => ParamValue::Choice(d.to_string()),
-            ParamKind::Text => ParamValue::Text(d.to_string()),
-        };
-        p.0.insert(pd.name.to_string(), v);
-    }
+    let mut p = Params::defaults(def);
     for (k, v) in given {
         p.0.insert(k.to_string(), v.clone());
     }
