@@ -424,3 +424,33 @@ fn a_slowdown_at_the_smallest_sizes_only_is_reported_but_does_not_fail() {
     assert_eq!(g.unconfirmed_regressions, 2);
     assert!(!g.failed());
 }
+
+/// `r` with every point's memory probe (the cache sweeps before its samples) at `ns`.
+fn with_memory(mut r: RunResults, ns: &dyn Fn(u64) -> f64) -> RunResults {
+    for p in r.workloads[0].points.iter_mut() {
+        if let Some(m) = p.measured.as_mut() {
+            m.disturbance = Some(Disturbance { memory_probe_ns: Some(ns(p.rows)), ..Default::default() });
+        }
+    }
+    r
+}
+
+#[test]
+fn slower_memory_explains_a_slowdown_away_but_never_makes_one() {
+    // 20% slower from 64k rows. With the memory probe 20% slower at those points too, the
+    // slowdown is the machine's memory, not the code: not called. With the probe unchanged,
+    // it is called as without a probe. With equal medians and a faster probe, nothing is
+    // called (the probe only explains changes away).
+    let base = with_memory(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 2e6);
+    let slow = |n: u64| if n >= 64_000 { 1.2 * linear(n) } else { linear(n) };
+    let slow_memory = |n: u64| if n >= 64_000 { 2.4e6 } else { 2e6 };
+    let g = compare(&base, &with_memory(run("b", 2, "cpu", 1e8, &slow, &lin_bytes, &[]), &slow_memory), &GateOptions::default());
+    for p in &g.workloads[0].points {
+        assert_ne!(p.call, Call::Regression, "at {} rows: memory ratio {:?}", p.rows, p.memory_ratio);
+    }
+    assert!(!g.failed());
+    let g = compare(&base, &with_memory(run("b", 2, "cpu", 1e8, &slow, &lin_bytes, &[]), &|_| 2e6), &GateOptions::default());
+    assert_eq!(g.regressions, 2, "the same slowdown with unchanged memory is caught");
+    let g = compare(&base, &with_memory(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 1.5e6), &GateOptions::default());
+    assert!(g.workloads[0].points.iter().all(|p| p.call == Call::Same && p.memory_ratio == Some(0.75)));
+}

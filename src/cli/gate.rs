@@ -143,6 +143,9 @@ pub fn render(r: &GateReport) -> String {
     if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.normalised_by.as_deref() == Some("drift probe")) {
         para(&mut s, "judged on", "each size's ratio of medians (new over baseline) divided by the drift probe's at that size, so the machine's own change of speed is taken out; raw ratios are in --json");
     }
+    if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.memory_ratio.is_some()) {
+        para(&mut s, "memory", "a change must also pass the threshold divided by the memory probe's ratio at its point (the cache sweeps before the design's samples): memory that got slower explains a slowdown away, never makes one; the probe's ratios are in --json");
+    }
     if r.machines_differ {
         let y = r.yardstick_ratio.map(|y| format!("{y:.3}×")).unwrap_or_else(|| "unknown".into());
         para(&mut s, "machines", &format!("the runs were made on different machines or versions; ratios are judged divided by the yardstick's ({y})"));
@@ -295,9 +298,9 @@ fn workload_notes(s: &mut String, w: &crate::track::gate::WorkloadGate, width: u
             s,
             "together",
             &format!(
-                "the whole workload moved to {:.2}× the baseline's time (median of its points, spread {:.2}×): the environment, or a change every design shares; reported, not judged — each point is judged against it",
+                "the whole workload moved to {:.2}× the baseline's time ({}): the environment, or a change every design shares; reported, not judged — each point is judged against it",
                 cm.ratio,
-                cm.spread.exp()
+                if cm.spread > 0.0 { format!("median of its points, spread {:.2}×", cm.spread.exp()) } else { "the smaller of its two designs' moves".to_string() }
             ),
         );
     }

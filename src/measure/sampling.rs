@@ -50,6 +50,8 @@ pub struct Active<'a> {
     pub is_program: bool,
     /// The machine's CPU ticks when its interleaved sampling began (hygiene).
     pub cpu_at_start: Option<super::hygiene::CpuSnapshot>,
+    /// How long each cache sweep before one of its samples took (ns): the memory probe.
+    pub memory: Vec<f64>,
 }
 
 impl<'a> Active<'a> {
@@ -69,6 +71,7 @@ impl<'a> Active<'a> {
             spent_s: 0.0,
             switches: (0, 0.0),
             cpu_at_start: None,
+            memory: Vec::new(),
             output: None,
             stop: None,
             error,
@@ -304,7 +307,10 @@ pub fn interleave<'a>(
             }
             any = true;
             // The same (cold) caches before every sample, whoever ran before it (scrub.rs).
-            super::scrub::caches();
+            let swept = Instant::now();
+            if super::scrub::caches_timed() {
+                a.memory.push(swept.elapsed().as_nanos() as f64);
+            }
             let t = Instant::now();
             let watch = watchdog::arm(a.index, rows, "a sample", watchdog::limit_for(b.per_point_s));
             let sw0 = super::hygiene::involuntary_switches();
@@ -417,7 +423,10 @@ pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<Progr
         alloc_exact: a.allocs.windows(2).all(|w| w[0].bytes == w[1].bytes),
         output: a.output.clone(),
         spent_s: a.spent_s,
-        disturbance: Some(super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1), others_share(a))),
+        disturbance: Some(crate::results::Disturbance {
+            memory_probe_ns: crate::fit::sample::median(&a.memory).ok(),
+            ..super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1), others_share(a))
+        }),
         bimodal: super::hygiene::bimodal(&a.samples),
     }
 }

@@ -1,7 +1,8 @@
 //! The workload's common move: between two runs of unchanged code whole workloads move
-//! together, so with three or more designs a point is judged against the median move of its
-//! workload's points as well (see [`common_mode`]), and confirmation and the time growth
-//! calls are rechecked afterwards.
+//! together, so a point is judged against its workload's common move as well — the median
+//! move of its points with three or more designs, the smaller of the two designs' moves with
+//! two (see [`common_mode`]) — and confirmation and the time growth calls are rechecked
+//! afterwards.
 
 use super::points::confirm;
 use super::{Call, CommonMode, PointGate, WorkloadGate};
@@ -13,28 +14,36 @@ pub const COMMON_MODE_SPREADS: f64 = 3.0;
 /// their designs run one after another in one process and share its memory, caches and
 /// neighbours, which the small CPU-bound drift probe does not see — and single points
 /// scatter by more than their own samples show (measured here: three default catalog
-/// sweeps of the same build gave 8 to 33 confirmed regressions between pairs). With three
-/// or more designs, a workload's points are therefore also judged against the workload's
-/// common move: a point is a change only when, divided by the median ratio of all the
-/// workload's points, it still passes the threshold and stands out by
-/// [`COMMON_MODE_SPREADS`] robust spreads. The common move itself is reported, not judged:
+/// sweeps of the same build gave 8 to 33 confirmed regressions between pairs). A
+/// workload's points are therefore also judged against the workload's common move: with
+/// three or more designs, a point is a change only when, divided by the median ratio of all
+/// the workload's points, it still passes the threshold and stands out by
+/// [`COMMON_MODE_SPREADS`] robust spreads; with two designs, when divided by the smaller of
+/// the two designs' moves (both the same way) it still passes the threshold. The common move itself is reported, not judged:
 /// a change that slows every design alike (a library upgrade) shows there, so keep a design
 /// the change cannot touch in a workload meant to gate such changes. Confirmation is
 /// recomputed afterwards.
 pub fn common_mode(wg: &mut WorkloadGate, designs: usize, threshold: f64) {
-    if designs < 3 || wg.points.len() < 3 {
+    if designs < 2 || wg.points.len() < 3 {
         return;
     }
     let judged = |p: &PointGate| p.normalised_ratio.unwrap_or(p.ratio).ln();
-    let mut logs: Vec<f64> = wg.points.iter().map(judged).filter(|x| x.is_finite()).collect();
-    if logs.len() < 3 {
-        return;
-    }
-    logs.sort_by(f64::total_cmp);
-    let med = crate::fit::sample::quantile_sorted(&logs, 0.5);
-    let mut dev: Vec<f64> = logs.iter().map(|x| (x - med).abs()).collect();
-    dev.sort_by(f64::total_cmp);
-    let spread = 1.4826 * crate::fit::sample::quantile_sorted(&dev, 0.5);
+    let (med, spread) = if designs == 2 {
+        match least_moved(wg, &judged) {
+            Some(m) => (m, 0.0),
+            None => return,
+        }
+    } else {
+        let mut logs: Vec<f64> = wg.points.iter().map(judged).filter(|x| x.is_finite()).collect();
+        if logs.len() < 3 {
+            return;
+        }
+        logs.sort_by(f64::total_cmp);
+        let med = crate::fit::sample::quantile_sorted(&logs, 0.5);
+        let mut dev: Vec<f64> = logs.iter().map(|x| (x - med).abs()).collect();
+        dev.sort_by(f64::total_cmp);
+        (med, 1.4826 * crate::fit::sample::quantile_sorted(&dev, 0.5))
+    };
     wg.common_mode = Some(CommonMode { ratio: med.exp(), spread });
     let bar = (1.0 + threshold).ln().max(COMMON_MODE_SPREADS * spread);
     for p in wg.points.iter_mut() {
@@ -60,6 +69,29 @@ pub fn common_mode(wg: &mut WorkloadGate, designs: usize, threshold: f64) {
     }
 }
 
+/// The common move of a workload of two designs: when both designs' median moves (log of
+/// the judged ratios over their sizes) go the same way, the smaller of the two — the move
+/// both share at least. A median cannot separate "both moved" from "one moved" with two
+/// designs; the smaller move can: a design that got slower while the other held keeps its
+/// whole change (measured: the SQL engines workload, two designs, moved 1.11–1.36× between
+/// back-to-back sweeps of unchanged code, both alike, and failed the gate).
+fn least_moved(wg: &WorkloadGate, judged: &dyn Fn(&PointGate) -> f64) -> Option<f64> {
+    let mut names: Vec<&str> = wg.points.iter().map(|p| p.design.as_str()).collect();
+    names.dedup();
+    let moves: Vec<f64> = names
+        .iter()
+        .filter_map(|d| {
+            let mut v: Vec<f64> = wg.points.iter().filter(|p| p.design == *d).map(judged).filter(|x| x.is_finite()).collect();
+            v.sort_by(f64::total_cmp);
+            (!v.is_empty()).then(|| crate::fit::sample::quantile_sorted(&v, 0.5))
+        })
+        .collect();
+    match moves[..] {
+        [a, b] if a * b > 0.0 => Some(if a.abs() < b.abs() { a } else { b }),
+        _ => None,
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -76,6 +108,7 @@ mod tests {
             ratio_high: None,
             normalised_ratio: None,
             normalised_by: None,
+            memory_ratio: None,
             p_value: Some(1e-6),
             call: if ratio > 1.1 { Call::Regression } else { Call::Same },
             confirmed: ratio > 1.1,
@@ -126,9 +159,31 @@ mod tests {
     }
 
     #[test]
-    fn fewer_than_three_designs_are_left_alone() {
-        let mut w = workload(&[("a", 1.3), ("b", 1.3)]);
+    fn two_designs_that_moved_alike_are_reported_not_judged() {
+        let mut w = workload(&[("a", 1.3), ("b", 1.25)]);
         common_mode(&mut w, 2, 0.1);
+        let cm = w.common_mode.expect("common move");
+        assert!((cm.ratio - 1.25).abs() < 0.03, "the smaller of the two moves: {cm:?}");
+        assert!(w.points.iter().all(|p| p.call == Call::Unclear && !p.confirmed), "{:?}", w.points);
+    }
+
+    #[test]
+    fn of_two_designs_the_one_that_moved_alone_stays_a_regression() {
+        // b held (1.0 ± 2%), a got 30% slower: the common move is b's, a keeps its change.
+        let mut w = workload(&[("a", 1.3), ("b", 1.0)]);
+        common_mode(&mut w, 2, 0.1);
+        assert!(w.points.iter().filter(|p| p.design == "a").all(|p| p.call == Call::Regression && p.confirmed), "{:?}", w.points);
+        // Moves in opposite directions share nothing: no common move at all.
+        let mut w = workload(&[("a", 1.3), ("b", 0.8)]);
+        common_mode(&mut w, 2, 0.1);
+        assert!(w.common_mode.is_none());
+        assert!(w.points.iter().filter(|p| p.design == "a").all(|p| p.call == Call::Regression));
+    }
+
+    #[test]
+    fn one_design_is_left_alone() {
+        let mut w = workload(&[("a", 1.3)]);
+        common_mode(&mut w, 1, 0.1);
         assert!(w.common_mode.is_none());
         assert!(w.points.iter().all(|p| p.call == Call::Regression));
     }

@@ -115,6 +115,11 @@ pub struct PointGate {
     /// What the ratio was divided by: "drift probe" or "yardstick".
     #[serde(default)]
     pub normalised_by: Option<String>,
+    /// new / base of the memory probe at this point (the cache sweeps before the design's
+    /// samples). The ratio divided by it must pass the threshold too for a change to be
+    /// called; absent when either run has no memory probe.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub memory_ratio: Option<f64>,
     pub p_value: Option<f64>,
     pub call: Call,
     /// A regression or improvement seen at a neighbouring size of the same design too (or
@@ -165,7 +170,7 @@ pub struct WorkloadGate {
     pub missing: Vec<MissingPoint>,
     /// Designs in one run only.
     pub unmatched_designs: Vec<String>,
-    /// The move the whole workload shared (three or more designs), when there is one to
+    /// The move the whole workload shared (two or more designs), when there is one to
     /// discount: see [`common_mode`].
     #[serde(default)]
     pub common_mode: Option<CommonMode>,

@@ -51,6 +51,16 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         (None, true, Some(y)) => (Some(ratio / y), Some("yardstick".to_string())),
         _ => (None, None),
     };
+    // The memory's own speed: each design's samples follow a cache sweep whose duration
+    // the run records (`Disturbance::memory_probe_ns`). Between two runs of unchanged code
+    // on a shared machine memory moves where the CPU-bound drift probe does not (measured:
+    // the probe's ratio between three sweeps of four workloads correlated with the designs'
+    // at r = 0.56, 0.82 for the SQL self-join). Like the drift probe, it only explains a
+    // change away (see `judge`).
+    let memory = match (probe_of(b), probe_of(m)) {
+        (Some(pb), Some(pn)) => Some(pn / pb),
+        _ => None,
+    };
     // The rank test compares the samples after the same correction.
     let scale = normalised.map(|x| x / ratio).unwrap_or(1.0);
     let adjusted: Vec<f64> = m.samples_ns.iter().map(|v| v * scale).collect();
@@ -59,7 +69,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
     // one run's medians by more than a change of the code would (measured: a catalog run
     // beside other work failed the gate on 9 points of two workloads).
     let busy = b.is_contaminated() || m.is_contaminated();
-    let call = match judge(ratio, normalised, p, threshold, alpha) {
+    let call = match judge(ratio, &[normalised, memory.map(|x| ratio / x)], p, threshold, alpha) {
         Call::Regression | Call::Improvement if busy => Call::Unclear,
         c => c,
     };
@@ -74,6 +84,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         ratio_high: ci.map(|c| c.2 * scale),
         normalised_ratio: normalised,
         normalised_by: by,
+        memory_ratio: memory,
         p_value: p,
         call,
         confirmed: false,
@@ -121,18 +132,24 @@ fn status(w: &WorkloadResults, design: &str, rows: u64) -> String {
     }
 }
 
-/// The call on one point. `raw` is new/base as measured, `corrected` the same after the
-/// machine-speed correction (if any). A change is called only when the raw ratio and the
-/// corrected one both pass the threshold in the same direction: the correction may explain
-/// a change away (the machine was slower), but never turn equal medians into one.
-fn judge(raw: f64, corrected: Option<f64>, p: Option<f64>, threshold: f64, alpha: f64) -> Call {
+/// The memory probe of a measured point, when its run recorded one.
+fn probe_of(m: &Measured) -> Option<f64> {
+    m.disturbance.as_ref().and_then(|d| d.memory_probe_ns).filter(|x| *x > 0.0 && x.is_finite())
+}
+
+/// The call on one point. `raw` is new/base as measured, `corrected` the same after each
+/// machine-speed correction there is (the drift probe's, the memory probe's). A change is
+/// called only when the raw ratio and every corrected one pass the threshold in the same
+/// direction: a correction may explain a change away (the machine or its memory was
+/// slower), but never turn equal medians into one.
+fn judge(raw: f64, corrected: &[Option<f64>], p: Option<f64>, threshold: f64, alpha: f64) -> Call {
     let significant = p.is_some_and(|p| p < alpha);
     let up = |r: f64| r > 1.0 + threshold;
     let down = |r: f64| r < 1.0 / (1.0 + threshold);
-    let c = corrected.unwrap_or(raw);
-    if up(raw) && up(c) {
+    let all = |f: &dyn Fn(f64) -> bool| f(raw) && corrected.iter().flatten().all(|c| f(*c));
+    if all(&up) {
         if significant { Call::Regression } else { Call::Unclear }
-    } else if down(raw) && down(c) {
+    } else if all(&down) {
         if significant { Call::Improvement } else { Call::Unclear }
     } else {
         Call::Same
