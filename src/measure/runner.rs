@@ -191,7 +191,7 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         states,
         programs,
         started: Instant::now().checked_sub(elapsed).unwrap_or_else(Instant::now),
-        min_sample_ns: clock.min_sample_ns(),
+        min_sample_ns: if opts.warm_caches { clock.min_sample_ns() } else { clock.cold_min_sample_ns() },
         probe: super::machine::DriftProbe::new(),
     };
     warmup_lap(plan, plan.sizes.get(from).copied().unwrap_or(1), &run.states);
