@@ -33,6 +33,13 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     let limit = opts.fit_up_to.unwrap_or(u64::MAX);
     let pts: Vec<_> = w.design_points(name).into_iter().filter(|p| p.measured.is_some()).collect();
     let Chosen { used, for_memory, mut notes } = choose_points(&pts, limit, opts.top_sizes);
+    let extra = w.extra_sizes();
+    if let Some(p) = used.iter().find(|p| extra.contains(&p.rows)) {
+        notes.push(format!(
+            "measured at one more size than planned ({} rows): its time class over the planned sizes was not settled",
+            crate::units::rows_label(p.rows)
+        ));
+    }
     let measured: Vec<(u64, &Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
     let seed = xxhash_rust::xxh3::xxh3_64(name.as_bytes());
     let (time_fit, time_exponent) = fit_time(&measured, seed);

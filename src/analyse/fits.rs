@@ -4,30 +4,13 @@
 //! a pair of classes. Used by the analysis and by the gate (`fit_time`).
 
 use super::output::{ExponentOut, PredictionOut};
-use crate::fit::growth::{exponent_with_ci, fit_growth_with, GrowthClass, GrowthFit};
+use crate::fit::growth::{exponent_with_ci, fit_timed, GrowthClass, GrowthFit};
 use crate::fit::predict::predict;
 
 /// Fit how time grows over measured points `(rows, measured)`: the growth class on each
-/// size's quartiles, and the log-log exponent of medians over the top four sizes with a 95%
-/// bootstrap interval (deterministic from `seed`).
-///
-/// Each size enters the class fit as its three quartiles: every size weighs the same
-/// however many samples it took, and the classifier works in the regime its known-answer
-/// suite checks (three points per size). Fitting hundreds of raw samples would give AICc the
-/// power to prefer n log n over n for curvature of a few percent (caches), which is not what
-/// "how does it grow" asks.
+/// size's quartiles (`fit::growth::fit_timed`), and the log-log exponent of medians over
+/// the top four sizes with a 95% bootstrap interval (deterministic from `seed`).
 pub fn fit_time(measured: &[(u64, &crate::results::Measured)], seed: u64) -> (Result<GrowthFit, crate::fit::FitError>, Option<ExponentOut>) {
-    let (mut xs, mut ys) = (Vec::new(), Vec::new());
-    for (rows, m) in measured {
-        let mut v: Vec<f64> = m.samples_ns.iter().copied().filter(|x| *x > 0.0).collect();
-        v.sort_by(f64::total_cmp);
-        for q in [0.25, 0.5, 0.75] {
-            if let Ok(x) = crate::fit::sample::quantile(&v, q) {
-                xs.push(*rows as f64);
-                ys.push(x);
-            }
-        }
-    }
     let per_size: Vec<(f64, Vec<f64>)> = measured
         .iter()
         .map(|(rows, m)| (*rows as f64, m.samples_ns.iter().copied().filter(|v| *v > 0.0).collect::<Vec<_>>()))
@@ -36,15 +19,8 @@ pub fn fit_time(measured: &[(u64, &crate::results::Measured)], seed: u64) -> (Re
     let exponent = exponent_with_ci(&per_size, 4, 1000, seed)
         .ok()
         .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used });
-    (fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY), exponent)
+    (fit_timed(&per_size), exponent)
 }
-
-/// How closely a size's median time can be reproduced by another run on the same machine,
-/// as a relative standard deviation: the classes of time are compared with at least this
-/// much noise on every point (`fit::growth::fit_growth_with`). A size's own samples agree to
-/// a few percent, so without it a curvature of a few percent (the data outgrowing a cache)
-/// decided between neighbouring classes and flipped from run to run.
-pub const TIME_REPRODUCIBILITY: f64 = 0.05;
 
 /// The prediction of a fit at `rows`: its own class's interval, widened to cover the
 /// alternative class's interval when the data cannot tell the two apart.

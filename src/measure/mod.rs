@@ -5,6 +5,7 @@ pub mod alloc;
 pub mod clock;
 pub mod admit;
 pub mod equivalence;
+pub mod extra;
 pub mod headers;
 pub mod hygiene;
 pub mod inputs;

@@ -83,6 +83,8 @@ struct SizeRun<'p, 'o> {
     started: Instant,
     min_sample_ns: f64,
     probe: super::machine::DriftProbe,
+    /// At the extra size (`extra.rs`): the only designs measured; the others get no point.
+    only: Option<Vec<usize>>,
 }
 
 /// Write the point of a design whose sampling ended, the moment it ends, and update what
@@ -193,6 +195,7 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         started: Instant::now().checked_sub(elapsed).unwrap_or_else(Instant::now),
         min_sample_ns: if opts.warm_caches { clock.min_sample_ns() } else { clock.cold_min_sample_ns() },
         probe: super::machine::DriftProbe::new(),
+        only: None,
     };
     warmup_lap(plan, plan.sizes.get(from).copied().unwrap_or(1), &run.states);
     for (k, &rows) in plan.sizes.iter().enumerate().skip(from) {
@@ -207,6 +210,12 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         if run.one_size(rows)? {
             run.outcome.interrupted = true;
             break;
+        }
+    }
+    if opts.extra_size && !run.outcome.interrupted && !super::interrupt::requested() {
+        let failed = resume.as_ref().filter(|r| r.from >= plan.sizes.len()).map(|r| r.failed.clone()).unwrap_or_default();
+        if run.extra_size(&failed)? {
+            run.outcome.interrupted = true;
         }
     }
     drop(program_temp);
@@ -239,6 +248,25 @@ impl<'p> SizeRun<'p, '_> {
         Ok(())
     }
 
+    /// One more size for the designs whose time class the planned sizes left unsettled
+    /// (`extra.rs`); `failed` are the designs an earlier measuring process lost there, whose
+    /// failed points are written instead. True when a stop was asked for.
+    fn extra_size(&mut self, failed: &[(usize, SkipInfo)]) -> Result<bool, RunError> {
+        let Some(rows) = super::extra::next_size(self.plan) else { return Ok(false) };
+        let chosen = super::extra::chosen(&self.out.results, self.plan);
+        let lost: Vec<(usize, SkipInfo)> = failed.iter().filter(|(i, _)| chosen.iter().any(|c| c.0 == *i)).cloned().collect();
+        self.failed_before(rows, &lost)?;
+        let only: Vec<usize> = chosen.iter().map(|c| c.0).filter(|i| !lost.iter().any(|l| l.0 == *i)).collect();
+        if only.is_empty() {
+            return Ok(false);
+        }
+        super::worker::size_started(rows);
+        self.only = Some(only);
+        let stopped = self.one_size(rows);
+        self.only = None;
+        stopped
+    }
+
     /// Measure every admitted design at one size. True when a stop was asked for.
     fn one_size(&mut self, rows: u64) -> Result<bool, RunError> {
         let plan = self.plan;
@@ -248,6 +276,9 @@ impl<'p> SizeRun<'p, '_> {
         let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit);
         let mut runnable = Vec::new();
         for (i, d) in decisions.into_iter().enumerate() {
+            if self.only.as_ref().is_some_and(|only| !only.contains(&i)) {
+                continue;
+            }
             match d {
                 Some(Ok(())) => runnable.push(i),
                 Some(Err(info)) => {
@@ -284,6 +315,13 @@ impl<'p> SizeRun<'p, '_> {
         // The comparison keeps the designs' order, whatever order their sampling ended in.
         measured.sort_by_key(|m| plan.designs.iter().position(|d| d.name == m.0));
         let mut cmp = compare(plan, rows, &measured, self.opts.seed);
+        if self.only.is_some() {
+            // At the extra size only the unsettled designs ran: no ranking among a subset
+            // (a verdict or a "fastest" there would leave the settled designs out). The
+            // outputs are still compared.
+            cmp.ratios.clear();
+            cmp.fastest = None;
+        }
         if !probe_runs.is_empty() {
             let walls: Vec<f64> = probe_runs.iter().map(|p| p.0).collect();
             cmp.probe_ns = Some(crate::measure::stats::median(&walls));

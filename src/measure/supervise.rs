@@ -105,7 +105,8 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
             .as_ref()
             .map(|a| a.size)
             .or(seen.size)
-            .and_then(|s| plan.sizes.iter().position(|&x| x == s))
+            // The extra size past the planned ones (`extra.rs`) resumes past them.
+            .and_then(|s| plan.sizes.iter().position(|&x| x == s).or_else(|| (Some(s) == super::extra::next_size(plan)).then_some(plan.sizes.len())))
             .or(resume.as_ref().map(|r| r.from))
             .unwrap_or(0);
         let kept = cut_from(&points, start, plan, pos).map_err(|e| io_error(&points, e))?;
@@ -122,7 +123,7 @@ pub fn sweep(plan: &Plan, index: usize, clock: &ClockInfo, out: &mut RunWriter, 
             eprintln!(
                 "\nframecost sweep: `{}` at {}: {}; every design fails there, going on",
                 crate::units::escaped(&plan.name),
-                plan.axis_point(plan.sizes.get(pos).copied().unwrap_or(0)),
+                plan.axis_point(plan.sizes.get(pos).copied().or_else(|| super::extra::next_size(plan)).unwrap_or(0)),
                 why
             );
         }

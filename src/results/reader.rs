@@ -26,6 +26,25 @@ pub struct WorkloadResults {
 }
 
 impl WorkloadResults {
+    /// Sizes with points beyond the header's planned sizes: the extra size a sweep spends
+    /// on the designs whose class the planned sizes left unsettled (`sweep --no-extra-size`
+    /// turns it off), ascending.
+    pub fn extra_sizes(&self) -> Vec<u64> {
+        let mut v: Vec<u64> = self.points.iter().map(|p| p.rows).filter(|n| !self.header.sizes.contains(n)).collect();
+        v.sort_unstable();
+        v.dedup();
+        v
+    }
+
+    /// The planned sizes and the extra ones, ascending: the columns of a table of points.
+    pub fn all_sizes(&self) -> Vec<u64> {
+        let mut v = self.header.sizes.clone();
+        v.extend(self.extra_sizes());
+        v.sort_unstable();
+        v.dedup();
+        v
+    }
+
     /// The points of one design, in size order.
     pub fn design_points(&self, design: &str) -> Vec<&PointRecord> {
         let mut v: Vec<&PointRecord> = self.points.iter().filter(|p| p.design == design).collect();

@@ -85,6 +85,11 @@ pub struct Args {
     /// data larger than the caches does.
     #[arg(long)]
     pub warm_caches: bool,
+    /// Do not measure one more size (a step past the largest) for the designs whose time
+    /// class the planned sizes leave unsettled ("n or n log n", "unclear"). By default they
+    /// take it where the memory estimate and the budgets allow.
+    #[arg(long)]
+    pub no_extra_size: bool,
 }
 
 /// The decision for one finished workload, in a few words, for the piped progress line.
@@ -216,7 +221,7 @@ fn run_dir(a: &Args, plans: &[Plan]) -> PathBuf {
 /// The run header, then every workload measured (in a child process each, or here with
 /// `--in-process`): the counts of failed points and mismatched sizes, or the failure.
 fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, usize), Failure> {
-    let opts = SweepOptions { force: a.force, warm_caches: a.warm_caches, ..SweepOptions::default() };
+    let opts = SweepOptions { force: a.force, warm_caches: a.warm_caches, extra_size: !a.no_extra_size, ..SweepOptions::default() };
     let clock = crate::measure::clock::calibrate();
     let mut header = runner::run_header(std::env::args().collect(), clock, a.force, a.warm_caches);
     if plans.iter().any(|p| p.axis.is_some()) {

@@ -111,6 +111,35 @@ pub const NEIGHBOUR_MARGIN: f64 = 10.0;
 /// Fewest distinct sizes [`fit_growth`] accepts.
 pub const MIN_SIZES: usize = 3;
 
+/// How closely a size's median time can be reproduced by another run on the same machine,
+/// as a relative standard deviation: the classes of time are compared with at least this
+/// much noise on every point ([`fit_growth_with`]). A size's own samples agree to a few
+/// percent, so without it a curvature of a few percent (the data outgrowing a cache)
+/// decided between neighbouring classes and flipped from run to run.
+pub const TIME_REPRODUCIBILITY: f64 = 0.05;
+
+/// The class of a timed cost from each size's samples `(size, samples)`: every size enters
+/// as its three quartiles (type 7), so every size weighs the same however many samples it
+/// took and the classifier works in the regime its known-answer suite checks (three points
+/// per size); fitting hundreds of raw samples would give AICc the power to prefer n log n
+/// over n for curvature of a few percent (caches). Compared with the
+/// [`TIME_REPRODUCIBILITY`] floor. Non-positive samples are left out.
+pub fn fit_timed(per_size: &[(f64, Vec<f64>)]) -> Result<GrowthFit, FitError> {
+    let (mut xs, mut ys) = (Vec::new(), Vec::new());
+    for (n, samples) in per_size {
+        let mut v: Vec<f64> = samples.iter().copied().filter(|x| *x > 0.0 && x.is_finite()).collect();
+        if v.is_empty() {
+            continue;
+        }
+        v.sort_by(f64::total_cmp);
+        for q in [0.25, 0.5, 0.75] {
+            xs.push(*n);
+            ys.push(crate::fit::sample::quantile_sorted(&v, q));
+        }
+    }
+    fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY)
+}
+
 /// The outcome of [`fit_growth`].
 #[derive(Debug, Clone, PartialEq)]
 pub struct GrowthFit {
@@ -212,7 +241,7 @@ pub fn fit_growth(sizes: &[f64], values: &[f64]) -> Result<GrowthFit, FitError> 
 /// values could show again on a second occasion is not evidence for a faster class. Timed
 /// costs need it: the samples of one size are taken within a second and agree to a few
 /// percent, while the same size measured in another run moves by more (see
-/// `analyse::fits::TIME_REPRODUCIBILITY`). Counted costs (bytes) are exact: floor 0.
+/// [`TIME_REPRODUCIBILITY`]). Counted costs (bytes) are exact: floor 0.
 pub fn fit_growth_with(sizes: &[f64], values: &[f64], noise_floor: f64) -> Result<GrowthFit, FitError> {
     let (distinct, weights) = checked_inputs(sizes, values)?;
     let top_slope = top_median_slope(sizes, values)?;

@@ -183,13 +183,15 @@ fn section(k: usize, p: &Part) -> Result<String, crate::present::DrawError> {
 
     // The grid.
     let _ = writeln!(s, "<h3>Every design at every size</h3><table class=\"grid\"><thead><tr><th>time per run</th>");
-    for &n in &w.header.sizes {
-        let _ = write!(s, "<th>{} {axis}</th>", ax.value(n));
+    let extra = w.extra_sizes();
+    for &n in &w.all_sizes() {
+        let more = if extra.contains(&n) { " title=\"one more size than planned, measured only for the designs whose growth class the planned sizes left unsettled\"" } else { "" };
+        let _ = write!(s, "<th{more}>{}{} {axis}</th>", ax.value(n), if extra.contains(&n) { "+" } else { "" });
     }
     let _ = writeln!(s, "</tr></thead><tbody>");
     for dh in &w.header.designs {
         let _ = write!(s, "<tr><td><code>{}</code></td>", esc(&dh.name));
-        for &n in &w.header.sizes {
+        for &n in &w.all_sizes() {
             let (main, second, shade, tip) = time_cell(w, &dh.name, n);
             let class = if shade < 9 { format!(" class=\"s{shade}\"") } else { String::new() };
             let title = if tip.is_empty() { String::new() } else { format!(" title=\"{}\"", esc(&tip)) };
@@ -255,13 +257,13 @@ fn folded(p: &Part) -> Result<String, crate::present::DrawError> {
     let counted: Vec<_> = w.header.designs.iter().filter(|d| counts_allocations(w, &d.name)).collect();
     if !counted.is_empty() {
         let _ = writeln!(s, "<details><summary>Memory: allocated and peak live bytes per run</summary><table class=\"grid\"><thead><tr><th>allocated / peak</th>");
-        for &n in &w.header.sizes {
+        for &n in &w.all_sizes() {
             let _ = write!(s, "<th>{} {axis}</th>", ax.value(n));
         }
         let _ = writeln!(s, "</tr></thead><tbody>");
         for dh in &counted {
             let _ = write!(s, "<tr><td><code>{}</code></td>", esc(&dh.name));
-            for &n in &w.header.sizes {
+            for &n in &w.all_sizes() {
                 match w.point(&dh.name, n).and_then(|p| p.measured.as_ref()) {
                     Some(m) => {
                         let chunks = m.output.as_ref().filter(|o| o.chunks > 1).map(|o| format!(", {} chunks", o.chunks)).unwrap_or_default();

@@ -92,12 +92,12 @@ fn section(p: &Part, dir: &Path) -> String {
     }
     let _ = writeln!(s, "### Every design at every size\n");
     let mut head = vec!["time per run".to_string()];
-    head.extend(w.header.sizes.iter().map(|n| format!("{} {axis}", ax.value(*n))));
+    let extra = w.extra_sizes();
+    head.extend(w.all_sizes().iter().map(|n| format!("{}{} {axis}", ax.value(*n), if extra.contains(n) { "+" } else { "" })));
     let _ = writeln!(s, "| {} |\n|{}|", head.join(" | "), head.iter().enumerate().map(|(i, _)| if i == 0 { "---" } else { "---:" }).collect::<Vec<_>>().join("|"));
     for dh in &w.header.designs {
         let cells: Vec<String> = w
-            .header
-            .sizes
+            .all_sizes()
             .iter()
             .map(|&n| {
                 let (main, second, _, _) = time_cell(w, &dh.name, n);

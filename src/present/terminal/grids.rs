@@ -13,9 +13,10 @@ use crate::units::{bytes, time_ns};
 /// what ended sampling).
 pub(super) fn time_grid(w: &WorkloadResults, o: Options) -> (Vec<String>, bool, bool) {
     let ax = w.header.axis();
-    let sizes = &w.header.sizes;
+    let sizes = &w.all_sizes();
+    let extra = w.extra_sizes();
     let mut head = vec!["time per run".to_string()];
-    head.extend(sizes.iter().map(|n| ax.value(*n)));
+    head.extend(sizes.iter().map(|n| format!("{}{}", ax.value(*n), if extra.contains(n) { "+" } else { "" })));
     let mut any_marks = false;
     let mut any_busy = false;
     let mut rows = Vec::new();
@@ -87,9 +88,10 @@ pub(super) fn resident_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
 /// One memory figure per design and size, the cells made by `cell`.
 fn memory_grid(w: &WorkloadResults, o: Options, title: &str, designs: &[&str], cell: &dyn Fn(&crate::results::Measured) -> Vec<String>) -> Vec<String> {
     let ax = w.header.axis();
-    let sizes = &w.header.sizes;
+    let sizes = &w.all_sizes();
+    let extra = w.extra_sizes();
     let mut head = vec![title.to_string()];
-    head.extend(sizes.iter().map(|n| ax.value(*n)));
+    head.extend(sizes.iter().map(|n| format!("{}{}", ax.value(*n), if extra.contains(n) { "+" } else { "" })));
     let rows: Vec<(String, Vec<Vec<String>>)> = designs
         .iter()
         .map(|&d| {
