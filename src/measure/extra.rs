@@ -4,9 +4,10 @@
 //! classes the data cannot tell apart ("n or n log n"), or no class at all ("unclear") — is
 //! measured at one more size, a step beyond the largest planned one (the ladder's own last
 //! step), while the designs already settled are not: one more doubling tells n from n log n
-//! or n log n from n² better than more samples of the sizes already measured. The usual
-//! admission applies (memory estimate, point and run budgets), so the extra size is spent
-//! only where the budget allows. Only sweeps over rows take it (an axis of another shape
+//! or n log n from n² better than more samples of the sizes already measured. It is sampled
+//! with half the point budget and the fewest samples, and the usual admission applies
+//! (memory estimate, that point budget, the run budget), so the extra size is spent only
+//! where the budget allows. Only sweeps over rows take it (an axis of another shape
 //! parameter may have its own bounds), and `sweep --no-extra-size` turns it off.
 //!
 //! The extra size is not among the workload header's sizes: its points are recognisable as

@@ -261,9 +261,30 @@ impl<'p> SizeRun<'p, '_> {
             return Ok(false);
         }
         super::worker::size_started(rows);
-        self.only = Some(only);
-        let stopped = self.one_size(rows);
-        self.only = None;
+        // Half the point budget and the fewest samples: the extra size widens the range a
+        // class is fitted over; the samples of the planned sizes already set how precise each
+        // size is. Admission judges by the same smaller budget.
+        let mut smaller = self.plan.clone();
+        smaller.budget.per_point_s /= 2.0;
+        smaller.budget.max_samples = smaller.budget.min_samples.max(3);
+        let mut sub = SizeRun {
+            plan: &smaller,
+            opts: self.opts,
+            out: &mut *self.out,
+            progress: self.progress,
+            outcome: std::mem::take(&mut self.outcome),
+            states: std::mem::take(&mut self.states),
+            programs: std::mem::take(&mut self.programs),
+            started: self.started,
+            min_sample_ns: self.min_sample_ns,
+            probe: super::machine::DriftProbe::new(),
+            only: Some(only),
+        };
+        let stopped = sub.one_size(rows);
+        let (outcome, states, programs) = (sub.outcome, sub.states, sub.programs);
+        self.outcome = outcome;
+        self.states = states;
+        self.programs = programs;
         stopped
     }
 

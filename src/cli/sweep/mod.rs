@@ -165,6 +165,9 @@ fn memory_plan(plans: &[Plan], a: &Args) -> bool {
                     println!("  {:>8} {}  {line}", crate::results::Axis(p.axis.as_ref()).value(n), crate::results::Axis(p.axis.as_ref()).name());
                 }
             }
+            if let Some(next) = crate::measure::extra::next_size(p).filter(|_| !a.no_extra_size) {
+                println!("  {:>8} rows  only for designs whose time class the sizes above leave unsettled, where the budgets allow (--no-extra-size: never)", rows_label(next));
+            }
             println!(
                 "  budgets: {} per point, {} whole run, precision ±{:.1}%, {}–{} samples",
                 crate::units::time_ns(p.budget.per_point_s * 1e9),
