@@ -3,7 +3,8 @@
 //! After the planned sizes, a design whose time class the planned sizes cannot settle — two
 //! classes the data cannot tell apart ("n or n log n"), or no class at all ("unclear") — is
 //! measured at one more size, a step beyond the largest planned one (the ladder's own last
-//! step), while the designs already settled are not: one more doubling tells n from n log n
+//! step), while the designs already settled are not (of several unsettled designs, the one
+//! fastest at the largest planned size: see [`chosen`]): one more doubling tells n from n log n
 //! or n log n from n² better than more samples of the sizes already measured. It is sampled
 //! with half the point budget and the fewest samples, and the usual admission applies
 //! (memory estimate, that point budget, the run budget), so the extra size is spent only
@@ -54,9 +55,23 @@ pub fn unsettled(results: &RunResults, plan: &Plan, design: &str) -> Option<Stri
     }
 }
 
-/// The designs (index, why) that take the extra size.
+/// The design (index, why) that takes the extra size: of the designs whose class is not
+/// settled, the fastest at the largest planned size — the one a reader is most likely to
+/// adopt, whose growth decides what it costs at the target. One design only: a comparison
+/// of a subset of the designs at a size the others did not reach would rank them where the
+/// verdict cannot (it is decided where every design was measured), and a table showing a
+/// second design faster there than the verdict's would contradict it.
 pub fn chosen(results: &RunResults, plan: &Plan) -> Vec<(usize, String)> {
-    plan.designs.iter().enumerate().filter_map(|(i, d)| unsettled(results, plan, &d.name).map(|why| (i, why))).collect()
+    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == plan.name) else { return vec![] };
+    let largest = plan.sizes.last().copied().unwrap_or(0);
+    let median_at_largest = |i: usize| w.point(&plan.designs[i].name, largest).and_then(|p| p.measured.as_ref()).map_or(f64::INFINITY, |m| m.median_ns);
+    plan.designs
+        .iter()
+        .enumerate()
+        .filter_map(|(i, d)| unsettled(results, plan, &d.name).map(|why| (i, why)))
+        .min_by(|a, b| median_at_largest(a.0).total_cmp(&median_at_largest(b.0)))
+        .into_iter()
+        .collect()
 }
 
 #[cfg(test)]
