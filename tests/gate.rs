@@ -454,3 +454,21 @@ fn slower_memory_explains_a_slowdown_away_but_never_makes_one() {
     let g = compare(&base, &with_memory(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 1.5e6), &GateOptions::default());
     assert!(g.workloads[0].points.iter().all(|p| p.call == Call::Same && p.memory_ratio == Some(0.75)));
 }
+
+#[test]
+fn an_extra_size_in_one_run_only_leaves_the_comparison_complete() {
+    // The extra size (one step past the planned sizes, for a design whose class was
+    // unsettled) depends on the run: a baseline that has it and a new run that does not
+    // still compare completely, and the extra point is not compared.
+    let mut base = run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let mut extra = base.workloads[0].points.last().expect("a point").clone();
+    extra.rows = 256_000;
+    base.workloads[0].points.push(extra);
+    assert_eq!(base.workloads[0].extra_sizes(), vec![256_000]);
+    let new = run("b", 2, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let c = framecost::track::completeness::check(&base, &new);
+    assert_eq!(c.missing_points, 0, "{:?}", c.problems());
+    let g = compare(&base, &new, &GateOptions::default());
+    assert!(g.workloads[0].points.iter().all(|p| p.rows != 256_000));
+    assert!(g.workloads[0].missing.iter().all(|m| m.rows != 256_000), "{:?}", g.workloads[0].missing);
+}

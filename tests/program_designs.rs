@@ -119,8 +119,7 @@ fn hostile_programs_become_failed_points() {
     );
     let run = dir.path().join("run");
     let started = std::time::Instant::now();
-    // No extra size: the count below is of the planned sizes.
-    let out = sweep(&["--allow-programs", "--no-extra-size"], &spec, &run, tmp.path());
+    let out = sweep(&["--allow-programs"], &spec, &run, tmp.path());
     let took = started.elapsed().as_secs_f64();
     assert_eq!(out.status.code(), Some(3), "{}", String::from_utf8_lossy(&out.stderr));
     // The sleeper is killed at 1.25 × 1 s + 1 s, once; far below an hour.
@@ -207,7 +206,7 @@ fn python_containers_scale_as_published() {
     let run = dir.path().join("run");
     // Wide budgets: on a busy machine the n² design's largest size would otherwise be
     // predicted over the spec's budget and skipped, and the test is about growth.
-    let out = sweep(&["--allow-programs", "--no-extra-size", "--sizes", "4k,8k,16k,32k", "--point-budget", "30s", "--run-budget", "10m"], &spec, &run, tmp.path());
+    let out = sweep(&["--allow-programs", "--sizes", "4k,8k,16k,32k", "--point-budget", "30s", "--run-budget", "10m"], &spec, &run, tmp.path());
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let r = RunResults::read(&run).expect("results");
     // The median of a design's three doubling ratios (4k→8k, 8k→16k, 16k→32k).

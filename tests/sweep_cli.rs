@@ -28,13 +28,10 @@ fn tiny_sweep_writes_a_complete_run_and_skips_the_quadratic_tail() {
     assert!(run.clock.read_cost_ns > 0.0 && run.yardstick.median_ns > 0.0);
     assert_eq!(run.machine.polars_version, polars::VERSION);
     let w = &r.workloads[0];
-    // Every design has a record at every planned size: measured or skipped, nothing silently
-    // missing. Past them there is at most one extra size, for the designs whose class the
-    // planned sizes left unsettled, one step past the largest.
-    let planned = w.points.iter().filter(|p| w.header.sizes.contains(&p.rows)).count();
-    assert_eq!(planned, w.header.sizes.len() * w.header.designs.len());
-    let extra = w.extra_sizes();
-    assert!(extra.len() <= 1 && extra.iter().all(|&n| n == 2 * w.header.sizes.last().expect("sizes")), "{extra:?}");
+    // Every design has a record at every size: measured or skipped, nothing silently missing
+    // (and no extra size without `--extra-size`).
+    assert_eq!(w.points.len(), w.header.sizes.len() * w.header.designs.len());
+    assert!(w.extra_sizes().is_empty());
     for p in &w.points {
         assert!(p.measured.is_some() != p.skipped.is_some(), "{p:?}");
         if let Some(m) = &p.measured {
@@ -157,4 +154,31 @@ fn steps_that_write_files_get_a_disk_estimate_checked_against_free_space() {
     // A workload that writes nothing has no disk estimate.
     let p = framecost::spec::load(std::path::Path::new("tests/data/tiny.yaml")).expect("spec");
     assert_eq!(framecost::measure::memory::estimate(&p, 1_000_000, &[]).disk, 0.0);
+}
+
+#[test]
+fn an_extra_size_goes_to_one_unsettled_design_and_ranks_nothing() {
+    // Whether a design's class is unsettled depends on the measurements, so this checks what
+    // must hold either way: at most one extra size, one ladder step past the largest planned
+    // size, at most one design measured there, a comparison without ranking, and a gate of
+    // the run against itself that compares the planned sizes completely.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let run = dir.path().join("run");
+    let args = ["tests/data/tiny.yaml", "--sizes", "1k,2k,4k,8k", "--point-budget", "100ms", "--extra-size", "--quiet", "--out"];
+    let out = sweep(&[&args[..], &[run.to_str().expect("utf8")]].concat());
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("readable");
+    let w = &r.workloads[0];
+    let extra = w.extra_sizes();
+    assert!(extra.iter().all(|&n| n == 16_000) && extra.len() <= 1, "{extra:?}");
+    let there: Vec<_> = w.points.iter().filter(|p| extra.contains(&p.rows)).collect();
+    assert!(there.len() <= 1, "{there:?}");
+    for c in w.comparisons.iter().filter(|c| extra.contains(&c.rows)) {
+        assert!(c.ratios.is_empty() && c.fastest.is_none(), "{c:?}");
+    }
+    let gate = Command::cargo_bin("framecost").expect("binary").arg("gate").arg(&run).arg(&run).output().expect("runs");
+    assert_eq!(gate.status.code(), Some(0), "{}", String::from_utf8_lossy(&gate.stderr));
+    // The plan says it.
+    let plan = sweep(&["tests/data/tiny.yaml", "--sizes", "1k,2k,4k,8k", "--extra-size", "--plan"]);
+    assert!(String::from_utf8_lossy(&plan.stdout).contains("16k rows  only for the design whose time class"), "{}", String::from_utf8_lossy(&plan.stdout));
 }

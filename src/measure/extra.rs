@@ -9,7 +9,7 @@
 //! with half the point budget and the fewest samples, and the usual admission applies
 //! (memory estimate, that point budget, the run budget), so the extra size is spent only
 //! where the budget allows. Only sweeps over rows take it (an axis of another shape
-//! parameter may have its own bounds), and `sweep --no-extra-size` turns it off.
+//! parameter may have its own bounds), and it is taken only with `sweep --extra-size`.
 //!
 //! The extra size is not among the workload header's sizes: its points are recognisable as
 //! the points beyond them (`WorkloadResults::extra_sizes`), and the gate, which compares the

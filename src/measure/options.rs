@@ -17,12 +17,12 @@ pub struct SweepOptions {
     /// Leave the caches as the previous sample left them (no sweep before each sample).
     pub warm_caches: bool,
     /// Measure one more size for designs whose time class the planned sizes leave
-    /// unsettled (`extra.rs`); off with `sweep --no-extra-size`.
+    /// unsettled (`extra.rs`); on with `sweep --extra-size`.
     pub extra_size: bool,
 }
 
 impl Default for SweepOptions {
     fn default() -> Self {
-        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c, resume: None, warm_caches: false, extra_size: true }
+        SweepOptions { force: false, memory_share: 0.8, runs_needed: 4.0, seed: 0x0f2a_3e5c, resume: None, warm_caches: false, extra_size: false }
     }
 }

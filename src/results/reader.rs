@@ -27,8 +27,8 @@ pub struct WorkloadResults {
 
 impl WorkloadResults {
     /// Sizes with points beyond the header's planned sizes: the extra size a sweep spends
-    /// on the designs whose class the planned sizes left unsettled (`sweep --no-extra-size`
-    /// turns it off), ascending.
+    /// on the designs whose class the planned sizes left unsettled (`sweep --extra-size`
+    /// turns it on), ascending.
     pub fn extra_sizes(&self) -> Vec<u64> {
         let mut v: Vec<u64> = self.points.iter().map(|p| p.rows).filter(|n| !self.header.sizes.contains(n)).collect();
         v.sort_unstable();

@@ -85,11 +85,13 @@ pub struct Args {
     /// data larger than the caches does.
     #[arg(long)]
     pub warm_caches: bool,
-    /// Do not measure one more size (a step past the largest) for the designs whose time
-    /// class the planned sizes leave unsettled ("n or n log n", "unclear"). By default they
-    /// take it where the memory estimate and the budgets allow.
+    /// After the planned sizes, measure one more size (a step past the largest, half the
+    /// point budget) for the design whose time class they leave unsettled ("n or n log n",
+    /// "unclear"), where the memory estimate and the budgets allow. Off by default: the
+    /// larger size often crosses into another memory regime, and which design takes it
+    /// differs between runs (README, "Reading the answers").
     #[arg(long)]
-    pub no_extra_size: bool,
+    pub extra_size: bool,
 }
 
 /// The decision for one finished workload, in a few words, for the piped progress line.
@@ -165,8 +167,8 @@ fn memory_plan(plans: &[Plan], a: &Args) -> bool {
                     println!("  {:>8} {}  {line}", crate::results::Axis(p.axis.as_ref()).value(n), crate::results::Axis(p.axis.as_ref()).name());
                 }
             }
-            if let Some(next) = crate::measure::extra::next_size(p).filter(|_| !a.no_extra_size) {
-                println!("  {:>8} rows  only for designs whose time class the sizes above leave unsettled, where the budgets allow (--no-extra-size: never)", rows_label(next));
+            if let Some(next) = crate::measure::extra::next_size(p).filter(|_| a.extra_size) {
+                println!("  {:>8} rows  only for the design whose time class the sizes above leave unsettled, where the budgets allow (--extra-size)", rows_label(next));
             }
             println!(
                 "  budgets: {} per point, {} whole run, precision ±{:.1}%, {}–{} samples",
@@ -224,7 +226,7 @@ fn run_dir(a: &Args, plans: &[Plan]) -> PathBuf {
 /// The run header, then every workload measured (in a child process each, or here with
 /// `--in-process`): the counts of failed points and mismatched sizes, or the failure.
 fn measure_all(plans: &[Plan], a: &Args, out: &mut RunWriter) -> Result<(usize, usize), Failure> {
-    let opts = SweepOptions { force: a.force, warm_caches: a.warm_caches, extra_size: !a.no_extra_size, ..SweepOptions::default() };
+    let opts = SweepOptions { force: a.force, warm_caches: a.warm_caches, extra_size: a.extra_size, ..SweepOptions::default() };
     let clock = crate::measure::clock::calibrate();
     let mut header = runner::run_header(std::env::args().collect(), clock, a.force, a.warm_caches);
     if plans.iter().any(|p| p.axis.is_some()) {

@@ -150,7 +150,7 @@ pub fn measure_as_child(a: &Args, order: Result<crate::measure::worker::Order, S
         crate::measure::memory::set_allowance(b);
     }
     let mut out = RunWriter::append(&order.dir).map_err(write_failed)?;
-    let opts = SweepOptions { force: a.force, resume: order.resume, warm_caches: a.warm_caches, extra_size: !a.no_extra_size, ..SweepOptions::default() };
+    let opts = SweepOptions { force: a.force, resume: order.resume, warm_caches: a.warm_caches, extra_size: a.extra_size, ..SweepOptions::default() };
     // The parent speaks for an interrupted child: it says nothing itself.
     match runner::sweep(plan, &opts, &order.clock, &mut out, &crate::measure::worker::PipeProgress)? {
         o if o.interrupted || crate::measure::interrupt::requested() => Err(Failure::Interrupted(None)),
