@@ -185,7 +185,7 @@ fn section(k: usize, p: &Part) -> Result<String, crate::present::DrawError> {
     let _ = writeln!(s, "<h3>Every design at every size</h3><table class=\"grid\"><thead><tr><th>time per run</th>");
     let extra = w.extra_sizes();
     for &n in &w.all_sizes() {
-        let more = if extra.contains(&n) { " title=\"one more size than planned, measured only for the designs whose growth class the planned sizes left unsettled\"" } else { "" };
+        let more = if extra.contains(&n) { " title=\"one more size than planned, measured only for the design whose growth class the planned sizes left unsettled\"" } else { "" };
         let _ = write!(s, "<th{more}>{}{} {axis}</th>", ax.value(n), if extra.contains(&n) { "+" } else { "" });
     }
     let _ = writeln!(s, "</tr></thead><tbody>");
@@ -200,9 +200,10 @@ fn section(k: usize, p: &Part) -> Result<String, crate::present::DrawError> {
         }
         let _ = writeln!(s, "</tr>");
     }
+    let more = if extra.is_empty() { "" } else { " <em>+</em> marks one more size than planned, measured only for the design whose growth class the planned sizes left unsettled (<code>sweep --extra-size</code>); it is not ranked." };
     let _ = writeln!(
         s,
-        "</tbody></table><p class=\"note\">Median time of one run; under it, how many times the fastest design's time it took at that size (the deeper the shade, the further behind). <em>~</em> marks a time predicted from the smaller sizes for a point not run. Hover a cell for its interval and samples.</p>"
+        "</tbody></table><p class=\"note\">Median time of one run; under it, how many times the fastest design's time it took at that size (the deeper the shade, the further behind). <em>~</em> marks a time predicted from the smaller sizes for a point not run.{more} Hover a cell for its interval and samples.</p>"
     );
 
     for pic in p.pictures.iter().filter(|x| x.kind == "scaling") {

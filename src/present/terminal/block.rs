@@ -123,7 +123,7 @@ fn figures(p: &Parts, o: Options) -> String {
     }
     keys.push("~ a time predicted from the smaller sizes".into());
     if !w.extra_sizes().is_empty() {
-        keys.push("+ one more size than planned, measured only for the designs whose growth class the planned sizes left unsettled".into());
+        keys.push("+ one more size than planned, measured only for the design whose growth class the planned sizes left unsettled".into());
     }
     if o.long {
         keys.push("growth class chosen by AICc over each size's quartiles; slope = log-log slope of the medians".into());
