@@ -10,6 +10,7 @@ pub mod headers;
 pub mod hygiene;
 pub mod inputs;
 pub mod interrupt;
+mod lap;
 pub mod machine;
 pub mod memory;
 pub mod options;

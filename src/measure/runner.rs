@@ -12,7 +12,7 @@ use super::admit::DesignState;
 use super::clock::ClockInfo;
 use super::equivalence::compare;
 use super::program::{ProgramDesign, ProgramInputs};
-use super::sampling::{make_input, run_step, Active};
+use super::sampling::{run_step, Active};
 use crate::patterns::{Allowed, Records, RunContext, Value};
 use crate::plan::{DesignPlan, Plan};
 use crate::results::writer::{RunWriter, WriteError};
@@ -197,7 +197,7 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         probe: super::machine::DriftProbe::new(),
         only: None,
     };
-    warmup_lap(plan, plan.sizes.get(from).copied().unwrap_or(1), &run.states);
+    super::lap::warmup_lap(plan, plan.sizes.get(from).copied().unwrap_or(1), &run.states);
     for (k, &rows) in plan.sizes.iter().enumerate().skip(from) {
         if super::interrupt::requested() {
             run.outcome.interrupted = true;
@@ -261,9 +261,7 @@ impl<'p> SizeRun<'p, '_> {
             return Ok(false);
         }
         super::worker::size_started(rows);
-        // Half the point budget and the fewest samples: the extra size widens the range a
-        // class is fitted over; the samples of the planned sizes already set how precise each
-        // size is. Admission judges by the same smaller budget.
+        // Half the point budget and the fewest samples (admission judges by them too).
         let mut smaller = self.plan.clone();
         smaller.budget.per_point_s /= 2.0;
         smaller.budget.max_samples = smaller.budget.min_samples.max(3);
@@ -281,10 +279,7 @@ impl<'p> SizeRun<'p, '_> {
             only: Some(only),
         };
         let stopped = sub.one_size(rows);
-        let (outcome, states, programs) = (sub.outcome, sub.states, sub.programs);
-        self.outcome = outcome;
-        self.states = states;
-        self.programs = programs;
+        (self.outcome, self.states, self.programs) = (sub.outcome, sub.states, sub.programs);
         stopped
     }
 
@@ -441,50 +436,10 @@ impl<'p> SizeRun<'p, '_> {
 /// What a design's first step receives: the first table, its records, or — on the
 /// streaming engine, whose tables stay on disk — an empty table (its `sql` steps read the
 /// scans in the run context).
-fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -> Value {
+pub(super) fn design_feed(d: &DesignPlan, df: &DataFrame, records: &Option<Arc<Records>>) -> Value {
     match (d.feed, records, d.engine) {
         (_, _, EngineChoice::Streaming) => Value::Frame(DataFrame::empty()),
         (Feed::Records, Some(r), _) => Value::Records(r.clone()),
         _ => Value::Frame(df.clone()),
-    }
-}
-
-/// Run every design once on a small table before anything is timed, so the first measured
-/// size does not pay for the process's cold start (thread pool, lazily built tables, fresh
-/// heap pages). Failures here are ignored: the real run reports them.
-/// The lap obeys the point budget: once it has taken that long, the remaining designs are
-/// not warmed up (their first measured run warms them instead).
-fn warmup_lap(plan: &Plan, at: u64, states: &[DesignState]) {
-    let first = plan.sizes.first().copied().unwrap_or(1);
-    let rows = plan.rows_at(first).min(1000);
-    let streams = plan.designs.iter().any(|d| d.engine == EngineChoice::Streaming);
-    let prepared = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| super::inputs::SizeInputs::prepare_rows(plan, first, rows, true, streams)));
-    let Ok(Ok(inputs)) = prepared else { return };
-    let df = inputs.first();
-    let records = Records::from_frame(&df).ok().map(Arc::new);
-    let started = Instant::now();
-    for (i, d) in plan.designs.iter().enumerate() {
-        if started.elapsed().as_secs_f64() > plan.budget.per_point_s || super::interrupt::requested() {
-            break;
-        }
-        // A program warms up in its own process, on its first run at each size; a design
-        // that failed in an earlier measuring process is not run again.
-        if d.program.is_some() || states[i].blocked.is_some() {
-            continue;
-        }
-        let Ok(ctx) = inputs.context(d.engine) else {
-            continue;
-        };
-        let mut v = design_feed(d, &df, &records);
-        for s in &d.setup {
-            match run_step(s, v.clone(), &ctx) {
-                Ok(x) => v = x,
-                Err(_) => break,
-            }
-        }
-        // A runaway here is recorded at the size about to be measured, which it keeps from
-        // being measured.
-        let _watch = super::watchdog::arm(i, at, "the untimed warm-up lap (one run on at most 1000 rows)", super::watchdog::limit_for(plan.budget.per_point_s));
-        let _ = run_design_in(d, make_input(&v, d.steps.first().is_some_and(|s| s.def.private_input)), &ctx);
     }
 }

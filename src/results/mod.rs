@@ -385,10 +385,9 @@ pub struct Disturbance {
     pub others_share: Option<f64>,
     /// One-minute load average per core when the size ended.
     pub load_per_core: Option<f64>,
-    /// Median time of the cache sweeps before this design's samples (ns): the same bytes
-    /// read from main memory each time, so it reads the memory's speed while the design was
-    /// sampled, which the CPU-bound drift probe does not see. Absent with `--warm-caches`
-    /// and in runs before it was measured.
+    /// Median time of the cache sweeps before this design's samples (ns): the memory's speed
+    /// at this point, which the CPU-bound drift probe does not see. Absent with
+    /// `--warm-caches` and in runs before it was measured.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub memory_probe_ns: Option<f64>,
     /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`) or other
