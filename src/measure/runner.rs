@@ -83,7 +83,7 @@ struct SizeRun<'p, 'o> {
     started: Instant,
     min_sample_ns: f64,
     probe: super::machine::DriftProbe,
-    /// At the extra size (`extra.rs`): the only designs measured; the others get no point.
+    /// At the extra size (`extra.rs`): the designs measured there; the others get no point.
     only: Option<Vec<usize>>,
 }
 
@@ -248,7 +248,7 @@ impl<'p> SizeRun<'p, '_> {
         Ok(())
     }
 
-    /// One more size for the designs whose time class the planned sizes left unsettled
+    /// One more size for the design whose time class the planned sizes left unsettled
     /// (`extra.rs`); `failed` are the designs an earlier measuring process lost there, whose
     /// failed points are written instead. True when a stop was asked for.
     fn extra_size(&mut self, failed: &[(usize, SkipInfo)]) -> Result<bool, RunError> {
@@ -332,7 +332,7 @@ impl<'p> SizeRun<'p, '_> {
         measured.sort_by_key(|m| plan.designs.iter().position(|d| d.name == m.0));
         let mut cmp = compare(plan, rows, &measured, self.opts.seed);
         if self.only.is_some() {
-            // At the extra size only the unsettled designs ran: no ranking among a subset
+            // At the extra size only the unsettled design ran: no ranking among a subset
             // (a verdict or a "fastest" there would leave the settled designs out). The
             // outputs are still compared.
             cmp.ratios.clear();
