@@ -17,7 +17,7 @@
 
 use crate::fit::growth::fit_timed;
 use crate::plan::Plan;
-use crate::results::reader::RunResults;
+use crate::results::reader::{RunResults, WorkloadResults};
 
 /// The size after the largest planned one, one more step of the ladder (the ratio of the
 /// two largest planned sizes, at least ×2 and at most ×4); `None` for fewer than three
@@ -35,8 +35,7 @@ pub fn next_size(plan: &Plan) -> Option<u64> {
 /// Why a design's time class is not settled over its measured points, if it is not: its
 /// label ("n or n log n") or "unclear". Needs the design measured at the largest planned
 /// size and at three sizes or more, none of them on a busy machine.
-pub fn unsettled(results: &RunResults, plan: &Plan, design: &str) -> Option<String> {
-    let w = results.workloads.iter().rev().find(|w| w.header.workload == plan.name)?;
+fn unsettled(w: &WorkloadResults, plan: &Plan, design: &str) -> Option<String> {
     let largest = *plan.sizes.last()?;
     let pts = w.design_points(design);
     let measured: Vec<_> = pts.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).filter(|(rows, _)| plan.sizes.contains(rows)).collect();
@@ -61,17 +60,15 @@ pub fn unsettled(results: &RunResults, plan: &Plan, design: &str) -> Option<Stri
 /// of a subset of the designs at a size the others did not reach would rank them where the
 /// verdict cannot (it is decided where every design was measured), and a table showing a
 /// second design faster there than the verdict's would contradict it.
-pub fn chosen(results: &RunResults, plan: &Plan) -> Vec<(usize, String)> {
-    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == plan.name) else { return vec![] };
+pub fn chosen(results: &RunResults, plan: &Plan) -> Option<(usize, String)> {
+    let w = results.workloads.iter().rev().find(|w| w.header.workload == plan.name)?;
     let largest = plan.sizes.last().copied().unwrap_or(0);
     let median_at_largest = |i: usize| w.point(&plan.designs[i].name, largest).and_then(|p| p.measured.as_ref()).map_or(f64::INFINITY, |m| m.median_ns);
     plan.designs
         .iter()
         .enumerate()
-        .filter_map(|(i, d)| unsettled(results, plan, &d.name).map(|why| (i, why)))
+        .filter_map(|(i, d)| unsettled(w, plan, &d.name).map(|why| (i, why)))
         .min_by(|a, b| median_at_largest(a.0).total_cmp(&median_at_largest(b.0)))
-        .into_iter()
-        .collect()
 }
 
 #[cfg(test)]
@@ -142,13 +139,12 @@ mod tests {
         let quadratic = |n: f64| 1e-3 * n * n;
         let bent = |n: f64| 40.0 * n * (1.0 + 0.08 * (n / 1000.0).ln() / 128f64.ln());
         let r = results(&plan, &quadratic, &bent);
-        let chosen = chosen(&r, &plan);
-        assert_eq!(chosen.len(), 1, "{chosen:?}");
-        assert_eq!(chosen[0].0, 1);
-        assert!(chosen[0].1.contains(" or "), "{chosen:?}");
+        let (design, why) = chosen(&r, &plan).expect("the unsettled design");
+        assert_eq!(design, 1);
+        assert!(why.contains(" or "), "{why}");
         // Both settled: nobody takes it.
         let r = results(&plan, &quadratic, &|n: f64| 5e-4 * n * n);
-        assert!(super::chosen(&r, &plan).is_empty());
+        assert!(chosen(&r, &plan).is_none());
     }
 
     #[test]

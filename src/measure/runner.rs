@@ -83,8 +83,8 @@ struct SizeRun<'p, 'o> {
     started: Instant,
     min_sample_ns: f64,
     probe: super::machine::DriftProbe,
-    /// At the extra size (`extra.rs`): the designs measured there; the others get no point.
-    only: Option<Vec<usize>>,
+    /// At the extra size (`extra.rs`): the one design measured there; the others get no point.
+    only: Option<usize>,
 }
 
 /// Write the point of a design whose sampling ended, the moment it ends, and update what
@@ -253,11 +253,10 @@ impl<'p> SizeRun<'p, '_> {
     /// failed points are written instead. True when a stop was asked for.
     fn extra_size(&mut self, failed: &[(usize, SkipInfo)]) -> Result<bool, RunError> {
         let Some(rows) = super::extra::next_size(self.plan) else { return Ok(false) };
-        let chosen = super::extra::chosen(&self.out.results, self.plan);
-        let lost: Vec<(usize, SkipInfo)> = failed.iter().filter(|(i, _)| chosen.iter().any(|c| c.0 == *i)).cloned().collect();
-        self.failed_before(rows, &lost)?;
-        let only: Vec<usize> = chosen.iter().map(|c| c.0).filter(|i| !lost.iter().any(|l| l.0 == *i)).collect();
-        if only.is_empty() {
+        let Some((design, _)) = super::extra::chosen(&self.out.results, self.plan) else { return Ok(false) };
+        // Lost there by an earlier measuring process: its failed point, nothing measured.
+        if let Some(lost) = failed.iter().find(|(i, _)| *i == design) {
+            self.failed_before(rows, std::slice::from_ref(lost))?;
             return Ok(false);
         }
         super::worker::size_started(rows);
@@ -276,7 +275,7 @@ impl<'p> SizeRun<'p, '_> {
             started: self.started,
             min_sample_ns: self.min_sample_ns,
             probe: super::machine::DriftProbe::new(),
-            only: Some(only),
+            only: Some(design),
         };
         let stopped = sub.one_size(rows);
         (self.outcome, self.states, self.programs) = (sub.outcome, sub.states, sub.programs);
@@ -292,7 +291,7 @@ impl<'p> SizeRun<'p, '_> {
         let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit);
         let mut runnable = Vec::new();
         for (i, d) in decisions.into_iter().enumerate() {
-            if self.only.as_ref().is_some_and(|only| !only.contains(&i)) {
+            if self.only.is_some_and(|only| only != i) {
                 continue;
             }
             match d {
