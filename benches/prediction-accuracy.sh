@@ -3,7 +3,10 @@
 # the sizes up to a quarter of the largest size it was measured at (N/4), predict N, and
 # compare with what was measured at N. Every design with at least three sizes up to N/4 is
 # reported, whatever its class; the last lines count how many landed within 25% (the aim:
-# at least 90%, and every n² design).
+# at least 90%, and every n² design). Given several runs of the same workloads (RUNS=DIR
+# with one folder per run), the last line is the ceiling: how often one run's measured
+# median at N lies within 25% of another's — no prediction can beat the measurements'
+# own reproducibility.
 #
 #   benches/prediction-accuracy.sh [WORKLOAD.yaml ...]     (default: every built-in workload)
 #   RUNS=DIR benches/prediction-accuracy.sh                 (re-judge saved runs, no sweeping)
@@ -65,4 +68,29 @@ print(f'{"workload":<20} {"design":<26} {"class":<16} {"fit≤":>9} {"predicted"
 print("\n".join(rows_out))
 print(f"within 25%: {within}/{total}" + (f" ({100*within/total:.0f}%)" if total else ""))
 print(f"n² or n³ designs within 25%: {quad_within}/{quad_total}")
+# The ceiling any prediction faces: how often two runs of the same design at the same N
+# (the point predicted above) measured medians within 25% of each other. With one run
+# folder, nothing to compare.
+at_n = defaultdict(list)
+for name in sorted(os.listdir(root)):
+    pts = os.path.join(root, name, "points.jsonl")
+    if not os.path.isfile(pts):
+        continue
+    meds, largest = {}, defaultdict(int)
+    for line in open(pts, errors="replace"):
+        try:
+            r = json.loads(line)
+        except Exception:
+            continue
+        if r.get("record") == "point" and r.get("measured"):
+            key = (r["workload"], r["design"])
+            meds[key + (r["rows"],)] = r["measured"]["median_ns"]
+            largest[key] = max(largest[key], r["rows"])
+    for key, n in largest.items():
+        at_n[key + (n,)].append(meds[key + (n,)])
+# Ordered pairs, scored like a prediction: run A's median taken as the prediction of run B's.
+pairs = [(a, b) for v in at_n.values() for i, a in enumerate(v) for j, b in enumerate(v) if i != j]
+if pairs:
+    agree = sum(1 for a, b in pairs if abs(a / b - 1) <= 0.25)
+    print(f"ceiling: another run's median at the same N within 25%: {agree}/{len(pairs)} ({100*agree/len(pairs):.0f}%)")
 PY
