@@ -76,3 +76,36 @@ fn a_tie_names_the_design_fastest_at_most_sizes() {
     }
     assert!(v["text"].as_str().expect("text").contains("fastest of them at 7 of the 7 sizes"), "{v}");
 }
+
+#[test]
+fn split_points_do_not_decide_a_class() {
+    // In the recorded cross-column run `horizontal-sum` has two split points whose medians
+    // fell in the fast group. Over its other sizes (read here from the points) its time
+    // clearly rises; the fitted class must say so, not "constant" from the split medians.
+    let run = "tests/data/verdict-runs/cross-column-split";
+    let text = std::fs::read_to_string(format!("{run}/points.jsonl")).expect("points");
+    let mut kept: Vec<(f64, f64)> = Vec::new();
+    let mut split = 0;
+    for line in text.lines() {
+        let r: serde_json::Value = serde_json::from_str(line).expect("json line");
+        if r["record"] == "point" && r["design"] == "horizontal-sum" && r["measured"].is_object() {
+            if r["measured"]["bimodal"] == true {
+                split += 1;
+            } else {
+                kept.push((r["rows"].as_f64().expect("rows"), r["measured"]["median_ns"].as_f64().expect("median")));
+            }
+        }
+    }
+    assert_eq!(split, 2, "the recorded run has two split points");
+    kept.sort_by(|a, b| a.0.total_cmp(&b.0));
+    let (first, last) = (kept[0], kept[kept.len() - 1]);
+    let slope = (last.1 / first.1).ln() / (last.0 / first.0).ln();
+    assert!(slope > 0.3, "the unsplit points rise: slope {slope}");
+
+    let out = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--json"]).output().expect("runs");
+    let doc: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let d = doc["analysis"]["workloads"][0]["designs"].as_array().expect("designs").iter().find(|d| d["design"] == "horizontal-sum").expect("design").clone();
+    let classes = [d["time"]["class"].as_str().unwrap_or(""), d["time"]["alternative"].as_str().unwrap_or("")];
+    assert!(!classes.contains(&"constant") && classes.iter().any(|c| ["n", "n log n"].contains(c)), "{}", d["time"]);
+    assert!(d["notes"].as_array().expect("notes").iter().any(|n| n.as_str().is_some_and(|s| s.contains("2 size(s) whose samples fell into two separate groups"))), "{}", d["notes"]);
+}

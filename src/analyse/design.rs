@@ -110,6 +110,13 @@ fn choose_points<'a>(pts: &'a [&'a PointRecord], limit: u64, top: Option<usize>)
             notes.push(format!("{busy} size(s) were measured on a busy machine and too few clean ones remain: the fits include them"));
         }
     }
+    // A split point (samples in two separate groups) has a median that lands in either
+    // group from run to run: it does not decide a class either, on the same condition.
+    let split = used.iter().filter(|p| p.measured.as_ref().is_some_and(|m| m.bimodal)).count();
+    if split > 0 && used.len() - split >= MIN_SIZES {
+        used.retain(|p| !p.measured.as_ref().is_some_and(|m| m.bimodal));
+        notes.push(format!("{split} size(s) whose samples fell into two separate groups were left out of the time fits"));
+    }
     if let Some(k) = top {
         let drop = used.len().saturating_sub(k.max(MIN_SIZES));
         used.drain(..drop);
