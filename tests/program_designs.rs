@@ -228,7 +228,13 @@ fn python_containers_scale_as_published() {
     // CI run, at ×2.31.
     eprintln!("per doubling: n² {front:.2}×, append {append:.2}×, deque {deque:.2}×");
     assert!(front > 2.0, "n² per doubling: {front:.2}×");
-    assert!(front > 1.25 * append.max(deque), "per doubling, n² {front:.2}× against n: append {append:.2}×, deque {deque:.2}×");
+    assert!(
+        front > 1.25 * append.max(deque),
+        "per doubling, n² {front:.2}× against n: append {append:.2}×, deque {deque:.2}×; CPU medians by size: {:?} {:?} {:?}",
+        cpu_medians(&r, "insert-at-front"),
+        cpu_medians(&r, "append-then-reverse"),
+        cpu_medians(&r, "deque-at-left")
+    );
     for c in &r.workloads[0].comparisons {
         assert_eq!(c.equivalence.status, EquivalenceStatus::Same, "{}", c.equivalence.note);
     }
@@ -240,7 +246,13 @@ fn python_containers_scale_as_published() {
 /// and as a Python row walk: every design gives the same totals at every size.
 #[test]
 fn mixed_workload_agrees_across_engines() {
-    let setup = std::process::Command::new(repo().join("scripts/python-env.sh")).output().expect("python-env.sh runs");
+    // Under the sweeps' lock: making the environment (pip, or importing polars to check it)
+    // beside another test's sweep timed that sweep instead (the containers test once saw its
+    // n designs at ×4.8 and ×6.2 per doubling, against ×1.7–×2.1 alone).
+    let setup = {
+        let _turn = ONE_AT_A_TIME.lock().unwrap_or_else(|e| e.into_inner());
+        std::process::Command::new(repo().join("scripts/python-env.sh")).output().expect("python-env.sh runs")
+    };
     assert!(setup.status.success(), "scripts/python-env.sh: {}", String::from_utf8_lossy(&setup.stderr));
     let dir = tempfile::tempdir().expect("tempdir");
     let tmp = tempfile::tempdir().expect("tmp");
