@@ -278,19 +278,19 @@ fn time_that_fits_cubic_while_bytes_grow_quadratically_is_read_as_a_pair() {
     let time = fit_growth(&columns, &time_ns).expect("time fit");
     let bytes = fit_growth(&columns, &bytes).expect("bytes fit");
     assert_eq!((time.best, bytes.best), (GrowthClass::Cubic, GrowthClass::Quadratic), "slope {}", time.top_slope);
-    let (f, note) = framecost::analyse::bounded_by_bytes(&time, Some(&bytes)).expect("read as a pair");
+    let (f, note) = framecost::analyse::bounded_by_bytes(&time, Some(&bytes), None).expect("read as a pair");
     assert_eq!((f.best, f.alternative), (GrowthClass::Quadratic, Some(GrowthClass::Cubic)));
     assert!(note.contains("read as n² or n³"), "{note}");
     // Bytes growing as fast as the time leave a cubic class alone.
     let cubic: Vec<f64> = columns.iter().map(|n| 1e3 * n * n * n).collect();
     let t3 = fit_growth(&columns, &cubic).expect("fit");
     assert_eq!(t3.best, GrowthClass::Cubic);
-    assert!(framecost::analyse::bounded_by_bytes(&t3, Some(&t3)).is_none());
+    assert!(framecost::analyse::bounded_by_bytes(&t3, Some(&t3), None).is_none());
     // And so does a steep cubic (slope 2.5 or more) whatever the bytes.
     let steep: Vec<f64> = columns.iter().map(|n| 1e4 * n * n + 2e3 * n * n * n).collect();
     let ts = fit_growth(&columns, &steep).expect("fit");
     assert!(ts.top_slope >= 2.5 && ts.best == GrowthClass::Cubic, "{} {:?}", ts.top_slope, ts.best);
-    assert!(framecost::analyse::bounded_by_bytes(&ts, Some(&bytes)).is_none());
+    assert!(framecost::analyse::bounded_by_bytes(&ts, Some(&bytes), None).is_none());
 }
 
 #[test]

@@ -1,8 +1,9 @@
 //! One design of a workload analysed: which measured points its fits use (busy sizes left
 //! out of time, memory keeping every size, `--top-sizes`, `--fit-up-to`), the fits of time,
-//! allocated bytes and peak memory, doubling ratios, predictions at the target and the
-//! hold-out checks against sizes measured but not fitted.
+//! allocated bytes and peak memory, doubling ratios, predictions at the target (with a
+//! copying term when the bytes outgrow the time) and the hold-out checks against sizes measured but not fitted.
 
+use super::copying::copy_model;
 use super::fits::{bounded_by_bytes, fit_time, predict_with_alternative};
 use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
 use super::AnalyseOptions;
@@ -49,7 +50,7 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     // Sizes the memory fits used (all of them, busy or not), not the time fits'.
     let (bytes_out, peak_out) = (growth_out(&bytes_res, for_memory.len()).ok(), growth_out(&peak_res, for_memory.len()).ok());
     let bytes_fit = bytes_res.ok();
-    let time_fit = time_fit.map(|t| match bounded_by_bytes(&t, bytes_fit.as_ref()) {
+    let time_fit = time_fit.map(|t| match bounded_by_bytes(&t, bytes_fit.as_ref(), bytes_exponent) {
         Some((f, note)) => {
             notes.push(note);
             f
@@ -70,9 +71,19 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     let max_fitted = used.iter().map(|p| p.rows).max().unwrap_or(0) as f64;
     let min_fitted = used.iter().map(|p| p.rows).min().unwrap_or(0) as f64;
     let pred = |f: &Option<GrowthFit>, rows: u64| predict_with_alternative(f.as_ref()?, rows, max_fitted);
-    let prediction = predict_at.and_then(|n| pred(&time, n));
+    // Bytes that grow a class faster than the time carry the time's prediction (a copying
+    // term the time alone cannot see yet).
+    let copy = time.as_ref().and_then(|t| copy_model(&measured, t, bytes_fit.as_ref()));
+    if let Some(c) = &copy {
+        notes.push(c.note());
+    }
+    let time_pred = |rows: u64| {
+        let base = pred(&time, rows)?;
+        Some(copy.as_ref().and_then(|c| c.predict(&base)).unwrap_or(base))
+    };
+    let prediction = predict_at.and_then(time_pred);
     let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));
-    let holdout = holdout_checks(&pts, limit, &|rows| pred(&time, rows));
+    let holdout = holdout_checks(&pts, limit, &time_pred);
     let analysis = DesignAnalysis {
         design: name.to_string(),
         measured_sizes: pts.iter().map(|p| p.rows).collect(),

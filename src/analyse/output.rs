@@ -61,6 +61,25 @@ pub struct PredictionOut {
     pub class: String,
     #[serde(default)]
     pub alternative: Option<String>,
+    /// The prediction carries a copying term: the time fitted as rows plus allocated
+    /// bytes, because the bytes grow a class faster than the time (`analyse::copying`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub copying: Option<CopyingOut>,
+}
+
+/// The copying term of a prediction.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct CopyingOut {
+    /// How the allocated bytes grow ("n²").
+    pub bytes_class: String,
+    /// Fitted time per allocated byte (ns).
+    pub ns_per_byte: f64,
+    /// The bytes term's share of the fitted time at the largest fitted size.
+    pub share_at_largest: f64,
+    /// Its share of the predicted time.
+    pub share_predicted: f64,
+    /// What the time class alone predicted there (ns).
+    pub time_class_ns: f64,
 }
 
 /// A prediction checked against a size that was measured but not fitted.

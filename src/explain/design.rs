@@ -300,6 +300,28 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
         ));
     }
     if let Some(p) = &da.prediction {
+        if let Some(c) = &p.copying {
+            let largest = da.measured_sizes.iter().copied().filter(|r| *r as f64 <= p.rows as f64).max().unwrap_or(0);
+            findings.push(f(
+                "copying",
+                format!(
+                    "allocated bytes grow as {} and account for {:.0}% of the time at {} ({:.3} ns per byte), {:.0}% of the time predicted at {}",
+                    c.bytes_class,
+                    100.0 * c.share_at_largest,
+                    at(largest),
+                    c.ns_per_byte,
+                    100.0 * c.share_predicted,
+                    at(p.rows)
+                ),
+                format!(
+                    "the copies grow faster than the rest of the work, so the prediction ({}) counts them; the time's own class ({}) says {}",
+                    time_ns(p.median),
+                    class_label(&p.class, p.alternative.as_deref()),
+                    time_ns(c.time_class_ns)
+                ),
+                String::new(),
+            ));
+        }
         if p.far {
             findings.push(f(
                 "extrapolation",
@@ -308,5 +330,13 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
                 "measure a size closer to the target if the decision depends on it".into(),
             ));
         }
+    }
+}
+
+/// "n or n log n" from a prediction's class and alternative labels.
+fn class_label(class: &str, alternative: Option<&str>) -> String {
+    match (GrowthClass::from_label(class), alternative.and_then(GrowthClass::from_label)) {
+        (Some(c), alt) => crate::fit::growth::pair_label(c, alt),
+        (None, _) => class.to_string(),
     }
 }
