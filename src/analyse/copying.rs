@@ -124,6 +124,11 @@ pub fn copy_model(measured: &[(u64, &Measured)], time: &GrowthFit, bytes: Option
 }
 
 impl CopyModel {
+    /// The fitted time at `n`: fixed cost, rows, and the bytes predicted there.
+    pub fn cost_at(&self, n: f64) -> f64 {
+        self.a + self.b * n + self.k * curve_at(&self.bytes_curve, n)
+    }
+
     /// What the analysis notes about the term.
     pub fn note(&self) -> String {
         format!(
@@ -140,7 +145,7 @@ impl CopyModel {
     pub fn predict(&self, base: &PredictionOut) -> Option<PredictionOut> {
         let n = base.rows as f64;
         let bytes_n = curve_at(&self.bytes_curve, n);
-        let median = self.a + self.b * n + self.k * bytes_n;
+        let median = self.cost_at(n);
         if !(median.is_finite() && median > base.median) {
             return None;
         }
@@ -157,6 +162,9 @@ impl CopyModel {
                 share_at_largest: self.share_at_largest,
                 share_predicted: self.k * bytes_n / median,
                 time_class_ns: base.median,
+                fixed_ns: self.a,
+                per_row_ns: self.b,
+                bytes_terms: self.bytes_curve.iter().map(|(t, c)| (t.label().to_string(), *c)).collect(),
             }),
             ..base.clone()
         })
@@ -229,6 +237,8 @@ mod tests {
         assert!((p.low / p.median - 0.8).abs() < 1e-9 && (p.high / p.median - 1.25).abs() < 1e-9);
         let c = p.copying.expect("said");
         assert!(c.share_predicted > c.share_at_largest && c.time_class_ns == base.median, "{c:?}");
+        // The curve it carries (what the pictures draw to the target) gives the median.
+        assert!((c.cost_at(16_000.0).expect("a curve") / p.median - 1.0).abs() < 1e-9);
         assert!(model.note().contains("n²"), "{}", model.note());
     }
 

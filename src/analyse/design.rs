@@ -3,7 +3,7 @@
 //! allocated bytes and peak memory, doubling ratios, predictions at the target (with a
 //! copying term when the bytes outgrow the time) and the hold-out checks against sizes measured but not fitted.
 
-use super::copying::copy_model;
+use super::copying::{copy_model, CopyModel};
 use super::fits::{bounded_by_bytes, fit_time, predict_with_alternative};
 use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
 use super::AnalyseOptions;
@@ -16,6 +16,8 @@ use crate::results::{Measured, PointRecord};
 pub(super) struct Fitted {
     pub(super) name: String,
     pub(super) time: Option<GrowthFit>,
+    /// The copying term of its predictions, if any (`copying.rs`).
+    pub(super) copy: Option<CopyModel>,
     pub(super) lo: f64,
     pub(super) hi: f64,
 }
@@ -99,7 +101,7 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
         holdout,
         notes,
     };
-    (analysis, Fitted { name: name.to_string(), time, lo: min_fitted, hi: max_fitted })
+    (analysis, Fitted { name: name.to_string(), time, copy, lo: min_fitted, hi: max_fitted })
 }
 
 /// The points the fits use: sizes up to `limit`; busy sizes out of the time fits when

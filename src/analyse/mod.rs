@@ -83,9 +83,16 @@ fn crossovers(fitted: &[Fitted], predict_at: Option<u64>) -> Vec<CrossoverOut> {
             let far = (predict_at.unwrap_or(0) as f64).max(hi * 1000.0);
             if let Ok(Some(c)) = crossover(fa, fb, lo, hi, far) {
                 let (below, above) = match c.faster_below {
-                    Which::A => (&a.name, &b.name),
-                    Which::B => (&b.name, &a.name),
+                    Which::A => (a, b),
+                    Which::B => (b, a),
                 };
+                // Past the measured sizes, a design whose predictions carry a copying term
+                // must still be the cheaper one by that term's curve, or there is no
+                // crossing to report: its time class alone leaves out the copies.
+                if !c.inside_measured && !still_cheaper_with_copying(above, below, c.n_hi.max(2.0 * c.n)) {
+                    continue;
+                }
+                let (below, above) = (&below.name, &above.name);
                 crossovers.push(CrossoverOut {
                     faster_below: below.clone(),
                     faster_above: above.clone(),
@@ -99,6 +106,20 @@ fn crossovers(fitted: &[Fitted], predict_at: Option<u64>) -> Vec<CrossoverOut> {
         }
     }
     crossovers
+}
+
+/// Whether `above` is still cheaper than `below` at `n` once copying terms are counted
+/// (true when neither has one).
+fn still_cheaper_with_copying(above: &Fitted, below: &Fitted, n: f64) -> bool {
+    if above.copy.is_none() && below.copy.is_none() {
+        return true;
+    }
+    let cost = |f: &Fitted| match (&f.copy, &f.time) {
+        (Some(c), Some(t)) => c.cost_at(n).max(t.cost_at(n)),
+        (None, Some(t)) => t.cost_at(n),
+        _ => f64::NAN,
+    };
+    cost(above) < cost(below)
 }
 
 impl WorkloadAnalysis {

@@ -80,6 +80,25 @@ pub struct CopyingOut {
     pub share_predicted: f64,
     /// What the time class alone predicted there (ns).
     pub time_class_ns: f64,
+    /// The fitted time: fixed cost (ns), cost per row (ns), and the bytes' growth curve
+    /// (term label, coefficient) the cost per byte multiplies.
+    #[serde(default)]
+    pub fixed_ns: f64,
+    #[serde(default)]
+    pub per_row_ns: f64,
+    #[serde(default)]
+    pub bytes_terms: Vec<(String, f64)>,
+}
+
+impl CopyingOut {
+    /// The copy model's time at `n` (None from an old analysis without its curve).
+    pub fn cost_at(&self, n: f64) -> Option<f64> {
+        if self.bytes_terms.is_empty() {
+            return None;
+        }
+        let terms: Vec<(Term, f64)> = self.bytes_terms.iter().filter_map(|(t, c)| Term::from_label(t).map(|t| (t, *c))).collect();
+        Some(self.fixed_ns + self.per_row_ns * n + self.ns_per_byte * curve_at(&terms, n))
+    }
 }
 
 /// A prediction checked against a size that was measured but not fitted.

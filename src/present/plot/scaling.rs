@@ -177,7 +177,19 @@ fn scaling_design<DB: DrawingBackend>(
         };
         design_line(root, &curve(first.0, last.0), i, 1, 1.0)?;
         if let Some(t) = pl.target.filter(|&t| t as f64 > last.0) {
-            design_line(root, &curve(last.0, t as f64), i, 2, 0.4)?;
+            // A prediction with a copying term continues along its own curve (rows plus the
+            // bytes copied), so the line meets the mark at the target.
+            let copying = da.and_then(|da| da.prediction.as_ref()).and_then(|p| p.copying.as_ref()).filter(|c| c.cost_at(t as f64).is_some());
+            let continued = match copying {
+                Some(c) => (0..=60)
+                    .map(|k| last.0 * (t as f64 / last.0).powf(k as f64 / 60.0))
+                    .filter_map(|n| Some((n, c.cost_at(n)?)))
+                    .filter(|(_, y)| y.is_finite())
+                    .map(|(n, y)| (pl.px)(n, y.clamp(pl.y.0, pl.y.1)))
+                    .collect(),
+                None => curve(last.0, t as f64),
+            };
+            design_line(root, &continued, i, 2, 0.4)?;
             if let Some(p) = da.and_then(|da| da.prediction.as_ref()) {
                 let c = (pl.px)(t as f64, p.median.clamp(pl.y.0, pl.y.1));
                 draw_mark(root, c, mark_of(i), tint(ink(i), 0.75), false)?;

@@ -1,0 +1,99 @@
+//! Prediction rules on recorded measurements (`tests/data/prediction-runs/`, real sweeps cut
+//! to one workload each): predictions made from the smaller sizes are checked against the
+//! larger sizes' medians, which the test reads from the points itself — never against
+//! hard-coded timings.
+//!
+//! - Bytes that grow as n² while the time still looks linear carry the prediction (the
+//!   copying term, `analyse/copying.rs`).
+//! - With fewer than five sizes the bytes have no class, but their slope still stops the
+//!   cache reading from turning a quadratic time into "n log n or n²".
+//! - A crossover past the measured sizes never contradicts the predictions at the target.
+
+use assert_cmd::Command;
+use serde_json::Value;
+
+/// The median measured for `design` at `rows`, from the run's points.
+fn measured(run: &str, design: &str, rows: u64) -> f64 {
+    let text = std::fs::read_to_string(format!("{run}/points.jsonl")).expect("points");
+    text.lines()
+        .map(|l| serde_json::from_str::<Value>(l).expect("json line"))
+        .find(|r| r["record"] == "point" && r["design"] == design && r["rows"] == rows && r["measured"].is_object())
+        .and_then(|r| r["measured"]["median_ns"].as_f64())
+        .expect("a measured point")
+}
+
+fn analysis(run: &str, args: &[&str]) -> Value {
+    let out = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--json"]).args(args).output().expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let doc: Value = serde_json::from_slice(&out.stdout).expect("json");
+    doc["analysis"]["workloads"][0].clone()
+}
+
+fn design<'a>(w: &'a Value, name: &str) -> &'a Value {
+    w["designs"].as_array().expect("designs").iter().find(|d| d["design"] == name).expect("the design")
+}
+
+/// `row-growth-appends` (a quiet catalog sweep): `batches-of-256` fitted on 500…16k rows,
+/// where its time per row is flat while its bytes grow ×3.7 per doubling; measured at 64k.
+#[test]
+fn bytes_growing_as_n2_carry_a_prediction_past_the_fitted_sizes() {
+    let run = "tests/data/prediction-runs/row-growth-appends";
+    let at_64k = measured(run, "batches-of-256", 64_000);
+    let w = analysis(run, &["--fit-up-to", "16000", "--at", "64000"]);
+    let d = design(&w, "batches-of-256");
+    assert!(d["notes"].as_array().expect("notes").iter().any(|n| n.as_str().is_some_and(|n| n.contains("predictions carry that term"))), "{d}");
+    let p = &d["prediction"];
+    let c = &p["copying"];
+    assert_eq!(c["bytes_class"], "n²", "{p}");
+    // The time's class alone would have said far less than what was then measured.
+    let alone = c["time_class_ns"].as_f64().expect("time class");
+    assert!(alone < 0.75 * at_64k, "class alone {alone} against {at_64k}");
+    let median = p["median"].as_f64().expect("median");
+    assert!((median / at_64k - 1.0).abs() <= 0.25, "predicted {median}, measured {at_64k}");
+    // The hold-out check says the same, on the same point.
+    let h = d["holdout"].as_array().expect("holdout").iter().find(|h| h["rows"] == 64_000).expect("checked at 64k");
+    assert_eq!(h["measured_ns"].as_f64(), Some(at_64k));
+    assert!(h["error"].as_f64().expect("error").abs() <= 0.25, "{h}");
+}
+
+/// The same run, `one-at-a-time` fitted on its four sizes up to 4k rows (time slope 1.29,
+/// bytes slope 1.89): too few sizes for a bytes class, yet the time stays n² and 16k is
+/// predicted within 25% (read as "n log n or n²" it was 62% under).
+#[test]
+fn a_bytes_slope_keeps_a_quadratic_time_quadratic_below_five_sizes() {
+    let run = "tests/data/prediction-runs/row-growth-appends";
+    let at_16k = measured(run, "one-at-a-time", 16_000);
+    let w = analysis(run, &["--fit-up-to", "4000"]);
+    let d = design(&w, "one-at-a-time");
+    assert!(d["bytes"].is_null(), "four sizes: no bytes class, {d}");
+    assert!(d["bytes_exponent"].as_f64().expect("bytes slope") > 1.5, "{d}");
+    assert_eq!(d["time"]["class"], "n²", "{}", d["time"]);
+    let h = d["holdout"].as_array().expect("holdout").iter().find(|h| h["rows"] == 16_000).expect("checked at 16k");
+    assert_eq!(h["measured_ns"].as_f64(), Some(at_16k));
+    assert!(h["error"].as_f64().expect("error").abs() <= 0.25, "{h}");
+}
+
+/// `row-growth-extend` (another quiet sweep): `extend-in-place` grows as "n or n log n" in
+/// time while its bytes grow as n², so its prediction at 2M carries the copying term. The
+/// time class alone put a crossing with `batches-of-256` at about 2.5M rows; with the
+/// copies counted `extend-in-place` never becomes the cheaper one, and no crossover past
+/// the measured sizes may say otherwise than the predictions at the target.
+#[test]
+fn crossovers_past_the_data_agree_with_the_predictions() {
+    let run = "tests/data/prediction-runs/row-growth-extend";
+    let w = analysis(run, &[]);
+    let target = w["predict_at"].as_f64().expect("a target");
+    let extend = design(&w, "extend-in-place");
+    assert!(extend["prediction"]["copying"].is_object(), "{}", extend["prediction"]);
+    let predicted = |name: &str| design(&w, name)["prediction"]["median"].as_f64().expect("a prediction");
+    let crossovers = w["crossovers"].as_array().expect("crossovers");
+    assert!(!crossovers.is_empty());
+    for c in crossovers.iter().filter(|c| c["inside_measured"] == false && c["rows"].as_f64().expect("rows") < target) {
+        let (above, below) = (c["faster_above"].as_str().expect("name"), c["faster_below"].as_str().expect("name"));
+        assert!(predicted(above) < predicted(below), "{c}: {above} {} against {below} {}", predicted(above), predicted(below));
+    }
+    assert!(
+        !crossovers.iter().any(|c| c["faster_above"] == "extend-in-place" && c["inside_measured"] == false),
+        "{crossovers:?}"
+    );
+}
