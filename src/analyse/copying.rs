@@ -15,9 +15,11 @@
 //! subset of the three terms, the least weighted squares among the non-negative ones,
 //! relative residuals), and when the bytes term carries a share (k > 0) the prediction at
 //! n is `a + b·n + k·B̂(n)` with B̂ from the bytes' own growth fit. On the same 18 runs
-//! the three designs above (and column-growth's `reads-between`, whose time is already n²)
-//! were predicted within 25% 48 times of 72, against 19 for the time class alone (figures
-//! in DEVELOPERS.md, "Predictions").
+//! (`RUNS=… benches/prediction-accuracy.sh`), with this term and the bytes-slope rule of
+//! `fits::bounded_by_bytes` (which keeps `one-at-a-time` n² when four sizes are fitted),
+//! the three designs above were predicted within 25% 40 times of 54 (18, 12 and 10 of 18),
+//! against 10 before; no other design's prediction changed (DEVELOPERS.md, "How answers
+//! are decided").
 
 use super::output::{CopyingOut, PredictionOut};
 use crate::fit::growth::{curve_at, GrowthClass, GrowthFit, Term};
