@@ -167,27 +167,21 @@ fn scaling_design<DB: DrawingBackend>(
     // The fitted growth curve over the measured range, then continued (faint) to the target.
     if let (Some(fit), Some(first), Some(last)) = (da.and_then(|da| da.time.as_ref()), measured.first(), measured.last()) {
         let f = |n: f64| fit.cost_at(n).unwrap_or(f64::NAN);
-        let curve = |from: f64, to: f64| -> Vec<(i32, i32)> {
+        let curve = |cost: &dyn Fn(f64) -> f64, from: f64, to: f64| -> Vec<(i32, i32)> {
             (0..=60)
                 .map(|k| from * (to / from).powf(k as f64 / 60.0))
-                .filter(|n| f(*n).is_finite())
-                .map(|n| (n, f(n).clamp(pl.y.0, pl.y.1)))
-                .map(|(n, y)| (pl.px)(n, y))
+                .filter(|n| cost(*n).is_finite())
+                .map(|n| (pl.px)(n, cost(n).clamp(pl.y.0, pl.y.1)))
                 .collect()
         };
-        design_line(root, &curve(first.0, last.0), i, 1, 1.0)?;
+        design_line(root, &curve(&f, first.0, last.0), i, 1, 1.0)?;
         if let Some(t) = pl.target.filter(|&t| t as f64 > last.0) {
             // A prediction with a copying term continues along its own curve (rows plus the
             // bytes copied), so the line meets the mark at the target.
             let copying = da.and_then(|da| da.prediction.as_ref()).and_then(|p| p.copying.as_ref()).filter(|c| c.cost_at(t as f64).is_some());
             let continued = match copying {
-                Some(c) => (0..=60)
-                    .map(|k| last.0 * (t as f64 / last.0).powf(k as f64 / 60.0))
-                    .filter_map(|n| Some((n, c.cost_at(n)?)))
-                    .filter(|(_, y)| y.is_finite())
-                    .map(|(n, y)| (pl.px)(n, y.clamp(pl.y.0, pl.y.1)))
-                    .collect(),
-                None => curve(last.0, t as f64),
+                Some(c) => curve(&|n| c.cost_at(n).unwrap_or(f64::NAN), last.0, t as f64),
+                None => curve(&f, last.0, t as f64),
             };
             design_line(root, &continued, i, 2, 0.4)?;
             if let Some(p) = da.and_then(|da| da.prediction.as_ref()) {
