@@ -1,7 +1,8 @@
 //! One design of a workload analysed: which measured points its fits use (busy sizes left
 //! out of time, memory keeping every size, `--top-sizes`, `--fit-up-to`), the fits of time,
 //! allocated bytes and peak memory, doubling ratios, predictions at the target (with a
-//! copying term when the bytes outgrow the time) and the hold-out checks against sizes measured but not fitted.
+//! copying term when the bytes outgrow the time) and the hold-out checks against sizes
+//! measured but not fitted.
 
 use super::copying::{copy_model, CopyModel};
 use super::fits::{bounded_by_bytes, fit_time, predict_with_alternative};

@@ -9,7 +9,8 @@
 //!
 //! The parts: the records (`output.rs`), how one design's fits are read — time on
 //! quartiles, predictions, the cache reading (`fits.rs`) —, the copying term of a
-//! prediction (`copying.rs`), and one design analysed (`design.rs`); this file runs them over a workload and finds the crossovers.
+//! prediction (`copying.rs`), and one design analysed (`design.rs`); this file runs them
+//! over a workload and finds the crossovers.
 
 mod copying;
 mod design;
@@ -17,7 +18,7 @@ mod fits;
 mod output;
 
 pub use fits::{bounded_by_bytes, fit_time, predict_with_alternative, MEMORY_HIERARCHY_SLOPE};
-pub use output::{class_of, CopyingOut, CrossoverOut, DesignAnalysis, ExponentOut, GrowthOut, HoldoutCheck, PredictionOut};
+pub use output::{class_of, pair_of, CopyingOut, CrossoverOut, DesignAnalysis, ExponentOut, GrowthOut, HoldoutCheck, PredictionOut};
 
 use crate::fit::predict::{crossover, Which};
 use crate::results::reader::{RunResults, WorkloadResults};

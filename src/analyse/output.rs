@@ -156,10 +156,7 @@ impl GrowthOut {
         if self.class == "unclear" {
             return format!("unclear (slope {:.2})", self.top_slope.unwrap_or(f64::NAN));
         }
-        match (class_of(&self.class), self.alternative.as_deref().and_then(class_of)) {
-            (Some(best), alt) => crate::fit::growth::pair_label(best, alt),
-            (None, _) => self.class.clone(),
-        }
+        pair_of(&self.class, self.alternative.as_deref())
     }
 
     /// True when `class` is the chosen class, the alternative, or between them.
@@ -226,4 +223,13 @@ fn out(f: &GrowthFit) -> GrowthOut {
 /// A class label back to the class.
 pub fn class_of(label: &str) -> Option<GrowthClass> {
     GrowthClass::from_label(label)
+}
+
+/// "n or n log n" from a class label and its alternative's (the label itself when it is no
+/// class).
+pub fn pair_of(class: &str, alternative: Option<&str>) -> String {
+    match (class_of(class), alternative.and_then(class_of)) {
+        (Some(best), alt) => crate::fit::growth::pair_label(best, alt),
+        (None, _) => class.to_string(),
+    }
 }

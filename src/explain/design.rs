@@ -316,7 +316,7 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
                 format!(
                     "the copies grow faster than the rest of the work, so the prediction ({}) counts them; the time's own class ({}) says {}",
                     time_ns(p.median),
-                    class_label(&p.class, p.alternative.as_deref()),
+                    crate::analyse::pair_of(&p.class, p.alternative.as_deref()),
                     time_ns(c.time_class_ns)
                 ),
                 String::new(),
@@ -330,13 +330,5 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
                 "measure a size closer to the target if the decision depends on it".into(),
             ));
         }
-    }
-}
-
-/// "n or n log n" from a prediction's class and alternative labels.
-fn class_label(class: &str, alternative: Option<&str>) -> String {
-    match (GrowthClass::from_label(class), alternative.and_then(GrowthClass::from_label)) {
-        (Some(c), alt) => crate::fit::growth::pair_label(c, alt),
-        (None, _) => class.to_string(),
     }
 }

@@ -93,6 +93,10 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
     }
 }
 
+/// Confirmed sizes that make a change stand without the two largest (with at least half of
+/// the sizes compared): see [`confirm`].
+pub const MOST_SIZES_MIN: usize = 4;
+
 /// Confirmation of one design's points (in size order): a regression or improvement is
 /// confirmed when a neighbouring compared size made the same call, or the design was
 /// compared at one size only. A change in the code shows at more than one size; run-to-run
@@ -112,10 +116,6 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
 /// its 10 sizes in four of twelve pairings with unchanged baselines while one of its two
 /// largest held; no pairing of unchanged code (twelve of tiny-ledger, twelve whole
 /// catalogs) had a change at four sizes or more.
-/// Confirmed sizes that make a change stand without the two largest (with at least half of
-/// the sizes compared): see [`confirm`].
-pub const MOST_SIZES_MIN: usize = 4;
-
 pub(super) fn confirm(points: &mut [PointGate]) {
     let calls: Vec<Call> = points.iter().map(|p| p.call).collect();
     for (k, p) in points.iter_mut().enumerate() {
