@@ -45,6 +45,8 @@ fn bytes_growing_as_n2_carry_a_prediction_past_the_fitted_sizes() {
     let p = &d["prediction"];
     let c = &p["copying"];
     assert_eq!(c["bytes_class"], "n²", "{p}");
+    // Its share is stated at the largest size fitted, not the largest measured.
+    assert_eq!(c["largest_rows"], 16_000, "{p}");
     // The time's class alone would have said far less than what was then measured.
     let alone = c["time_class_ns"].as_f64().expect("time class");
     assert!(alone < 0.75 * at_64k, "class alone {alone} against {at_64k}");

@@ -37,6 +37,8 @@ pub struct CopyModel {
     k: f64,
     /// The bytes term's share of the fitted time at the largest fitted size.
     share_at_largest: f64,
+    /// The largest fitted size (rows).
+    largest_rows: u64,
     bytes_class: GrowthClass,
     /// How the bytes grow: the bytes' own growth fit, or with fewer than five sizes (too
     /// few for a class) a non-negative fit of 1, n and the leading term their log-log
@@ -122,7 +124,7 @@ pub fn copy_model(measured: &[(u64, &Measured)], time: &GrowthFit, bytes: Option
     }
     let &(n, bytes_n, _) = points.last()?;
     let share_at_largest = k * bytes_n / (a + b * n + k * bytes_n);
-    Some(CopyModel { a, b, k, share_at_largest, bytes_class, bytes_curve })
+    Some(CopyModel { a, b, k, share_at_largest, largest_rows: n as u64, bytes_class, bytes_curve })
 }
 
 impl CopyModel {
@@ -162,6 +164,7 @@ impl CopyModel {
                 bytes_class: self.bytes_class.label().to_string(),
                 ns_per_byte: self.k,
                 share_at_largest: self.share_at_largest,
+                largest_rows: self.largest_rows,
                 share_predicted: self.k * bytes_n / median,
                 time_class_ns: base.median,
                 fixed_ns: self.a,

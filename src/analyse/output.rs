@@ -76,6 +76,9 @@ pub struct CopyingOut {
     pub ns_per_byte: f64,
     /// The bytes term's share of the fitted time at the largest fitted size.
     pub share_at_largest: f64,
+    /// That size (0 from an old analysis).
+    #[serde(default)]
+    pub largest_rows: u64,
     /// Its share of the predicted time.
     pub share_predicted: f64,
     /// What the time class alone predicted there (ns).

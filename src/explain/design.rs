@@ -301,7 +301,11 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
     }
     if let Some(p) = &da.prediction {
         if let Some(c) = &p.copying {
-            let largest = da.measured_sizes.iter().copied().filter(|r| *r as f64 <= p.rows as f64).max().unwrap_or(0);
+            // The largest fitted size (with `--fit-up-to`, not the largest measured).
+            let largest = match c.largest_rows {
+                0 => da.measured_sizes.iter().copied().filter(|r| *r <= p.rows).max().unwrap_or(0),
+                n => n,
+            };
             findings.push(f(
                 "copying",
                 format!(
