@@ -146,6 +146,51 @@ fn key_references_between_related_public_files() {
 }
 
 #[test]
+fn related_public_files_become_one_workload_whose_joins_see_the_samples_keys() {
+    // The same two files (tests/data/README.md): with references found, `shape` writes one
+    // workload with `tables:`, the referring columns drawn from airports' key.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("air.yaml");
+    let o = out.to_str().expect("path");
+    let j = json_of(&framecost(&["shape", "tests/data/airports.csv", "tests/data/flights-airport.csv", "--out", o, "--json"]));
+    let rel = &j["related"];
+    assert_eq!(rel["tables"], serde_json::json!(["airports", "flights_airport"]));
+    assert_eq!(rel["swept_table"], "flights_airport");
+    assert_eq!(rel["spec_file"], o);
+    // One file, not one per sample.
+    assert!(out.is_file());
+    assert!(!dir.path().join("air-airports.yaml").exists());
+    let spec = std::fs::read_to_string(&out).expect("spec");
+    assert_eq!(spec, rel["spec"].as_str().expect("spec text"));
+    // 3376 airports beside 5366 routes: 1688/2683 does not fit `rows:` (a ≤ 1000), so the
+    // nearest share that does, 1000/1589 (3376.98 rows at 5366).
+    assert!(spec.contains("rows: 1000/1589"), "{spec}");
+    for col in ["origin", "destination"] {
+        let line = spec.lines().find(|l| l.contains(&format!("{{name: {col}, kind: int"))).unwrap_or_else(|| panic!("{col}:\n{spec}"));
+        assert!(line.contains("references: airports.iata"), "{line}");
+        assert!(line.contains("coverage: "), "{line}");
+    }
+    // Each referring column's note sits with it alone (the referenced key carries none).
+    assert_eq!(spec.matches("#   refers to airports.iata").count(), 2, "{spec}");
+    // The referenced column is a key; nothing still refers by text.
+    assert!(spec.contains("{name: iata, kind: key"), "{spec}");
+    let lint = framecost(&["lint", o]);
+    assert_eq!(lint.status.code(), Some(0), "{}", String::from_utf8_lossy(&lint.stderr));
+    // Generated as a sweep does at the sample's rows, the routes refer to as many distinct
+    // airports as the sample did (303 origins, 304 destinations; counted with Python's csv
+    // module, tests/data/README.md) within the fidelity tolerance (10%).
+    let flights = &j["tables"][1];
+    for (col, n) in [("origin", 303.0), ("destination", 304.0)] {
+        let c = column(flights, col);
+        assert_eq!(c["sample"]["kind"], "reference");
+        assert_eq!(c["sample"]["distinct"].as_f64(), Some(n));
+        let g = c["generated"]["distinct"].as_f64().expect("distinct");
+        assert!((g - n).abs() <= (0.1 * n as f64).floor(), "{col}: generated {g} distinct against {n}");
+        assert!(!c["differs"].as_array().expect("differs").iter().any(|d| d == "distinct"), "{c}");
+    }
+}
+
+#[test]
 fn a_column_without_a_kind_is_reported_not_dropped() {
     use polars::prelude::*;
     let dir = tempfile::tempdir().expect("tempdir");

@@ -85,3 +85,38 @@ fn columns_made_whole_are_named() {
     t.columns[1].order = framecost::spec::model::Order::Sorted;
     assert!(chunk_blocker(&t).is_some_and(|m| m.contains("variety")));
 }
+
+#[test]
+fn coverage_limits_the_keys_referred_to_and_is_checked() {
+    let spec = SPEC.replace("skew: 0.8, unmatched: 10%}", "skew: 0.8, unmatched: 10%, coverage: 5%}");
+    let plan = framecost::spec::load_str("related.yaml", &spec).expect("spec is sound");
+    let n = 20_000;
+    let tables = generate_tables(&plan.tables, plan.seed, plan.related, n).expect("tables");
+    // 1000 members, 5% of them drawn from: at most 50 distinct matched members (18,000
+    // matched rows over 50 keys: every one of them is drawn, with overwhelming probability).
+    let refs = tables[2].1.column("member_id").expect("col").i64().expect("i64").clone();
+    let matched: std::collections::HashSet<i64> = refs.into_no_null_iter().filter(|v| (0..1000).contains(v)).collect();
+    assert_eq!(matched.len(), 50, "distinct members referred to");
+    // Spread over the keys, not the first 50 ids.
+    assert!(matched.iter().any(|&v| v >= 500), "{matched:?}");
+    // The unmatched share is untouched by coverage (binomial sd at 20k is 0.2%).
+    let refs = tables[2].1.column("member_id").expect("col").i64().expect("i64").clone();
+    let unmatched = refs.into_no_null_iter().filter(|&v| !(0..1000).contains(&v)).count() as f64 / n as f64;
+    assert!((unmatched - 0.10).abs() < 0.01, "unmatched share {unmatched}");
+
+    // Without `coverage` the table is the one it always was: the same fingerprint.
+    let before = framecost::spec::load_str("related.yaml", SPEC).expect("spec");
+    let with_all = framecost::spec::load_str("related.yaml", &SPEC.replace("unmatched: 10%}", "unmatched: 10%, coverage: 100%}")).expect("spec");
+    let a = generate_tables(&before.tables, before.seed, before.related, 4_000).expect("tables");
+    let b = generate_tables(&with_all.tables, with_all.seed, with_all.related, 4_000).expect("tables");
+    assert!(a[2].1.equals_missing(&b[2].1));
+
+    // Refused: coverage without a reference, and a coverage of nothing.
+    for (bad, says) in [
+        (SPEC.replace("{name: district, kind: int,", "{name: district, kind: int, coverage: 50%,"), "applies only with `references`"),
+        (SPEC.replace("unmatched: 10%}", "unmatched: 10%, coverage: 0}"), "above 0"),
+    ] {
+        let e = framecost::spec::load_str("related.yaml", &bad).err().expect("refused").to_string();
+        assert!(e.contains(says), "{e}");
+    }
+}

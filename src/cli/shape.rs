@@ -7,11 +7,13 @@
 //! spec's own keys, commented with what was measured. A column it cannot model is listed
 //! with the reason. Then it generates a table from the spec at the sample's size and prints
 //! the fidelity report: each statistic of the sample beside the generated one, with `≠`
-//! beyond the stated tolerances. With several files it writes one workload per file and
-//! reports key references between them.
+//! beyond the stated tolerances. With several files it looks for key references between
+//! them: when it finds some, it writes one workload whose `tables:` are related by them
+//! (placeholder designs in SQL join them) and checks each table as a sweep generates it;
+//! when it finds none, one workload per file.
 //!
-//! Output: with `--out`, the skeleton goes to that file (several files: `OUT-<table>.yaml`
-//! beside it) and the report to stdout; without it, the skeleton goes to stdout and the
+//! Output: with `--out`, the skeleton goes to that file (several unrelated files:
+//! `OUT-<table>.yaml` beside it) and the report to stdout; without it, the skeleton goes to stdout and the
 //! report to stderr; `--json` puts everything on stdout as one JSON document
 //! (`schema: framecost.shape/1`). CSV cells `NA`, `N/A`, `NULL`, `null`, `NaN`, `None` and
 //! empty cells are null unless `--null` names others. Exit 0 on success, 2 for bad input.
@@ -26,7 +28,7 @@ pub struct Args {
     /// Sample files: .csv (.tsv), .parquet, .ipc/.arrow.
     #[arg(required = true)]
     pub files: Vec<PathBuf>,
-    /// Write the workload skeleton here (several files: OUT-<table>.yaml beside it).
+    /// Write the workload skeleton here (several unrelated files: OUT-<table>.yaml beside it).
     #[arg(long, value_name = "SPEC.yaml")]
     pub out: Option<PathBuf>,
     /// Copy the most frequent labels of text columns into the comments (default: never).
@@ -77,7 +79,7 @@ fn report(outcome: &shape::ShapeOutcome) -> String {
     }
     if outcome.tables.len() > 1 {
         if outcome.references.is_empty() {
-            s += "key references: none found\n";
+            s += "key references: none found; one workload per file\n";
         }
         for r in &outcome.references {
             s += &format!(
@@ -91,6 +93,19 @@ fn report(outcome: &shape::ShapeOutcome) -> String {
                 r.target_values,
                 if r.names_relate { "; names relate" } else { "" }
             );
+        }
+        if let Some(rel) = &outcome.related {
+            let used: Vec<String> = rel.layout.used.iter().map(|r| format!("{}.{} → {}.{}", r.table, r.column, r.refers_to_table, r.refers_to_column)).collect();
+            s += &format!(
+                "related workload: {} tables (`{}` follows the swept size), related by {}\n",
+                rel.layout.names.len(),
+                rel.layout.names[rel.layout.swept],
+                used.join(", ")
+            );
+            let left = outcome.references.len() - rel.layout.used.len();
+            if left > 0 {
+                s += &format!("  {left} reference(s) not stated: a referenced column is a key and cannot refer in turn\n");
+            }
         }
     }
     s
@@ -125,14 +140,19 @@ pub fn run(args: Args) -> Result<(), Failure> {
         Err(e) => return fail(e),
     };
     let names: Vec<String> = outcome.tables.iter().map(|t| t.name.clone()).collect();
-    let mut written: Vec<Option<String>> = vec![None; names.len()];
+    // Related samples: one workload; else one per sample.
+    let texts: Vec<&str> = match &outcome.related {
+        Some(r) => vec![r.spec_text.as_str()],
+        None => outcome.tables.iter().map(|t| t.spec_text.as_str()).collect(),
+    };
+    let mut written: Vec<Option<String>> = vec![None; texts.len()];
     if let Some(out) = &args.out {
-        let paths = targets(out, &names);
+        let paths = if outcome.related.is_some() { vec![out.clone()] } else { targets(out, &names) };
         if let Some(p) = paths.iter().find(|p| p.exists() && !args.force) {
             return fail(format!("{}: already exists (--force to replace it)", p.display()));
         }
-        for (i, (p, t)) in paths.iter().zip(&outcome.tables).enumerate() {
-            if let Err(e) = write_spec(p, &t.spec_text) {
+        for (i, (p, t)) in paths.iter().zip(&texts).enumerate() {
+            if let Err(e) = write_spec(p, t) {
                 return fail(e);
             }
             written[i] = Some(p.display().to_string());
@@ -152,8 +172,7 @@ pub fn run(args: Args) -> Result<(), Failure> {
         }
         print!("{text}");
     } else {
-        let docs: Vec<&str> = outcome.tables.iter().map(|t| t.spec_text.as_str()).collect();
-        print!("{}", docs.join("---\n"));
+        print!("{}", texts.join("---\n"));
         eprint!("{text}");
     }
     Ok(())

@@ -123,6 +123,18 @@ pub struct ColumnPlan {
     /// Share of rows whose reference has no match.
     #[serde(default)]
     pub unmatched: f64,
+    /// Share of the referenced keys that references draw from (1: all of them; records
+    /// written before it existed read as 1, and 1 is not written, so they stay as they were).
+    #[serde(default = "all_keys", skip_serializing_if = "is_all_keys")]
+    pub coverage: f64,
+}
+
+fn all_keys() -> f64 {
+    1.0
+}
+
+fn is_all_keys(v: &f64) -> bool {
+    *v == 1.0
 }
 
 /// A value range, typed by column kind. Dates are days since 1970-01-01.

@@ -63,7 +63,25 @@ fn side(p: &Profile) -> Side {
 
 /// Compare a sample column with the generated one.
 pub fn compare(sample: &Profile, generated: &Profile) -> ColumnFidelity {
-    let (a, b) = (side(sample), side(generated));
+    compare_as(sample, generated, false)
+}
+
+/// Compare a referring column of related samples with the generated reference: its values
+/// are the referenced key's integers whatever the sample's were, so both sides are of kind
+/// `reference` and only nulls, distinct values and the top share (how unevenly rows share a
+/// key) are compared.
+pub fn compare_reference(sample: &Profile, generated: &Profile) -> ColumnFidelity {
+    compare_as(sample, generated, true)
+}
+
+fn compare_as(sample: &Profile, generated: &Profile, reference: bool) -> ColumnFidelity {
+    let (mut a, mut b) = (side(sample), side(generated));
+    if reference {
+        for s in [&mut a, &mut b] {
+            s.kind = Some("reference".into());
+            s.percentiles = None;
+        }
+    }
     let mut differs = Vec::new();
     if a.kind != b.kind {
         differs.push("kind".to_string());
@@ -96,6 +114,7 @@ pub fn compare(sample: &Profile, generated: &Profile) -> ColumnFidelity {
         _ => {}
     }
     let percentiles_of = match sample.class {
+        _ if reference => "referenced keys (not compared)",
         _ if key => "keys (not compared)",
         ValueClass::Text => "lengths",
         ValueClass::Date => "days",
@@ -132,7 +151,7 @@ pub fn render(table: &str, rows: usize, cols: &[ColumnFidelity]) -> String {
         let kinds = format!("{} ▸ {}", c.sample.kind.as_deref().unwrap_or("—"), c.generated.kind.as_deref().unwrap_or("—"));
         let q = ["p10", "p50", "p90"].iter().map(|k| mark(c, k)).collect::<String>();
         out += &format!(
-            "  {:<w$}  {}{:<20} nulls {}{:>6} ▸ {:<6} distinct {}{:>6} ▸ {:<6} top {}{:>6} ▸ {:<6} {} {}{} ▸ {}\n",
+            "  {:<w$}  {}{:<21} nulls {}{:>6} ▸ {:<6} distinct {}{:>6} ▸ {:<6} top {}{:>6} ▸ {:<6} {} {}{} ▸ {}\n",
             c.column,
             mark(c, "kind"),
             kinds,

@@ -193,6 +193,7 @@ fn empty_spec(name: &str, kind: ColumnKind) -> ColumnSpec {
         true_share: None,
         references: None,
         unmatched: None,
+        coverage: None,
     }
 }
 

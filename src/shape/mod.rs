@@ -6,7 +6,8 @@
 //! [`infer`] (statistics → column spec and the reasons) → [`render`] (specs → commented YAML,
 //! loaded back through `spec::load_str` so it always lints) → `table::generate` at the
 //! sample's rows → [`profile`] again → [`fidelity`] (the two side by side). With several
-//! samples, [`refs`] finds key references between them. A newcomer must know: raw values
+//! samples, [`refs`] finds key references between them, and [`related`] writes them as one
+//! workload with `tables:` when it finds some. A newcomer must know: raw values
 //! never reach the spec (generated labels are synthetic); only `--keep-labels` copies the
 //! most frequent labels, into comments.
 
@@ -15,6 +16,7 @@ pub mod infer;
 pub mod profile;
 pub mod read;
 pub mod refs;
+pub mod related;
 pub mod render;
 
 use polars::prelude::*;
@@ -40,13 +42,27 @@ pub struct TableShape {
     pub columns: Vec<infer::Inferred>,
     /// The workload skeleton (checked: it lints).
     pub spec_text: String,
+    /// The sample beside a table generated from the spec at the sample's rows: this table's
+    /// own skeleton, or — when the samples are related — the related workload's table.
     pub fidelity: Vec<fidelity::ColumnFidelity>,
+    /// Top labels per text column (`--keep-labels` only).
+    pub labels: Vec<(String, Vec<(String, u64)>)>,
+}
+
+/// Samples related by key references, as one workload with `tables:`.
+pub struct RelatedShape {
+    pub layout: related::Layout,
+    /// The workload (checked: it lints).
+    pub spec_text: String,
 }
 
 /// Everything `shape` found.
 pub struct ShapeOutcome {
     pub tables: Vec<TableShape>,
     pub references: Vec<refs::Reference>,
+    /// Several samples with references between them: one workload relating them (the
+    /// per-sample skeletons are then not written).
+    pub related: Option<RelatedShape>,
 }
 
 /// A workload name from a file's stem: letters, digits, `-` and `_`, at most 64.
@@ -114,15 +130,49 @@ pub fn shape(paths: &[PathBuf], opts: &ShapeOptions) -> Result<ShapeOutcome, Str
             .map_err(|e| format!("{}: the inferred spec does not lint (a framecost bug; please report it):\n{e}", path.display()))?;
         let generated = crate::table::generate(&plan.columns, plan.seed, df.height() as u64)
             .map_err(|e| format!("{}: could not generate a table from the inferred spec: {e}", path.display()))?;
-        let gen_profiles = profile::profile_all(&generated)?;
-        let fidelity = columns
-            .iter()
-            .filter(|c| c.spec.is_ok())
-            .filter_map(|c| gen_profiles.iter().find(|g| g.name == c.profile.name).map(|g| fidelity::compare(&c.profile, g)))
-            .collect();
-        tables.push(TableShape { name: name.clone(), file: path.clone(), rows: df.height(), columns, spec_text, fidelity });
+        let fidelity = fidelity_of(&columns, &generated, &[])?;
+        tables.push(TableShape { name: name.clone(), file: path.clone(), rows: df.height(), columns, spec_text, fidelity, labels });
     }
-    Ok(ShapeOutcome { tables, references })
+    let related = relate(&mut tables, &references, opts.seed)?;
+    Ok(ShapeOutcome { tables, references, related })
+}
+
+/// Each modelled column of a sample beside the generated one; `referring` columns are
+/// compared as references (their values are the referenced key's integers).
+fn fidelity_of(columns: &[infer::Inferred], generated: &DataFrame, referring: &[&str]) -> Result<Vec<fidelity::ColumnFidelity>, String> {
+    let gen_profiles = profile::profile_all(generated)?;
+    Ok(columns
+        .iter()
+        .filter(|c| c.spec.is_ok() || referring.contains(&c.profile.name.as_str()))
+        .filter_map(|c| {
+            let g = gen_profiles.iter().find(|g| g.name == c.profile.name)?;
+            Some(if referring.contains(&c.profile.name.as_str()) { fidelity::compare_reference(&c.profile, g) } else { fidelity::compare(&c.profile, g) })
+        })
+        .collect())
+}
+
+/// The related workload of samples with references between them, and each table's fidelity
+/// against it (generated as a sweep does, at the largest sample's rows).
+fn relate(tables: &mut [TableShape], references: &[refs::Reference], seed: u64) -> Result<Option<RelatedShape>, String> {
+    let sizes: Vec<(&str, usize)> = tables.iter().map(|t| (t.name.as_str(), t.rows)).collect();
+    let Some(layout) = related::layout(&sizes, references) else { return Ok(None) };
+    let files: Vec<String> = tables.iter().map(|t| t.file.display().to_string()).collect();
+    let docs: Vec<render::TableDoc> = tables
+        .iter()
+        .zip(&files)
+        .map(|(t, file)| render::TableDoc { name: &t.name, file, rows: t.rows, seed, columns: &t.columns, references, labels: &t.labels })
+        .collect();
+    let spec_text = related::workload(&layout, &docs, seed);
+    let plan = crate::spec::load_str("related.yaml", &spec_text)
+        .map_err(|e| format!("the related workload does not lint (a framecost bug; please report it):\n{e}"))?;
+    let generated = crate::table::related::generate_tables(&plan.tables, plan.seed, plan.related, tables[layout.swept].rows as u64)
+        .map_err(|e| format!("could not generate the related tables: {e}"))?;
+    for (i, t) in tables.iter_mut().enumerate() {
+        let Some((_, df)) = generated.iter().find(|(n, _)| n == &layout.names[i]) else { continue };
+        let referring: Vec<&str> = layout.used.iter().filter(|r| r.table == t.name).map(|r| r.column.as_str()).collect();
+        t.fidelity = fidelity_of(&t.columns, df, &referring)?;
+    }
+    Ok(Some(RelatedShape { layout, spec_text }))
 }
 
 /// `shape --json`: everything as one document.
@@ -132,6 +182,21 @@ pub struct JsonOut<'a> {
     pub tolerances: &'static str,
     pub tables: Vec<JsonTable<'a>>,
     pub references: &'a [refs::Reference],
+    /// Samples related by references: the one workload written for them (else null).
+    pub related: Option<JsonRelated<'a>>,
+}
+
+#[derive(Serialize)]
+pub struct JsonRelated<'a> {
+    /// Where the workload was written (None: not written).
+    pub spec_file: Option<String>,
+    pub spec: &'a str,
+    /// The tables' names in the workload, in the samples' order.
+    pub tables: &'a [String],
+    /// The table whose rows follow the swept size.
+    pub swept_table: &'a str,
+    /// The references stated as `references:` keys.
+    pub references: &'a [refs::Reference],
 }
 
 #[derive(Serialize)]
@@ -139,7 +204,7 @@ pub struct JsonTable<'a> {
     pub name: &'a str,
     pub file: String,
     pub rows: usize,
-    /// Where the skeleton was written (None: not written).
+    /// Where the skeleton was written (None: not written, or written as part of `related`).
     pub spec_file: Option<String>,
     pub spec: &'a str,
     pub columns: Vec<JsonColumn<'a>>,
@@ -166,7 +231,10 @@ pub struct JsonUnmodelled<'a> {
 }
 
 impl ShapeOutcome {
+    /// `written`: where each skeleton went — the related workload alone when there is one,
+    /// else one per table.
     pub fn json(&self, written: &[Option<String>]) -> serde_json::Value {
+        let own = |i: usize| if self.related.is_some() { None } else { written.get(i).cloned().flatten() };
         let tables = self
             .tables
             .iter()
@@ -175,7 +243,7 @@ impl ShapeOutcome {
                 name: &t.name,
                 file: t.file.display().to_string(),
                 rows: t.rows,
-                spec_file: written.get(i).cloned().flatten(),
+                spec_file: own(i),
                 spec: &t.spec_text,
                 columns: t
                     .columns
@@ -200,6 +268,13 @@ impl ShapeOutcome {
                 fidelity: &t.fidelity,
             })
             .collect();
-        serde_json::to_value(JsonOut { schema: SCHEMA, tolerances: fidelity::TOLERANCES, tables, references: &self.references }).unwrap_or_default()
+        let related = self.related.as_ref().map(|r| JsonRelated {
+            spec_file: written.first().cloned().flatten(),
+            spec: &r.spec_text,
+            tables: &r.layout.names,
+            swept_table: &r.layout.names[r.layout.swept],
+            references: &r.layout.used,
+        });
+        serde_json::to_value(JsonOut { schema: SCHEMA, tolerances: fidelity::TOLERANCES, tables, references: &self.references, related }).unwrap_or_default()
     }
 }

@@ -28,6 +28,9 @@ pub struct Reference {
     pub target_values: usize,
     /// The names relate (see the module rule).
     pub names_relate: bool,
+    /// Share of the referring column's non-null rows whose value is not found in the
+    /// referred column (what a join would drop): a related workload's `unmatched`.
+    pub unmatched_rows: f64,
 }
 
 #[derive(PartialEq, Eq, Hash)]
@@ -80,7 +83,7 @@ pub fn find(tables: &[(String, &DataFrame)]) -> Vec<Reference> {
         for c in df.columns() {
             let Some(v) = keys(c.as_materialized_series()) else { continue };
             let is_text = matches!(v.first(), Some(Key::Text(_)));
-            let own: HashSet<Key> = v.into_iter().collect();
+            let own: HashSet<&Key> = v.iter().collect();
             if own.len() < 2 {
                 continue;
             }
@@ -89,7 +92,7 @@ pub fn find(tables: &[(String, &DataFrame)]) -> Vec<Reference> {
                 if *yi == ti || *btext != is_text {
                     continue;
                 }
-                let found = own.iter().filter(|k| set.contains(k)).count();
+                let found = own.iter().filter(|k| set.contains(**k)).count();
                 let relate = names_relate(c.name(), bname, &tables[*yi].0);
                 let enough = found as f64 >= 0.95 * own.len() as f64 && (is_text || relate || own.len() as f64 >= 0.2 * set.len() as f64);
                 if !enough {
@@ -104,6 +107,7 @@ pub fn find(tables: &[(String, &DataFrame)]) -> Vec<Reference> {
                     found,
                     target_values: set.len(),
                     names_relate: relate,
+                    unmatched_rows: if found == own.len() { 0.0 } else { v.iter().filter(|k| !set.contains(*k)).count() as f64 / v.len() as f64 },
                 };
                 let better = match &best {
                     None => true,

@@ -3,9 +3,11 @@
 //!
 //! The text is written by hand (serde would drop the comments), then loaded back through
 //! `spec::load_str` by the caller, so a skeleton that would not lint is never written.
-//! Seam for several tables: today each sample becomes its own workload with one `table:`;
-//! when the spec has `tables:`, [`workload`] takes every table at once and references become
-//! keys instead of comments.
+//! One sample becomes a workload with one `table:` ([`workload`]). Several samples related
+//! by key references become one workload with `tables:` ([`related_workload`]): the
+//! referenced column is a key, the referring column an integer `references:` it, the
+//! largest sample's table follows the swept size and the others keep their share of it,
+//! and the placeholder designs are SQL joining them.
 
 use super::infer::Inferred;
 use super::refs::Reference;
@@ -77,6 +79,15 @@ pub fn column_yaml(c: &ColumnSpec) -> String {
     if let Some(r) = c.run {
         parts.push(format!("run: {r}"));
     }
+    if let Some(r) = &c.references {
+        parts.push(format!("references: {r}"));
+    }
+    if let Some(u) = c.unmatched {
+        parts.push(format!("unmatched: {}", u.0));
+    }
+    if let Some(v) = c.coverage {
+        parts.push(format!("coverage: {}", v.0));
+    }
     format!("{{{}}}", parts.join(", "))
 }
 
@@ -93,10 +104,45 @@ pub struct TableDoc<'a> {
 }
 
 /// Sizes around the sample's: a quarter, a half, the same, twice and four times.
-fn sizes(rows: usize) -> String {
+pub(super) fn sizes(rows: usize) -> String {
     let mut v: Vec<u64> = [rows / 4, rows / 2, rows, rows * 2, rows * 4].iter().map(|&r| r.max(1) as u64).collect();
     v.dedup();
     v.iter().map(|&n| crate::units::rows_label(n)).collect::<Vec<_>>().join(", ")
+}
+
+/// What the related workload changes about a column: its spec and why, one comment line.
+pub(super) type Remodel = Option<(ColumnSpec, String)>;
+
+/// A table's columns as YAML list items indented by `pad`, each with its comments;
+/// `remodel` replaces a column's inferred spec (keys and references of related tables).
+pub(super) fn columns_yaml(t: &TableDoc, pad: &str, remodel: &dyn Fn(&Inferred) -> Remodel) -> String {
+    let mut y = String::new();
+    for c in t.columns {
+        y += &format!("{pad}# {}: {} ({})\n", c.profile.name, c.measured, c.profile.dtype);
+        if let Some((_, labels)) = t.labels.iter().find(|(n, _)| n == &c.profile.name) {
+            let l: Vec<String> = labels.iter().map(|(v, k)| format!("{v} {k}")).collect();
+            y += &format!("{pad}#   most frequent (kept with --keep-labels): {}\n", l.join(", "));
+        }
+        for r in t.references.iter().filter(|r| r.table == t.name && r.column == c.profile.name) {
+            y += &format!(
+                "{pad}#   refers to {}.{}: {} of its {} distinct values found there ({} values, unique)\n",
+                r.refers_to_table, r.refers_to_column, r.found, r.distinct, r.target_values
+            );
+        }
+        let changed = remodel(c);
+        for ch in &c.choices {
+            y += &format!("{pad}#   {ch}\n");
+        }
+        match (&changed, &c.spec) {
+            (Some((spec, why)), _) => {
+                y += &format!("{pad}#   {why}\n");
+                y += &format!("{pad}- {}\n", column_yaml(spec));
+            }
+            (None, Ok(spec)) => y += &format!("{pad}- {}\n", column_yaml(spec)),
+            (None, Err(reason)) => y += &format!("{pad}# NOT MODELLED: `{}`: {reason}\n", c.profile.name),
+        }
+    }
+    y
 }
 
 /// The whole workload skeleton for one table.
@@ -109,26 +155,7 @@ pub fn workload(t: &TableDoc) -> String {
     y += &format!("about: >\n  A table shaped like {} ({} rows, {} columns).\n", t.file, t.rows, t.columns.len());
     y += &format!("seed: {}\n", t.seed);
     y += "table:\n  columns:\n";
-    for c in t.columns {
-        y += &format!("    # {}: {} ({})\n", c.profile.name, c.measured, c.profile.dtype);
-        if let Some((_, labels)) = t.labels.iter().find(|(n, _)| n == &c.profile.name) {
-            let l: Vec<String> = labels.iter().map(|(v, k)| format!("{v} {k}")).collect();
-            y += &format!("    #   most frequent (kept with --keep-labels): {}\n", l.join(", "));
-        }
-        for r in t.references.iter().filter(|r| r.column == c.profile.name) {
-            y += &format!(
-                "    #   refers to {}.{}: {} of its {} distinct values found there ({} values, unique)\n",
-                r.refers_to_table, r.refers_to_column, r.found, r.distinct, r.target_values
-            );
-        }
-        for ch in &c.choices {
-            y += &format!("    #   {ch}\n");
-        }
-        match &c.spec {
-            Ok(spec) => y += &format!("    - {}\n", column_yaml(spec)),
-            Err(reason) => y += &format!("    # NOT MODELLED: `{}`: {reason}\n", c.profile.name),
-        }
-    }
+    y += &columns_yaml(t, "    ", &|_| None);
     y += &format!("sizes: [{}]\n", sizes(t.rows));
     y += "budget: {per_point: 2s, whole_run: 60s}\n";
     y += "designs:   # placeholders: two generic designs that work on any table\n";

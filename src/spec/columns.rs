@@ -58,6 +58,17 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
             c.at_key(&p.key("unmatched"), "`unmatched` applies only with `references` (the share of values without a match)", None);
         }
         let unmatched = col.unmatched.map(|s| c.share(&p.key("unmatched"), s.0, "a share of unmatched values")).unwrap_or(0.0);
+        if col.coverage.is_some() && col.references.is_none() {
+            c.at_key(&p.key("coverage"), "`coverage` applies only with `references` (the share of the referenced keys that rows draw from)", None);
+        }
+        let coverage = match col.coverage {
+            Some(s) if s.0 <= 0.0 && s.0.is_finite() => {
+                c.at(&p.key("coverage"), format!("expected a share of the referenced keys above 0 and up to 1 (or 100%), found {}", s.0), None);
+                1.0
+            }
+            Some(s) => c.share(&p.key("coverage"), s.0, "a share of the referenced keys"),
+            None => 1.0,
+        };
         if col.run.is_some() && col.order != Order::Clustered {
             c.at_key(&p.key("run"), "`run` applies only with `order: clustered`", None);
         }
@@ -129,6 +140,7 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
             true_share,
             references: col.references.clone(),
             unmatched,
+            coverage,
         });
     }
     out

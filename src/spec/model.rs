@@ -162,6 +162,10 @@ pub struct ColumnSpec {
     /// With `references`: share of rows whose value has no match in the referenced key.
     #[serde(default)]
     pub unmatched: Option<Share>,
+    /// With `references`: share of the referenced key's values that rows draw from (the
+    /// rest are never referred to); 100% when absent.
+    #[serde(default)]
+    pub coverage: Option<Share>,
 }
 
 /// The size ladder: a list of row counts, or a geometric ladder.

@@ -93,20 +93,23 @@ pub fn chunk_blocker(t: &TablePlan) -> Option<String> {
 
 /// Values of a referencing column for rows `span`: a referenced key drawn uniformly or by
 /// Zipf rank (`skew`, scattered over the keys so the popular keys are not all the low
-/// ones), or — for the `unmatched` share of rows — a value above every key.
+/// ones) among the `coverage` share of the keys (at least one; all of them by default), or
+/// — for the `unmatched` share of rows — a value above every key.
 pub fn reference_values(c: &ColumnPlan, seed: u64, rows: u64, span: std::ops::Range<u64>, n_ref: u64) -> Vec<i64> {
     let st = Stream::new(seed, &c.name, VALUES);
     let um = Stream::new(seed, &c.name, UNMATCHED);
     let cut = (c.unmatched * u64::MAX as f64) as u64;
     let n = n_ref.max(1);
-    let alias = (c.skew > 0.0).then(|| Alias::zipf(n, c.skew));
+    // Ranks drawn among the covered keys; the scatter below still spreads them over all n.
+    let drawn = if c.coverage < 1.0 { ((c.coverage * n as f64).ceil() as u64).clamp(1, n) } else { n };
+    let alias = (c.skew > 0.0).then(|| Alias::zipf(drawn, c.skew));
     ordered(c, rows, span, |i| {
         if c.unmatched > 0.0 && um.at(i) < cut {
             return (n + st.below(i, n)) as i64;
         }
         let k = match &alias {
             Some(a) => a.draw(st.at(i)),
-            None => st.below(i, n),
+            None => st.below(i, drawn),
         };
         let pos = if n % SCATTER == 0 { k } else { (k as u128 * SCATTER as u128 % n as u128) as u64 };
         pos as i64
