@@ -145,6 +145,52 @@ impl TempFolder {
     }
 }
 
+/// How long a leftover folder must have gone untouched before [`remove_stale`] removes it.
+const STALE_AFTER: std::time::Duration = std::time::Duration::from_secs(600);
+
+/// Remove `framecost-<pid>-<n>` folders in `base` left by processes that ended without
+/// cleaning up (killed by a signal, the machine's OOM killer, a power cut): their process is
+/// gone and nothing in them changed for ten minutes. A folder of a live process, of a pid
+/// that exists again, or of any other name is left alone. Returns how many were removed.
+pub fn remove_stale(base: &Path) -> usize {
+    let Ok(entries) = std::fs::read_dir(base) else { return 0 };
+    let own = std::process::id();
+    let mut removed = 0;
+    for e in entries.flatten() {
+        let name = e.file_name().to_string_lossy().to_string();
+        let Some(pid) = stale_owner(&name) else { continue };
+        if pid == own || alive(pid) {
+            continue;
+        }
+        let Ok(meta) = std::fs::symlink_metadata(e.path()) else { continue };
+        let idle = meta.modified().ok().and_then(|m| m.elapsed().ok()).is_some_and(|d| d >= STALE_AFTER);
+        if meta.is_dir() && idle && std::fs::remove_dir_all(e.path()).is_ok() {
+            removed += 1;
+        }
+    }
+    removed
+}
+
+/// The pid in a name `framecost-<pid>-<counter>`, if it is one.
+fn stale_owner(name: &str) -> Option<u32> {
+    let rest = name.strip_prefix("framecost-")?;
+    let (pid, n) = rest.split_once('-')?;
+    (!pid.is_empty() && !n.is_empty() && pid.bytes().all(|b| b.is_ascii_digit()) && n.bytes().all(|b| b.is_ascii_digit())).then_some(())?;
+    pid.parse().ok()
+}
+
+/// Whether a process with this pid exists (signal 0 checks without sending anything; a
+/// process of another user answers EPERM, which also means it exists).
+fn alive(pid: u32) -> bool {
+    let Ok(p) = i32::try_from(pid) else { return true };
+    if p <= 0 {
+        return true;
+    }
+    // SAFETY: kill with signal 0 sends nothing; it only reports whether `p` exists.
+    let r = unsafe { libc::kill(p, 0) };
+    r == 0 || std::io::Error::last_os_error().raw_os_error() != Some(libc::ESRCH)
+}
+
 impl Drop for TempFolder {
     fn drop(&mut self) {
         let _ = std::fs::remove_dir_all(&self.path);
@@ -283,5 +329,35 @@ impl Step for ReadFiles {
                 .map_err(polars_err(NAME))?;
         }
         Ok(Value::Frame(df))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn only_idle_folders_of_ended_processes_are_removed() {
+        let base = tempfile::tempdir().expect("tempdir");
+        // Pids that cannot exist (above the kernel's pid limit, 2^22 at most on Linux).
+        let gone = base.path().join("framecost-99999999-0");
+        let fresh = base.path().join("framecost-99999998-1");
+        let mine = base.path().join(format!("framecost-{}-7", std::process::id()));
+        let other = base.path().join("framecost-fuzz");
+        for d in [&gone, &fresh, &mine, &other] {
+            std::fs::create_dir_all(d.join("inner")).expect("mkdir");
+        }
+        let old = std::time::SystemTime::now() - std::time::Duration::from_secs(3600);
+        for d in [&gone, &mine, &other] {
+            std::fs::File::open(d).expect("open").set_modified(old).expect("mtime");
+        }
+        assert_eq!(remove_stale(base.path()), 1);
+        assert!(!gone.exists());
+        // Its own folder, another name, and a folder touched a moment ago stay.
+        assert!(mine.exists() && other.exists() && fresh.exists());
+        assert_eq!(stale_owner("framecost-12-3"), Some(12));
+        assert_eq!(stale_owner("framecost-12-"), None);
+        assert_eq!(stale_owner("framecost-x-3"), None);
+        assert_eq!(stale_owner(".deliveries.framecost-12.tmp"), None);
     }
 }

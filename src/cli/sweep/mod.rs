@@ -140,6 +140,11 @@ pub fn run(a: Args) -> Result<(), Failure> {
         return Err(fail(format!("{} already holds a run; choose another --out", dir.display())));
     }
     let mut out = RunWriter::create(&dir).map_err(write_failed)?;
+    // Temp folders of sweeps that were killed before they could clean up.
+    let stale = crate::patterns::storage::remove_stale(&std::env::temp_dir());
+    if stale > 0 && !a.quiet {
+        eprintln!("framecost sweep: removed {stale} temp folder(s) left in {} by sweeps that ended without cleaning up", std::env::temp_dir().display());
+    }
     crate::measure::interrupt::install();
     if a.in_process {
         crate::measure::watchdog::start(dir.join("points.jsonl"));
