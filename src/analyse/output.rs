@@ -153,6 +153,25 @@ pub struct CrossoverOut {
     pub bounded: bool,
 }
 
+impl CrossoverOut {
+    /// The measured comparisons show this crossing: at some compared size below it
+    /// `faster_below` was the cheaper of the two, and at some size above it `faster_above`
+    /// was. Fitted curves alone may cross where every measurement has one design ahead (a
+    /// columns sweep, and a related-tables sweep whose constant fit crossed a rising one at
+    /// 1.4k rows while the constant design was measured faster from 1.3k to 21k rows): such
+    /// a crossing inside the measured range is not stated.
+    pub fn borne_out<'a>(&self, comparisons: impl IntoIterator<Item = &'a crate::results::ComparisonRecord>) -> bool {
+        let (mut below, mut above) = (false, false);
+        for m in comparisons {
+            let r = |d: &str| m.ratios.iter().find(|x| x.design == d).map(|x| x.ratio);
+            let (Some(lo), Some(hi)) = (r(&self.faster_below), r(&self.faster_above)) else { continue };
+            below |= (m.rows as f64) < self.rows && lo < hi;
+            above |= (m.rows as f64) > self.rows && hi < lo;
+        }
+        below && above
+    }
+}
+
 impl GrowthOut {
     /// "n", "n or n log n", "n to n²", or "unclear (slope 0.42)".
     pub fn label(&self) -> String {

@@ -317,14 +317,8 @@ fn crossing_notes(a: &WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str, 
         .crossovers
         .iter()
         .filter(|c| c.faster_above == best && c.inside_measured)
-        // Only where a measured size below the crossing shows it: fitted curves alone may
-        // cross where every measurement has `best` ahead (seen on a columns sweep).
-        .filter(|c| {
-            cmps.iter().any(|m| {
-                let r = |d: &str| m.ratios.iter().find(|x| x.design == d).map(|x| x.ratio);
-                (m.rows as f64) < c.rows && matches!((r(&c.faster_below), r(best)), (Some(lo), Some(hi)) if lo < hi)
-            })
-        })
+        // Only where the measured sizes show it (`CrossoverOut::borne_out`).
+        .filter(|c| c.borne_out(cmps.iter().copied()))
         .max_by(|x, y| x.rows.total_cmp(&y.rows))
         .map(|c| format!("; below about {} `{}` is cheaper", ax.point_f(c.rows), c.faster_below))
         .unwrap_or_default();

@@ -32,7 +32,13 @@ pub fn scaling<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults, a: &Work
         text(&root, &title, (18, 12), 20.0, TEXT)?;
         return root.present().map(|_| "No measured points to draw.".to_string()).map_err(err);
     };
-    let crossings: Vec<_> = a.crossovers.iter().filter(|c| (c.bounded || c.inside_measured) && c.rows > x0 && c.rows < x1).collect();
+    // A crossing among the measured sizes only where the measurements show it.
+    let crossings: Vec<_> = a
+        .crossovers
+        .iter()
+        .filter(|c| if c.inside_measured { c.borne_out(&w.comparisons) } else { c.bounded })
+        .filter(|c| c.rows > x0 && c.rows < x1)
+        .collect();
     let key_lines = crossing_lines(&crossings, axis);
     let rows = legend_rows(w, a, &designs, &crossings);
     let f = frame(&root, &title, &rows, key_lines.len())?;
