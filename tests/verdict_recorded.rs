@@ -8,6 +8,9 @@
 //! - A tie among designs whose order holds at every size names the one fastest at most
 //!   sizes, not the first listed: the named design then does not depend on which others
 //!   happened to fall inside the noise at the largest size.
+//! - A slower growth class decides a tie only where the growth shows: not for a design
+//!   measured slower at every size whose class is lower only because the other's flat
+//!   curve was fitted with a small per-row term.
 
 use assert_cmd::Command;
 use std::collections::BTreeMap;
@@ -60,6 +63,28 @@ fn a_tie_made_by_a_split_point_is_decided_one_size_down() {
     assert_eq!(fastest(at_below), best);
     let others = at_below.iter().filter(|(d, _)| d.as_str() != best).map(|(_, t)| *t).fold(f64::INFINITY, f64::min);
     assert!(others / at_below[best] >= 1.20, "{at_below:?}");
+}
+
+#[test]
+fn a_lower_class_without_growth_to_show_does_not_decide_a_tie() {
+    let run = "tests/data/verdict-runs/cell-reads-flat";
+    let m = medians(run);
+    let (&top, at_top) = m.iter().next_back().expect("sizes");
+    let (&first, at_first) = m.iter().next().expect("sizes");
+    // The recorded situation: `typed-get` within ×1.20 of the fastest at the largest size,
+    // slower than `vector-copied-once` at every size, and both nearly flat (under ×1.3
+    // across the whole 64-fold rise of rows).
+    assert!(at_top["typed-get"] / at_top["vector-copied-once"] < 1.20, "{at_top:?}");
+    for at in m.values() {
+        assert!(at["typed-get"] > at["vector-copied-once"], "{at:?}");
+    }
+    for d in ["typed-get", "vector-copied-once"] {
+        assert!(at_top[d] / at_first[d] < 1.3 && top / first >= 64, "{d}");
+    }
+    let v = verdict(run);
+    assert_eq!(v["kind"], "tie", "{v}");
+    assert_eq!(v["design"], fastest(at_top), "{v}");
+    assert!(!v["text"].as_str().expect("text").contains("grows more slowly"), "{v}");
 }
 
 #[test]
