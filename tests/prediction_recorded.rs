@@ -8,6 +8,8 @@
 //! - With fewer than five sizes the bytes have no class, but their slope still stops the
 //!   cache reading from turning a quadratic time into "n log n or n²".
 //! - A crossover past the measured sizes never contradicts the predictions at the target.
+//! - A rise over the largest fitted sizes steeper than the class continues it carries the
+//!   prediction (`analyse/trend.rs`).
 
 use assert_cmd::Command;
 use serde_json::Value;
@@ -98,4 +100,32 @@ fn crossovers_past_the_data_agree_with_the_predictions() {
         !crossovers.iter().any(|c| c["faster_above"] == "extend-in-place" && c["inside_measured"] == false),
         "{crossovers:?}"
     );
+}
+
+/// `subsets-rising` (a quiet catalog sweep, 3 December 2026): `deep-copy` per row costs
+/// about the same from 4k to 16k rows, then ×2.7 and ×1.3 more per row over the next two
+/// quadruplings as its copies leave the caches. Fitted up to 256k rows, its class ("n")
+/// continues the whole ladder; the rise over the three largest fitted sizes is steeper.
+#[test]
+fn a_rise_over_the_largest_fitted_sizes_carries_the_prediction() {
+    let run = "tests/data/prediction-runs/subsets-rising";
+    let at_1m = measured(run, "deep-copy", 1_024_000);
+    let w = analysis(run, &["--fit-up-to", "256000", "--at", "1024000"]);
+    let d = design(&w, "deep-copy");
+    let p = &d["prediction"];
+    let t = &p["trend"];
+    assert_eq!(t["from_rows"], 256_000, "{p}");
+    // The slope is the least-squares log-log slope of the medians at 16k, 64k and 256k rows,
+    // computed here from the points.
+    let pts: Vec<(f64, f64)> = [16_000u64, 64_000, 256_000].iter().map(|&n| ((n as f64).ln(), measured(run, "deep-copy", n).ln())).collect();
+    let (xm, ym) = (pts.iter().map(|p| p.0).sum::<f64>() / 3.0, pts.iter().map(|p| p.1).sum::<f64>() / 3.0);
+    let slope = pts.iter().map(|p| (p.0 - xm) * (p.1 - ym)).sum::<f64>() / pts.iter().map(|p| (p.0 - xm).powi(2)).sum::<f64>();
+    assert!((t["slope"].as_f64().expect("slope") - slope).abs() < 1e-9, "{t} against {slope}");
+    // The class alone said far less than what was then measured; the trend lands within 25%.
+    let class = t["class_ns"].as_f64().expect("class");
+    assert!(class < 0.75 * at_1m, "class {class} against {at_1m}");
+    let median = p["median"].as_f64().expect("median");
+    assert!((median / at_1m - 1.0).abs() <= 0.25, "predicted {median}, measured {at_1m}");
+    // Its lower bound stays the class's: the rise may yet be noise.
+    assert!(p["low"].as_f64().expect("low") < class, "{p}");
 }

@@ -215,6 +215,7 @@ mod tests {
             class: time.best.label().into(),
             alternative: None,
             copying: None,
+            trend: None,
         }
     }
 

@@ -5,6 +5,7 @@
 //! measured but not fitted.
 
 use super::copying::{copy_model, CopyModel};
+use super::trend::{trend, Trend};
 use super::fits::{bounded_by_bytes, fit_time, predict_with_alternative};
 use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
 use super::AnalyseOptions;
@@ -19,6 +20,8 @@ pub(super) struct Fitted {
     pub(super) time: Option<GrowthFit>,
     /// The copying term of its predictions, if any (`copying.rs`).
     pub(super) copy: Option<CopyModel>,
+    /// The rise over its largest fitted sizes (`trend.rs`).
+    pub(super) trend: Option<Trend>,
     pub(super) lo: f64,
     pub(super) hi: f64,
 }
@@ -80,9 +83,13 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     if let Some(c) = &copy {
         notes.push(c.note());
     }
+    // A rise over the largest fitted sizes steeper than the class continues it raises the
+    // prediction to that rise (`trend.rs`).
+    let recent = time.as_ref().and_then(|_| trend(&measured));
     let time_pred = |rows: u64| {
         let base = pred(&time, rows)?;
-        Some(copy.as_ref().and_then(|c| c.predict(&base)).unwrap_or(base))
+        let base = copy.as_ref().and_then(|c| c.predict(&base)).unwrap_or(base);
+        Some(recent.as_ref().and_then(|t| t.raise(&base)).unwrap_or(base))
     };
     let prediction = predict_at.and_then(time_pred);
     let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));
@@ -102,7 +109,7 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
         holdout,
         notes,
     };
-    (analysis, Fitted { name: name.to_string(), time, copy, lo: min_fitted, hi: max_fitted })
+    (analysis, Fitted { name: name.to_string(), time, copy, trend: recent, lo: min_fitted, hi: max_fitted })
 }
 
 /// The points the fits use: sizes up to `limit`; busy sizes out of the time fits when

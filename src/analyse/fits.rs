@@ -42,6 +42,7 @@ pub fn predict_with_alternative(f: &GrowthFit, rows: u64, max_fitted: f64) -> Op
         class: f.best.label().to_string(),
         alternative: alt.and(f.alternative).map(|c| c.label().to_string()),
         copying: None,
+        trend: None,
     })
 }
 

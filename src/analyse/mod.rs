@@ -13,6 +13,7 @@
 //! over a workload and finds the crossovers.
 
 mod copying;
+mod trend;
 mod design;
 mod fits;
 mod output;
@@ -87,10 +88,10 @@ fn crossovers(fitted: &[Fitted], predict_at: Option<u64>) -> Vec<CrossoverOut> {
                     Which::A => (a, b),
                     Which::B => (b, a),
                 };
-                // Past the measured sizes, a design whose predictions carry a copying term
-                // must still be the cheaper one by that term's curve, or there is no
-                // crossing to report: its time class alone leaves out the copies.
-                if !c.inside_measured && !still_cheaper_with_copying(above, below, c.n_hi.max(2.0 * c.n)) {
+                // Past the measured sizes, the design that would win must still be the
+                // cheaper one as predicted (copying term, recent trend), or there is no
+                // crossing to report: the time classes alone leave those out.
+                if !c.inside_measured && !still_cheaper_as_predicted(above, below, c.n_hi.max(2.0 * c.n)) {
                     continue;
                 }
                 let (below, above) = (&below.name, &above.name);
@@ -109,16 +110,21 @@ fn crossovers(fitted: &[Fitted], predict_at: Option<u64>) -> Vec<CrossoverOut> {
     crossovers
 }
 
-/// Whether `above` is still cheaper than `below` at `n` once copying terms are counted
-/// (true when neither has one).
-fn still_cheaper_with_copying(above: &Fitted, below: &Fitted, n: f64) -> bool {
-    if above.copy.is_none() && below.copy.is_none() {
+/// Whether `above` is still cheaper than `below` at `n` as predictions count it: the
+/// copying term and the recent trend only ever raise the time class's cost (true when
+/// neither design has either).
+fn still_cheaper_as_predicted(above: &Fitted, below: &Fitted, n: f64) -> bool {
+    let raised = |f: &Fitted| f.copy.is_some() || f.trend.is_some_and(|t| n > t.rows as f64);
+    if !raised(above) && !raised(below) {
         return true;
     }
-    let cost = |f: &Fitted| match (&f.copy, &f.time) {
-        (Some(c), Some(t)) => c.cost_at(n).max(t.cost_at(n)),
-        (None, Some(t)) => t.cost_at(n),
-        _ => f64::NAN,
+    let cost = |f: &Fitted| match &f.time {
+        Some(t) => {
+            let copy = f.copy.as_ref().map_or(f64::NAN, |c| c.cost_at(n));
+            let trend = f.trend.filter(|tr| n > tr.rows as f64).map_or(f64::NAN, |tr| tr.at(n));
+            t.cost_at(n).max(copy).max(trend)
+        }
+        None => f64::NAN,
     };
     cost(above) < cost(below)
 }

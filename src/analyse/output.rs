@@ -65,6 +65,29 @@ pub struct PredictionOut {
     /// bytes, because the bytes grow a class faster than the time (`analyse::copying`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub copying: Option<CopyingOut>,
+    /// The prediction follows the rise over the largest fitted sizes, which was steeper
+    /// than the class continues it (`analyse::trend`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub trend: Option<TrendOut>,
+}
+
+/// The recent trend a prediction was raised to.
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct TrendOut {
+    /// Log-log slope of the medians over the largest three fitted sizes.
+    pub slope: f64,
+    /// The largest fitted size and its median (ns): where the trend is continued from.
+    pub from_rows: u64,
+    pub from_ns: f64,
+    /// What the class (and any copying term) predicted (ns).
+    pub class_ns: f64,
+}
+
+impl TrendOut {
+    /// The trend continued to `n` (ns).
+    pub fn cost_at(&self, n: f64) -> f64 {
+        self.from_ns * (n / self.from_rows.max(1) as f64).powf(self.slope)
+    }
 }
 
 /// The copying term of a prediction.

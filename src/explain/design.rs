@@ -281,6 +281,9 @@ fn dtypes(d: &Design, m1: &Measured, findings: &mut Vec<Finding>) {
     }
 }
 
+/// How far the recent trend must raise a prediction above its class's for a finding.
+const TREND_FINDING_RAISE: f64 = 1.25;
+
 /// Sizes the design was not measured at, and a prediction far past the measured sizes.
 fn coverage(d: &Design, findings: &mut Vec<Finding>) {
     let Design { w, dh, da, ax, .. } = *d;
@@ -322,6 +325,26 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
                     time_ns(p.median),
                     crate::analyse::pair_of(&p.class, p.alternative.as_deref()),
                     time_ns(c.time_class_ns)
+                ),
+                String::new(),
+            ));
+        }
+        // Said when it moves the prediction by more than a hold-out check tolerates (25%).
+        if let Some(t) = p.trend.as_ref().filter(|t| p.median > TREND_FINDING_RAISE * t.class_ns) {
+            findings.push(f(
+                "trend",
+                format!(
+                    "time rose with log-log slope {:.2} over the three largest fitted sizes, up to {} at {}",
+                    t.slope,
+                    time_ns(t.from_ns),
+                    at(t.from_rows)
+                ),
+                format!(
+                    "it was rising there faster than its class ({}) continues it, so the prediction follows that rise: {} at {}, where the class says {}",
+                    crate::analyse::pair_of(&p.class, p.alternative.as_deref()),
+                    time_ns(p.median),
+                    at(p.rows),
+                    time_ns(t.class_ns)
                 ),
                 String::new(),
             ));

@@ -28,8 +28,8 @@ pub use verdict::{verdict, VerdictKind};
 pub struct Finding {
     /// The design it is about, or None for the workload.
     pub design: Option<String>,
-    /// A short tag: growth, expectation, copying, peak, chunks, dtype, parallel, tail,
-    /// unstable, payback, machine, mismatch, skipped, extrapolation.
+    /// A short tag: growth, expectation, copying, trend, peak, chunks, dtype, parallel,
+    /// tail, unstable, payback, machine, mismatch, skipped, extrapolation.
     pub kind: String,
     /// What was measured, with the numbers.
     pub measured: String,

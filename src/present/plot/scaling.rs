@@ -182,12 +182,15 @@ fn scaling_design<DB: DrawingBackend>(
         };
         design_line(root, &curve(&f, first.0, last.0), i, 1, 1.0)?;
         if let Some(t) = pl.target.filter(|&t| t as f64 > last.0) {
-            // A prediction with a copying term continues along its own curve (rows plus the
-            // bytes copied), so the line meets the mark at the target.
-            let copying = da.and_then(|da| da.prediction.as_ref()).and_then(|p| p.copying.as_ref()).filter(|c| c.cost_at(t as f64).is_some());
-            let continued = match copying {
-                Some(c) => curve(&|n| c.cost_at(n).unwrap_or(f64::NAN), last.0, t as f64),
-                None => curve(&f, last.0, t as f64),
+            // A prediction raised by the recent trend continues along that trend from the
+            // largest fitted size, one with a copying term along its own curve (rows plus
+            // the bytes copied), so the line meets the mark at the target.
+            let prediction = da.and_then(|da| da.prediction.as_ref());
+            let copying = prediction.and_then(|p| p.copying.as_ref()).filter(|c| c.cost_at(t as f64).is_some());
+            let continued = match (prediction.and_then(|p| p.trend.as_ref()), copying) {
+                (Some(tr), _) => curve(&|n| tr.cost_at(n), tr.from_rows as f64, t as f64),
+                (None, Some(c)) => curve(&|n| c.cost_at(n).unwrap_or(f64::NAN), last.0, t as f64),
+                (None, None) => curve(&f, last.0, t as f64),
             };
             design_line(root, &continued, i, 2, 0.4)?;
             if let Some(p) = da.and_then(|da| da.prediction.as_ref()) {
