@@ -86,10 +86,16 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     // A rise over the largest fitted sizes steeper than the class continues it raises the
     // prediction to that rise (`trend.rs`).
     let recent = time.as_ref().and_then(|_| trend(&measured));
+    // The cost the class predicts from (with any copying term), which the trend hands over
+    // to past its reach.
+    let class_cost = |n: f64| {
+        let t = time.as_ref().map_or(f64::NAN, |t| t.cost_at(n));
+        copy.as_ref().map_or(t, |c| t.max(c.cost_at(n)))
+    };
     let time_pred = |rows: u64| {
         let base = pred(&time, rows)?;
         let base = copy.as_ref().and_then(|c| c.predict(&base)).unwrap_or(base);
-        Some(recent.as_ref().and_then(|t| t.raise(&base)).unwrap_or(base))
+        Some(recent.as_ref().and_then(|t| t.raise(&base, &class_cost)).unwrap_or(base))
     };
     let prediction = predict_at.and_then(time_pred);
     let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));

@@ -81,11 +81,15 @@ pub struct TrendOut {
     pub from_ns: f64,
     /// What the class (and any copying term) predicted (ns).
     pub class_ns: f64,
+    /// The trend is followed up to this size; past it the prediction grows as the class.
+    #[serde(default)]
+    pub reach_rows: f64,
 }
 
 impl TrendOut {
-    /// The trend continued to `n` (ns).
+    /// The trend continued to `n` (ns), up to `reach_rows`.
     pub fn cost_at(&self, n: f64) -> f64 {
+        let n = if self.reach_rows > 0.0 { n.min(self.reach_rows) } else { n };
         self.from_ns * (n / self.from_rows.max(1) as f64).powf(self.slope)
     }
 }

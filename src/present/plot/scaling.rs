@@ -187,10 +187,15 @@ fn scaling_design<DB: DrawingBackend>(
             // the bytes copied), so the line meets the mark at the target.
             let prediction = da.and_then(|da| da.prediction.as_ref());
             let copying = prediction.and_then(|p| p.copying.as_ref()).filter(|c| c.cost_at(t as f64).is_some());
-            let continued = match (prediction.and_then(|p| p.trend.as_ref()), copying) {
-                (Some(tr), _) => curve(&|n| tr.cost_at(n), tr.from_rows as f64, t as f64),
-                (None, Some(c)) => curve(&|n| c.cost_at(n).unwrap_or(f64::NAN), last.0, t as f64),
-                (None, None) => curve(&f, last.0, t as f64),
+            let class = |n: f64| copying.and_then(|c| c.cost_at(n)).unwrap_or_else(|| f(n));
+            let continued = match prediction.and_then(|p| p.trend.as_ref()) {
+                Some(tr) => {
+                    // The trend up to its reach, then growing as the class does from there.
+                    let h = if tr.reach_rows > 0.0 { tr.reach_rows } else { f64::INFINITY };
+                    let along = |n: f64| if n <= h { tr.cost_at(n) } else { tr.cost_at(h) * class(n) / class(h) };
+                    curve(&along, tr.from_rows as f64, t as f64)
+                }
+                None => curve(&class, last.0, t as f64),
             };
             design_line(root, &continued, i, 2, 0.4)?;
             if let Some(p) = da.and_then(|da| da.prediction.as_ref()) {
