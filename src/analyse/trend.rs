@@ -106,14 +106,7 @@ mod tests {
     use super::*;
 
     fn measured(t: f64) -> Measured {
-        // A point as `points.jsonl` stores it (its median replaced below).
-        const POINT: &str = r#"{"stop":"precise","batch":1,"warmup_runs":1,"samples_ns":[1.0],"median_ns":1.0,
-            "ci_low_ns":1.0,"ci_high_ns":1.0,"ci_rel_half_width":0.01,"mean_ns":1.0,"p50_ns":1.0,"p90_ns":1.0,
-            "p99_ns":1.0,"max_ns":1.0,"cpu_ns":1.0,"alloc":{"bytes":1,"count":1,"peak_live":1},"alloc_exact":true,
-            "spent_s":0.1,"bimodal":false}"#;
-        let mut m: Measured = serde_json::from_str(POINT).expect("fixture");
-        m.median_ns = t;
-        m
+        Measured::fixture(t)
     }
 
     fn base(rows: u64, median: f64) -> PredictionOut {

@@ -352,6 +352,20 @@ impl ProgramMeasured {
 }
 
 impl Measured {
+    /// A point as `points.jsonl` stores it, with median `median_ns` and samples around it
+    /// (±1%), one allocated byte: for unit tests that set what they need.
+    #[cfg(test)]
+    pub fn fixture(median_ns: f64) -> Measured {
+        const POINT: &str = r#"{"stop":"precise","batch":1,"warmup_runs":1,"samples_ns":[1.0],"median_ns":1.0,
+            "ci_low_ns":1.0,"ci_high_ns":1.0,"ci_rel_half_width":0.01,"mean_ns":1.0,"p50_ns":1.0,"p90_ns":1.0,
+            "p99_ns":1.0,"max_ns":1.0,"cpu_ns":1.0,"alloc":{"bytes":1,"count":1,"peak_live":1},"alloc_exact":true,
+            "spent_s":0.1,"bimodal":false}"#;
+        let mut m: Measured = serde_json::from_str(POINT).expect("fixture");
+        m.median_ns = median_ns;
+        m.samples_ns = vec![median_ns * 0.99, median_ns, median_ns * 1.01];
+        m
+    }
+
     /// Bytes allocated per run, when they were counted (steps only).
     pub fn counted_bytes(&self) -> Option<u64> {
         self.alloc_counted.then_some(self.alloc.bytes)

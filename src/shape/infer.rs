@@ -178,7 +178,8 @@ fn measured_line(p: &Profile, growth: Option<f64>) -> String {
     s
 }
 
-fn empty_spec(name: &str, kind: ColumnKind) -> ColumnSpec {
+/// A column spec of `kind` with every optional key absent.
+pub(super) fn empty_spec(name: &str, kind: ColumnKind) -> ColumnSpec {
     ColumnSpec {
         name: name.to_string(),
         kind,

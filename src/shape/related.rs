@@ -13,7 +13,7 @@
 //! how many rows share a key (the skew), and how many find none (`unmatched`) — not by its
 //! values.
 
-use super::infer::{expected_seen, solve_pool, Inferred};
+use super::infer::{empty_spec, expected_seen, solve_pool, Inferred};
 use super::refs::Reference;
 use super::render::{columns_yaml, sizes, yaml_str, Remodel, TableDoc};
 use crate::spec::model::{ColumnKind, ColumnSpec, Order};
@@ -135,20 +135,12 @@ fn remodel(l: &Layout, docs: &[TableDoc], table: usize, c: &Inferred) -> Remodel
         let matched_rows = ((c.profile.rows - c.profile.nulls) as f64 * (1.0 - r.unmatched_rows)).round() as u64;
         let coverage = coverage(r.found as u64, matched_rows, r.target_values as u64, skew.unwrap_or(0.0)).map(Share);
         let spec = ColumnSpec {
-            name: name.clone(),
-            kind: ColumnKind::Int,
             nulls,
-            distinct: None,
-            range: None,
-            order: Order::Random,
-            run: None,
             skew,
-            duplicates: None,
-            length: None,
-            true_share: None,
             references: Some(format!("{}.{}", l.names[target], r.refers_to_column)),
             unmatched,
             coverage,
+            ..empty_spec(name, ColumnKind::Int)
         };
         let why = format!(
             "related: drawn from {}the keys of {}.{}{}{}; the values themselves are integers like those keys",
@@ -168,22 +160,7 @@ fn remodel(l: &Layout, docs: &[TableDoc], table: usize, c: &Inferred) -> Remodel
             Some(o @ (Order::Sorted | Order::Reverse)) => o,
             _ => Order::Random,
         };
-        let spec = ColumnSpec {
-            name: name.clone(),
-            kind: ColumnKind::Key,
-            nulls: None,
-            distinct: None,
-            range: None,
-            order,
-            run: None,
-            skew: None,
-            duplicates: None,
-            length: None,
-            true_share: None,
-            references: None,
-            unmatched: None,
-            coverage: None,
-        };
+        let spec = ColumnSpec { order, ..empty_spec(name, ColumnKind::Key) };
         return Some((spec, "related: referenced by another table, so a key (the integers 0..rows−1, each once)".to_string()));
     }
     None
