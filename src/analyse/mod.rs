@@ -120,10 +120,10 @@ fn still_cheaper_as_predicted(above: &Fitted, below: &Fitted, n: f64) -> bool {
     }
     let cost = |f: &Fitted| match &f.time {
         Some(t) => {
-            let copy = f.copy.as_ref().map_or(f64::NAN, |c| c.cost_at(n));
+            // The class's cost with any copying term, then the trend over it.
             let class = |x: f64| t.cost_at(x).max(f.copy.as_ref().map_or(f64::NAN, |c| c.cost_at(x)));
             let trend = f.trend.filter(|tr| n > tr.rows as f64).map_or(f64::NAN, |tr| tr.cost_at(n, &class));
-            t.cost_at(n).max(copy).max(trend)
+            class(n).max(trend)
         }
         None => f64::NAN,
     };
