@@ -6,5 +6,13 @@ fn main() {
     // by default).
     // SAFETY: restoring the default disposition of one signal before any thread starts.
     unsafe { libc::signal(libc::SIGPIPE, libc::SIG_DFL) };
+    // Started as the launcher of a program design's run: nothing else is loaded.
+    use framecost::measure::program::launch;
+    if let Some(code) = launch::run_if_launcher() {
+        std::process::exit(code);
+    }
+    if let Ok(exe) = std::env::current_exe() {
+        launch::set_launcher(exe);
+    }
     std::process::exit(framecost::cli::main());
 }

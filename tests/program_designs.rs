@@ -189,6 +189,41 @@ fn resident_memory_matches_a_known_allocation() {
     assert!(w.comparisons[0].equivalence.note.contains("worker saved none") || w.comparisons[0].equivalence.status == EquivalenceStatus::NotChecked);
 }
 
+/// A whole process's peak resident size is the program's own, not framecost's: Linux carries
+/// the peak of the process image an `exec` replaces into `ru_maxrss`, so a program started
+/// straight from framecost reported framecost's size (measured: 78.5 MiB for `test -e FILE`).
+/// The reference is Python's standard `resource` module: `getrusage(RUSAGE_CHILDREN)` after
+/// running the same command from a fresh Python, whose own few MiB are below the program's
+/// 40 MiB. The table is made large enough (1M rows) that framecost itself holds more than
+/// the program.
+#[test]
+fn a_whole_process_peak_is_the_programs_own() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    write(dir.path(), "hold_cli.py", "import sys\nb = bytearray(b'\\x01') * (40 << 20)\nopen(sys.argv[2], 'w').write('held\\n' + str(len(b)) + '\\n')\n");
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        "name: small-program\ntable: {columns: [{name: k, kind: key}, {name: x, kind: float, range: [0, 1]}, {name: s, kind: text}]}\nsizes: [1M]\nbudget: {per_point: 3s, max_samples: 6}\ndesigns:\n  - name: process\n    program: {command: [python3, hold_cli.py, \"{input}\", \"{output}\"], mode: process, input: csv}\n",
+    );
+    let run = dir.path().join("run");
+    let out = sweep(&["--allow-programs"], &spec, &run, tmp.path());
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("results");
+    let m = r.workloads[0].point("process", 1_000_000).and_then(|p| p.measured.as_ref()).expect("measured");
+    let ours = m.program.expect("program measures").peak_resident_bytes as f64;
+    let reference = std::process::Command::new("python3")
+        .current_dir(dir.path())
+        .args(["-c", "import resource, subprocess, sys\nsubprocess.run([sys.executable, 'hold_cli.py', 'in', 'out'], check=True)\nprint(resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss * 1024)"])
+        .output()
+        .expect("python3 runs");
+    let reference: f64 = String::from_utf8_lossy(&reference.stdout).trim().parse().expect("a number of bytes");
+    let mib = |b: f64| b / (1u64 << 20) as f64;
+    // The sweep's own resident size at 1M rows is well above the program's (the table alone
+    // is tens of MiB): the old reading would fail by that much.
+    assert!((mib(ours) - mib(reference)).abs() <= 4.0, "framecost {:.1} MiB, resource module {:.1} MiB", mib(ours), mib(reference));
+}
+
 /// The standard-library workload: n inserts at the front of a Python list cost O(n²); n
 /// appends (amortised O(1) each) or deque.appendleft (O(1)) cost O(n). Source: the Python
 /// wiki's "TimeComplexity" page (list: insert O(n), append O(1) amortised; deque: appendleft

@@ -9,7 +9,8 @@
 //!
 //! For every sample framecost also records the child's CPU time (every thread) and its
 //! peak resident size: for a worker by resetting the peak (`/proc/PID/clear_refs`) before
-//! the sample and reading `VmHWM` after it; for a process from `wait4`'s resource usage.
+//! the sample and reading `VmHWM` after it; for a process from `wait4`'s resource usage,
+//! taken by a launcher so that framecost's own size is not counted (`launch.rs`).
 //! There are no allocation counts for a program: the counting allocator sees only
 //! framecost's own process.
 //!
@@ -20,6 +21,7 @@
 //! here panics on what a child sends: every reply is checked, every line is length-capped.
 
 mod files;
+pub mod launch;
 mod os;
 mod process;
 
@@ -210,7 +212,7 @@ impl ProgramDesign {
             ProgramMode::Worker => self.sample_worker(batch.clamp(1, MAX_WORKER_BATCH), limit),
             ProgramMode::Process => {
                 let started = Instant::now();
-                let (mut wall, mut cpu, mut peak) = (0.0, 0.0, 0u64);
+                let (mut wall, mut cpu, mut peak) = (0.0, 0.0, None::<u64>);
                 for _ in 0..batch.max(1) {
                     let left = limit.saturating_sub(started.elapsed()).max(Duration::from_millis(100));
                     let (w, c, p) = self.run_process(left)?;
@@ -219,7 +221,7 @@ impl ProgramDesign {
                     peak = peak.max(p);
                 }
                 let b = batch.max(1) as f64;
-                Ok(ProgramSample { ns_per_run: wall / b, cpu_ns_per_run: cpu / b, peak_resident: Some(peak), resident_before: None })
+                Ok(ProgramSample { ns_per_run: wall / b, cpu_ns_per_run: cpu / b, peak_resident: peak, resident_before: None })
             }
         }
     }

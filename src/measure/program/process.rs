@@ -1,7 +1,7 @@
 //! A program design in process mode: one whole run of the command per run, with
 //! `{input}`, `{output}` and `{rows}` replaced; its time is the process's wall time as
-//! framecost sees it (start-up included), its CPU time and peak resident size come from
-//! `wait4`'s resource usage.
+//! the launcher sees it (the program's start-up included), its CPU time and peak resident
+//! size come from `wait4`'s resource usage of the program (see `launch.rs`).
 
 use super::os::*;
 use super::ProgramDesign;
@@ -12,6 +12,7 @@ use std::sync::mpsc::{self, RecvTimeoutError};
 use std::sync::Arc;
 use crate::measure::interrupt;
 use super::INTERRUPTED;
+use super::launch::{launcher, Launched, LAUNCH_ARG};
 use std::time::{Duration, Instant};
 
 impl ProgramDesign {
@@ -36,10 +37,24 @@ impl ProgramDesign {
             .collect()
     }
 
-    /// One whole run of the command: (wall ns, CPU ns, peak resident bytes).
-    pub(super) fn run_process(&mut self, limit: Duration) -> Result<(f64, f64, u64), String> {
+    /// One whole run of the command: (wall ns, CPU ns, peak resident bytes). The run goes
+    /// through the launcher (`launch.rs`) when this is framecost's binary, so the peak is the
+    /// program's own and the time is taken around the program alone; without a launcher (the
+    /// library run from a test harness) the program is started directly and its peak is not
+    /// known.
+    pub(super) fn run_process(&mut self, limit: Duration) -> Result<(f64, f64, Option<u64>), String> {
         let args = self.process_args();
-        let mut cmd = self.command(&args)?;
+        let report = self.log.with_extension("launch");
+        let _ = std::fs::remove_file(&report);
+        let launched_args: Vec<String>;
+        let via = match launcher() {
+            Some(exe) => {
+                launched_args = [exe.display().to_string(), LAUNCH_ARG.to_string(), report.display().to_string()].into_iter().chain(args.iter().cloned()).collect();
+                &launched_args
+            }
+            None => &args,
+        };
+        let mut cmd = self.command(via)?;
         let log = self.log_file()?;
         cmd.stdin(Stdio::null()).stdout(Stdio::from(log));
         // The guard that kills the run at its limit starts before the clock.
@@ -100,12 +115,22 @@ impl ProgramDesign {
             }
             return Err(format!("still running after {}: stopped and killed{}", secs(limit), self.tail()));
         }
+        let tv = |t: libc::timeval| t.tv_sec as f64 * 1e9 + t.tv_usec as f64 * 1e3;
+        let (wall, cpu, peak, status) = if launcher().is_some() {
+            if !libc::WIFEXITED(status) || libc::WEXITSTATUS(status) != 0 {
+                // The launcher could not start the program or write its report.
+                let why = Launched::read(&report).err().unwrap_or_else(|| exit_text(status));
+                return Err(format!("{why}{}", self.tail()));
+            }
+            let l = Launched::read(&report)?;
+            (l.wall_ns, l.cpu_ns, Some(l.peak_bytes), l.status)
+        } else {
+            (wall, tv(usage.ru_utime) + tv(usage.ru_stime), None, status)
+        };
         if !libc::WIFEXITED(status) || libc::WEXITSTATUS(status) != 0 {
             return Err(format!("{}{}", exit_text(status), self.tail()));
         }
-        let tv = |t: libc::timeval| t.tv_sec as f64 * 1e9 + t.tv_usec as f64 * 1e3;
-        let cpu = tv(usage.ru_utime) + tv(usage.ru_stime);
-        Ok((wall, cpu, (usage.ru_maxrss.max(0) as u64) * 1024))
+        Ok((wall, cpu, peak))
     }
 
 }
