@@ -151,6 +151,46 @@ fn hostile_programs_become_failed_points() {
     }
 }
 
+/// The same in process mode, where each run goes through framecost's launcher: a run that
+/// never ends is killed at its limit (launcher and program, as one group), a program that
+/// leaves a child running behind it does not keep it, a failing exit comes back with its
+/// status and stderr, and a file that cannot be executed is a failed point.
+#[test]
+fn hostile_processes_become_failed_points() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    write(dir.path(), "stall_cli.py", "import time\ntime.sleep(3600)\n");
+    write(dir.path(), "leave_child_cli.py", "import os, sys, time\nif os.fork() == 0:\n    time.sleep(3600)\nopen(sys.argv[2], 'w').write(open(sys.argv[1]).read())\n");
+    write(dir.path(), "refuse_cli.py", "import sys\nsys.stderr.write('no parcels in this file\\n')\nsys.exit(5)\n");
+    write(dir.path(), "not_executable.sh", "exit 0\n");
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        "name: hostile-processes\ntable: {columns: [{name: k, kind: key}]}\nsizes: [1k, 2k]\nbudget: {per_point: 1s, whole_run: 60s, max_samples: 6}\ndesigns:\n  - name: copy\n    program: {command: [cp, \"{input}\", \"{output}\"], mode: process, input: csv}\n  - name: stall\n    program: {command: [python3, stall_cli.py, \"{input}\"], mode: process, input: csv}\n  - name: leave-child\n    program: {command: [python3, leave_child_cli.py, \"{input}\", \"{output}\"], mode: process, input: csv}\n  - name: refuse\n    program: {command: [python3, refuse_cli.py, \"{input}\"], mode: process, input: csv}\n  - name: not-executable\n    program: {command: [./not_executable.sh, \"{input}\"], mode: process, input: csv}\n",
+    );
+    let run = dir.path().join("run");
+    let started = std::time::Instant::now();
+    let out = sweep(&["--allow-programs"], &spec, &run, tmp.path());
+    let took = started.elapsed().as_secs_f64();
+    assert_eq!(out.status.code(), Some(3), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(took < 50.0, "the sweep took {took} s");
+    let r = RunResults::read(&run).expect("results");
+    let w = &r.workloads[0];
+    assert_eq!(medians(&r, "copy").len(), 2, "the sound design is measured at every size");
+    assert!(!w.design_points("leave-child").is_empty() && w.design_points("leave-child")[0].measured.is_some(), "its own run ends, so it is measured");
+    let detail = |d: &str| w.design_points(d)[0].skipped.as_ref().map(|s| s.detail.clone()).unwrap_or_default();
+    assert!(detail("stall").contains("still running") && detail("stall").contains("killed"), "{}", detail("stall"));
+    assert!(detail("refuse").contains("status 5") && detail("refuse").contains("no parcels in this file"), "{}", detail("refuse"));
+    assert!(detail("not-executable").contains("could not start") && detail("not-executable").contains("ermission denied"), "{}", detail("not-executable"));
+    let left: Vec<_> = std::fs::read_dir(tmp.path()).expect("read").collect();
+    assert!(left.is_empty(), "left in the temp folder: {left:?}");
+    for name in ["stall_cli.py", "leave_child_cli.py"] {
+        if let Ok(ps) = std::process::Command::new("pgrep").args(["-f", name]).output() {
+            assert!(ps.stdout.is_empty(), "{name} survived: {}", String::from_utf8_lossy(&ps.stdout));
+        }
+    }
+}
+
 /// Peak resident size against a known allocation: each run fills a buffer of 96 MiB
 /// (touching every page), in a worker and as a whole process.
 #[test]
