@@ -146,6 +146,9 @@ pub fn render(r: &GateReport) -> String {
     if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.memory_ratio.is_some()) {
         para(&mut s, "memory", "a change must also pass the threshold divided by the memory probe's ratio at its point (the cache sweeps before the design's samples): memory that got slower explains a slowdown away, never makes one; the probe's ratios are in --json");
     }
+    if let Some(text) = machine_moves(r) {
+        para(&mut s, "machine", &text);
+    }
     if r.machines_differ {
         let y = r.yardstick_ratio.map(|y| format!("{y:.3}×")).unwrap_or_else(|| "unknown".into());
         para(&mut s, "machines", &format!("the runs were made on different machines or versions; ratios are judged divided by the yardstick's ({y})"));
@@ -310,5 +313,114 @@ fn workload_notes(s: &mut String, w: &crate::track::gate::WorkloadGate, width: u
     }
     for d in &w.unmatched_designs {
         para(s, "one run only", &format!("design `{d}`"));
+    }
+}
+
+/// How far the machine itself moved between the two runs, as its probes saw it: the
+/// yardstick (once per run), the drift probe and the memory probe (at every compared point),
+/// each as the range holding the middle 80% of the points. When the range reaches past the
+/// threshold either way, a one-point change of that size cannot be told from the machine's
+/// own, and the text says so: between back-to-back catalog sweeps of unchanged code on a
+/// shared 2-core machine the memory probe moved 0.9× to 1.9× within one pairing.
+fn machine_moves(r: &GateReport) -> Option<String> {
+    if r.machines_differ {
+        return None;
+    }
+    let points = r.workloads.iter().flat_map(|w| &w.points);
+    let drift: Vec<f64> = points.clone().filter(|p| p.normalised_by.as_deref() == Some("drift probe")).filter_map(|p| p.normalised_ratio.map(|n| p.ratio / n)).collect();
+    let memory: Vec<f64> = points.filter_map(|p| p.memory_ratio).collect();
+    let range = |v: &[f64]| -> Option<(f64, f64)> {
+        let mut v: Vec<f64> = v.iter().copied().filter(|x| x.is_finite() && *x > 0.0).collect();
+        if v.is_empty() {
+            return None;
+        }
+        v.sort_by(f64::total_cmp);
+        Some((crate::fit::sample::quantile_sorted(&v, 0.1), crate::fit::sample::quantile_sorted(&v, 0.9)))
+    };
+    let mut said = Vec::new();
+    if let Some(y) = r.yardstick_ratio {
+        said.push(format!("the yardstick took {y:.2}× the baseline's time"));
+    }
+    let mut widest = r.yardstick_ratio.map(|y| y.ln().abs()).unwrap_or(0.0);
+    let mut probes = Vec::new();
+    for (name, v) in [("drift probe", &drift), ("memory probe", &memory)] {
+        if let Some((lo, hi)) = range(v) {
+            probes.push(format!("the {name} {lo:.2}× to {hi:.2}×"));
+            widest = widest.max(lo.ln().abs()).max(hi.ln().abs());
+        }
+    }
+    if !probes.is_empty() {
+        said.push(format!("{} (the middle 80% of the points)", probes.join(" and ")));
+    }
+    if said.is_empty() {
+        return None;
+    }
+    let threshold = r.workloads.iter().map(|w| w.threshold).fold(f64::INFINITY, f64::min);
+    let mut text = format!("between the runs {}", said.join("; "));
+    if threshold.is_finite() && widest > (1.0 + threshold).ln() {
+        text.push_str(&format!(
+            ". The machine itself moved by more than the threshold ({:.0}%): a change of that size at one point cannot be told from it, so a point counts only when a neighbouring size agrees and it stands out from its workload's common move; to be sure of a small change, sweep both versions again back to back",
+            threshold * 100.0
+        ));
+    }
+    Some(text)
+}
+
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::track::gate::{PointGate, WorkloadGate};
+
+    fn report(moves: &[(f64, f64)]) -> GateReport {
+        let points = moves
+            .iter()
+            .enumerate()
+            .map(|(i, &(drift, memory))| PointGate {
+                design: "d".into(),
+                rows: 1000 << i,
+                base_median_ns: 1e6,
+                new_median_ns: 1e6 * drift,
+                ratio: drift,
+                shift: None,
+                ratio_low: None,
+                ratio_high: None,
+                normalised_ratio: Some(1.0),
+                normalised_by: Some("drift probe".into()),
+                memory_ratio: Some(memory),
+                p_value: None,
+                call: Call::Same,
+                confirmed: false,
+                busy: false,
+                small_only: false,
+            })
+            .collect();
+        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None };
+        GateReport {
+            baseline_run: "a".into(),
+            new_run: "b".into(),
+            machines_differ: false,
+            yardstick_ratio: Some(1.02),
+            workloads: vec![w],
+            unmatched_workloads: vec![],
+            regressions: 0,
+            unconfirmed_regressions: 0,
+            growth_regressions: 0,
+            improvements: 0,
+            missing: 0,
+        }
+    }
+
+    #[test]
+    fn the_machines_own_move_is_stated_and_warned_of_past_the_threshold() {
+        // The drift probe's ratio is recovered as ratio / normalised ratio.
+        let quiet = machine_moves(&report(&[(1.01, 0.99), (1.03, 1.02), (0.98, 1.0), (1.02, 1.04)])).unwrap();
+        assert!(quiet.contains("yardstick took 1.02×") && quiet.contains("drift probe") && quiet.contains("memory probe"), "{quiet}");
+        assert!(!quiet.contains("moved by more than the threshold"), "{quiet}");
+        let moved = machine_moves(&report(&[(1.0, 1.0), (1.05, 1.3), (1.1, 1.5), (1.0, 1.45)])).unwrap();
+        assert!(moved.contains("moved by more than the threshold (10%)"), "{moved}");
+        let mut other = report(&[(1.0, 1.0)]);
+        other.machines_differ = true;
+        assert_eq!(machine_moves(&other), None, "different machines are said elsewhere");
     }
 }
