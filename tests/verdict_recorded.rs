@@ -8,6 +8,9 @@
 //! - A tie among designs whose order holds at every size names the one fastest at most
 //!   sizes, not the first listed: the named design then does not depend on which others
 //!   happened to fall inside the noise at the largest size.
+//! - A tie where the lead changed hands at the top, the design fastest at the largest size
+//!   having gained at each of the last sizes, names that design, not the one that led at
+//!   most (smaller) sizes.
 //! - A slower growth class decides a tie only where the growth shows: not for a design
 //!   measured slower at every size whose class is lower only because the other's flat
 //!   curve was fitted with a small per-row term.
@@ -100,6 +103,26 @@ fn a_tie_names_the_design_fastest_at_most_sizes() {
         assert_eq!(fastest(at), named, "at {rows}: {at:?}");
     }
     assert!(v["text"].as_str().expect("text").contains("fastest of them at 7 of the 7 sizes"), "{v}");
+}
+
+#[test]
+fn a_tie_names_the_design_gaining_at_the_top() {
+    let run = "tests/data/verdict-runs/grower-totals-gaining";
+    let m = medians(run);
+    let (_, at_top) = m.iter().next_back().expect("sizes");
+    let (a, b) = ("engine-sql", "python-expression");
+    // The recorded situation: `b` faster at every size but the largest, `a` ahead there
+    // within the noise, and `a`'s time relative to `b`'s falling at each of the last three
+    // sizes by more than 15% in all.
+    let rel: Vec<f64> = m.values().map(|at| at[a] / at[b]).collect();
+    assert!(rel[..rel.len() - 1].iter().all(|r| *r > 1.0) && rel[rel.len() - 1] < 1.0, "{rel:?}");
+    let tail = &rel[rel.len() - 3..];
+    assert!(tail.windows(2).all(|w| w[1] < w[0] * 0.97) && tail[0] / tail[2] >= 1.15, "{tail:?}");
+    assert_eq!(fastest(at_top), a);
+    let v = verdict(run);
+    assert_eq!(v["kind"], "tie", "{v}");
+    assert_eq!(v["design"], a, "{v}");
+    assert!(v["text"].as_str().expect("text").contains("gained on `python-expression`"), "{v}");
 }
 
 #[test]
