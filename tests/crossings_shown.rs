@@ -19,6 +19,7 @@ const RUNS: &[(&str, Option<usize>)] = &[
     ("tests/data/verdict-runs/cell-reads-close", None),
     ("tests/data/verdict-runs/cross-column-split", None),
     ("tests/data/verdict-runs/related-routes", Some(0)),
+    ("tests/data/verdict-runs/grower-totals-gaining", None),
 ];
 
 /// Median time per (design, rows) of the measured points.
@@ -48,19 +49,29 @@ fn size(s: &str) -> f64 {
     num.parse::<f64>().unwrap_or_else(|_| panic!("size {s}")) * mult
 }
 
-/// (X, A, B) of every "Crossing k: at about X rows (between …), A becomes cheaper than B."
-/// in a description.
-fn crossings(desc: &str) -> Vec<(f64, String, String)> {
+/// (X, A, B, the words in brackets) of every "Crossing k: at about X rows (…), A becomes
+/// cheaper than B." in a description.
+fn crossings(desc: &str) -> Vec<(f64, String, String, String)> {
     desc.split("Crossing ")
         .skip(1)
         .map(|c| {
             let rest = c.split_once(": at about ").expect("at about").1;
-            let (x, rest) = rest.split_once(" rows (between ").expect("rows");
-            let (_, rest) = rest.split_once("), ").expect("interval");
+            let (x, rest) = rest.split_once(" rows (").expect("rows");
+            let (range, rest) = rest.split_once("), ").expect("interval");
             let (a, b) = rest.split_once(" becomes cheaper than ").expect("cheaper");
-            (size(x), a.to_string(), b.trim_end().trim_end_matches('.').to_string())
+            (size(x), a.to_string(), b.trim_end().trim_end_matches('.').to_string(), range.to_string())
         })
         .collect()
+}
+
+/// Whether the analysis found every crossing of `a` above `b` unbounded (its interval runs
+/// to the end of the search).
+fn unbounded(run: &str, a: &str, b: &str) -> bool {
+    let o = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--json"]).output().expect("runs");
+    let doc: serde_json::Value = serde_json::from_slice(&o.stdout).expect("json");
+    let all = doc["analysis"]["workloads"][0]["crossovers"].as_array().expect("crossovers").clone();
+    let pair: Vec<&serde_json::Value> = all.iter().filter(|c| c["faster_above"] == a && c["faster_below"] == b).collect();
+    !pair.is_empty() && pair.iter().all(|c| c["bounded"] == false)
 }
 
 #[test]
@@ -80,8 +91,14 @@ fn every_crossing_drawn_is_one_the_medians_show() {
             let svg = std::fs::read_to_string(&p).expect("svg");
             let doc = roxmltree::Document::parse(&svg).expect("svg parses");
             let desc: String = doc.descendants().filter(|n| n.has_tag_name("desc")).filter_map(|n| n.text()).collect();
-            for (x, a, b) in crossings(&desc) {
+            for (x, a, b, range) in crossings(&desc) {
                 shown += 1;
+                // An interval that runs to the end of the search is not printed as one.
+                if unbounded(run, &a, &b) {
+                    assert!(!range.contains("between") && range.contains("do not pin it down"), "{run}: unbounded crossing printed as ({range})");
+                } else {
+                    assert!(range.starts_with("between "), "{run}: ({range})");
+                }
                 let at = |d: &str, below: bool| {
                     med.iter().filter(|((n, r), _)| n == d && if below { (*r as f64) < x } else { (*r as f64) > x }).map(|((_, r), m)| (*r, *m)).collect::<HashMap<u64, f64>>()
                 };

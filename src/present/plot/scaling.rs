@@ -97,15 +97,15 @@ fn crossing_lines(crossings: &[&CrossoverOut], axis: &str) -> Vec<String> {
     crossings
         .iter()
         .map(|c| {
-            // The size first, so a line shortened to fit still says where.
-            format!(
-                "at about {} {axis} (between {} and {}), {} becomes cheaper than {}",
-                size_label(c.rows),
-                size_label(c.rows_low),
-                size_label(c.rows_high),
-                escaped(&c.faster_above),
-                escaped(&c.faster_below)
-            )
+            // The size first, so a line shortened to fit still says where. An interval that
+            // runs to the end of the search is no information (one drawn as "between 16k
+            // and 1.02G" said nothing the chart does not): it is said to be open instead.
+            let range = if c.bounded {
+                format!("between {} and {}", size_label(c.rows_low), size_label(c.rows_high))
+            } else {
+                "the fits do not pin it down".to_string()
+            };
+            format!("at about {} {axis} ({range}), {} becomes cheaper than {}", size_label(c.rows), escaped(&c.faster_above), escaped(&c.faster_below))
         })
         .collect()
 }
