@@ -2,23 +2,33 @@
 //! class by class, and fail (exit 1) when something got slower beyond the threshold with a
 //! significant rank test, or started to scale worse. Exit 0 when nothing got worse, 2 for
 //! bad input. BASELINE is a run folder or the name of a saved baseline.
+//! `framecost gate RUN --pair OLD:NEW` compares two designs of one run the same way
+//! (`track::gate::pair`).
 
 use super::Failure;
 use crate::results::reader::RunResults;
 use crate::spec::units::parse_share;
-use crate::track::gate::{compare, Call, GateOptions, GateReport};
+use crate::track::gate::{compare, compare_pair, Call, GateOptions, GateReport};
 use std::path::{Path, PathBuf};
 
 /// Schema of the `--json` document (docs/results.md).
 pub const SCHEMA: &str = "framecost.gate/1";
 
-/// Compare a baseline run with a new run; exit 1 on a regression.
+/// Compare a baseline run with a new run (or two designs of one run, `--pair`); exit 1 on a
+/// regression.
 #[derive(Debug, clap::Args)]
 pub struct Args {
-    /// The baseline: a run folder, or a name saved with `framecost baseline save`.
+    /// The baseline: a run folder, or a name saved with `framecost baseline save`. With
+    /// `--pair`, the one run whose two designs are compared.
     pub baseline: String,
-    /// The new run folder.
-    pub new: PathBuf,
+    /// The new run folder (not with `--pair`).
+    #[arg(required_unless_present = "pair", conflicts_with = "pair")]
+    pub new: Option<PathBuf>,
+    /// Compare design NEW with design OLD of the same run, in every workload that has
+    /// both, e.g. `--pair before:after`. Designs sampled in the same sweep share every move
+    /// of the machine, so a smaller change shows than between two sweeps.
+    #[arg(long, value_name = "OLD:NEW")]
+    pub pair: Option<String>,
     /// How much slower a median may get before it counts, e.g. `10%` (default: each
     /// workload's `gate.threshold`, else 10%).
     #[arg(long, value_name = "SHARE")]
@@ -71,9 +81,27 @@ pub fn run(a: Args) -> Result<(), Failure> {
     let base_dir = resolve(&a.baseline, &a.store);
     let base = match RunResults::read(&base_dir) {
         Ok(r) => r,
-        Err(e) => return bad(format!("baseline: {e}")),
+        Err(e) => return bad(format!("{}: {e}", if a.pair.is_some() { "run" } else { "baseline" })),
     };
-    let new = match RunResults::read(&a.new) {
+    let growth_rise = match (a.no_growth_check, a.growth_rise) {
+        (true, _) => None,
+        (false, Some(r)) if !(r > 0.0 && r <= 3.0) => return bad(format!("--growth-rise: expected an exponent above 0 and at most 3, found {r}")),
+        (false, Some(r)) => Some(r),
+        (false, None) => Some(crate::track::gate::TIME_EXPONENT_RISE),
+    };
+    let opts = GateOptions { threshold, alpha: a.alpha, growth_rise };
+    if let Some(pair) = &a.pair {
+        let Some((old, new)) = pair.split_once(':').filter(|(o, n)| !o.is_empty() && !n.is_empty() && o != n) else {
+            return bad(format!("--pair: expected two different design names as OLD:NEW, found `{pair}`"));
+        };
+        let report = compare_pair(&base, old, new, &opts);
+        if report.workloads.is_empty() {
+            return bad(format!("no workload of the run has both `{old}` and `{new}` ({})", report.unmatched_workloads.join(", ")));
+        }
+        return answer(&report, a.json);
+    }
+    let Some(new_dir) = &a.new else { return bad("a new run folder is needed (or --pair OLD:NEW)".into()) };
+    let new = match RunResults::read(new_dir) {
         Ok(r) => r,
         Err(e) => return bad(format!("new run: {e}")),
     };
@@ -90,25 +118,24 @@ pub fn run(a: Args) -> Result<(), Failure> {
         }
         eprintln!("framecost gate: partial comparison (--partial-ok):\n{lines}");
     }
-    let growth_rise = match (a.no_growth_check, a.growth_rise) {
-        (true, _) => None,
-        (false, Some(r)) if !(r > 0.0 && r <= 3.0) => return bad(format!("--growth-rise: expected an exponent above 0 and at most 3, found {r}")),
-        (false, Some(r)) => Some(r),
-        (false, None) => Some(crate::track::gate::TIME_EXPONENT_RISE),
-    };
-    let report = compare(&base, &new, &GateOptions { threshold, alpha: a.alpha, growth_rise });
+    let report = compare(&base, &new, &opts);
     if report.workloads.is_empty() {
         return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
     }
-    if a.json {
+    answer(&report, a.json)
+}
+
+/// Print the report and give the exit.
+fn answer(report: &GateReport, json: bool) -> Result<(), Failure> {
+    if json {
         // The report's own fields, with the schema beside them (docs/results.md).
-        let mut doc = serde_json::to_value(&report).unwrap_or_default();
+        let mut doc = serde_json::to_value(report).unwrap_or_default();
         if let Some(o) = doc.as_object_mut() {
             o.insert("schema".into(), SCHEMA.into());
         }
         println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
     } else {
-        print!("{}", render(&report));
+        print!("{}", render(report));
     }
     if report.failed() {
         return Err(Failure::Regression);
@@ -126,7 +153,14 @@ pub fn render(r: &GateReport) -> String {
     let width = Options::detect(false).width;
     let mut s = String::new();
     let para = |s: &mut String, label: &str, text: &str| para(s, width, label, text);
-    let _ = writeln!(s, "framecost gate · baseline {} · new {}", r.baseline_run, r.new_run);
+    match &r.pair {
+        Some((old, new)) => {
+            let _ = writeln!(s, "framecost gate · run {} · `{new}` against `{old}`, sampled side by side", r.new_run);
+        }
+        None => {
+            let _ = writeln!(s, "framecost gate · baseline {} · new {}", r.baseline_run, r.new_run);
+        }
+    }
     let answer = if r.failed() {
         let mut parts = Vec::new();
         if r.regressions > 0 {
@@ -397,6 +431,7 @@ mod tests {
             .collect();
         let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None };
         GateReport {
+            pair: None,
             baseline_run: "a".into(),
             new_run: "b".into(),
             machines_differ: false,

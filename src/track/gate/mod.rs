@@ -38,9 +38,11 @@
 
 mod common;
 mod growth;
+mod pair;
 mod points;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
+pub use pair::compare_pair;
 
 use crate::results::reader::{RunResults, WorkloadResults};
 use points::{confirm, matched, point_gate, Machines};
@@ -206,6 +208,10 @@ pub struct GateReport {
     pub growth_regressions: usize,
     pub improvements: usize,
     pub missing: usize,
+    /// `gate RUN --pair OLD:NEW`: the two designs of one run compared (old, new); both run
+    /// ids are then that run's.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub pair: Option<(String, String)>,
 }
 
 impl GateReport {
@@ -239,6 +245,7 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         growth_regressions: 0,
         improvements: 0,
         missing: 0,
+        pair: None,
     };
     for bw in &base.workloads {
         let Some(nw) = new.workloads.iter().find(|w| w.header.workload == bw.header.workload) else {

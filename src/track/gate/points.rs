@@ -140,7 +140,7 @@ pub(super) fn confirm(points: &mut [PointGate]) {
     }
 }
 
-fn status(w: &WorkloadResults, design: &str, rows: u64) -> String {
+pub(super) fn status(w: &WorkloadResults, design: &str, rows: u64) -> String {
     match w.point(design, rows) {
         Some(p) if p.measured.is_some() => "measured".into(),
         Some(p) => format!("skipped: {}", p.skipped.as_ref().map(|s| s.reason.label()).unwrap_or("?")),
@@ -158,7 +158,7 @@ fn probe_of(m: &Measured) -> Option<f64> {
 /// called only when the raw ratio and every corrected one pass the threshold in the same
 /// direction: a correction may explain a change away (the machine or its memory was
 /// slower), but never turn equal medians into one.
-fn judge(raw: f64, corrected: &[Option<f64>], p: Option<f64>, threshold: f64, alpha: f64) -> Call {
+pub(super) fn judge(raw: f64, corrected: &[Option<f64>], p: Option<f64>, threshold: f64, alpha: f64) -> Call {
     let significant = p.is_some_and(|p| p < alpha);
     let up = |r: f64| r > 1.0 + threshold;
     let down = |r: f64| r < 1.0 / (1.0 + threshold);
