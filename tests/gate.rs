@@ -533,4 +533,7 @@ fn two_designs_of_one_sweep_are_gated_side_by_side() {
     }
     let g = Command::cargo_bin("framecost").expect("binary").arg("gate").arg(&run).arg(&run).args(["--pair", "before:after"]).output().expect("gates");
     assert_eq!(g.status.code(), Some(2), "a second run with --pair is a usage error");
+    // The rehearsal workload the README points to lints.
+    let l = Command::cargo_bin("framecost").expect("binary").args(["lint", "workloads/rehearsal/side-by-side.yaml"]).output().expect("lints");
+    assert!(l.status.success(), "{}", String::from_utf8_lossy(&l.stderr));
 }
