@@ -393,7 +393,7 @@ fn machine_moves(r: &GateReport) -> Option<String> {
     let mut text = format!("between the runs {}", said.join("; "));
     if threshold.is_finite() && widest > (1.0 + threshold).ln() {
         text.push_str(&format!(
-            ". The machine itself moved by more than the threshold ({:.0}%): a change of that size at one point cannot be told from it, so a point counts only when a neighbouring size agrees and it stands out from its workload's common move; to be sure of a small change, sweep both versions again back to back",
+            ". The machine itself moved by more than the threshold ({:.0}%): a change of that size at one point cannot be told from it, so a point counts only when a neighbouring size agrees and it stands out from its workload's common move; to be sure of a small change, measure both versions side by side in one sweep and gate them with `--pair OLD:NEW`",
             threshold * 100.0
         ));
     }
