@@ -237,3 +237,24 @@ fn parquet_and_ipc_samples_give_the_csv_samples_statistics() {
         }
     }
 }
+
+/// `--full-rows`: the skeleton's sizes start at 1k rows (the 344-row sample's quarter, 86, is
+/// mostly fixed cost) and go towards the full data's rows, which become the target; a bad
+/// value is a usage error.
+#[test]
+fn full_rows_set_the_target_and_the_sizes_reach_towards_it() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let spec = dir.path().join("penguins.yaml");
+    let spec_s = spec.to_str().expect("utf8");
+    let out = framecost(&["shape", PENGUINS, "--full-rows", "3M", "--out", spec_s]);
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    let text = std::fs::read_to_string(&spec).expect("skeleton");
+    assert!(text.contains("\ntarget: 3M\n"), "{text}");
+    assert!(text.contains("\nsizes: [1k, 4k, 16k, 64k, 256k, 1024k]\n"), "{text}");
+    let lint = framecost(&["lint", spec_s]);
+    assert_eq!(lint.status.code(), Some(0), "{}", String::from_utf8_lossy(&lint.stderr));
+    for bad in ["0", "lots"] {
+        let out = framecost(&["shape", PENGUINS, "--full-rows", bad, "--out", dir.path().join("x.yaml").to_str().expect("utf8")]);
+        assert_eq!(out.status.code(), Some(2), "--full-rows {bad}");
+    }
+}

@@ -46,6 +46,10 @@ pub struct Args {
     /// Seed written into the skeleton.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
+    /// How many rows the full data has (of the largest table, when the samples are
+    /// related), e.g. `40M`: the skeleton's sizes go towards it and its target is set to it.
+    #[arg(long, value_name = "N")]
+    pub full_rows: Option<String>,
     /// Replace skeleton files that already exist.
     #[arg(long)]
     pub force: bool,
@@ -134,7 +138,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
             return fail(format!("{}: no such folder to write the skeleton into", folder.display()));
         }
     }
-    let opts = ShapeOptions { read, keep_labels: args.keep_labels, seed: args.seed };
+    let full_rows = match args.full_rows.as_deref().map(crate::spec::units::parse_rows).transpose() {
+        Ok(Some(0)) => return fail("--full-rows: expected at least 1 row"),
+        Ok(n) => n,
+        Err(e) => return fail(format!("--full-rows: expected {e}")),
+    };
+    let opts = ShapeOptions { read, keep_labels: args.keep_labels, seed: args.seed, full_rows };
     let outcome = match shape::shape(&args.files, &opts) {
         Ok(o) => o,
         Err(e) => return fail(e),

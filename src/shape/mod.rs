@@ -32,6 +32,8 @@ pub struct ShapeOptions {
     pub read: read::ReadOptions,
     pub keep_labels: bool,
     pub seed: u64,
+    /// The full data's row count (of the largest table when samples are related).
+    pub full_rows: Option<u64>,
 }
 
 /// One sample's outcome.
@@ -124,7 +126,7 @@ pub fn shape(paths: &[PathBuf], opts: &ShapeOptions) -> Result<ShapeOutcome, Str
             Vec::new()
         };
         let file = path.display().to_string();
-        let doc = render::TableDoc { name, file: &file, rows: df.height(), seed: opts.seed, columns: &columns, references: &references, labels: &labels };
+        let doc = render::TableDoc { name, file: &file, rows: df.height(), seed: opts.seed, full_rows: opts.full_rows, columns: &columns, references: &references, labels: &labels };
         let spec_text = render::workload(&doc);
         let plan = crate::spec::load_str(&format!("{name}.yaml"), &spec_text)
             .map_err(|e| format!("{}: the inferred spec does not lint (a framecost bug; please report it):\n{e}", path.display()))?;
@@ -133,7 +135,7 @@ pub fn shape(paths: &[PathBuf], opts: &ShapeOptions) -> Result<ShapeOutcome, Str
         let fidelity = fidelity_of(&columns, &generated, &[])?;
         tables.push(TableShape { name: name.clone(), file: path.clone(), rows: df.height(), columns, spec_text, fidelity, labels });
     }
-    let related = relate(&mut tables, &references, opts.seed)?;
+    let related = relate(&mut tables, &references, opts.seed, opts.full_rows)?;
     Ok(ShapeOutcome { tables, references, related })
 }
 
@@ -153,14 +155,14 @@ fn fidelity_of(columns: &[infer::Inferred], generated: &DataFrame, referring: &[
 
 /// The related workload of samples with references between them, and each table's fidelity
 /// against it (generated as a sweep does, at the largest sample's rows).
-fn relate(tables: &mut [TableShape], references: &[refs::Reference], seed: u64) -> Result<Option<RelatedShape>, String> {
+fn relate(tables: &mut [TableShape], references: &[refs::Reference], seed: u64, full_rows: Option<u64>) -> Result<Option<RelatedShape>, String> {
     let sizes: Vec<(&str, usize)> = tables.iter().map(|t| (t.name.as_str(), t.rows)).collect();
     let Some(layout) = related::layout(&sizes, references) else { return Ok(None) };
     let files: Vec<String> = tables.iter().map(|t| t.file.display().to_string()).collect();
     let docs: Vec<render::TableDoc> = tables
         .iter()
         .zip(&files)
-        .map(|(t, file)| render::TableDoc { name: &t.name, file, rows: t.rows, seed, columns: &t.columns, references, labels: &t.labels })
+        .map(|(t, file)| render::TableDoc { name: &t.name, file, rows: t.rows, seed, full_rows, columns: &t.columns, references, labels: &t.labels })
         .collect();
     let spec_text = related::workload(&layout, &docs, seed);
     let plan = crate::spec::load_str("related.yaml", &spec_text)

@@ -15,7 +15,7 @@
 
 use super::infer::{empty_spec, expected_seen, solve_pool, Inferred};
 use super::refs::Reference;
-use super::render::{columns_yaml, sizes, yaml_str, Remodel, TableDoc};
+use super::render::{columns_yaml, sizes_yaml, yaml_str, Remodel, TableDoc};
 use crate::spec::model::{ColumnKind, ColumnSpec, Order};
 use crate::spec::units::Share;
 
@@ -205,7 +205,7 @@ pub fn workload(l: &Layout, docs: &[TableDoc], seed: u64) -> String {
         y += "    columns:\n";
         y += &columns_yaml(d, "      ", &|c| remodel(l, docs, i, c));
     }
-    y += &format!("sizes: [{}]\n", sizes(main.rows));
+    y += &sizes_yaml(main.rows, main.full_rows);
     y += "budget: {per_point: 2s, whole_run: 60s}\n";
     y += &placeholders(l, docs);
     y

@@ -97,17 +97,66 @@ pub struct TableDoc<'a> {
     pub file: &'a str,
     pub rows: usize,
     pub seed: u64,
+    /// The full data's row count (`shape --full-rows`): the skeleton's target.
+    pub full_rows: Option<u64>,
     pub columns: &'a [Inferred],
     pub references: &'a [Reference],
     /// Top labels per column, only with `--keep-labels`.
     pub labels: &'a [(String, Vec<(String, u64)>)],
 }
 
-/// Sizes around the sample's: a quarter, a half, the same, twice and four times.
-pub(super) fn sizes(rows: usize) -> String {
-    let mut v: Vec<u64> = [rows / 4, rows / 2, rows, rows * 2, rows * 4].iter().map(|&r| r.max(1) as u64).collect();
-    v.dedup();
-    v.iter().map(|&n| crate::units::rows_label(n)).collect::<Vec<_>>().join(", ")
+/// Smallest first size of a skeleton: below about a thousand rows a run is mostly fixed
+/// cost, and growth does not show (a 300-row sample used to get sizes 75 to 1.2k rows).
+pub const FIRST_SIZE_MIN: u64 = 1000;
+/// Largest size a skeleton reaches without `--full-rows` (or four times the sample, when
+/// that is more).
+pub const LADDER_REACH: u64 = 256_000;
+/// Most sizes a skeleton lists.
+pub const LADDER_MOST: usize = 8;
+
+/// The skeleton's sizes: from a quarter of the sample's rows (at least
+/// [`FIRST_SIZE_MIN`]) in steps of ×4, up to the full data's rows when known (`--full-rows`),
+/// else to four times the sample or [`LADDER_REACH`], whichever is more; steps of ×2 when
+/// ×4 would give fewer than five sizes; at most [`LADDER_MOST`] sizes. The sweep's own
+/// guards skip or refuse sizes that would not fit its budgets or memory.
+pub fn ladder(rows: usize, full: Option<u64>) -> Vec<u64> {
+    let start = (rows as u64 / 4).max(FIRST_SIZE_MIN);
+    let reach = full.filter(|f| *f > start).unwrap_or_else(|| (rows as u64 * 4).max(LADDER_REACH));
+    let steps = |factor: u64| {
+        let mut v = vec![start];
+        while v.len() < LADDER_MOST {
+            let next = v[v.len() - 1] * factor;
+            if next > reach {
+                break;
+            }
+            v.push(next);
+        }
+        v
+    };
+    let four = steps(4);
+    if four.len() >= 5 { four } else { steps(2) }
+}
+
+/// The sizes line and, with the full data's rows, the target line, with a comment.
+pub(super) fn sizes_yaml(rows: usize, full: Option<u64>) -> String {
+    let v = ladder(rows, full);
+    let list = v.iter().map(|&n| crate::units::rows_label(n)).collect::<Vec<_>>().join(", ");
+    match full {
+        Some(f) => format!(
+            "# sizes: from a quarter of the sample (at least 1k rows) towards the full data's {} rows
+sizes: [{list}]
+target: {}
+",
+            crate::units::rows_label(f),
+            crate::units::rows_label(f)
+        ),
+        None => format!(
+            "# sizes: from a quarter of the sample (at least 1k rows); give `shape --full-rows N` (or add
+# `target: N`) for predictions at the full data's size
+sizes: [{list}]
+"
+        ),
+    }
 }
 
 /// What the related workload changes about a column: its spec and why, one comment line.
@@ -156,7 +205,7 @@ pub fn workload(t: &TableDoc) -> String {
     y += &format!("seed: {}\n", t.seed);
     y += "table:\n  columns:\n";
     y += &columns_yaml(t, "    ", &|_| None);
-    y += &format!("sizes: [{}]\n", sizes(t.rows));
+    y += &sizes_yaml(t.rows, t.full_rows);
     y += "budget: {per_point: 2s, whole_run: 60s}\n";
     y += "designs:   # placeholders: two generic designs that work on any table\n";
     y += "  - name: build-once\n    feed: records\n    steps: [build_from_records]\n";
@@ -175,5 +224,21 @@ mod tests {
         assert_eq!(yaml_str("2024"), "\"2024\"");
         assert_eq!(yaml_str("a: b"), "\"a: b\"");
         assert_eq!(yaml_str("say \"hi\""), "\"say \\\"hi\\\"\"");
+    }
+
+    #[test]
+    fn the_ladder_starts_at_a_quarter_of_the_sample_and_reaches_past_it() {
+        // A small sample: from 1k rows (not 75), ×4, to 256k.
+        assert_eq!(ladder(300, None), vec![1_000, 4_000, 16_000, 64_000, 256_000]);
+        // A mid-size sample: ×4 would give three sizes up to 4× the sample, so ×2.
+        assert_eq!(ladder(100_000, None), vec![25_000, 50_000, 100_000, 200_000, 400_000]);
+        // With the full data's rows: towards it, at most eight sizes.
+        assert_eq!(ladder(300, Some(40_000_000)), vec![1_000, 4_000, 16_000, 64_000, 256_000, 1_024_000, 4_096_000, 16_384_000]);
+        assert_eq!(ladder(2_000_000, Some(10_000_000)), vec![500_000, 1_000_000, 2_000_000, 4_000_000, 8_000_000]);
+        // A full size below the first size is ignored.
+        assert_eq!(ladder(8_000, Some(500)), ladder(8_000, None));
+        let y = sizes_yaml(300, Some(40_000_000));
+        assert!(y.contains("target: 40M\n") && y.contains("sizes: [1k, 4k,"), "{y}");
+        assert!(!sizes_yaml(300, None).contains("\ntarget:"));
     }
 }
