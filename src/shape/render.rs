@@ -115,12 +115,15 @@ pub const LADDER_REACH: u64 = 256_000;
 pub const LADDER_MOST: usize = 8;
 
 /// The skeleton's sizes: from a quarter of the sample's rows (at least
-/// [`FIRST_SIZE_MIN`]) in steps of ×4, up to the full data's rows when known (`--full-rows`),
+/// [`FIRST_SIZE_MIN`], rounded down to 1, 2 or 5 times a power of ten) in steps of ×4, up to the full data's rows when known (`--full-rows`),
 /// else to four times the sample or [`LADDER_REACH`], whichever is more; steps of ×2 when
 /// ×4 would give fewer than five sizes; at most [`LADDER_MOST`] sizes. The sweep's own
 /// guards skip or refuse sizes that would not fit its budgets or memory.
 pub fn ladder(rows: usize, full: Option<u64>) -> Vec<u64> {
-    let start = (rows as u64 / 4).max(FIRST_SIZE_MIN);
+    // Rounded down to 1, 2 or 5 times a power of ten, so the sizes read as round numbers.
+    let quarter = (rows as u64 / 4).max(FIRST_SIZE_MIN);
+    let decade = 10u64.pow(quarter.ilog10());
+    let start = [5, 2, 1].into_iter().map(|m| m * decade).find(|&s| s <= quarter).unwrap_or(decade);
     let reach = full.filter(|f| *f > start).unwrap_or_else(|| (rows as u64 * 4).max(LADDER_REACH));
     let steps = |factor: u64| {
         let mut v = vec![start];
@@ -231,7 +234,9 @@ mod tests {
         // A small sample: from 1k rows (not 75), ×4, to 256k.
         assert_eq!(ladder(300, None), vec![1_000, 4_000, 16_000, 64_000, 256_000]);
         // A mid-size sample: ×4 would give three sizes up to 4× the sample, so ×2.
-        assert_eq!(ladder(100_000, None), vec![25_000, 50_000, 100_000, 200_000, 400_000]);
+        assert_eq!(ladder(100_000, None), vec![20_000, 40_000, 80_000, 160_000, 320_000]);
+        // Round first sizes: a quarter of 5364 rows is 1341, read as 1k.
+        assert_eq!(ladder(5_364, None)[..3], [1_000, 4_000, 16_000]);
         // With the full data's rows: towards it, at most eight sizes.
         assert_eq!(ladder(300, Some(40_000_000)), vec![1_000, 4_000, 16_000, 64_000, 256_000, 1_024_000, 4_096_000, 16_384_000]);
         assert_eq!(ladder(2_000_000, Some(10_000_000)), vec![500_000, 1_000_000, 2_000_000, 4_000_000, 8_000_000]);
