@@ -411,6 +411,26 @@ fn points_measured_on_a_busy_machine_are_never_called() {
 }
 
 #[test]
+fn points_whose_samples_split_into_two_groups_are_never_called() {
+    // At the two largest sizes the new run's samples fell into two groups and the medians
+    // landed in the slow one, ×3 the baseline's (a cross-column sweep: 1.77 ms against
+    // 0.41 ms of unchanged code): shown, called unclear, failing nothing.
+    let base = run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]);
+    let jump = |n: u64| if n >= 64_000 { 3.0 * linear(n) } else { linear(n) };
+    let mut new = run("b", 2, "cpu", 1e8, &jump, &lin_bytes, &[]);
+    for p in new.workloads[0].points.iter_mut().filter(|p| p.rows >= 64_000) {
+        p.measured.as_mut().expect("measured").bimodal = true;
+    }
+    let g = compare(&base, &new, &GateOptions::default());
+    for p in &g.workloads[0].points {
+        let expected = if p.rows >= 64_000 { Call::Unclear } else { Call::Same };
+        assert_eq!(p.call, expected, "at {} rows", p.rows);
+        assert_eq!(p.split, p.rows >= 64_000);
+    }
+    assert!(!g.failed(), "{:?}", g.workloads[0].growth);
+}
+
+#[test]
 fn a_slowdown_at_the_smallest_sizes_only_is_reported_but_does_not_fail() {
     // 30% slower at the two smallest sizes, both confirmed by each other, nothing at the
     // larger six: runs of microseconds move that much between runs of unchanged code.

@@ -279,7 +279,8 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         }
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
-    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy).count();
+    let split = pts.iter().filter(|p| p.call == Call::Unclear && p.split && !p.busy).count();
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split).count();
     let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
     if said.is_empty() {
         let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
@@ -294,6 +295,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     if busy > 0 {
         said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
+    }
+    if split > 0 {
+        said.push(format!("{split} size(s) beyond the threshold but with samples in two separate groups (a median that can land in either), not judged"));
     }
     let first = format!("  {d:<name_w$}  ");
     let rest = " ".repeat(first.chars().count());
@@ -426,6 +430,7 @@ mod tests {
                 call: Call::Same,
                 confirmed: false,
                 busy: false,
+                split: false,
                 small_only: false,
             })
             .collect();

@@ -113,6 +113,7 @@ mod tests {
             call: if ratio > 1.1 { Call::Regression } else { Call::Same },
             confirmed: ratio > 1.1,
             busy: false,
+            split: false,
             small_only: false,
         }
     }

@@ -19,8 +19,9 @@
 //! unchanged code) — or when its allocated-bytes exponent (exact counts) rose by 0.15 or
 //! more. Points missing from either run are reported, not ignored.
 //!
-//! Points measured on a busy machine (`Measured::is_contaminated`) in either run are
-//! compared and shown but never called a regression or an improvement: `unclear`.
+//! Points measured on a busy machine (`Measured::is_contaminated`) in either run, and points
+//! whose samples fell into two separate groups (`Measured::bimodal`), are compared and shown
+//! but never called a regression or an improvement: `unclear`.
 //!
 //! Machine speed: each size of a run also times a fixed drift probe in the same rounds as
 //! the designs, so a ratio can be divided by how much faster or slower the machine itself
@@ -136,6 +137,11 @@ pub struct PointGate {
     /// called `unclear`, never a regression or an improvement.
     #[serde(default)]
     pub busy: bool,
+    /// Either run's samples at this point fell into two separate groups
+    /// (`Measured::bimodal`): its median lands in one group or the other from run to run, so
+    /// a change beyond the threshold is `unclear`, as for a busy point.
+    #[serde(default)]
+    pub split: bool,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]

@@ -90,7 +90,12 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
         // swept beside another sweep: ×1.11 to ×1.16 at four sizes of five; the same step
         // twice: ×0.97 to ×1.08). The flag is kept and shown.
         let busy = b.is_contaminated() || m.is_contaminated();
-        let call = judge(ratio, &[], p, threshold, opts.alpha);
+        // Samples in two groups: the median is unstable however they were sampled.
+        let split = b.bimodal || m.bimodal;
+        let call = match judge(ratio, &[], p, threshold, opts.alpha) {
+            Call::Regression | Call::Improvement if split => Call::Unclear,
+            c => c,
+        };
         wg.points.push(PointGate {
             design: new.to_string(),
             rows: n,
@@ -108,6 +113,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
             confirmed: false,
             small_only: false,
             busy,
+            split,
         });
     }
     confirm(&mut wg.points);

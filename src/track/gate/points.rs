@@ -69,8 +69,13 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
     // one run's medians by more than a change of the code would (measured: a catalog run
     // beside other work failed the gate on 9 points of two workloads).
     let busy = b.is_contaminated() || m.is_contaminated();
+    // Samples in two separate groups put the median in one group or the other from run to
+    // run (measured: cross-column's `horizontal-arithmetic` at 32k rows, a median of 1.77 ms
+    // between groups around 0.5 and 2 ms, ×4.27 the baseline's 0.41 ms: a "regression" of
+    // unchanged code). The verdict keeps such points from deciding; so does the gate.
+    let split = b.bimodal || m.bimodal;
     let call = match judge(ratio, &[normalised, memory.map(|x| ratio / x)], p, threshold, alpha) {
-        Call::Regression | Call::Improvement if busy => Call::Unclear,
+        Call::Regression | Call::Improvement if busy || split => Call::Unclear,
         c => c,
     };
     PointGate {
@@ -90,6 +95,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         confirmed: false,
         small_only: false,
         busy,
+        split,
     }
 }
 
