@@ -225,6 +225,16 @@ impl GateReport {
     pub fn failed(&self) -> bool {
         self.regressions > 0 || self.growth_regressions > 0
     }
+
+    /// Add one workload's comparison and its counts to the totals.
+    pub(super) fn add(&mut self, wg: WorkloadGate) {
+        self.regressions += wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).count();
+        self.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
+        self.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
+        self.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
+        self.missing += wg.missing.len();
+        self.workloads.push(wg);
+    }
 }
 
 /// Compare two runs.
@@ -263,13 +273,7 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
             report.unmatched_workloads.push(format!("{} (swept over {} in the baseline, {} in the new run)", bw.header.workload, bw.header.axis().name(), nw.header.axis().name()));
             continue;
         }
-        let wg = compare_workload(bw, nw, opts, machines);
-        report.regressions += wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).count();
-        report.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
-        report.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
-        report.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
-        report.missing += wg.missing.len();
-        report.workloads.push(wg);
+        report.add(compare_workload(bw, nw, opts, machines));
     }
     for nw in &new.workloads {
         if !base.workloads.iter().any(|w| w.header.workload == nw.header.workload) {

@@ -46,13 +46,7 @@ pub fn compare_pair(run: &RunResults, old: &str, new: &str, opts: &GateOptions) 
             report.unmatched_workloads.push(format!("{} (no design {})", w.header.workload, lacking.iter().map(|d| format!("`{d}`")).collect::<Vec<_>>().join(" or ")));
             continue;
         }
-        let wg = compare_in(w, old, new, opts);
-        report.regressions += wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).count();
-        report.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
-        report.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
-        report.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
-        report.missing += wg.missing.len();
-        report.workloads.push(wg);
+        report.add(compare_in(w, old, new, opts));
     }
     report
 }
