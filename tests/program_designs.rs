@@ -9,7 +9,7 @@
 
 use assert_cmd::Command;
 use framecost::results::reader::RunResults;
-use framecost::results::{EquivalenceStatus, SkipReason};
+use framecost::results::{EquivalenceStatus, SkipCause, SkipReason};
 use std::path::{Path, PathBuf};
 
 fn repo() -> PathBuf {
@@ -273,6 +273,41 @@ fn a_whole_process_peak_is_the_programs_own() {
 /// median over the three doublings is used, because on a 2-core machine one size's median
 /// of a Python run can move by 2× between sweeps (seen here: 47 to 185 µs for the append
 /// design at 4k), which an end-to-end ratio takes in whole.
+/// A program started once per run is mostly start-up at small sizes; extrapolating its
+/// time in proportion to the rows kept it out of every larger size of a sparse ladder
+/// (0.24 s at 1k rows "predicted" at 15 s at 64k). It now gets one trial run there, stopped
+/// at the point budget. Sleeps make the times, so a busy machine can only lengthen them:
+/// 0.1 s whatever the rows (measured at every size), and 1 s per 20k rows (3.2 s at 64k,
+/// past the 2 s budget: the trial is stopped and the point skipped, not failed).
+#[test]
+fn a_program_that_is_mostly_start_up_gets_a_trial_run() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let tmp = tempfile::tempdir().expect("tmp");
+    let spec = write(
+        dir.path(),
+        "w.yaml",
+        "name: start-up-trials\ntable: {columns: [{name: x, kind: int, range: [0, 9]}]}\nsizes: [1k, 64k, 256k]\nbudget: {per_point: 2s, whole_run: 60s}\ndesigns:\n  - name: mostly-start-up\n    program: {command: [python3, -c, \"import time; time.sleep(0.1)\", \"{input}\"], mode: process}\n  - name: grows-with-rows\n    program: {command: [python3, -c, \"import sys, time; time.sleep(int(sys.argv[1]) / 20000)\", \"{rows}\", \"{input}\"], mode: process}\n",
+    );
+    let run = dir.path().join("run");
+    let out = sweep(&["--allow-programs"], &spec, &run, tmp.path());
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("results");
+    let w = &r.workloads[0];
+    for rows in [1_000, 64_000, 256_000] {
+        assert!(w.point("mostly-start-up", rows).is_some_and(|p| p.measured.is_some()), "mostly-start-up not measured at {rows}");
+    }
+    assert!(w.point("grows-with-rows", 1_000).is_some_and(|p| p.measured.is_some()));
+    let trial = w.point("grows-with-rows", 64_000).and_then(|p| p.skipped.as_ref()).expect("skipped at 64k");
+    assert_eq!(trial.reason, SkipReason::PredictedOverBudget);
+    assert!(
+        matches!(trial.cause, Some(SkipCause::TrialOverBudget { at: 64_000, limit_ns, .. }) if (limit_ns - 2e9).abs() < 1.0),
+        "{trial:?}"
+    );
+    let later = w.point("grows-with-rows", 256_000).and_then(|p| p.skipped.as_ref()).expect("skipped at 256k");
+    assert_eq!(later.reason, SkipReason::SmallerSizeOverBudget);
+    assert!(matches!(later.cause, Some(SkipCause::TrialOverBudget { at: 64_000, .. })), "{later:?}");
+}
+
 #[test]
 fn python_containers_scale_as_published() {
     let dir = tempfile::tempdir().expect("tempdir");

@@ -107,6 +107,13 @@ fn finish_point(
     let point = |m: Option<Measured>, s: Option<SkipInfo>| {
         Record::Point(PointRecord { workload: plan.name.clone(), design: a.design.name.clone(), rows, measured: m, skipped: s, setup_ns: a.setup_ns })
     };
+    if let Some(info) = a.overrun.take() {
+        // A trial stopped unfinished: over the budget here and at every larger size.
+        st.blocked = Some(SkipInfo { reason: SkipReason::SmallerSizeOverBudget, ..info.clone() });
+        out.write(point(None, Some(info)))?;
+        outcome.skipped += 1;
+        return Ok(());
+    }
     if let Some(err) = &a.error {
         let info = SkipInfo::failed(err.clone());
         st.learn_failed(rows, &info);
@@ -290,12 +297,18 @@ impl<'p> SizeRun<'p, '_> {
         let limit = super::memory::memory_limit();
         let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit);
         let mut runnable = Vec::new();
+        let mut trials = Vec::new();
         for (i, d) in decisions.into_iter().enumerate() {
             if self.only.is_some_and(|only| only != i) {
                 continue;
             }
             match d {
-                Some(Ok(())) => runnable.push(i),
+                Some(Ok(admitted)) => {
+                    runnable.push(i);
+                    if let super::admit::Admission::Trial { limit_s, skip } = admitted {
+                        trials.push((i, limit_s, skip));
+                    }
+                }
                 Some(Err(info)) => {
                     self.skip_point(rows, i, info)?;
                     self.outcome.skipped += 1;
@@ -308,6 +321,11 @@ impl<'p> SizeRun<'p, '_> {
         }
         let inputs = self.prepare(rows, &runnable, &peaks, limit.bytes)?;
         let (mut active, _program_files) = self.activate(rows, &runnable, &inputs)?;
+        for (i, limit_s, skip) in trials {
+            if let Some(a) = active.iter_mut().find(|a| a.index == i) {
+                a.trial = Some((limit_s, skip));
+            }
+        }
         let mut measured: Vec<MeasuredRow> = Vec::new();
         super::sampling::first_runs(plan, rows, &mut active, &mut self.programs, self.progress, self.min_sample_ns);
         super::sampling::warm_up(&plan.budget, rows, &mut active, &mut self.programs);

@@ -52,6 +52,11 @@ pub struct Active<'a> {
     pub cpu_at_start: Option<super::hygiene::CpuSnapshot>,
     /// How long each cache sweep before one of its samples took (ns): the memory probe.
     pub memory: Vec<f64>,
+    /// Admitted for a trial (`admit::Admission::Trial`): its first run is stopped after
+    /// this many seconds, and then it is skipped with this record.
+    pub trial: Option<(f64, SkipInfo)>,
+    /// The trial was stopped unfinished: the point is written skipped with this record.
+    pub overrun: Option<SkipInfo>,
 }
 
 impl<'a> Active<'a> {
@@ -72,6 +77,8 @@ impl<'a> Active<'a> {
             switches: (0, 0.0),
             cpu_at_start: None,
             memory: Vec::new(),
+            trial: None,
+            overrun: None,
             output: None,
             stop: None,
             error,
@@ -164,9 +171,14 @@ type Taken = (f64, f64, AllocStats, Option<Value>, Option<(u64, Option<u64>)>);
 
 /// Take one sample of a design: its steps in this process, or its program.
 fn take(a: &Active, programs: &mut [Option<ProgramDesign>], b: &Budget) -> Result<Taken, SkipCause> {
+    take_within(a, programs, program_limit(b, a.spent_s))
+}
+
+/// [`take`], a program's runs stopped after `limit`.
+fn take_within(a: &Active, programs: &mut [Option<ProgramDesign>], limit: std::time::Duration) -> Result<Taken, SkipCause> {
     match programs.get_mut(a.index).and_then(|p| p.as_mut()) {
         Some(p) => {
-            let s = p.sample(a.batch, program_limit(b, a.spent_s)).map_err(program)?;
+            let s = p.sample(a.batch, limit).map_err(program)?;
             Ok((s.ns_per_run, s.cpu_ns_per_run, AllocStats::default(), None, s.peak_resident.map(|p| (p, s.resident_before))))
         }
         None => sample(a).map(|(ns, cpu, alloc, out)| (ns, cpu, alloc, out, None)),
@@ -208,8 +220,18 @@ pub fn first_runs(plan: &Plan, rows: u64, active: &mut [Active], programs: &mut 
         progress.point(&plan.name, rows, a.index, &a.design.name, 0);
         let t = Instant::now();
         let watch = watchdog::arm(a.index, rows, "the first run", watchdog::limit_for(b.per_point_s));
-        let first = take(a, programs, &b);
+        let first = match &a.trial {
+            Some((limit_s, _)) => take_within(a, programs, std::time::Duration::from_secs_f64(*limit_s)),
+            None => take(a, programs, &b),
+        };
         drop(watch);
+        if first.is_err() && a.trial.is_some() && programs.get(a.index).and_then(|p| p.as_ref()).is_some_and(|p| p.stopped_at_limit()) {
+            // The trial did not finish within the point budget: skipped, not failed.
+            a.overrun = a.trial.take().map(|t| t.1);
+            a.stop = Some(StopReason::PointBudget);
+            a.spent_s += t.elapsed().as_secs_f64();
+            continue;
+        }
         // The output to compare: a step's first result, or what the program saved.
         let first = first.and_then(|(ns, cpu, alloc, out_v, peak)| {
             let facts = match programs.get_mut(a.index).and_then(|p| p.as_mut()) {

@@ -41,6 +41,12 @@ pub fn words(c: &SkipCause, axis: Axis<'_>) -> String {
         SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns } => {
             format!("{runs} runs at {} would pass the {} run budget ({} used)", time_ns(*predicted_ns), time_ns(*budget_ns), time_ns(*used_ns))
         }
+        SkipCause::TrialOverBudget { at, limit_ns, runs, budget_ns } => format!(
+            "at {} a trial run was stopped unfinished after {}; {runs} runs need more than the {} point budget",
+            axis.point(*at),
+            time_ns(*limit_ns),
+            time_ns(*budget_ns)
+        ),
         SkipCause::TooFewSamples { at, budget_ns, samples, needed, run_ns } => format!(
             "at {} the {} point budget allowed only {samples} of {needed} samples (one run {})",
             axis.point(*at),
@@ -104,6 +110,7 @@ mod tests {
         let cases: Vec<(SkipCause, &[&str])> = vec![
             (SkipCause::PointBudget { predicted_ns: 2e9, runs: 4.0, budget_ns: 5e9 }, &["predicted", "4 runs", "point budget"]),
             (SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.9e10 }, &["run budget", "used"]),
+            (SkipCause::TrialOverBudget { at: 64000, limit_ns: 3e9, runs: 4.0, budget_ns: 3e9 }, &["at 64k rows a trial run was stopped unfinished after 3.00 s", "4 runs need more than the 3.00 s point budget"]),
             (SkipCause::TooFewSamples { at: 4096, budget_ns: 5e9, samples: 3, needed: 6, run_ns: 1.2e9 }, &["at 4096 rows", "only 3 of 6 samples"]),
             (SkipCause::Memory { need, engine: "memory".into(), limit_bytes: 2 << 20, limit_source: "a cgroup".into(), share: 0.8, hard: true }, &["about 4.00 MiB (table 1.00 MiB", "2.00 MiB allowed by a cgroup", "80%", "hard limit"]),
             (SkipCause::Disk { disk_bytes: 5.0 * 1024.0 * 1024.0, free_bytes: 1 << 20, folder: "/tmp".into(), share: 0.8 }, &["writes about 5.00 MiB in the temp folder", "1.00 MiB free in /tmp"]),

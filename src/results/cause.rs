@@ -19,6 +19,10 @@ pub enum SkipCause {
     PointBudget { predicted_ns: f64, runs: f64, budget_ns: f64 },
     /// `runs` runs at `predicted_ns` would pass the whole run's budget, `used_ns` of it used.
     RunBudget { predicted_ns: f64, runs: f64, budget_ns: f64, used_ns: f64 },
+    /// At swept value `at`, a program whose start-up may be most of its time was given one
+    /// trial run (its extrapolated time was over the budget), stopped unfinished after
+    /// `limit_ns`: `runs` such runs would pass the point budget `budget_ns`.
+    TrialOverBudget { at: u64, limit_ns: f64, runs: f64, budget_ns: f64 },
     /// At swept value `at` the point budget allowed only `samples` of the `needed`.
     TooFewSamples { at: u64, budget_ns: f64, samples: u64, needed: u64, run_ns: f64 },
     /// The estimated memory does not fit in `limit_bytes` (set by `limit_source`), of which

@@ -53,6 +53,7 @@ fn cause_ok(c: &SkipCause) -> bool {
     match c {
         SkipCause::PointBudget { predicted_ns, runs, budget_ns } => [predicted_ns, runs, budget_ns].into_iter().all(amount),
         SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns } => [predicted_ns, runs, budget_ns, used_ns].into_iter().all(amount),
+        SkipCause::TrialOverBudget { at, limit_ns, runs, budget_ns } => rows_ok(*at) && [limit_ns, runs, budget_ns].into_iter().all(amount),
         SkipCause::TooFewSamples { at, budget_ns, run_ns, .. } => rows_ok(*at) && amount(budget_ns) && amount(run_ns),
         SkipCause::Memory { need, share, .. } => [&need.table, &need.records, &need.generator, &need.working, share].into_iter().all(amount),
         SkipCause::Disk { disk_bytes, share, .. } => amount(disk_bytes) && amount(share),
@@ -77,7 +78,7 @@ fn clean_cause(c: &mut SkipCause) {
         SkipCause::Runaway { during, .. } => clean(during),
         SkipCause::FailedAt { cause, .. } => clean_cause(cause),
         SkipCause::Step { .. } | SkipCause::Panic { .. } | SkipCause::Program { .. } => {}
-        SkipCause::PointBudget { .. } | SkipCause::RunBudget { .. } | SkipCause::TooFewSamples { .. } => {}
+        SkipCause::PointBudget { .. } | SkipCause::RunBudget { .. } | SkipCause::TrialOverBudget { .. } | SkipCause::TooFewSamples { .. } => {}
     }
 }
 

@@ -91,6 +91,8 @@ pub struct ProgramDesign {
     pub resident_before: Option<u64>,
     /// The output file of process mode's last run.
     outputs: usize,
+    /// The last process-mode run was stopped at its time limit (not by an interrupt).
+    stopped_at_limit: bool,
 }
 
 impl ProgramDesign {
@@ -114,6 +116,7 @@ impl ProgramDesign {
             load_ns: None,
             resident_before: None,
             outputs: 0,
+            stopped_at_limit: false,
         };
         if let Err(e) = std::fs::create_dir_all(&d.work) {
             d.broken = Some(format!("could not create its work folder {}: {e}", d.work.display()));
@@ -201,6 +204,11 @@ impl ProgramDesign {
         self.load_ns = reply.get("ns").and_then(|v| v.as_f64()).filter(|x| x.is_finite() && *x >= 0.0);
         self.resident_before = self.worker.as_ref().and_then(|w| status_kib(w.pid, "VmRSS:")).map(|k| k * 1024);
         Ok(())
+    }
+
+    /// The last process-mode run was stopped at its time limit (not by an interrupt).
+    pub fn stopped_at_limit(&self) -> bool {
+        self.stopped_at_limit
     }
 
     /// Take one sample of `batch` runs, each run limited by what is left of `limit`.

@@ -44,6 +44,7 @@ impl ProgramDesign {
     /// known.
     pub(super) fn run_process(&mut self, limit: Duration) -> Result<(f64, f64, Option<u64>), String> {
         let args = self.process_args();
+        self.stopped_at_limit = false;
         let report = self.log.with_extension("launch");
         let _ = std::fs::remove_file(&report);
         let launched_args: Vec<String>;
@@ -113,6 +114,7 @@ impl ProgramDesign {
             if interrupt::requested() {
                 return Err(INTERRUPTED.into());
             }
+            self.stopped_at_limit = true;
             return Err(format!("still running after {}: stopped and killed{}", secs(limit), self.tail()));
         }
         let tv = |t: libc::timeval| t.tv_sec as f64 * 1e9 + t.tv_usec as f64 * 1e3;
