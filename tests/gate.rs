@@ -257,10 +257,14 @@ fn gate_cli_exit_codes_json_baselines_and_history() {
     let slow = |n: u64| if n >= 64_000 { 1.2 * linear(n) } else { linear(n) };
     let new = run("130000", 12, "cpu", 1e8, &slow, &lin_bytes, &[]);
     let same = run("140000", 13, "cpu", 1e8, &slow, &lin_bytes, &[]);
+    // 30% slower at 16k rows alone: the jump noise gives one point, not a change.
+    let blip = |n: u64| if n == 16_000 { 1.3 * slow(n) } else { slow(n) };
+    let one = run("150000", 14, "cpu", 1e8, &blip, &lin_bytes, &[]);
     let runs = tmp.path().join("runs");
     write_run(&runs.join("r1"), &base);
     write_run(&runs.join("r2"), &new);
     write_run(&runs.join("r3"), &same);
+    write_run(&runs.join("r4"), &one);
     let fc = || Command::cargo_bin("framecost").expect("binary");
 
     let out = fc().arg("gate").arg(runs.join("r1")).arg(runs.join("r2")).output().expect("runs");
@@ -289,6 +293,9 @@ fn gate_cli_exit_codes_json_baselines_and_history() {
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     assert!(text.contains("build at 64k rows got slower"), "{text}");
+    // History marks what the gate confirms; the one-size jump is only counted.
+    assert!(!text.contains("at 16k rows got"), "{text}");
+    assert!(text.contains("1 unconfirmed move(s) not marked"), "{text}");
     let png = image::open(runs.join("history").join("ledger-history.png")).expect("png").to_rgb8();
     assert_eq!(png.dimensions(), (1000, 720));
     let svg = std::fs::read_to_string(runs.join("history").join("ledger-history.svg")).expect("svg");

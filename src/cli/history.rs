@@ -1,7 +1,8 @@
 //! `framecost history DIR` — every run found in DIR (folders holding `points.jsonl`, saved
 //! baselines included), in the order they were made: per workload a picture of each design's
 //! cost at each size across the runs, with the places where the gate between consecutive
-//! runs found a change marked, and the same changes listed. Runs whose workload file changed
+//! runs found a confirmed change marked (the changes it would fail on, and confirmed
+//! improvements), and the same changes listed; unconfirmed moves are only counted. Runs whose workload file changed
 //! (the spec hash in the workload header differs from the run before) are marked in both.
 
 use super::Failure;
@@ -40,14 +41,22 @@ pub fn run(a: Args) -> Result<(), Failure> {
         return Err(Failure::Usage(format!("{} holds {} complete run(s); two or more are needed", a.dir.display(), runs.len())));
     }
     let out = a.out.clone().unwrap_or_else(|| a.dir.join("history"));
-    // Changes between consecutive runs: (index of the later run, design, rows, worse?).
+    // Changes between consecutive runs: (index of the later run, design, rows, worse?) —
+    // only those the gate confirms (a neighbouring size agrees, and the change reaches the
+    // design's two largest sizes), the ones it would fail on; a move at one size alone is
+    // counted per workload, not marked: between sweeps of unchanged code on a shared
+    // machine single sizes move past the threshold often (eleven catalog sweeps of
+    // unchanged steps: 56 such marks before this rule).
     let mut changes: Vec<(String, usize, String, u64, bool)> = Vec::new();
+    let mut unconfirmed: std::collections::BTreeMap<String, usize> = Default::default();
     for i in 1..runs.len() {
         let g = compare(&runs[i - 1], &runs[i], &GateOptions::default());
         for w in &g.workloads {
-            for p in &w.points {
-                if matches!(p.call, Call::Regression | Call::Improvement) {
+            for p in w.points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
+                if p.confirmed {
                     changes.push((w.workload.clone(), i, p.design.clone(), p.rows, p.call == Call::Regression));
+                } else {
+                    *unconfirmed.entry(w.workload.clone()).or_default() += 1;
                 }
             }
         }
@@ -94,6 +103,9 @@ pub fn run(a: Args) -> Result<(), Failure> {
             for m in marks.iter().filter(|m| m.run == k) {
                 println!("  run {}: {} at {} rows {}", escaped(id), escaped(&m.design), size_label(m.rows as f64), if m.worse { "got slower" } else { "got faster" });
             }
+        }
+        if let Some(n) = unconfirmed.get(name) {
+            println!("  {n} unconfirmed move(s) not marked: past the threshold at one size alone, or not at the largest sizes, as the machine's own noise moves points (`framecost gate` lists them)");
         }
     }
     Ok(())
