@@ -195,7 +195,7 @@ fn lane<DB: DrawingBackend>(root: &Area<DB>, g: &Lanes, i: usize, d: &str, runs:
         .margin_right(10)
         .x_label_area_size(if last_lane { 40 } else { 0 })
         .y_label_area_size(70)
-        .build_cartesian_2d(-0.4f64..(g.n - 0.6), log_axis(lo, hi, ticks::decimal(lo, hi)))
+        .build_cartesian_2d(-0.4f64..(g.n - 0.6), log_axis(lo, hi, ticks::spaced(ticks::decimal(lo, hi), lo, hi, (g.lane_h - 34) as f64, 15.0, 1.0)))
         .map_err(err)?;
     chart
         .configure_mesh()

@@ -71,3 +71,52 @@ pub fn binary(lo: f64, hi: f64) -> (Vec<f64>, Vec<f64>) {
     }
     (vec![], grid)
 }
+
+/// Labelled ticks of a log axis `[lo, hi]` drawn `pixels` tall, thinned so no two labels
+/// are closer than `gap` pixels: `anchor` (×1 in a ratio lane) is kept first when it is a
+/// tick, then the others nearest to it outward. The ticks dropped stay as grid lines.
+/// (History lanes are about 80 pixels tall: a lane spanning ×0.6 to ×1.7 got 0.8, 0.9 and 1
+/// labelled 10 pixels apart, in 12-pixel type.)
+pub fn spaced((bold, light): (Vec<f64>, Vec<f64>), lo: f64, hi: f64, pixels: f64, gap: f64, anchor: f64) -> (Vec<f64>, Vec<f64>) {
+    if !(lo > 0.0 && hi > lo && pixels > 0.0) {
+        return (bold, light);
+    }
+    let at = |v: f64| (v / lo).ln() / (hi / lo).ln() * pixels;
+    let mut order: Vec<f64> = bold.clone();
+    order.sort_by(|a, b| (a / anchor).ln().abs().total_cmp(&(b / anchor).ln().abs()));
+    let mut kept: Vec<f64> = Vec::new();
+    for v in order {
+        if kept.iter().all(|k| (at(*k) - at(v)).abs() >= gap) {
+            kept.push(v);
+        }
+    }
+    kept.sort_by(f64::total_cmp);
+    let mut grid = light;
+    grid.extend(bold.iter().copied().filter(|v| !kept.contains(v)));
+    grid.sort_by(f64::total_cmp);
+    grid.dedup();
+    (kept, grid)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Thinned labels keep ×1 and never sit closer than the gap; the rest stay as grid.
+    #[test]
+    fn spaced_labels_keep_the_anchor_and_their_distance() {
+        let (lo, hi) = (0.55, 1.7);
+        let (bold, grid) = spaced(decimal(lo, hi), lo, hi, 80.0, 15.0, 1.0);
+        assert!(bold.contains(&1.0), "{bold:?}");
+        let px = |v: f64| (v / lo).ln() / (hi / lo).ln() * 80.0;
+        for w in bold.windows(2) {
+            assert!(px(w[1]) - px(w[0]) >= 15.0, "{bold:?}");
+        }
+        assert!(bold.len() >= 3, "{bold:?}");
+        for v in decimal(lo, hi).0 {
+            assert!(bold.contains(&v) || grid.contains(&v), "{v} lost");
+        }
+        // Room enough: nothing dropped.
+        assert_eq!(spaced(decimal(lo, hi), lo, hi, 2000.0, 15.0, 1.0).0, decimal(lo, hi).0);
+    }
+}
