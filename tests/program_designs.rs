@@ -306,6 +306,12 @@ fn a_program_that_is_mostly_start_up_gets_a_trial_run() {
     let later = w.point("grows-with-rows", 256_000).and_then(|p| p.skipped.as_ref()).expect("skipped at 256k");
     assert_eq!(later.reason, SkipReason::SmallerSizeOverBudget);
     assert!(matches!(later.cause, Some(SkipCause::TrialOverBudget { at: 64_000, .. })), "{later:?}");
+    // The summary says a trial ran and was stopped (not "predicted"), and that a process's
+    // memory figure is its whole peak.
+    let recap = Command::cargo_bin("framecost").expect("binary").args(["recap", "--color", "never"]).arg(&run).env("COLUMNS", "200").output().expect("runs");
+    let text = String::from_utf8_lossy(&recap.stdout);
+    assert!(text.contains("a trial run there was stopped unfinished after 2.00 s, the point budget"), "{text}");
+    assert!(text.contains("peak resident memory"), "{text}");
 }
 
 #[test]

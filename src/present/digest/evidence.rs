@@ -69,7 +69,16 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
         }
         let skipped: Vec<_> = pts.iter().filter(|p| p.skipped.as_ref().is_some_and(|s| s.reason != SkipReason::Failed)).collect();
         if let Some(p) = skipped.first() {
-            let reason = p.skipped.as_ref().map(|s| s.reason.label()).unwrap_or("");
+            // A trial that was run and stopped is not a prediction: say what happened.
+            let reason = match p.skipped.as_ref() {
+                Some(s) => match &s.cause {
+                    Some(crate::results::SkipCause::TrialOverBudget { limit_ns, .. }) => {
+                        format!("a trial run there was stopped unfinished after {}, the point budget", crate::units::time_ns(*limit_ns))
+                    }
+                    _ => s.reason.label().to_string(),
+                },
+                None => String::new(),
+            };
             long.push(format!(
                 "`{}` was not run at {} of {} sizes, from {} {axis} ({reason}).",
                 d.name,

@@ -29,7 +29,13 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     let mut rows: Vec<(Sample, String)> = designs.iter().enumerate().map(|(i, d)| (Sample::Design(i), escaped(d).into_owned())).collect();
     rows.push((Sample::Line { pattern: &[], width: 2, ink: TEXT, mark: Some(true) }, "allocated per run".into()));
     let programs = w.header.designs.iter().any(|d| d.program.is_some());
-    let peak_label = if programs { "peak live (programs: resident added)" } else { "peak live" };
+    let processes = w.header.designs.iter().any(|d| d.program.as_ref().is_some_and(|p| p.mode == "process"));
+    let peak_label = match (programs, processes) {
+        // A process started per run has no "before": its peak is whole, not added.
+        (_, true) => "peak live (programs: resident)",
+        (true, false) => "peak live (programs: resident added)",
+        _ => "peak live",
+    };
     rows.push((Sample::Line { pattern: &[], width: 1, ink: tint(TEXT, 0.5), mark: Some(false) }, peak_label.into()));
     rows.push((Sample::Line { pattern: &[], width: 6, ink: table_ink, mark: None }, "the table's own size".into()));
     let f = frame(&root, &title, &rows, 0)?;
@@ -44,7 +50,8 @@ pub fn memory<DB: DrawingBackend>(root: Area<DB>, w: &WorkloadResults) -> Res<St
     for (i, d) in designs.iter().enumerate() {
         let pts: Vec<(f64, &crate::results::Measured)> = w.design_points(d).iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows as f64, m))).collect();
         let alloc: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.alloc.bytes > 0).map(|(n, m)| px(*n, m.alloc.bytes as f64)).collect();
-        // A program has no allocation counts: its peak is the resident memory its runs added.
+        // A program has no allocation counts: its peak is the resident memory its runs added
+        // (a process started per run: its whole peak).
         let peak: Vec<(i32, i32)> = pts.iter().filter(|(_, m)| m.peak_bytes() > 0).map(|(n, m)| px(*n, m.peak_bytes() as f64)).collect();
         design_line(&root, &peak, i, 1, 0.5)?;
         for p in &peak {

@@ -7,7 +7,7 @@ use super::{Options, Parts};
 use crate::fit::growth::GrowthClass;
 use crate::present::digest::{self, counts_allocations, times};
 use crate::results::reader::WorkloadResults;
-use crate::units::{bytes, time_ns};
+use crate::units::{bytes, escaped, time_ns};
 
 /// The design × size grid of times (median, then its multiple of the fastest and the mark of
 /// what ended sampling).
@@ -76,13 +76,24 @@ pub(super) fn alloc_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
 
 /// Memory of the designs that are programs (no allocation counts): the resident size their
 /// runs added on top of what was resident before them (a whole process: its whole peak).
+/// A program started once per run has no "before": its figure is its whole peak, start-up
+/// included, and the title or a key line says so.
 pub(super) fn resident_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
-    let designs: Vec<&str> = w.header.designs.iter().filter(|d| d.program.is_some()).map(|d| d.name.as_str()).collect();
-    memory_grid(w, o, "resident memory added", &designs, &|m| match m.program {
+    let programs: Vec<(&str, bool)> =
+        w.header.designs.iter().filter_map(|d| d.program.as_ref().map(|p| (d.name.as_str(), p.mode == "process"))).collect();
+    let designs: Vec<&str> = programs.iter().map(|p| p.0).collect();
+    let whole: Vec<&str> = programs.iter().filter(|p| p.1).map(|p| p.0).collect();
+    let title = if whole.len() == programs.len() { "peak resident memory" } else { "resident memory added" };
+    let mut lines = memory_grid(w, o, title, &designs, &|m| match m.program {
         Some(p) if o.long => vec![bytes(p.working_bytes() as f64), format!("peak {}", bytes(p.peak_resident_bytes as f64))],
         Some(p) => vec![bytes(p.working_bytes() as f64)],
         None => vec!["—".into()],
-    })
+    });
+    if !lines.is_empty() && !whole.is_empty() && whole.len() < programs.len() {
+        let names = whole.iter().map(|n| format!("`{}`", escaped(n))).collect::<Vec<_>>().join(", ");
+        lines.push(format!("  {names}: a whole process per run, so the whole peak, start-up included"));
+    }
+    lines
 }
 
 /// One memory figure per design and size, the cells made by `cell`.
