@@ -312,6 +312,7 @@ fn a_program_that_is_mostly_start_up_gets_a_trial_run() {
     let text = String::from_utf8_lossy(&recap.stdout);
     assert!(text.contains("a trial run there was stopped unfinished after 2.00 s, the point budget"), "{text}");
     assert!(text.contains("peak resident memory"), "{text}");
+    assert!(text.contains("> 2.00 s") && text.contains("trial stopped"), "{text}");
 }
 
 #[test]

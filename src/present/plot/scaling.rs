@@ -1,6 +1,7 @@
 //! The scaling picture: time per run against the swept size on log-log axes, one curve per
 //! design (medians with their 95% intervals, the fitted growth, the fit continued to the
-//! target, skipped points at their predicted cost), crossovers ringed and numbered.
+//! target, skipped points at their predicted cost, a stopped trial at its limit), crossovers
+//! ringed and numbered.
 
 use super::look::*;
 use super::{design_words, frame, key, log_chart, plot_rect, span, sub};
@@ -212,11 +213,17 @@ fn scaling_design<DB: DrawingBackend>(
         placer.reserve_point(*p, 7);
     }
     for p in pts.iter().filter(|p| p.skipped.is_some()) {
-        if let Some(pred) = p.skipped.as_ref().and_then(|s| s.predicted_ns) {
-            let c = (pl.px)(p.rows as f64, pred.clamp(pl.y.0, pl.y.1));
+        let Some(sk) = p.skipped.as_ref() else { continue };
+        // A trial stopped unfinished is drawn at its limit (the time it is known to pass).
+        let (at, label) = match crate::present::causes::trial_stopped(sk, p.rows) {
+            Some(limit) => (Some(limit), "trial stopped: at least this"),
+            None => (sk.predicted_ns, "skipped"),
+        };
+        if let Some(v) = at {
+            let c = (pl.px)(p.rows as f64, v.clamp(pl.y.0, pl.y.1));
             mark(root, c, i, false)?;
             placer.reserve_point(c, 7);
-            labels.push(("skipped".into(), c));
+            labels.push((label.into(), c));
         }
     }
     Ok(())
