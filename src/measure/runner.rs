@@ -148,6 +148,11 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
         match (&p.measured, &p.skipped) {
             (Some(m), _) => states[i].learn_measured(plan, p.rows, m),
             (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(p.rows, s),
+            // A trial stopped unfinished keeps the design out of larger sizes, as it did
+            // before the sweep was interrupted (no second trial at a larger size).
+            (None, Some(s)) if matches!(s.cause, Some(crate::results::SkipCause::TrialOverBudget { at, .. }) if at == p.rows) => {
+                states[i].blocked = Some(SkipInfo { reason: SkipReason::SmallerSizeOverBudget, ..s.clone() });
+            }
             _ => {}
         }
     }
