@@ -103,6 +103,17 @@ fn a_tie_names_the_design_fastest_at_most_sizes() {
         assert_eq!(fastest(at), named, "at {rows}: {at:?}");
     }
     assert!(v["text"].as_str().expect("text").contains("fastest of them at 7 of the 7 sizes"), "{v}");
+    // The runner-up's ratio interval at the largest size, read from the recorded comparison:
+    // clear of ×1.05, so the tie is one of size (under ×1.20), not of noise, and the text
+    // must not call it noise.
+    let text = std::fs::read_to_string(format!("{run}/points.jsonl")).expect("points");
+    let last = text.lines().filter_map(|l| serde_json::from_str::<serde_json::Value>(l).ok()).filter(|r| r["record"] == "comparison").last().expect("a comparison");
+    let mut ratios: Vec<(f64, f64)> = last["ratios"].as_array().expect("ratios").iter().filter_map(|r| Some((r["ratio"].as_f64()?, r["low"].as_f64()?))).collect();
+    ratios.sort_by(|x, y| x.0.total_cmp(&y.0));
+    let (ratio, low) = ratios[1];
+    assert!(low > 1.05 && ratio < 1.20, "{ratios:?}");
+    let said = v["text"].as_str().expect("text");
+    assert!(said.contains("less than ×1.20 apart") && !said.contains("within the noise"), "{v}");
 }
 
 #[test]

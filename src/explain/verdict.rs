@@ -12,7 +12,8 @@
 //!   last step (a larger fixed cost with the same cost per row also shrinks the ratio, but
 //!   never crosses), **and** the fitted curves cross at a size whose interval is finite and
 //!   lies beyond the measured range; the text says these facts;
-//! - `tie`: within the noise at the largest sizes; the design named is the one other
+//! - `tie`: within the noise at the largest sizes, or less than [`TIE_RATIO`] apart (the text
+//!   says which); the design named is the one other
 //!   evidence favours (fewer bytes, slower growth, fastest at the largest size while gaining
 //!   on the others, fastest at most sizes), and the text says so;
 //! - `undecided`: the data cannot tell (no size with two designs, every size measured on a
@@ -175,13 +176,17 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         }
         let tied: Vec<&str> = ranked.iter().filter(|r| within_noise(r)).map(|r| r.design.as_str()).collect();
         let (pick, why) = tie_break(w, a, &cmps, &tied, last.rows);
+        // Within the noise (the interval reaches ×1.05), or a clear difference too small to
+        // choose on (under TIE_RATIO): the text says which, not "noise" for both.
+        let close = if runner.low.is_some_and(|lo| lo > 1.05) {
+            format!("are less than ×{TIE_RATIO:.2} apart (×{:.2}{interval}), too close to choose on", runner.ratio)
+        } else {
+            format!("are within the noise (×{:.2}{interval})", runner.ratio)
+        };
         return Verdict {
             kind: VerdictKind::Tie,
             design: Some(pick.clone()),
-            text: format!(
-                "a tie at {at}, the largest size compared: `{best}` and `{}` are within the noise (×{:.2}{interval}); {why}{busy_note}",
-                runner.design, runner.ratio
-            ),
+            text: format!("a tie at {at}, the largest size compared: `{best}` and `{}` {close}; {why}{busy_note}", runner.design),
             decided_at: Some(last.rows),
         };
     }
