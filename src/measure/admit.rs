@@ -94,7 +94,8 @@ pub enum Admission {
     Trial { limit_s: f64, skip: SkipInfo },
 }
 
-/// The decision for each design at one size: `Ok(())` to run it, or why it is skipped.
+/// The decision for each design at one size: `Ok` with how it is let in (an [`Admission`]),
+/// or why it is skipped.
 /// A design whose point at this size is already written gets neither (it is left out).
 /// `peaks` are the designs' measured peaks and `limit` the memory the size may count on,
 /// as the size's table record states them.
