@@ -186,14 +186,15 @@ fn time_cell(w: &WorkloadResults, design: &str, n: u64) -> (String, String, usiz
             let tip = format!("{ci}{} samples; sampling ended: {}{busy}", m.samples_ns.len(), m.stop.label());
             (time_ns(m.median_ns), second, shade, tip)
         }
-        (None, Some(sk)) if crate::present::causes::trial_stopped(sk, n).is_some() => {
-            let limit = crate::present::causes::trial_stopped(sk, n).unwrap_or_default();
-            (format!("> {}", time_ns(limit)), "trial stopped".into(), 8, format!("{}: {}", sk.reason.label(), crate::present::causes::skip_words(sk, w.header.axis())))
-        }
         (None, Some(sk)) => {
+            let tip = format!("{}: {}", sk.reason.label(), crate::present::causes::skip_words(sk, w.header.axis()));
+            // A trial that ran and was stopped: its time passes the limit; not a prediction.
+            if let Some(limit) = crate::present::causes::trial_stopped(sk, n) {
+                return (format!("> {}", time_ns(limit)), "trial stopped".into(), 8, tip);
+            }
             let main = sk.predicted_ns.map(|p| format!("~{}", time_ns(p))).unwrap_or_else(|| "—".into());
             let second = if sk.reason == SkipReason::Failed { "failed" } else { "not run" };
-            (main, second.into(), 8, format!("{}: {}", sk.reason.label(), crate::present::causes::skip_words(sk, w.header.axis())))
+            (main, second.into(), 8, tip)
         }
         _ => ("—".into(), String::new(), 9, String::new()),
     }
