@@ -77,9 +77,9 @@ pub(super) fn alloc_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
 }
 
 /// Memory of the designs that are programs (no allocation counts): the resident size their
-/// runs added on top of what was resident before them (a whole process: its whole peak).
-/// A program started once per run has no "before": its figure is its whole peak, start-up
-/// included, and the title or a key line says so.
+/// runs added on top of what was resident before them. A program started once per run has
+/// no "before": its figure is its whole peak, start-up included, and the title (all such)
+/// or a key line (mixed with workers) says so.
 pub(super) fn resident_grid(w: &WorkloadResults, o: Options) -> Vec<String> {
     let programs: Vec<(&str, bool)> =
         w.header.designs.iter().filter_map(|d| d.program.as_ref().map(|p| (d.name.as_str(), p.mode == "process"))).collect();
