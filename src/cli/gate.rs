@@ -361,41 +361,21 @@ fn workload_notes(s: &mut String, w: &crate::track::gate::WorkloadGate, width: u
 /// own, and the text says so: between back-to-back catalog sweeps of unchanged code on a
 /// shared 2-core machine the memory probe moved 0.9× to 1.9× within one pairing.
 fn machine_moves(r: &GateReport) -> Option<String> {
-    if r.machines_differ {
-        return None;
-    }
-    let points = r.workloads.iter().flat_map(|w| &w.points);
-    let drift: Vec<f64> = points.clone().filter(|p| p.normalised_by.as_deref() == Some("drift probe")).filter_map(|p| p.normalised_ratio.map(|n| p.ratio / n)).collect();
-    let memory: Vec<f64> = points.filter_map(|p| p.memory_ratio).collect();
-    let range = |v: &[f64]| -> Option<(f64, f64)> {
-        let mut v: Vec<f64> = v.iter().copied().filter(|x| x.is_finite() && *x > 0.0).collect();
-        if v.is_empty() {
-            return None;
-        }
-        v.sort_by(f64::total_cmp);
-        Some((crate::fit::sample::quantile_sorted(&v, 0.1), crate::fit::sample::quantile_sorted(&v, 0.9)))
-    };
+    let m = r.machine_move()?;
     let mut said = Vec::new();
-    if let Some(y) = r.yardstick_ratio {
+    if let Some(y) = m.yardstick {
         said.push(format!("the yardstick took {y:.2}× the baseline's time"));
     }
-    let mut widest = r.yardstick_ratio.map(|y| y.ln().abs()).unwrap_or(0.0);
-    let mut probes = Vec::new();
-    for (name, v) in [("drift probe", &drift), ("memory probe", &memory)] {
-        if let Some((lo, hi)) = range(v) {
-            probes.push(format!("the {name} {lo:.2}× to {hi:.2}×"));
-            widest = widest.max(lo.ln().abs()).max(hi.ln().abs());
-        }
-    }
+    let probes: Vec<String> = [("drift probe", m.drift), ("memory probe", m.memory)]
+        .into_iter()
+        .filter_map(|(name, range)| range.map(|(lo, hi)| format!("the {name} {lo:.2}× to {hi:.2}×")))
+        .collect();
     if !probes.is_empty() {
         said.push(format!("{} (the middle 80% of the points)", probes.join(" and ")));
     }
-    if said.is_empty() {
-        return None;
-    }
     let threshold = r.workloads.iter().map(|w| w.threshold).fold(f64::INFINITY, f64::min);
     let mut text = format!("between the runs {}", said.join("; "));
-    if threshold.is_finite() && widest > (1.0 + threshold).ln() {
+    if threshold.is_finite() && m.widest() > 1.0 + threshold {
         text.push_str(&format!(
             ". The machine itself moved by more than the threshold ({:.0}%): a change of that size at one point cannot be told from it, so a point counts only when a neighbouring size agrees and it stands out from its workload's common move; to be sure of a small change, measure both versions side by side in one sweep and gate them with `--pair OLD:NEW`",
             threshold * 100.0

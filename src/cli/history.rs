@@ -50,8 +50,13 @@ pub fn run(a: Args) -> Result<(), Failure> {
     // unchanged steps: 91 marks before this rule, 3 after).
     let mut changes: Vec<(String, usize, String, u64, bool)> = Vec::new();
     let mut unconfirmed: std::collections::BTreeMap<String, usize> = Default::default();
+    // How far the machine itself moved between consecutive runs (the gate's probes).
+    let options = GateOptions::default();
+    let mut moves: Vec<(usize, crate::track::gate::MachineMove, f64)> = Vec::new();
     for i in 1..runs.len() {
-        let g = compare(&runs[i - 1], &runs[i], &GateOptions::default());
+        let g = compare(&runs[i - 1], &runs[i], &options);
+        let threshold = g.workloads.iter().map(|w| w.threshold).fold(f64::INFINITY, f64::min);
+        moves.extend(g.machine_move().filter(|_| threshold.is_finite()).map(|m| (i, m, threshold)));
         for w in &g.workloads {
             for p in w.points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
                 if p.confirmed {
@@ -61,6 +66,23 @@ pub fn run(a: Args) -> Result<(), Failure> {
                 }
             }
         }
+    }
+    let moved: Vec<&(usize, crate::track::gate::MachineMove, f64)> = moves.iter().filter(|(_, m, t)| m.widest() > 1.0 + t).collect();
+    if let Some((k, m, _)) = moved.iter().max_by(|a, b| a.1.widest().total_cmp(&b.1.widest())) {
+        let least = moved.iter().map(|x| x.2).fold(f64::INFINITY, f64::min);
+        let id = runs[*k].run.as_ref().map(|h| h.run_id.clone()).unwrap_or_default();
+        let probe = match (m.memory, m.drift) {
+            (Some((lo, hi)), _) => format!("the memory probe {lo:.2}× to {hi:.2}× across its points"),
+            (None, Some((lo, hi))) => format!("the drift probe {lo:.2}× to {hi:.2}× across its points"),
+            (None, None) => format!("the yardstick {:.2}×", m.yardstick.unwrap_or(1.0)),
+        };
+        println!(
+            "machine: between {} of {} pairs of consecutive runs the machine itself moved by more than the gate's threshold ({:.0}%; most before run {}: {probe}); a change of that size seen at one size alone cannot be told from it, which is why only confirmed changes are marked",
+            moved.len(),
+            runs.len() - 1,
+            least * 100.0,
+            escaped(&id)
+        );
     }
     let mut names: Vec<String> = Vec::new();
     for r in &runs {
