@@ -75,6 +75,35 @@ fn a_size_that_outgrows_the_allowed_memory_fails_its_points_not_the_sweep() {
     }
 }
 
+/// A related table with fixed rows is built at its full size whatever the swept size. When
+/// the memory guard refuses every design at the first size, nothing may build it — not the
+/// untimed warm-up lap either, which once did, and a billion-row table got the measuring
+/// process killed for lack of memory (found by `benches/fuzz-sweep.sh`). Here 50M rows
+/// (about 770 MiB estimated) against 300 MiB allowed: refused at once, no failed point.
+#[test]
+fn a_fixed_table_too_large_for_memory_is_refused_not_built() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let spec = dir.path().join("w.yaml");
+    std::fs::write(
+        &spec,
+        "name: huge-price-list\ntables:\n  - name: prices\n    rows: 50000000\n    columns:\n      - {name: variety_id, kind: key, order: sorted}\n      - {name: cents, kind: int, range: [40, 900]}\n  - name: deliveries\n    columns:\n      - {name: variety_id, kind: int, references: prices.variety_id}\n      - {name: grams, kind: int, range: [500, 950000]}\nsizes: [10k, 20k]\ndesigns:\n  - name: join\n    steps:\n      - sql: {query: \"SELECT COUNT(*) AS n FROM deliveries d JOIN prices p ON d.variety_id = p.variety_id\"}\n",
+    )
+    .expect("write");
+    let run = dir.path().join("run");
+    let (out, took) = sweep(&[spec.to_str().expect("utf8"), "--out", run.to_str().expect("utf8"), "--quiet"], &[("FRAMECOST_CHILD_MIB", "300")]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "stderr:\n{stderr}");
+    assert!(!stderr.contains("measuring process"), "stderr:\n{stderr}");
+    let r = RunResults::read(&run).expect("readable");
+    let w = &r.workloads[0];
+    for rows in [10_000, 20_000] {
+        let p = w.point("join", rows).and_then(|p| p.skipped.as_ref()).expect("a record");
+        assert_eq!(p.reason, SkipReason::Memory, "{p:?}");
+    }
+    assert!(w.tables.is_empty(), "no table was built");
+    assert!(took < Duration::from_secs(60), "took {took:?}");
+}
+
 #[test]
 fn in_process_sweeps_still_work() {
     let dir = tempfile::tempdir().expect("tempdir");

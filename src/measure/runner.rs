@@ -209,7 +209,16 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         probe: super::machine::DriftProbe::new(),
         only: None,
     };
-    super::lap::warmup_lap(plan, plan.sizes.get(from).copied().unwrap_or(1), &run.states);
+    // The lap builds the first size's tables (a table with fixed rows at its full size), so
+    // it runs only when the memory guard lets some design run at that size: a related table
+    // of a billion rows, refused at every size, was built by the lap anyway and the
+    // measuring process was killed for lack of memory (found by `benches/fuzz-sweep.sh`).
+    let first = plan.sizes.get(from).copied().unwrap_or(1);
+    let peaks: Vec<Vec<(u64, f64)>> = run.states.iter().map(|s| s.peaks.clone()).collect();
+    let refused = super::inputs::refusals(plan, first, &peaks, &super::memory::memory_limit(), opts.memory_share, opts.force);
+    if refused.iter().any(Option::is_none) {
+        super::lap::warmup_lap(plan, first, &run.states);
+    }
     for (k, &rows) in plan.sizes.iter().enumerate().skip(from) {
         if super::interrupt::requested() {
             run.outcome.interrupted = true;
