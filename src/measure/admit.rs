@@ -47,6 +47,12 @@ impl DesignState {
         }
     }
 
+    /// Learn that a trial run was stopped unfinished (`info`, the point's skip record): the
+    /// design is over the budget at every larger size, with no second trial.
+    pub fn learn_trial_stopped(&mut self, info: &SkipInfo) {
+        self.blocked = Some(SkipInfo { reason: SkipReason::SmallerSizeOverBudget, ..info.clone() });
+    }
+
     /// Learn that the design failed at `rows`: it is not run at larger sizes.
     pub fn learn_failed(&mut self, rows: u64, info: &SkipInfo) {
         // A record from before causes were recorded carries its prose as the step's text.

@@ -109,7 +109,7 @@ fn finish_point(
     };
     if let Some(info) = a.overrun.take() {
         // A trial stopped unfinished: over the budget here and at every larger size.
-        st.blocked = Some(SkipInfo { reason: SkipReason::SmallerSizeOverBudget, ..info.clone() });
+        st.learn_trial_stopped(&info);
         out.write(point(None, Some(info)))?;
         outcome.skipped += 1;
         return Ok(());
@@ -150,9 +150,7 @@ fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, fro
             (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(p.rows, s),
             // A trial stopped unfinished keeps the design out of larger sizes, as it did
             // before the sweep was interrupted (no second trial at a larger size).
-            (None, Some(s)) if matches!(s.cause, Some(crate::results::SkipCause::TrialOverBudget { at, .. }) if at == p.rows) => {
-                states[i].blocked = Some(SkipInfo { reason: SkipReason::SmallerSizeOverBudget, ..s.clone() });
-            }
+            (None, Some(s)) if s.trial_stopped(p.rows).is_some() => states[i].learn_trial_stopped(s),
             _ => {}
         }
     }

@@ -32,16 +32,6 @@ pub fn disk_need(disk_bytes: f64) -> String {
     format!("about {} in the temp folder", bytes(disk_bytes))
 }
 
-/// The limit of a trial run stopped unfinished at `rows` itself (not a larger size it
-/// kept the design out of): that point's time is known to be at least this, so tables
-/// show it as `> limit`, not as a prediction.
-pub fn trial_stopped(sk: &crate::results::SkipInfo, rows: u64) -> Option<f64> {
-    match &sk.cause {
-        Some(SkipCause::TrialOverBudget { at, limit_ns, .. }) if *at == rows => Some(*limit_ns),
-        _ => None,
-    }
-}
-
 /// A cause in words; `axis` labels the swept values it names.
 pub fn words(c: &SkipCause, axis: Axis<'_>) -> String {
     match c {

@@ -253,6 +253,15 @@ impl SkipInfo {
     pub fn failed(cause: SkipCause) -> SkipInfo {
         SkipInfo::new(SkipReason::Failed, cause)
     }
+
+    /// The limit of a trial run stopped unfinished at `rows` itself (not at a smaller size
+    /// that kept the design out of this one): the point's time is known to pass it.
+    pub fn trial_stopped(&self, rows: u64) -> Option<f64> {
+        match &self.cause {
+            Some(SkipCause::TrialOverBudget { at, limit_ns, .. }) if *at == rows => Some(*limit_ns),
+            _ => None,
+        }
+    }
 }
 
 /// One design at one size.

@@ -189,7 +189,7 @@ fn time_cell(w: &WorkloadResults, design: &str, n: u64) -> (String, String, usiz
         (None, Some(sk)) => {
             let tip = format!("{}: {}", sk.reason.label(), crate::present::causes::skip_words(sk, w.header.axis()));
             // A trial that ran and was stopped: its time passes the limit; not a prediction.
-            if let Some(limit) = crate::present::causes::trial_stopped(sk, n) {
+            if let Some(limit) = sk.trial_stopped(n) {
                 return (format!("> {}", time_ns(limit)), "trial stopped".into(), 8, tip);
             }
             let main = sk.predicted_ns.map(|p| format!("~{}", time_ns(p))).unwrap_or_else(|| "—".into());

@@ -215,7 +215,7 @@ fn scaling_design<DB: DrawingBackend>(
     for p in pts.iter().filter(|p| p.skipped.is_some()) {
         let Some(sk) = p.skipped.as_ref() else { continue };
         // A trial stopped unfinished is drawn at its limit (the time it is known to pass).
-        let (at, label) = match crate::present::causes::trial_stopped(sk, p.rows) {
+        let (at, label) = match sk.trial_stopped(p.rows) {
             Some(limit) => (Some(limit), "trial stopped: at least this"),
             None => (sk.predicted_ns, "skipped"),
         };

@@ -43,7 +43,7 @@ pub(super) fn time_grid(w: &WorkloadResults, o: Options) -> (Vec<String>, bool, 
                         }
                         v
                     }
-                    (None, Some(sk)) => match (crate::present::causes::trial_stopped(sk, n), sk.predicted_ns) {
+                    (None, Some(sk)) => match (sk.trial_stopped(n), sk.predicted_ns) {
                         // A trial ran and was stopped: its time is known to pass the limit.
                         (Some(limit), _) => vec![format!("> {}", time_ns(limit)), "trial stopped".into()],
                         (None, Some(p)) => vec![format!("~{}", time_ns(p)), "not run".into()],
