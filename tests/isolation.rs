@@ -113,3 +113,30 @@ fn in_process_sweeps_still_work() {
     let r = RunResults::read(&run).expect("readable");
     assert_eq!(r.workloads[0].points.len(), 4);
 }
+
+/// The warm-up lap makes records (one value object per cell) only when a design takes them.
+/// It once made them for every workload: for a fixed price list of 4M rows read by SQL
+/// designs (about 61 MiB of table, estimated at 245 MiB for the size, which the 700 MiB
+/// given to the measuring process here admits) the records took several hundred MiB more,
+/// and the measuring process ran out of memory in the lap ("memory allocation … failed")
+/// before the first size; at 50M rows they took 7.4 GiB against a 3 GiB estimate.
+#[test]
+fn the_warm_up_lap_makes_records_only_for_designs_that_take_them() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let spec = dir.path().join("w.yaml");
+    std::fs::write(
+        &spec,
+        "name: long-price-list\ntables:\n  - name: prices\n    rows: 4000000\n    columns:\n      - {name: variety_id, kind: key, order: sorted}\n      - {name: cents, kind: int, range: [40, 900]}\n  - name: deliveries\n    columns:\n      - {name: variety_id, kind: int, references: prices.variety_id}\n      - {name: grams, kind: int, range: [500, 950000]}\nsizes: [10k, 20k]\nbudget: {per_point: 2s, whole_run: 60s}\ndesigns:\n  - name: join\n    steps:\n      - sql: {query: \"SELECT COUNT(*) AS n FROM deliveries d JOIN prices p ON d.variety_id = p.variety_id\"}\n",
+    )
+    .expect("write");
+    let run = dir.path().join("run");
+    let (out, _) = sweep(&[spec.to_str().expect("utf8"), "--out", run.to_str().expect("utf8"), "--quiet"], &[("FRAMECOST_CHILD_MIB", "700")]);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "stderr:\n{stderr}");
+    let r = RunResults::read(&run).expect("readable");
+    let w = &r.workloads[0];
+    for rows in [10_000, 20_000] {
+        let p = w.point("join", rows).expect("a record");
+        assert!(p.measured.is_some(), "{p:?}\nstderr:\n{stderr}");
+    }
+}

@@ -182,3 +182,38 @@ fn an_extra_size_goes_to_one_unsettled_design_and_ranks_nothing() {
     let plan = sweep(&["tests/data/tiny.yaml", "--sizes", "1k,2k,4k,8k", "--extra-size", "--plan"]);
     assert!(String::from_utf8_lossy(&plan.stdout).contains("16k rows  only for the design whose time class"), "{}", String::from_utf8_lossy(&plan.stdout));
 }
+
+/// The designs of one size are sampled over the same stretch of time: a design whose median
+/// is precise samples on while another is not, and they stop in the same round. With a
+/// point budget far beyond what these sizes need (a few hundred microseconds a run), only
+/// precision or the common sample cap ends sampling, so every design of a size has the same
+/// number of samples, on a quiet machine or a busy one. Stopped one by one, the counts
+/// differed (30 and 35, 15 and 35 at 2k rows in three sweeps here).
+#[test]
+fn the_designs_of_a_size_stop_in_the_same_round() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let yaml = dir.path().join("together.yaml");
+    std::fs::write(
+        &yaml,
+        "name: together\nseed: 5\ntable:\n  columns:\n    - {name: line, kind: key, order: sorted}\n    - {name: kilograms, kind: float, range: [1, 500]}\nsizes: [1k, 2k, 4k]\nbudget: {per_point: 60s, whole_run: 10m, precision: 2%, max_samples: 150}\ndesigns:\n  - name: plain\n    feed: records\n    steps: [build_from_records]\n  - name: spun\n    feed: records\n    steps: [{build_from_records: {slowdown: 40%}}]\n  - name: twice\n    feed: records\n    steps: [{build_from_records: {extra_passes: 1}}]\n",
+    )
+    .expect("write");
+    let out = dir.path().join("run");
+    let s = sweep(&[yaml.to_str().expect("utf8"), "--quiet", "--out", out.to_str().expect("utf8")]);
+    assert!(s.status.success(), "{}", String::from_utf8_lossy(&s.stderr));
+    let r = RunResults::read(&out).expect("readable");
+    let w = &r.workloads[0];
+    for &n in &w.header.sizes {
+        let counts: Vec<(String, usize, String)> = w
+            .points
+            .iter()
+            .filter(|p| p.rows == n)
+            .map(|p| {
+                let m = p.measured.as_ref().expect("measured");
+                (p.design.clone(), m.samples_ns.len(), format!("{:?}", m.stop))
+            })
+            .collect();
+        assert_eq!(counts.len(), 3, "{counts:?}");
+        assert!(counts.iter().all(|c| c.1 == counts[0].1 && c.1 >= 3), "at {n} rows: {counts:?}");
+    }
+}
