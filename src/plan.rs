@@ -114,7 +114,7 @@ impl DesignPlan {
             // objects take several times the columnar bytes); measured peaks take over.
             return PROGRAM_MEMORY_FACTOR;
         }
-        self.setup.iter().chain(&self.steps).map(|s| s.def.memory_factor).fold(1.0, f64::max)
+        self.setup.iter().chain(&self.steps).map(StepPlan::memory_factor).fold(1.0, f64::max)
     }
 }
 
@@ -128,6 +128,18 @@ pub struct StepPlan {
     pub params: Params,
     pub label: String,
     pub runner: Arc<dyn Step>,
+}
+
+impl StepPlan {
+    /// Working memory before it is measured, as a multiple of the tables: the step's
+    /// declared factor, or an SQL query's own (`patterns::sql::memory_factor`).
+    pub fn memory_factor(&self) -> f64 {
+        if crate::patterns::sql::is_sql(self.def) {
+            crate::patterns::sql::memory_factor(self.params.text("query"))
+        } else {
+            self.def.memory_factor
+        }
+    }
 }
 
 /// One named table of the workload.
