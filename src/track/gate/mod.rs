@@ -19,9 +19,12 @@
 //! unchanged code) — or when its allocated-bytes exponent (exact counts) rose by 0.15 or
 //! more. Points missing from either run are reported, not ignored.
 //!
-//! Points measured on a busy machine (`Measured::is_contaminated`) in either run, and points
-//! whose samples fell into two separate groups (`Measured::bimodal`), are compared and shown
-//! but never called a regression or an improvement: `unclear`.
+//! Points measured on a busy machine (`Measured::is_contaminated`) in either run, points
+//! where other work's share of the machine rose by 0.08 or more from one run to the other
+//! in the direction of the change (below the busy mark, still enough to slow a step that
+//! uses both cores by ×1.6), and points whose samples fell into two separate groups
+//! (`Measured::bimodal`), are compared and shown but never called a regression or an
+//! improvement: `unclear`.
 //!
 //! Machine speed: each size of a run also times a fixed drift probe in the same rounds as
 //! the designs, so a ratio can be divided by how much faster or slower the machine itself
@@ -133,8 +136,10 @@ pub struct PointGate {
     /// sizes (four or more compared): reported, not failing (see `points::confirm`).
     #[serde(default)]
     pub small_only: bool,
-    /// Either run measured this point on a busy machine: a change beyond the threshold is
-    /// called `unclear`, never a regression or an improvement.
+    /// Either run measured this point on a busy machine, or the others' share of the machine
+    /// moved between the runs by `points::OTHERS_SHARE_MOVE` or more in the direction of the
+    /// change: a change beyond the threshold is called `unclear`, never a regression or an
+    /// improvement.
     #[serde(default)]
     pub busy: bool,
     /// Either run's samples at this point fell into two separate groups
