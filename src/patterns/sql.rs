@@ -61,13 +61,7 @@ pub fn memory_factor(query: &str) -> f64 {
         fn pre_visit_query(&mut self, q: &sqlparser::ast::Query) -> ControlFlow<()> {
             fn in_set(s: &SetExpr) -> bool {
                 match s {
-                    SetExpr::Select(sel) => {
-                        let grouped = match &sel.group_by {
-                            sqlparser::ast::GroupByExpr::Expressions(v, _) => !v.is_empty(),
-                            sqlparser::ast::GroupByExpr::All(_) => true,
-                        };
-                        grouped || sel.distinct.is_some()
-                    }
+                    SetExpr::Select(sel) => crate::spec::sql_rules::is_grouped(sel) || sel.distinct.is_some(),
                     // UNION without ALL removes duplicates: a DISTINCT of its own.
                     SetExpr::SetOperation { left, right, set_quantifier, .. } => {
                         !matches!(set_quantifier, sqlparser::ast::SetQuantifier::All) || in_set(left) || in_set(right)

@@ -54,12 +54,16 @@ fn in_set(s: &SetExpr) -> Option<RuleBreak> {
     }
 }
 
-fn in_select(sel: &Select) -> Option<RuleBreak> {
-    let grouped = match &sel.group_by {
+/// Whether the SELECT has a GROUP BY (of some expressions, or ALL).
+pub fn is_grouped(sel: &Select) -> bool {
+    match &sel.group_by {
         GroupByExpr::Expressions(v, _) => !v.is_empty(),
         GroupByExpr::All(_) => true,
-    };
-    if grouped {
+    }
+}
+
+fn in_select(sel: &Select) -> Option<RuleBreak> {
+    if is_grouped(sel) {
         return None;
     }
     let mut aggregate = None;
