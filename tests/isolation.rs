@@ -75,6 +75,20 @@ fn a_size_that_outgrows_the_allowed_memory_fails_its_points_not_the_sweep() {
     }
 }
 
+/// A workload in `dir` joining deliveries (swept at 10k and 20k rows) to a price list of
+/// fixed `rows`, with one SQL design; `extra` is added before the designs (a budget, say).
+fn price_list(dir: &std::path::Path, name: &str, rows: u64, extra: &str) -> std::path::PathBuf {
+    let spec = dir.join("w.yaml");
+    std::fs::write(
+        &spec,
+        format!(
+            "name: {name}\ntables:\n  - name: prices\n    rows: {rows}\n    columns:\n      - {{name: variety_id, kind: key, order: sorted}}\n      - {{name: cents, kind: int, range: [40, 900]}}\n  - name: deliveries\n    columns:\n      - {{name: variety_id, kind: int, references: prices.variety_id}}\n      - {{name: grams, kind: int, range: [500, 950000]}}\nsizes: [10k, 20k]\n{extra}designs:\n  - name: join\n    steps:\n      - sql: {{query: \"SELECT COUNT(*) AS n FROM deliveries d JOIN prices p ON d.variety_id = p.variety_id\"}}\n"
+        ),
+    )
+    .expect("write");
+    spec
+}
+
 /// A related table with fixed rows is built at its full size whatever the swept size. When
 /// the memory guard refuses every design at the first size, nothing may build it — not the
 /// untimed warm-up lap either, which once did, and a billion-row table got the measuring
@@ -83,12 +97,7 @@ fn a_size_that_outgrows_the_allowed_memory_fails_its_points_not_the_sweep() {
 #[test]
 fn a_fixed_table_too_large_for_memory_is_refused_not_built() {
     let dir = tempfile::tempdir().expect("tempdir");
-    let spec = dir.path().join("w.yaml");
-    std::fs::write(
-        &spec,
-        "name: huge-price-list\ntables:\n  - name: prices\n    rows: 50000000\n    columns:\n      - {name: variety_id, kind: key, order: sorted}\n      - {name: cents, kind: int, range: [40, 900]}\n  - name: deliveries\n    columns:\n      - {name: variety_id, kind: int, references: prices.variety_id}\n      - {name: grams, kind: int, range: [500, 950000]}\nsizes: [10k, 20k]\ndesigns:\n  - name: join\n    steps:\n      - sql: {query: \"SELECT COUNT(*) AS n FROM deliveries d JOIN prices p ON d.variety_id = p.variety_id\"}\n",
-    )
-    .expect("write");
+    let spec = price_list(dir.path(), "huge-price-list", 50_000_000, "");
     let run = dir.path().join("run");
     let (out, took) = sweep(&[spec.to_str().expect("utf8"), "--out", run.to_str().expect("utf8"), "--quiet"], &[("FRAMECOST_CHILD_MIB", "300")]);
     let stderr = String::from_utf8_lossy(&out.stderr);
@@ -123,12 +132,7 @@ fn in_process_sweeps_still_work() {
 #[test]
 fn the_warm_up_lap_makes_records_only_for_designs_that_take_them() {
     let dir = tempfile::tempdir().expect("tempdir");
-    let spec = dir.path().join("w.yaml");
-    std::fs::write(
-        &spec,
-        "name: long-price-list\ntables:\n  - name: prices\n    rows: 4000000\n    columns:\n      - {name: variety_id, kind: key, order: sorted}\n      - {name: cents, kind: int, range: [40, 900]}\n  - name: deliveries\n    columns:\n      - {name: variety_id, kind: int, references: prices.variety_id}\n      - {name: grams, kind: int, range: [500, 950000]}\nsizes: [10k, 20k]\nbudget: {per_point: 2s, whole_run: 60s}\ndesigns:\n  - name: join\n    steps:\n      - sql: {query: \"SELECT COUNT(*) AS n FROM deliveries d JOIN prices p ON d.variety_id = p.variety_id\"}\n",
-    )
-    .expect("write");
+    let spec = price_list(dir.path(), "long-price-list", 4_000_000, "budget: {per_point: 2s, whole_run: 60s}\n");
     let run = dir.path().join("run");
     let (out, _) = sweep(&[spec.to_str().expect("utf8"), "--out", run.to_str().expect("utf8"), "--quiet"], &[("FRAMECOST_CHILD_MIB", "700")]);
     let stderr = String::from_utf8_lossy(&out.stderr);
