@@ -54,6 +54,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
         available_memory_bytes: 1 << 34,
         forced: false,
         cache_sweep_bytes: None,
+        cache_sweep_threads: None,
     }));
     r.push(Record::Workload(WorkloadHeader {
         workload: "ledger".into(),
@@ -534,6 +535,34 @@ fn slower_memory_explains_a_slowdown_away_but_never_makes_one() {
     assert_eq!(g.regressions, 2, "the same slowdown with unchanged memory is caught");
     let g = compare(&base, &with_memory(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 1.5e6), &GateOptions::default());
     assert!(g.workloads[0].points.iter().all(|p| p.call == Call::Same && p.memory_ratio == Some(0.75)));
+}
+
+/// `r` with its run header saying the caches were swept with a `bytes` buffer on `threads`.
+fn swept(mut r: RunResults, bytes: u64, threads: Option<u32>) -> RunResults {
+    let h = r.run.as_mut().expect("a run header");
+    h.cache_sweep_bytes = Some(bytes);
+    h.cache_sweep_threads = threads;
+    r
+}
+
+#[test]
+fn memory_probes_of_runs_swept_differently_are_not_compared() {
+    // The same 20% slowdown as above, with the new run's memory probe 1.67x the baseline's.
+    // When the runs swept the caches the same way that explains the slowdown away; when the
+    // baseline read its 256 MiB buffer in two halves at once (15 ms on this project's
+    // machine) and the new run on one thread (25 ms), the probes time different sweeps and
+    // the slowdown is caught as without a probe.
+    let mib256 = 256 << 20;
+    let slow = |n: u64| if n >= 64_000 { 1.2 * linear(n) } else { linear(n) };
+    let base = || with_memory(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 15e6);
+    let new = || with_memory(run("b", 2, "cpu", 1e8, &slow, &lin_bytes, &[]), &|_| 25e6);
+    let same = compare(&swept(base(), mib256, Some(2)), &swept(new(), mib256, Some(2)), &GateOptions::default());
+    assert_eq!(same.regressions, 0, "{:?}", same.workloads[0].points);
+    assert!(!same.failed());
+    let differ = compare(&swept(base(), mib256, Some(2)), &swept(new(), mib256, None), &GateOptions::default());
+    assert_eq!(differ.regressions, 2, "{:?}", differ.workloads[0].points);
+    assert!(differ.workloads[0].points.iter().all(|p| p.memory_ratio.is_none()));
+    assert!(differ.failed());
 }
 
 #[test]

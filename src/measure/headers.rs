@@ -75,6 +75,7 @@ pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool, warm_cac
         available_memory_bytes: available_memory(),
         forced,
         cache_sweep_bytes: (!warm_caches).then(super::scrub::bytes),
+        cache_sweep_threads: (!warm_caches).then(super::scrub::threads),
     }
 }
 

@@ -48,8 +48,9 @@ fn machine_lines(r: &RunResults) -> Vec<(String, String)> {
         ("yardstick".into(), format!("{} — {}", time_ns(h.yardstick.median_ns), h.yardstick.kernel)),
         (
             "caches".into(),
-            match h.cache_sweep_bytes {
-                Some(b) => format!("swept before every sample (a {} read): each sample starts cold", bytes(b as f64)),
+            match h.cache_sweep() {
+                Some((b, 1)) => format!("swept before every sample (a {} read): each sample starts cold", bytes(b as f64)),
+                Some((b, t)) => format!("swept before every sample (a {} read, in {t} parts at once): each sample starts cold", bytes(b as f64)),
                 None => "left as the previous sample left them (--warm-caches, or a run before cache sweeps)".into(),
             },
         ),

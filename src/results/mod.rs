@@ -66,6 +66,20 @@ pub struct RunHeader {
     /// before the sweep existed.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub cache_sweep_bytes: Option<u64>,
+    /// Threads that read that buffer at once (2 on a machine with two or more cores); absent
+    /// in runs made before the sweep was split, which read it on one thread. The sweep's
+    /// duration is a reading of the memory's speed, comparable only between runs that swept
+    /// the same way.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cache_sweep_threads: Option<u32>,
+}
+
+impl RunHeader {
+    /// How the caches were swept before each sample: (buffer bytes, threads); None with warm
+    /// caches.
+    pub fn cache_sweep(&self) -> Option<(u64, u32)> {
+        self.cache_sweep_bytes.map(|b| (b, self.cache_sweep_threads.unwrap_or(1)))
+    }
 }
 
 /// A workload about to be swept.

@@ -292,7 +292,11 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         (Some(b), Some(n)) if b.yardstick.median_ns > 0.0 => Some(n.yardstick.median_ns / b.yardstick.median_ns),
         _ => None,
     };
-    let machines = Machines { differ: machines_differ, yardstick_ratio };
+    let same_sweep = match (bh, nh) {
+        (Some(b), Some(n)) => b.cache_sweep() == n.cache_sweep(),
+        _ => true,
+    };
+    let machines = Machines { differ: machines_differ, yardstick_ratio, same_sweep };
     let mut report = GateReport {
         baseline_run: bh.map(|h| h.run_id.clone()).unwrap_or_default(),
         new_run: nh.map(|h| h.run_id.clone()).unwrap_or_default(),

@@ -13,6 +13,9 @@ pub(super) struct Machines {
     pub(super) differ: bool,
     /// new yardstick / baseline yardstick.
     pub(super) yardstick_ratio: Option<f64>,
+    /// Both runs swept the caches the same way (buffer size and threads), so their memory
+    /// probes are readings of the same thing.
+    pub(super) same_sweep: bool,
 }
 
 /// A size both runs measured: (size, baseline, new).
@@ -57,8 +60,10 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
     // the probe's ratio between three sweeps of four workloads correlated with the designs'
     // at r = 0.56, 0.82 for the SQL self-join). Like the drift probe, it only explains a
     // change away (see `judge`).
+    // Runs that swept differently (another buffer size, one thread or two) time different
+    // sweeps: their ratio says nothing about the memory.
     let memory = match (probe_of(b), probe_of(m)) {
-        (Some(pb), Some(pn)) => Some(pn / pb),
+        (Some(pb), Some(pn)) if machines.same_sweep => Some(pn / pb),
         _ => None,
     };
     // The rank test compares the samples after the same correction.
