@@ -376,7 +376,8 @@ fn busy_verdict(all: &[&ComparisonRecord], ax: crate::results::Axis) -> Verdict 
     }
 }
 
-/// Among tied designs, the one other evidence favours: fewer allocated bytes at the size
+/// Among tied designs, the first listed when the engine runs them as one plan ([`same_plan`]);
+/// else the one other evidence favours: fewer allocated bytes at the size
 /// compared (exact counts, the same in every run), then slower growth of time, then the one
 /// fastest of them at the largest size when it gained on the others at each of the last sizes
 /// ([`gaining_at_top`]), then the one fastest of them at most compared sizes (at least two
@@ -393,6 +394,12 @@ fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecor
     let bytes = |name: &str| w.point(name, rows).and_then(|p| p.measured.as_ref()).and_then(|m| m.counted_bytes()).unwrap_or(u64::MAX);
     let listed = |n: &str| w.header.designs.iter().position(|d| d.name == n).unwrap_or(usize::MAX);
     let first = tied.iter().min_by_key(|n| listed(n)).copied().unwrap_or(tied[0]);
+    if same_plan(w, tied) {
+        return (
+            first.to_string(),
+            format!("either will do: polars runs them as one plan (their optimized query plans are the same), so the gap is noise; `{first}` is named as the first listed"),
+        );
+    }
     let by_bytes = tied.iter().min_by_key(|n| (bytes(n), listed(n))).copied().unwrap_or(first);
     if bytes(by_bytes) != u64::MAX && tied.iter().any(|n| bytes(n) != u64::MAX && bytes(by_bytes) * 10 < bytes(n) * 9) {
         let other = tied.iter().copied().filter(|n| *n != by_bytes).max_by_key(|n| bytes(n)).unwrap_or(first);
@@ -430,6 +437,44 @@ fn tie_break(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecor
         );
     }
     (first.to_string(), format!("either will do; neither memory nor growth separates them (`{first}` is named as the first listed)"))
+}
+
+/// Every tied design is SQL alone on the same engine and its optimized query plans are the
+/// same, up to the order of the columns a scan reads: the engine runs one computation for
+/// all of them. Then no measurement can separate them, and naming one by which was faster
+/// at more sizes only repeats the noise (sql-filter-join, where the optimizer pushes the
+/// filters below the join: three catalog sweeps named `join-then-filter`, then
+/// `filter-then-join` twice, at ×1.00–×1.04).
+fn same_plan(w: &WorkloadResults, tied: &[&str]) -> bool {
+    let heads: Vec<&crate::results::DesignHeader> = tied.iter().filter_map(|n| w.header.designs.iter().find(|d| d.name == *n)).collect();
+    let sql_only = |d: &crate::results::DesignHeader| {
+        d.program.is_none() && !d.steps.is_empty() && d.steps.iter().all(|s| s == "sql") && d.query_plans.len() == d.steps.len() && !d.recipe.contains("(untimed")
+    };
+    if heads.len() < 2 || heads.len() != tied.len() || !heads.iter().all(|d| sql_only(d)) {
+        return false;
+    }
+    let plans = |d: &crate::results::DesignHeader| (d.engine.clone(), d.feed.clone(), d.query_plans.iter().map(|p| normalised_plan(p)).collect::<Vec<_>>());
+    let first = plans(heads[0]);
+    heads[1..].iter().all(|d| plans(d) == first)
+}
+
+/// A plan's text with the column list of each `PROJECT[…]` (the columns a scan reads) in
+/// name order: `SELECT a, b` and `SELECT b, a` under a join read the same columns.
+fn normalised_plan(plan: &str) -> String {
+    let mut out = String::with_capacity(plan.len());
+    let mut rest = plan;
+    while let Some(at) = rest.find("PROJECT[") {
+        let open = at + "PROJECT[".len();
+        let Some(close) = rest[open..].find(']').map(|c| open + c) else { break };
+        out.push_str(&rest[..open]);
+        let mut cols: Vec<&str> = rest[open..close].split(',').map(str::trim).collect();
+        cols.sort_unstable();
+        out.push_str(&cols.join(", "));
+        out.push(']');
+        rest = &rest[close + 1..];
+    }
+    out.push_str(rest);
+    out
 }
 
 /// Fewest units of measured log-log slope by which the other tied designs must grow faster
@@ -509,4 +554,21 @@ fn led_most<'t>(cmps: &[&ComparisonRecord], tied: &[&'t str]) -> Option<(&'t str
     }
     let k = (0..counts.len()).max_by_key(|&i| counts[i])?;
     (of >= 3 && 3 * counts[k] >= 2 * of).then_some((tied[k], counts[k], of))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::normalised_plan;
+
+    #[test]
+    fn scan_columns_are_compared_in_name_order() {
+        // Text of polars' optimized plans as `sql-filter-join` records them (two queries
+        // whose scans read the same columns in another order).
+        let a = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"district\", \"member_id\"] 2/3 COLUMNS";
+        let b = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"member_id\", \"district\"] 2/3 COLUMNS";
+        assert_eq!(normalised_plan(a), normalised_plan(b));
+        let c = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"member_id\", \"joined_on\"] 2/3 COLUMNS";
+        assert_ne!(normalised_plan(a), normalised_plan(c));
+        assert_eq!(normalised_plan("no scan"), "no scan");
+    }
 }
