@@ -629,3 +629,32 @@ fn two_designs_of_one_sweep_are_gated_side_by_side() {
     let l = Command::cargo_bin("framecost").expect("binary").args(["lint", "workloads/rehearsal/side-by-side.yaml"]).output().expect("lints");
     assert!(l.status.success(), "{}", String::from_utf8_lossy(&l.stderr));
 }
+
+/// `gate BASE NEW --json` on recorded runs; (exit code, report).
+fn gate_recorded(base: &str, new: &str) -> (i32, serde_json::Value) {
+    let out = assert_cmd::Command::cargo_bin("framecost").expect("binary").args(["gate", base, new, "--json"]).output().expect("runs");
+    (out.status.code().unwrap_or(-1), serde_json::from_slice(&out.stdout).expect("json"))
+}
+
+#[test]
+fn a_fifteen_percent_slowdown_between_separate_sweeps_is_caught_at_most_sizes() {
+    // Three real sweeps of the rehearsal workload (tests/data/README.md): two unchanged, one
+    // with `slowdown: 15%` on `build-once`. Against either unchanged sweep the slowed design
+    // passes the threshold at six of its ten sizes (four neighbours confirming each other,
+    // two alone, the largest among them) and is faster at none; the machine's own move
+    // between the sweeps hid it at the others. It fails the gate on that design alone;
+    // the two unchanged sweeps pass against each other both ways.
+    let dir = "tests/data/gate-runs";
+    for base in ["ledger-a", "ledger-b"] {
+        let (code, g) = gate_recorded(&format!("{dir}/{base}"), &format!("{dir}/ledger-slowed"));
+        assert_eq!(code, 1, "{base}: {g}");
+        let points = g["workloads"][0]["points"].as_array().expect("points");
+        let confirmed: Vec<&str> = points.iter().filter(|p| p["call"] == "regression" && p["confirmed"] == true).map(|p| p["design"].as_str().expect("design")).collect();
+        assert!(confirmed.len() >= 4 && confirmed.iter().all(|d| *d == "build-once"), "{base}: {confirmed:?}");
+        assert!(points.iter().filter(|p| p["design"] == "build-once").all(|p| p["call"] != "improvement"));
+    }
+    for (a, b) in [("ledger-a", "ledger-b"), ("ledger-b", "ledger-a")] {
+        let (code, g) = gate_recorded(&format!("{dir}/{a}"), &format!("{dir}/{b}"));
+        assert_eq!(code, 0, "{a} -> {b}: {g}");
+    }
+}

@@ -129,7 +129,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
 pub const OTHERS_SHARE_MOVE: f64 = 0.08;
 
 /// Confirmed sizes that make a change stand without the two largest (with at least half of
-/// the sizes compared): see [`confirm`].
+/// the sizes compared called the same way, and none the other): see [`confirm`].
 pub const MOST_SIZES_MIN: usize = 4;
 
 /// Confirmation of one design's points (in size order): a regression or improvement is
@@ -150,7 +150,9 @@ pub const MOST_SIZES_MIN: usize = 4;
 /// one size or another: `slowdown: 15%` on tiny-ledger's `build-once` was slower at 5–7 of
 /// its 10 sizes in four of twelve pairings with unchanged baselines while one of its two
 /// largest held; no pairing of unchanged code (twelve of tiny-ledger, twelve whole
-/// catalogs) had a change at four sizes or more.
+/// catalogs) had a change at four sizes or more. Half the sizes also count when four of
+/// them are confirmed and the rest of those called the same way stand alone, provided no
+/// size went the other way (`tests/data/gate-runs/`).
 pub(super) fn confirm(points: &mut [PointGate]) {
     let calls: Vec<Call> = points.iter().map(|p| p.call).collect();
     for (k, p) in points.iter_mut().enumerate() {
@@ -160,9 +162,17 @@ pub(super) fn confirm(points: &mut [PointGate]) {
     }
     let n = calls.len();
     if n >= 4 {
-        for call in [Call::Regression, Call::Improvement] {
+        for (call, other) in [(Call::Regression, Call::Improvement), (Call::Improvement, Call::Regression)] {
             let held = points.iter().filter(|p| p.call == call && p.confirmed).count();
-            if held >= MOST_SIZES_MIN && 2 * held >= n {
+            // Every size called this way, confirmed by a neighbour or not, with none called
+            // the other way: between separate sweeps a 15% slowdown of one design passes the
+            // threshold at some sizes and drowns in the machine's own move at others
+            // (rehearsed: four confirmed sizes and two lone ones of ten, none faster, the
+            // largest among them; unchanged code never reached that in 36 pairings of
+            // sweeps of the catalog and of the rehearsal workload).
+            let called = points.iter().filter(|p| p.call == call).count();
+            let against = points.iter().filter(|p| p.call == other).count();
+            if held >= MOST_SIZES_MIN && (2 * held >= n || (2 * called >= n && against == 0)) {
                 continue;
             }
             if !points[n - 2..].iter().any(|p| p.call == call && p.confirmed) {
