@@ -392,14 +392,20 @@ fn an_exponent_rise_without_per_size_agreement_is_not_a_growth_regression() {
     assert!(off.workloads[0].growth.iter().all(|x| x.metric != "time"));
 }
 
-/// `r` with every point's share of the machine taken by other work set to `share`.
-fn with_others(mut r: RunResults, share: f64) -> RunResults {
+/// `r` with every measured point's disturbance set to `at(rows)`.
+fn with_disturbance(mut r: RunResults, at: &dyn Fn(u64) -> Disturbance) -> RunResults {
     for p in r.workloads[0].points.iter_mut() {
+        let rows = p.rows;
         if let Some(m) = p.measured.as_mut() {
-            m.disturbance = Some(Disturbance { others_share: Some(share), ..Default::default() });
+            m.disturbance = Some(at(rows));
         }
     }
     r
+}
+
+/// `r` with every point's share of the machine taken by other work set to `share`.
+fn with_others(r: RunResults, share: f64) -> RunResults {
+    with_disturbance(r, &|_| Disturbance { others_share: Some(share), ..Default::default() })
 }
 
 #[test]
@@ -508,13 +514,8 @@ fn a_slowdown_at_most_sizes_stands_even_when_a_largest_size_held() {
 }
 
 /// `r` with every point's memory probe (the cache sweeps before its samples) at `ns`.
-fn with_memory(mut r: RunResults, ns: &dyn Fn(u64) -> f64) -> RunResults {
-    for p in r.workloads[0].points.iter_mut() {
-        if let Some(m) = p.measured.as_mut() {
-            m.disturbance = Some(Disturbance { memory_probe_ns: Some(ns(p.rows)), ..Default::default() });
-        }
-    }
-    r
+fn with_memory(r: RunResults, ns: &dyn Fn(u64) -> f64) -> RunResults {
+    with_disturbance(r, &|rows| Disturbance { memory_probe_ns: Some(ns(rows)), ..Default::default() })
 }
 
 #[test]
