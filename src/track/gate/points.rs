@@ -168,8 +168,8 @@ pub(super) fn confirm(points: &mut [PointGate]) {
             // the other way: between separate sweeps a 15% slowdown of one design passes the
             // threshold at some sizes and drowns in the machine's own move at others
             // (rehearsed: four confirmed sizes and two lone ones of ten, none faster, the
-            // largest among them; unchanged code never reached that in 36 pairings of
-            // sweeps of the catalog and of the rehearsal workload).
+            // largest among them; no pairing of unchanged sweeps reached that: 32 of them,
+            // of the rehearsal workload, two catalog triples and a catalog beside another).
             let called = points.iter().filter(|p| p.call == call).count();
             let against = points.iter().filter(|p| p.call == other).count();
             if held >= MOST_SIZES_MIN && (2 * held >= n || (2 * called >= n && against == 0)) {
