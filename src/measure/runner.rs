@@ -310,6 +310,7 @@ impl<'p> SizeRun<'p, '_> {
         let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit);
         let mut runnable = Vec::new();
         let mut trials = Vec::new();
+        let mut shares = Vec::new();
         for (i, d) in decisions.into_iter().enumerate() {
             if self.only.is_some_and(|only| only != i) {
                 continue;
@@ -317,8 +318,10 @@ impl<'p> SizeRun<'p, '_> {
             match d {
                 Some(Ok(admitted)) => {
                     runnable.push(i);
-                    if let super::admit::Admission::Trial { limit_s, skip } = admitted {
-                        trials.push((i, limit_s, skip));
+                    match admitted {
+                        super::admit::Admission::Trial { limit_s, skip } => trials.push((i, limit_s, skip)),
+                        super::admit::Admission::Shared { share_s } => shares.push((i, share_s)),
+                        super::admit::Admission::Run => {}
                     }
                 }
                 Some(Err(info)) => {
@@ -336,6 +339,11 @@ impl<'p> SizeRun<'p, '_> {
         for (i, limit_s, skip) in trials {
             if let Some(a) = active.iter_mut().find(|a| a.index == i) {
                 a.trial = Some((limit_s, skip));
+            }
+        }
+        for (i, share_s) in shares {
+            if let Some(a) = active.iter_mut().find(|a| a.index == i) {
+                a.share_s = Some(share_s);
             }
         }
         let mut measured: Vec<MeasuredRow> = Vec::new();

@@ -64,6 +64,9 @@ pub struct Active<'a> {
     pub trial: Option<(f64, SkipInfo)>,
     /// The trial was stopped unfinished: the point is written skipped with this record.
     pub overrun: Option<SkipInfo>,
+    /// Admitted with less than the point budget (`admit::Admission::Shared`): its sampling
+    /// stops, for the run budget, once its own runs have taken this many seconds.
+    pub share_s: Option<f64>,
     /// Its median is precise after its latest sample; it samples on while another design
     /// of the size is not.
     pub settled: bool,
@@ -89,6 +92,7 @@ impl<'a> Active<'a> {
             memory: Vec::new(),
             trial: None,
             overrun: None,
+            share_s: None,
             settled: false,
             output: None,
             stop: None,
@@ -407,6 +411,9 @@ fn limit(a: &Active, b: &Budget, run_elapsed_s: f64) -> Option<StopReason> {
     }
     if a.spent_s >= b.per_point_s {
         return Some(StopReason::PointBudget);
+    }
+    if a.share_s.is_some_and(|s| a.spent_s >= s) {
+        return Some(StopReason::RunBudget);
     }
     if run_elapsed_s >= b.whole_run_s {
         return Some(StopReason::RunBudget);

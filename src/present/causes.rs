@@ -38,8 +38,9 @@ pub fn words(c: &SkipCause, axis: Axis<'_>) -> String {
         SkipCause::PointBudget { predicted_ns, runs, budget_ns } => {
             format!("one run predicted at {}; {runs} runs need {} > {} point budget", time_ns(*predicted_ns), time_ns(predicted_ns * runs), time_ns(*budget_ns))
         }
-        SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns } => {
-            format!("{runs} runs at {} would pass the {} run budget ({} used)", time_ns(*predicted_ns), time_ns(*budget_ns), time_ns(*used_ns))
+        SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns, kept_ns } => {
+            let kept = if *kept_ns > 0.0 { format!(", {} kept for cheaper designs at this size", time_ns(*kept_ns)) } else { String::new() };
+            format!("{runs} runs at {} would pass the {} run budget ({} used{kept})", time_ns(*predicted_ns), time_ns(*budget_ns), time_ns(*used_ns))
         }
         SkipCause::TrialOverBudget { at, limit_ns, runs, budget_ns } => format!(
             "at {} a trial run was stopped unfinished after {}; {runs} runs need more than the {} point budget",
@@ -109,7 +110,8 @@ mod tests {
         let step = || Box::new(SkipCause::Step { message: "no column `weight`".into() });
         let cases: Vec<(SkipCause, &[&str])> = vec![
             (SkipCause::PointBudget { predicted_ns: 2e9, runs: 4.0, budget_ns: 5e9 }, &["predicted", "4 runs", "point budget"]),
-            (SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.9e10 }, &["run budget", "used"]),
+            (SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.9e10, kept_ns: 0.0 }, &["run budget", "used"]),
+            (SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.0e10, kept_ns: 8e9 }, &["run budget", "kept for cheaper designs"]),
             (SkipCause::TrialOverBudget { at: 64000, limit_ns: 3e9, runs: 4.0, budget_ns: 3e9 }, &["at 64k rows a trial run was stopped unfinished after 3.00 s", "4 runs need more than the 3.00 s point budget"]),
             (SkipCause::TooFewSamples { at: 4096, budget_ns: 5e9, samples: 3, needed: 6, run_ns: 1.2e9 }, &["at 4096 rows", "only 3 of 6 samples"]),
             (SkipCause::Memory { need, engine: "memory".into(), limit_bytes: 2 << 20, limit_source: "a cgroup".into(), share: 0.8, hard: true }, &["about 4.00 MiB (table 1.00 MiB", "2.00 MiB allowed by a cgroup", "80%", "hard limit"]),

@@ -17,8 +17,17 @@ use std::sync::OnceLock;
 pub enum SkipCause {
     /// One run predicted at `predicted_ns`; `runs` of them would pass the point budget.
     PointBudget { predicted_ns: f64, runs: f64, budget_ns: f64 },
-    /// `runs` runs at `predicted_ns` would pass the whole run's budget, `used_ns` of it used.
-    RunBudget { predicted_ns: f64, runs: f64, budget_ns: f64, used_ns: f64 },
+    /// `runs` runs at `predicted_ns` would pass the whole run's budget, `used_ns` of it used
+    /// and `kept_ns` of the rest kept for cheaper designs at the same size (0 in runs made
+    /// before the designs at a size shared the budget).
+    RunBudget {
+        predicted_ns: f64,
+        runs: f64,
+        budget_ns: f64,
+        used_ns: f64,
+        #[serde(default)]
+        kept_ns: f64,
+    },
     /// At swept value `at`, a program whose start-up may be most of its time was given one
     /// trial run (its extrapolated time was over the budget), stopped unfinished after
     /// `limit_ns`: `runs` such runs would pass the point budget `budget_ns`.
@@ -139,7 +148,7 @@ mod tests {
         let need = MemoryNeed { table: 1e9, records: 0.0, generator: 2e6, working: 3e9 };
         let causes = vec![
             SkipCause::PointBudget { predicted_ns: 2.5e9, runs: 4.0, budget_ns: 5e9 },
-            SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.9e10 },
+            SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.9e10, kept_ns: 0.0 },
             SkipCause::TooFewSamples { at: 4096, budget_ns: 5e9, samples: 3, needed: 6, run_ns: 1.2e9 },
             SkipCause::Memory { need, engine: "memory".into(), limit_bytes: 1 << 32, limit_source: "cgroup".into(), share: 0.8, hard: true },
             SkipCause::Disk { disk_bytes: 5e9, free_bytes: 1 << 30, folder: "/tmp".into(), share: 0.8 },

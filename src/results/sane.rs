@@ -52,7 +52,7 @@ fn cause_ok(c: &SkipCause) -> bool {
     let amount = |v: &f64| v.is_finite() && *v >= 0.0;
     match c {
         SkipCause::PointBudget { predicted_ns, runs, budget_ns } => [predicted_ns, runs, budget_ns].into_iter().all(amount),
-        SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns } => [predicted_ns, runs, budget_ns, used_ns].into_iter().all(amount),
+        SkipCause::RunBudget { predicted_ns, runs, budget_ns, used_ns, kept_ns } => [predicted_ns, runs, budget_ns, used_ns, kept_ns].into_iter().all(amount),
         SkipCause::TrialOverBudget { at, limit_ns, runs, budget_ns } => rows_ok(*at) && [limit_ns, runs, budget_ns].into_iter().all(amount),
         SkipCause::TooFewSamples { at, budget_ns, run_ns, .. } => rows_ok(*at) && amount(budget_ns) && amount(run_ns),
         SkipCause::Memory { need, share, .. } => [&need.table, &need.records, &need.generator, &need.working, share].into_iter().all(amount),
