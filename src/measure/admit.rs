@@ -110,7 +110,8 @@ pub enum Admission {
 
 /// The decision for each design at one size: `Ok` with how it is let in (an [`Admission`]),
 /// or why it is skipped.
-/// A design whose point at this size is already written gets neither (it is left out).
+/// A design whose point at this size is already written gets neither (it is left out), nor
+/// does any design but `only` when it is given (the extra size, `extra.rs`, measures one).
 /// `peaks` are the designs' measured peaks and `limit` the memory the size may count on,
 /// as the size's table record states them.
 pub fn admit(
@@ -121,6 +122,7 @@ pub fn admit(
     elapsed_run_s: f64,
     peaks: &[Vec<(u64, f64)>],
     limit: &super::memory::MemoryLimit,
+    only: Option<usize>,
 ) -> Vec<Option<Result<Admission, SkipInfo>>> {
     let b = plan.budget;
     // A hard limit (ulimit, cgroup) cannot be forced past: the allocation would fail, so
@@ -132,7 +134,8 @@ pub fn admit(
     let mut waiting: Vec<Waiting> = Vec::new();
     for i in 0..plan.designs.len() {
         let st = &states[i];
-        if st.written_at == Some(rows) {
+        // At the extra size only one design runs: the others take no share of the budget.
+        if st.written_at == Some(rows) || only.is_some_and(|o| o != i) {
             decisions.push(None);
             continue;
         }
