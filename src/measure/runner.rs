@@ -311,10 +311,8 @@ impl<'p> SizeRun<'p, '_> {
         let mut runnable = Vec::new();
         let mut trials = Vec::new();
         let mut shares = Vec::new();
+        // At the extra size admission leaves every design but `only` out (None).
         for (i, d) in decisions.into_iter().enumerate() {
-            if self.only.is_some_and(|only| only != i) {
-                continue;
-            }
             match d {
                 Some(Ok(admitted)) => {
                     runnable.push(i);
