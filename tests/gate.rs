@@ -659,3 +659,51 @@ fn a_fifteen_percent_slowdown_between_separate_sweeps_is_caught_at_most_sizes() 
         assert_eq!(code, 0, "{a} -> {b}: {g}");
     }
 }
+
+#[test]
+fn a_steady_fifteen_percent_slowdown_is_caught_over_the_sizes_together() {
+    // Two more recorded sweeps of the same rehearsal (tests/data/README.md): `ledger-c`
+    // unchanged, `ledger-slowed-2` with `slowdown: 15%` on `build-once`. Against every
+    // unchanged sweep the slowed design is confirmed at too few sizes for the point rule
+    // (the machine's own move hides it at most of them), yet it moved the same way at nine
+    // or ten sizes of ten: the sizes judged together fail the gate on it alone. The three
+    // unchanged sweeps pass against one another both ways, no design called as a whole.
+    let dir = "tests/data/gate-runs";
+    for base in ["ledger-a", "ledger-b", "ledger-c"] {
+        let (code, g) = gate_recorded(&format!("{dir}/{base}"), &format!("{dir}/ledger-slowed-2"));
+        assert_eq!(code, 1, "{base}: {g}");
+        assert_eq!(g["design_regressions"], 1, "{base}: {g}");
+        let w = &g["workloads"][0];
+        let called: Vec<(&str, &str)> = w["moves"]
+            .as_array()
+            .expect("moves")
+            .iter()
+            .filter(|m| m["call"] != "same" && m["call"] != "unclear")
+            .map(|m| (m["design"].as_str().expect("design"), m["call"].as_str().expect("call")))
+            .collect();
+        assert_eq!(called, vec![("build-once", "regression")], "{base}: {w}");
+        let m = w["moves"].as_array().expect("moves").iter().find(|m| m["design"] == "build-once").expect("build-once");
+        let (r, lo, hi) = (m["ratio"].as_f64().expect("ratio"), m["ratio_low"].as_f64().expect("low"), m["ratio_high"].as_f64().expect("high"));
+        // The rehearsal slowed the build by 15%: the pooled estimate lands near it, inside its own interval.
+        assert!(lo > 1.0 && lo < r && r < hi && (1.05..1.25).contains(&r), "{base}: {m}");
+        // Nothing else is flagged: no confirmed regression of another design.
+        assert!(w["points"].as_array().expect("points").iter().all(|p| p["design"] == "build-once" || p["call"] != "regression"), "{base}: {w}");
+        // The text says why it failed, with the pooled figures.
+        let out = assert_cmd::Command::cargo_bin("framecost").expect("binary").env("COLUMNS", "200").args(["gate", &format!("{dir}/{base}"), &format!("{dir}/ledger-slowed-2")]).output().expect("runs");
+        let text = String::from_utf8_lossy(&out.stdout);
+        assert!(text.contains("worse: 1 design(s) slower across their sizes taken together (exit 1)"), "{text}");
+        let line = text.lines().find(|l| l.contains("build-once")).expect("build-once line");
+        assert!(line.contains("slower across its sizes taken together") && line.contains("[95% interval"), "{line}");
+    }
+    for a in ["ledger-a", "ledger-b", "ledger-c"] {
+        for b in ["ledger-a", "ledger-b", "ledger-c"] {
+            if a == b {
+                continue;
+            }
+            let (code, g) = gate_recorded(&format!("{dir}/{a}"), &format!("{dir}/{b}"));
+            assert_eq!(code, 0, "{a} -> {b}: {g}");
+            let moves = g["workloads"][0]["moves"].as_array().expect("moves").clone();
+            assert!(moves.iter().all(|m| m["call"] == "same" || m["call"] == "unclear"), "{a} -> {b}: {moves:?}");
+        }
+    }
+}

@@ -169,6 +169,9 @@ pub fn render(r: &GateReport) -> String {
         if r.growth_regressions > 0 {
             parts.push(format!("{} cost(s) growing faster with the data", r.growth_regressions));
         }
+        if r.design_regressions > 0 {
+            parts.push(format!("{} design(s) slower across their sizes taken together", r.design_regressions));
+        }
         format!("worse: {} (exit 1)", parts.join(", "))
     } else {
         "no design got slower beyond its threshold (exit 0)".to_string()
@@ -207,8 +210,8 @@ pub fn render(r: &GateReport) -> String {
     }
     let _ = writeln!(s);
     let tally = format!(
-        "{} confirmed slower, {} slower at one size only, {} growth change(s) for the worse, {} faster, {} point(s) not compared",
-        r.regressions, r.unconfirmed_regressions, r.growth_regressions, r.improvements, r.missing
+        "{} confirmed slower, {} slower at one size only, {} slower across its sizes taken together, {} growth change(s) for the worse, {} faster, {} point(s) not compared",
+        r.regressions, r.unconfirmed_regressions, r.design_regressions, r.growth_regressions, r.improvements, r.missing
     );
     for l in wrap(&tally, width, "", "  ") {
         let _ = writeln!(s, "{l}");
@@ -263,6 +266,15 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     let (slower, faster) = (pick(Call::Regression, true), pick(Call::Improvement, true));
     let (slower1, faster1) = (pick(Call::Regression, false), pick(Call::Improvement, false));
     let mut said = Vec::new();
+    let whole = w.moves.iter().find(|m| m.design == d && matches!(m.call, Call::Regression | Call::Improvement));
+    if let Some(m) = whole {
+        let word = if m.call == Call::Regression { "slower" } else { "faster" };
+        let against = if w.common_mode.is_some() { " relative to the workload's common move" } else { "" };
+        said.push(format!(
+            "{word} across its sizes taken together: {:.2}× [95% interval {:.2}×–{:.2}×] the baseline's time{against}, the same way at {} of {} sizes (raw medians {:.2}×)",
+            m.ratio, m.ratio_low, m.ratio_high, m.same_way, m.sizes, m.raw_ratio
+        ));
+    }
     if !slower.is_empty() {
         said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
     }
@@ -275,7 +287,8 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
             said.push(format!("{word} at {} only ({}), not confirmed by a neighbouring size", sizes(&lone), times(&lone)));
         }
         if !small.is_empty() {
-            said.push(format!("{word} at {} ({}), but not at its two largest sizes: reported, not failing", sizes(&small), times(&small)));
+            let tail = if whole.is_some() { "reported" } else { "reported, not failing" };
+            said.push(format!("{word} at {} ({}), but not at its two largest sizes: {tail}", sizes(&small), times(&small)));
         }
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
@@ -377,7 +390,7 @@ fn machine_moves(r: &GateReport) -> Option<String> {
     let mut text = format!("between the runs {}", said.join("; "));
     if threshold.is_finite() && m.widest() > 1.0 + threshold {
         text.push_str(&format!(
-            ". The machine itself moved by more than the threshold ({:.0}%): a change of that size at one point cannot be told from it, so a point counts only when a neighbouring size agrees and it stands out from its workload's common move; to be sure of a small change, measure both versions side by side in one sweep and gate them with `--pair OLD:NEW`",
+            ". The machine itself moved by more than the threshold ({:.0}%): a change of that size at one point cannot be told from it, so a point counts only when a neighbouring size agrees and it stands out from its workload's common move, and a design when its sizes taken together moved clearly one way; to be sure of a small change, measure both versions side by side in one sweep and gate them with `--pair OLD:NEW`",
             threshold * 100.0
         ));
     }
@@ -414,7 +427,7 @@ mod tests {
                 small_only: false,
             })
             .collect();
-        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None };
+        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None, moves: vec![] };
         GateReport {
             pair: None,
             baseline_run: "a".into(),
@@ -426,6 +439,7 @@ mod tests {
             regressions: 0,
             unconfirmed_regressions: 0,
             growth_regressions: 0,
+            design_regressions: 0,
             improvements: 0,
             missing: 0,
         }

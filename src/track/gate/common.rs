@@ -136,6 +136,7 @@ mod tests {
             unmatched_designs: vec![],
             common_mode: None,
             axis: None,
+            moves: vec![],
         }
     }
 

@@ -44,9 +44,11 @@ mod common;
 mod growth;
 mod pair;
 mod points;
+mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
 pub use pair::compare_pair;
+pub use steady::{design_moves, DesignMove};
 
 use crate::results::reader::{RunResults, WorkloadResults};
 use points::{confirm, matched, point_gate, Machines};
@@ -190,6 +192,10 @@ pub struct WorkloadGate {
     /// What the workload swept when not rows (the same in both runs), for labels.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub axis: Option<crate::results::schema::AxisPlan>,
+    /// Each design's sizes judged together (see [`design_moves`]): a regression here fails
+    /// the gate even when no single size was confirmed.
+    #[serde(default)]
+    pub moves: Vec<DesignMove>,
 }
 
 /// What the points of a workload moved together between the two runs.
@@ -217,6 +223,9 @@ pub struct GateReport {
     #[serde(default)]
     pub unconfirmed_regressions: usize,
     pub growth_regressions: usize,
+    /// Designs slower over their sizes taken together (`WorkloadGate::moves`).
+    #[serde(default)]
+    pub design_regressions: usize,
     pub improvements: usize,
     pub missing: usize,
     /// `gate RUN --pair OLD:NEW`: the two designs of one run compared (old, new); both run
@@ -267,7 +276,7 @@ impl GateReport {
 
     /// True when anything got worse.
     pub fn failed(&self) -> bool {
-        self.regressions > 0 || self.growth_regressions > 0
+        self.regressions > 0 || self.growth_regressions > 0 || self.design_regressions > 0
     }
 
     /// Add one workload's comparison and its counts to the totals.
@@ -276,6 +285,7 @@ impl GateReport {
         self.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
         self.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
         self.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
+        self.design_regressions += wg.moves.iter().filter(|m| m.call == Call::Regression).count();
         self.missing += wg.missing.len();
         self.workloads.push(wg);
     }
@@ -307,6 +317,7 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         regressions: 0,
         unconfirmed_regressions: 0,
         growth_regressions: 0,
+        design_regressions: 0,
         improvements: 0,
         missing: 0,
         pair: None,
@@ -344,6 +355,7 @@ fn compare_workload(bw: &WorkloadResults, nw: &WorkloadResults, opts: &GateOptio
         unmatched_designs: vec![],
         common_mode: None,
         axis: nw.header.axis.clone(),
+        moves: vec![],
     };
     for d in &bw.header.designs {
         if !nw.header.designs.iter().any(|x| x.name == d.name) {
@@ -358,6 +370,7 @@ fn compare_workload(bw: &WorkloadResults, nw: &WorkloadResults, opts: &GateOptio
         }
     }
     common_mode(&mut wg, bw.header.designs.len().min(nw.header.designs.len()), threshold);
+    wg.moves = design_moves(&wg, false);
     wg
 }
 

@@ -35,6 +35,7 @@ pub fn compare_pair(run: &RunResults, old: &str, new: &str, opts: &GateOptions) 
         regressions: 0,
         unconfirmed_regressions: 0,
         growth_regressions: 0,
+        design_regressions: 0,
         improvements: 0,
         missing: 0,
         pair: Some((old.to_string(), new.to_string())),
@@ -62,6 +63,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
         unmatched_designs: vec![],
         common_mode: None,
         axis: w.header.axis.clone(),
+        moves: vec![],
     };
     let mut sizes: Vec<u64> = w.points.iter().filter(|p| p.design == old || p.design == new).map(|p| p.rows).collect();
     sizes.sort_unstable();
@@ -119,5 +121,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
     if let Some(g) = growth::memory_growth(new, &common) {
         wg.growth.push(g);
     }
+    // Busy points count: both designs saw the same contention.
+    wg.moves = super::design_moves(&wg, true);
     wg
 }
