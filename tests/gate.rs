@@ -707,3 +707,24 @@ fn a_steady_fifteen_percent_slowdown_is_caught_over_the_sizes_together() {
         }
     }
 }
+
+#[test]
+fn history_marks_a_design_moved_over_its_sizes_taken_together() {
+    // The two recorded sweeps of the rehearsal above: `ledger-slowed-2` was swept first (with
+    // `slowdown: 15%` on `build-once`), `ledger-c` just after without it. No size of the
+    // design is confirmed by a neighbour between them, so the only mark is the design's move
+    // over its sizes taken together: faster in the later, unchanged run.
+    let tmp = tempfile::tempdir().expect("tempdir");
+    for name in ["ledger-slowed-2", "ledger-c"] {
+        let to = tmp.path().join(name);
+        std::fs::create_dir_all(&to).expect("mkdir");
+        std::fs::copy(format!("tests/data/gate-runs/{name}/points.jsonl"), to.join("points.jsonl")).expect("copy");
+    }
+    let out = assert_cmd::Command::cargo_bin("framecost").expect("binary").arg("history").arg(tmp.path()).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(text.contains("build-once got faster over its sizes taken together"), "{text}");
+    assert!(!text.contains("rows got"), "{text}");
+    let svg = std::fs::read_to_string(tmp.path().join("history").join("tiny-ledger-history.svg")).expect("svg");
+    assert!(svg.contains("build-once got faster over its sizes taken together"), "the picture's description names the move");
+}

@@ -1,8 +1,9 @@
 //! `framecost history DIR` — every run found in DIR (folders holding `points.jsonl`, saved
 //! baselines included), in the order they were made: per workload a picture of each design's
 //! cost at each size across the runs, with the places where the gate between consecutive
-//! runs found a confirmed change marked (the changes it would fail on, and confirmed
-//! improvements), and the same changes listed; unconfirmed moves are only counted. Runs
+//! runs found a confirmed change marked (the changes it would fail on — sizes confirmed by a
+//! neighbour, designs moved over their sizes taken together — and improvements found the
+//! same way), and the same changes listed; unconfirmed moves are only counted. Runs
 //! whose workload file changed (the spec hash in the workload header differs from the run
 //! before) are marked in both.
 
@@ -48,7 +49,7 @@ pub fn run(a: Args) -> Result<(), Failure> {
     // counted per workload, not marked: between sweeps of unchanged code on a shared
     // machine single sizes move past the threshold often (eleven catalog sweeps of
     // unchanged steps: 91 marks before this rule, 3 after).
-    let mut changes: Vec<(String, usize, String, u64, bool)> = Vec::new();
+    let mut changes: Vec<(String, usize, String, Option<u64>, bool)> = Vec::new();
     let mut unconfirmed: std::collections::BTreeMap<String, usize> = Default::default();
     // How far the machine itself moved between consecutive runs (the gate's probes).
     let options = GateOptions::default();
@@ -60,10 +61,15 @@ pub fn run(a: Args) -> Result<(), Failure> {
         for w in &g.workloads {
             for p in w.points.iter().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
                 if p.confirmed {
-                    changes.push((w.workload.clone(), i, p.design.clone(), p.rows, p.call == Call::Regression));
+                    changes.push((w.workload.clone(), i, p.design.clone(), Some(p.rows), p.call == Call::Regression));
                 } else {
                     *unconfirmed.entry(w.workload.clone()).or_default() += 1;
                 }
+            }
+            // A design the gate calls slower or faster over its sizes taken together (the
+            // move may pass the threshold at no single size).
+            for m in w.moves.iter().filter(|m| matches!(m.call, Call::Regression | Call::Improvement)) {
+                changes.push((w.workload.clone(), i, m.design.clone(), None, m.call == Call::Regression));
             }
         }
     }
@@ -124,7 +130,11 @@ pub fn run(a: Args) -> Result<(), Failure> {
                 );
             }
             for m in marks.iter().filter(|m| m.run == k) {
-                println!("  run {}: {} at {} rows {}", escaped(id), escaped(&m.design), size_label(m.rows as f64), if m.worse { "got slower" } else { "got faster" });
+                let verb = if m.worse { "got slower" } else { "got faster" };
+                match m.rows {
+                    Some(rows) => println!("  run {}: {} at {} rows {verb}", escaped(id), escaped(&m.design), size_label(rows as f64)),
+                    None => println!("  run {}: {} {verb} over its sizes taken together", escaped(id), escaped(&m.design)),
+                }
             }
         }
         if let Some(n) = unconfirmed.get(name) {

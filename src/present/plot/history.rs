@@ -3,7 +3,9 @@
 //! ink, paler for smaller sizes, showing time per run relative to that size's first run (×1),
 //! so a change at any size shows as a step whatever its absolute cost; a column at the right
 //! of each lane gives each size's first and latest time. ▲ above a point: the gate between that run
-//! and the one before called this size slower; ▽ below: faster. A numbered rule between two
+//! and the one before called this size slower; ▽ below: faster. The same mark on a bar at the
+//! top of a lane: the gate called the design slower (faster) over its sizes taken together,
+//! though perhaps at no single size. A numbered rule between two
 //! runs: the workload file changed there (its spec hash differs), listed in a key below.
 
 use super::look::*;
@@ -19,7 +21,8 @@ pub struct RunMark {
     /// Index of the later run in the series.
     pub run: usize,
     pub design: String,
-    pub rows: u64,
+    /// The size, or `None` for a move of the design over its sizes taken together.
+    pub rows: Option<u64>,
     /// Slower (true) or faster.
     pub worse: bool,
 }
@@ -133,6 +136,10 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
     root.draw(&PathElement::new(vec![(x, note_y + 2), (x + 12, note_y + 2), (x + 6, note_y + 11), (x, note_y + 2)], TEXT.stroke_width(2))).map_err(err)?;
     x += 18;
     x = text(&root, "faster", (x, note_y), 12.0, MUTED)?.x1 + 18;
+    root.draw(&Rectangle::new([(x, note_y), (x + 20, note_y + 3)], TEXT.filled())).map_err(err)?;
+    root.draw(&Polygon::new(vec![(x + 10, note_y + 5), (x + 16, note_y + 14), (x + 4, note_y + 14)], TEXT.filled())).map_err(err)?;
+    x += 26;
+    x = text(&root, "over its sizes taken together", (x, note_y), 12.0, MUTED)?.x1 + 18;
     pattern_line(&root, &[(x + 6, note_y - 2), (x + 6, note_y + 14)], &[6.0, 4.0], TEXT, 1)?;
     x += 16;
     text(&root, "workload file changed (numbered below)", (x, note_y), 12.0, MUTED)?;
@@ -146,11 +153,11 @@ pub fn history<DB: DrawingBackend>(root: Area<DB>, workload: &str, runs: &[(Stri
     );
     for m in changes {
         desc += &format!(
-            " Run {}: {} at {} rows {}.",
+            " Run {}: {} {} {}.",
             escaped(&runs.get(m.run).map(|r| r.0.clone()).unwrap_or_default()),
             escaped(&m.design),
-            size_label(m.rows as f64),
-            if m.worse { "got slower" } else { "got faster" }
+            if m.worse { "got slower" } else { "got faster" },
+            m.rows.map_or_else(|| "over its sizes taken together".to_string(), |r| format!("at {} rows", size_label(r as f64)))
         );
     }
     for l in &key_lines {
@@ -226,7 +233,7 @@ fn lane<DB: DrawingBackend>(root: &Area<DB>, g: &Lanes, i: usize, d: &str, runs:
         for p in &pts {
             draw_mark(root, *p, mark_of(i), c, true)?;
         }
-        for m in changes.iter().filter(|m| &m.design == d && m.rows == size) {
+        for m in changes.iter().filter(|m| &m.design == d && m.rows == Some(size)) {
             if let Some(v) = runs.get(m.run).and_then(|(_, res)| rel(res, size)) {
                 let (x, y) = px(m.run as f64, v);
                 if m.worse {
@@ -239,6 +246,19 @@ fn lane<DB: DrawingBackend>(root: &Area<DB>, g: &Lanes, i: usize, d: &str, runs:
         }
         if let Some(m) = runs.iter().rev().find_map(|(_, r)| r.point(d, size).and_then(|p| p.measured.as_ref())) {
             latest.push((size, first_of(size).unwrap_or(m.median_ns), m.median_ns, c));
+        }
+    }
+    // Moves over the design's sizes taken together: the mark on a bar at the top of the lane,
+    // above that run.
+    for m in changes.iter().filter(|m| &m.design == d && m.rows.is_none()) {
+        let (x, _) = px(m.run as f64, 1.0);
+        let y = yr.start + 4;
+        root.draw(&Rectangle::new([(x - 10, y), (x + 10, y + 3)], TEXT.filled())).map_err(err)?;
+        if m.worse {
+            root.draw(&Polygon::new(vec![(x, y + 5), (x + 6, y + 14), (x - 6, y + 14)], TEXT.filled())).map_err(err)?;
+        } else {
+            let tri = vec![(x - 6, y + 5), (x + 6, y + 5), (x, y + 14), (x - 6, y + 5)];
+            root.draw(&PathElement::new(tri, TEXT.stroke_width(2))).map_err(err)?;
         }
     }
     // The column of latest times, largest size first; as many as fit the lane.
