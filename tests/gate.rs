@@ -728,3 +728,28 @@ fn history_marks_a_design_moved_over_its_sizes_taken_together() {
     let svg = std::fs::read_to_string(tmp.path().join("history").join("tiny-ledger-history.svg")).expect("svg");
     assert!(svg.contains("build-once got faster over its sizes taken together"), "the picture's description names the move");
 }
+
+#[test]
+fn chance_passes_among_a_workloads_many_tests_are_not_called() {
+    // Cross-column cut from two back-to-back catalog sweeps of unchanged code
+    // (tests/data/README.md, `cross-a`, `cross-b`): `horizontal-sum`, whose samples spread
+    // from 0.9 to 4.7 ms at one size, measured ×1.25 and ×1.26 at 16k and 32k rows with rank
+    // tests at p = 0.021 and 0.031. Two neighbours agreeing used to fail the gate; among the
+    // workload's 28 tests those p-values are what chance gives (Benjamini–Hochberg q ≈ 0.10).
+    let dir = "tests/data/gate-runs";
+    for (a, b) in [("cross-a", "cross-b"), ("cross-b", "cross-a")] {
+        let (code, g) = gate_recorded(&format!("{dir}/{a}"), &format!("{dir}/{b}"));
+        assert_eq!(code, 0, "{a} -> {b}: {g}");
+        let pts = g["workloads"][0]["points"].as_array().expect("points");
+        assert_eq!(pts.len(), 28);
+        assert!(pts.iter().all(|p| p["call"] != "regression" && p["call"] != "improvement"), "{a} -> {b}");
+        if a == "cross-a" {
+            for rows in [16000, 32000] {
+                let p = pts.iter().find(|p| p["design"] == "horizontal-sum" && p["rows"] == rows).expect("point");
+                let (pv, qv) = (p["p_value"].as_f64().expect("p"), p["q_value"].as_f64().expect("q"));
+                assert!(pv < 0.05 && qv >= 0.05 && qv >= pv, "{rows}: p {pv} q {qv}");
+                assert_eq!(p["call"], "unclear");
+            }
+        }
+    }
+}

@@ -257,8 +257,12 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         if !ivs.is_empty() {
             t.push_str(&format!("; pairwise estimate [95% interval] {}", ivs.join(", ")));
         }
+        let q_max = v.iter().filter_map(|p| p.q_value).fold(f64::NAN, f64::max);
         if p_max.is_finite() {
             t.push_str(&format!("; rank test p ≤ {p_max:.1e}"));
+            if q_max.is_finite() {
+                t.push_str(&format!(", q ≤ {q_max:.1e} over the workload's points"));
+            }
         }
         t
     };
@@ -420,6 +424,7 @@ mod tests {
                 normalised_by: Some("drift probe".into()),
                 memory_ratio: Some(memory),
                 p_value: None,
+                q_value: None,
                 call: Call::Same,
                 confirmed: false,
                 busy: false,

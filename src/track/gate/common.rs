@@ -52,7 +52,13 @@ pub fn common_mode(wg: &mut WorkloadGate, designs: usize, threshold: f64) {
             p.call = Call::Unclear;
         }
     }
-    // Each design's points are contiguous, in size order (as `compare` pushes them).
+    reconfirm(wg);
+}
+
+/// Confirmation recomputed for each design after calls were changed (its points are
+/// contiguous, in size order, as `compare` pushes them), and each time growth call rechecked
+/// against its design's largest size as it is now.
+pub(super) fn reconfirm(wg: &mut WorkloadGate) {
     let mut start = 0;
     while start < wg.points.len() {
         let end = (start..wg.points.len()).find(|&i| wg.points[i].design != wg.points[start].design).unwrap_or(wg.points.len());
@@ -110,6 +116,7 @@ mod tests {
             normalised_by: None,
             memory_ratio: None,
             p_value: Some(1e-6),
+            q_value: None,
             call: if ratio > 1.1 { Call::Regression } else { Call::Same },
             confirmed: ratio > 1.1,
             busy: false,

@@ -51,7 +51,7 @@ pub use pair::compare_pair;
 pub use steady::{design_moves, DesignMove};
 
 use crate::results::reader::{RunResults, WorkloadResults};
-use points::{confirm, matched, point_gate, Machines};
+use points::{confirm, false_discoveries, matched, point_gate, Machines};
 use serde::{Deserialize, Serialize};
 
 /// Settings of a gate.
@@ -129,6 +129,11 @@ pub struct PointGate {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub memory_ratio: Option<f64>,
     pub p_value: Option<f64>,
+    /// The rank test's p-value adjusted over all the workload's points compared (the design's
+    /// points with `--pair`): Benjamini–Hochberg (`stats::fdr`). A change is called only
+    /// when this too is below alpha.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub q_value: Option<f64>,
     pub call: Call,
     /// A regression or improvement seen at a neighbouring size of the same design too (or
     /// the design was compared at one size only). Only confirmed changes fail the gate.
@@ -368,6 +373,10 @@ fn compare_workload(bw: &WorkloadResults, nw: &WorkloadResults, opts: &GateOptio
         if !bw.header.designs.iter().any(|x| x.name == d.name) {
             wg.unmatched_designs.push(format!("{} (new run only)", d.name));
         }
+    }
+    // Every point's rank test at the same level, dozens per workload: a few pass by chance.
+    if false_discoveries(&mut wg.points, opts.alpha) {
+        common::reconfirm(&mut wg);
     }
     common_mode(&mut wg, bw.header.designs.len().min(nw.header.designs.len()), threshold);
     wg.moves = design_moves(&wg, false);

@@ -105,6 +105,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
             normalised_by: None,
             memory_ratio: None,
             p_value: p,
+            q_value: None,
             call,
             confirmed: false,
             small_only: false,
@@ -112,6 +113,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
             split,
         });
     }
+    super::points::false_discoveries(&mut wg.points, opts.alpha);
     confirm(&mut wg.points);
     if let Some(rise) = opts.growth_rise {
         if let Some(g) = growth::time_growth(new, &common, &wg.points, rise, threshold) {

@@ -15,13 +15,16 @@
 //! - [`shift`]: Hodges–Lehmann ratio with the Moses interval, percentile
 //!   bootstrap of the median ratio, and the [`SplitMix64`] generator.
 //! - [`normal`]: `erfc`, the normal survival function and its inverse.
+//! - [`fdr`]: Benjamini–Hochberg adjusted p-values over a workload's tests.
 //!
 //! No function panics on any input slice; bad input gives a [`StatsError`].
 
+pub mod fdr;
 pub mod normal;
 pub mod rank;
 pub mod shift;
 
+pub use fdr::benjamini_hochberg;
 pub use normal::{erfc, normal_sf, normal_upper_quantile};
 pub use rank::{approx_critical_u, critical_u, exact_u_cdf, mann_whitney, MannWhitney, Method};
 pub use shift::{bootstrap_ratio_ci, hodges_lehmann_ratio, hodges_lehmann_ratio_ci, SplitMix64};
