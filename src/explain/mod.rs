@@ -7,7 +7,7 @@
 //! the tail is measured over enough samples. Each design's step cost-model notes (written
 //! beside the steps' code) are attached so the reader sees the mechanism the trade knows.
 //!
-//! The findings about each design are in `design.rs`, the verdict in `verdict.rs`, set-up
+//! The findings about each design are in `design.rs`, the verdict in `verdict/`, set-up
 //! pay-back in `payback.rs`; this file gathers them with the workload's own findings (a
 //! busy machine, outputs that differ) and the steps' cost-model notes, and renders them.
 

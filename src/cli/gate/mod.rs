@@ -1,0 +1,147 @@
+//! `framecost gate BASELINE NEW` — compare two runs of the same workloads, size by size and
+//! class by class, and fail (exit 1) when something got slower beyond the threshold with a
+//! significant rank test, or started to scale worse. Exit 0 when nothing got worse, 2 for
+//! bad input. BASELINE is a run folder or the name of a saved baseline.
+//! `framecost gate RUN --pair OLD:NEW` compares two designs of one run the same way
+//! (`track::gate::pair`).
+
+use super::Failure;
+use crate::results::reader::RunResults;
+use crate::spec::units::parse_share;
+use crate::track::gate::{compare, compare_pair, GateOptions, GateReport};
+use std::path::{Path, PathBuf};
+
+mod render;
+pub use render::render;
+
+/// Schema of the `--json` document (docs/results.md).
+pub const SCHEMA: &str = "framecost.gate/1";
+
+/// Compare a baseline run with a new run (or two designs of one run, `--pair`); exit 1 on a
+/// regression.
+#[derive(Debug, clap::Args)]
+pub struct Args {
+    /// The baseline: a run folder, or a name saved with `framecost baseline save`. With
+    /// `--pair`, the one run whose two designs are compared.
+    pub baseline: String,
+    /// The new run folder (not with `--pair`).
+    #[arg(required_unless_present = "pair", conflicts_with = "pair")]
+    pub new: Option<PathBuf>,
+    /// Compare design NEW with design OLD of the same run, in every workload that has
+    /// both, e.g. `--pair before:after`. Designs sampled in the same sweep share every move
+    /// of the machine, so a smaller change shows than between two sweeps.
+    #[arg(long, value_name = "OLD:NEW")]
+    pub pair: Option<String>,
+    /// How much slower a median may get before it counts, e.g. `10%` (default: each
+    /// workload's `gate.threshold`, else 10%).
+    #[arg(long, value_name = "SHARE")]
+    pub threshold: Option<String>,
+    /// Significance level of the rank test.
+    #[arg(long, default_value_t = 0.05, value_name = "ALPHA")]
+    pub alpha: f64,
+    /// Where saved baselines live.
+    #[arg(long, default_value = "baselines", value_name = "DIR")]
+    pub store: PathBuf,
+    /// Time-exponent rise that counts as a growth regression, e.g. `0.1` (the default); the
+    /// per-size comparisons must agree with it too.
+    #[arg(long, value_name = "EXPONENT", conflicts_with = "no_growth_check")]
+    pub growth_rise: Option<f64>,
+    /// Judge sizes only: no growth check of time exponents (bytes keep theirs).
+    #[arg(long)]
+    pub no_growth_check: bool,
+    /// Print the comparison as JSON.
+    #[arg(long)]
+    pub json: bool,
+    /// Judge what can be compared even when the comparison is partial (the new run did not
+    /// finish, designs match nothing, records are duplicated or damaged). Without it such
+    /// a comparison is refused with exit 2.
+    #[arg(long)]
+    pub partial_ok: bool,
+}
+
+/// A run folder, or a saved baseline's folder by name.
+pub fn resolve(arg: &str, store: &Path) -> PathBuf {
+    let p = PathBuf::from(arg);
+    if p.exists() {
+        return p;
+    }
+    store.join(arg)
+}
+
+pub fn run(a: Args) -> Result<(), Failure> {
+    let bad = |m: String| Err(Failure::Usage(m));
+    // The workload's `gate.threshold` is parsed and bounded by the same two functions.
+    let threshold = match a.threshold.as_deref().map(parse_share).transpose() {
+        Ok(t) => t,
+        Err(e) => return bad(format!("--threshold: expected {e}")),
+    };
+    if let Some(m) = threshold.and_then(crate::spec::limits::threshold_problem) {
+        return bad(format!("--threshold: {m}"));
+    }
+    if !(a.alpha > 0.0 && a.alpha < 1.0) {
+        return bad(format!("--alpha: expected a level between 0 and 1, found {}", a.alpha));
+    }
+    let base_dir = resolve(&a.baseline, &a.store);
+    let base = match RunResults::read(&base_dir) {
+        Ok(r) => r,
+        Err(e) => return bad(format!("{}: {e}", if a.pair.is_some() { "run" } else { "baseline" })),
+    };
+    let growth_rise = match (a.no_growth_check, a.growth_rise) {
+        (true, _) => None,
+        (false, Some(r)) if !(r > 0.0 && r <= 3.0) => return bad(format!("--growth-rise: expected an exponent above 0 and at most 3, found {r}")),
+        (false, Some(r)) => Some(r),
+        (false, None) => Some(crate::track::gate::TIME_EXPONENT_RISE),
+    };
+    let opts = GateOptions { threshold, alpha: a.alpha, growth_rise };
+    if let Some(pair) = &a.pair {
+        let Some((old, new)) = pair.split_once(':').filter(|(o, n)| !o.is_empty() && !n.is_empty() && o != n) else {
+            return bad(format!("--pair: expected two different design names as OLD:NEW, found `{pair}`"));
+        };
+        let report = compare_pair(&base, old, new, &opts);
+        if report.workloads.is_empty() {
+            return bad(format!("no workload of the run has both `{old}` and `{new}` ({})", report.unmatched_workloads.join(", ")));
+        }
+        return answer(&report, a.json);
+    }
+    let Some(new_dir) = &a.new else { return bad("a new run folder is needed (or --pair OLD:NEW)".into()) };
+    let new = match RunResults::read(new_dir) {
+        Ok(r) => r,
+        Err(e) => return bad(format!("new run: {e}")),
+    };
+    // Refuse to pass on a comparison of little or nothing (see track::completeness).
+    let completeness = crate::track::completeness::check(&base, &new);
+    let problems = completeness.problems();
+    if !problems.is_empty() {
+        let lines = problems.iter().map(|p| format!("  - {p}")).collect::<Vec<_>>().join("\n");
+        if !a.partial_ok {
+            return bad(format!(
+                "the comparison would be partial ({} of {} baseline points comparable):\n{lines}\n(--partial-ok judges what can be compared)",
+                completeness.comparable_points, completeness.baseline_points
+            ));
+        }
+        eprintln!("framecost gate: partial comparison (--partial-ok):\n{lines}");
+    }
+    let report = compare(&base, &new, &opts);
+    if report.workloads.is_empty() {
+        return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
+    }
+    answer(&report, a.json)
+}
+
+/// Print the report and give the exit.
+fn answer(report: &GateReport, json: bool) -> Result<(), Failure> {
+    if json {
+        // The report's own fields, with the schema beside them (docs/results.md).
+        let mut doc = serde_json::to_value(report).unwrap_or_default();
+        if let Some(o) = doc.as_object_mut() {
+            o.insert("schema".into(), SCHEMA.into());
+        }
+        println!("{}", serde_json::to_string_pretty(&doc).unwrap_or_default());
+    } else {
+        print!("{}", render(report));
+    }
+    if report.failed() {
+        return Err(Failure::Regression);
+    }
+    Ok(())
+}
