@@ -121,7 +121,7 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         if p_max.is_finite() {
             t.push_str(&format!("; rank test p ≤ {p_max:.1e}"));
             if q_max.is_finite() {
-                t.push_str(&format!(", q ≤ {q_max:.1e} over the workload's points"));
+                t.push_str(&format!(", q ≤ {q_max:.1e} over the {} points compared in this workload", w.points.len()));
             }
         }
         t
