@@ -293,21 +293,7 @@ mod tests {
             })
             .collect();
         let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None, moves: vec![] };
-        GateReport {
-            pair: None,
-            baseline_run: "a".into(),
-            new_run: "b".into(),
-            machines_differ: false,
-            yardstick_ratio: Some(1.02),
-            workloads: vec![w],
-            unmatched_workloads: vec![],
-            regressions: 0,
-            unconfirmed_regressions: 0,
-            growth_regressions: 0,
-            design_regressions: 0,
-            improvements: 0,
-            missing: 0,
-        }
+        GateReport { baseline_run: "a".into(), new_run: "b".into(), yardstick_ratio: Some(1.02), workloads: vec![w], ..Default::default() }
     }
 
     #[test]

@@ -212,7 +212,7 @@ pub struct CommonMode {
     pub spread: f64,
 }
 
-#[derive(Debug, Clone, Serialize, Deserialize)]
+#[derive(Debug, Clone, Default, Serialize, Deserialize)]
 pub struct GateReport {
     pub baseline_run: String,
     pub new_run: String,
@@ -317,15 +317,7 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         new_run: nh.map(|h| h.run_id.clone()).unwrap_or_default(),
         machines_differ,
         yardstick_ratio,
-        workloads: vec![],
-        unmatched_workloads: vec![],
-        regressions: 0,
-        unconfirmed_regressions: 0,
-        growth_regressions: 0,
-        design_regressions: 0,
-        improvements: 0,
-        missing: 0,
-        pair: None,
+        ..Default::default()
     };
     for bw in &base.workloads {
         let Some(nw) = new.workloads.iter().find(|w| w.header.workload == bw.header.workload) else {

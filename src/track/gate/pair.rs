@@ -28,17 +28,8 @@ pub fn compare_pair(run: &RunResults, old: &str, new: &str, opts: &GateOptions) 
     let mut report = GateReport {
         baseline_run: id.clone(),
         new_run: id,
-        machines_differ: false,
-        yardstick_ratio: None,
-        workloads: vec![],
-        unmatched_workloads: vec![],
-        regressions: 0,
-        unconfirmed_regressions: 0,
-        growth_regressions: 0,
-        design_regressions: 0,
-        improvements: 0,
-        missing: 0,
         pair: Some((old.to_string(), new.to_string())),
+        ..Default::default()
     };
     for w in &run.workloads {
         let has = |d: &str| w.header.designs.iter().any(|x| x.name == d);
