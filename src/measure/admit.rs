@@ -230,6 +230,31 @@ fn share_run_budget(decisions: &mut [Option<Result<Admission, SkipInfo>>], waiti
     }
 }
 
+/// What a resumed sweep knows of each design from the points already written.
+pub(super) fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, from: usize) -> Vec<DesignState> {
+    let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
+    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == plan.name) else {
+        return states;
+    };
+    for p in &w.points {
+        let Some(i) = plan.designs.iter().position(|d| d.name == p.design) else {
+            continue;
+        };
+        if plan.sizes.iter().position(|&s| s == p.rows).is_none_or(|k| k >= from) {
+            continue;
+        }
+        match (&p.measured, &p.skipped) {
+            (Some(m), _) => states[i].learn_measured(plan, p.rows, m),
+            (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(p.rows, s),
+            // A trial stopped unfinished keeps the design out of larger sizes, as it did
+            // before the sweep was interrupted (no second trial at a larger size).
+            (None, Some(s)) if s.trial_stopped(p.rows).is_some() => states[i].learn_trial_stopped(s),
+            _ => {}
+        }
+    }
+    states
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -8,7 +8,8 @@
 //! child started again after an earlier one ended abnormally, [`super::worker::Resume`]):
 //! what the earlier sizes taught is read back from `points.jsonl`.
 
-use super::admit::DesignState;
+use super::admit::{resumed_states, DesignState};
+use super::point::{finish_point, MeasuredRow};
 use super::clock::ClockInfo;
 use super::equivalence::compare;
 use super::program::{ProgramDesign, ProgramInputs};
@@ -68,9 +69,6 @@ impl Progress for Quiet {
     fn point_done(&self) {}
 }
 
-/// What the comparison of one size is made from: (design, samples, median, output).
-type MeasuredRow = (String, Vec<f64>, f64, Option<crate::patterns::OutputFacts>);
-
 /// Everything one size's steps share.
 struct SizeRun<'p, 'o> {
     plan: &'p Plan,
@@ -85,76 +83,6 @@ struct SizeRun<'p, 'o> {
     probe: super::machine::DriftProbe,
     /// At the extra size (`extra.rs`): the one design measured there; the others get no point.
     only: Option<usize>,
-}
-
-/// Write the point of a design whose sampling ended, the moment it ends, and update what
-/// later sizes learn from it. A design interrupted before its first sample leaves no point.
-fn finish_point(
-    plan: &Plan,
-    rows: u64,
-    a: &mut Active,
-    st: &mut DesignState,
-    out: &mut RunWriter,
-    outcome: &mut Outcome,
-    measured: &mut Vec<MeasuredRow>,
-    probe_runs: &[(f64, f64)],
-    programs: &[Option<ProgramDesign>],
-) -> Result<(), RunError> {
-    if a.written {
-        return Ok(());
-    }
-    a.written = true;
-    let point = |m: Option<Measured>, s: Option<SkipInfo>| {
-        Record::Point(PointRecord { workload: plan.name.clone(), design: a.design.name.clone(), rows, measured: m, skipped: s, setup_ns: a.setup_ns })
-    };
-    if let Some(info) = a.overrun.take() {
-        // A trial stopped unfinished: over the budget here and at every larger size.
-        st.learn_trial_stopped(&info);
-        out.write(point(None, Some(info)))?;
-        outcome.skipped += 1;
-        return Ok(());
-    }
-    if let Some(err) = &a.error {
-        let info = SkipInfo::failed(err.clone());
-        st.learn_failed(rows, &info);
-        out.write(point(None, Some(info)))?;
-        outcome.failures += 1;
-        return Ok(());
-    }
-    if a.samples.is_empty() {
-        return Ok(());
-    }
-    let m = super::sampling::summarize(a, probe_runs, programs);
-    st.learn_measured(plan, rows, &m);
-    measured.push((a.design.name.clone(), m.samples_ns.clone(), m.median_ns, m.output.clone()));
-    out.write(point(Some(m), None))?;
-    outcome.measured += 1;
-    Ok(())
-}
-
-/// What a resumed sweep knows of each design from the points already written.
-fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, from: usize) -> Vec<DesignState> {
-    let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
-    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == plan.name) else {
-        return states;
-    };
-    for p in &w.points {
-        let Some(i) = plan.designs.iter().position(|d| d.name == p.design) else {
-            continue;
-        };
-        if plan.sizes.iter().position(|&s| s == p.rows).is_none_or(|k| k >= from) {
-            continue;
-        }
-        match (&p.measured, &p.skipped) {
-            (Some(m), _) => states[i].learn_measured(plan, p.rows, m),
-            (None, Some(s)) if s.reason == SkipReason::Failed => states[i].learn_failed(p.rows, s),
-            // A trial stopped unfinished keeps the design out of larger sizes, as it did
-            // before the sweep was interrupted (no second trial at a larger size).
-            (None, Some(s)) if s.trial_stopped(p.rows).is_some() => states[i].learn_trial_stopped(s),
-            _ => {}
-        }
-    }
-    states
 }
 
 /// Sweep one plan, writing every record as it is made.

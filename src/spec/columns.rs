@@ -36,27 +36,8 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
         let p = path.index(i);
         c.name(&p.key("name"), &col.name, "column", &mut seen);
         let kind = col.kind;
-        let applies = |c: &mut Checker, present: bool, key: &str, ok: &[ColumnKind]| {
-            if present && !ok.contains(&kind) {
-                let names: Vec<&str> = ok.iter().map(|k| k.label()).collect();
-                c.at_key(
-                    &p.key(key),
-                    format!("`{key}` does not apply to {} {} column (it applies to {})", article(kind.label()), kind.label(), names.join(", ")),
-                    None,
-                );
-            }
-        };
+        check_applies(c, col, &p);
         use ColumnKind::*;
-        applies(c, col.distinct.is_some(), "distinct", &[Int, Float, Text, Category, Date]);
-        applies(c, col.range.is_some(), "range", &[Int, Float, Date]);
-        applies(c, col.length.is_some(), "length", &[Text, Category]);
-        applies(c, col.true_share.is_some(), "true_share", &[Bool]);
-        applies(c, col.duplicates.is_some(), "duplicates", &[Key]);
-        applies(c, col.skew.is_some(), "skew", &[Int, Float, Text, Category, Date]);
-        applies(c, col.references.is_some(), "references", &[Int]);
-        if col.unmatched.is_some() && col.references.is_none() {
-            c.at_key(&p.key("unmatched"), "`unmatched` applies only with `references` (the share of values without a match)", None);
-        }
         let unmatched = col.unmatched.map(|s| c.share(&p.key("unmatched"), s.0, "a share of unmatched values")).unwrap_or(0.0);
         if col.coverage.is_some() && col.references.is_none() {
             c.at_key(&p.key("coverage"), "`coverage` applies only with `references` (the share of the referenced keys that rows draw from)", None);
@@ -144,6 +125,32 @@ pub(super) fn check_columns(c: &mut Checker, table: &TableSpec, path: &YamlPath)
         });
     }
     out
+}
+
+/// Keys that apply to some kinds of column only, and keys that need another key.
+fn check_applies(c: &mut Checker, col: &ColumnSpec, p: &YamlPath) {
+    let kind = col.kind;
+    let applies = |c: &mut Checker, present: bool, key: &str, ok: &[ColumnKind]| {
+        if present && !ok.contains(&kind) {
+            let names: Vec<&str> = ok.iter().map(|k| k.label()).collect();
+            c.at_key(
+                &p.key(key),
+                format!("`{key}` does not apply to {} {} column (it applies to {})", article(kind.label()), kind.label(), names.join(", ")),
+                None,
+            );
+        }
+    };
+    use ColumnKind::*;
+    applies(c, col.distinct.is_some(), "distinct", &[Int, Float, Text, Category, Date]);
+    applies(c, col.range.is_some(), "range", &[Int, Float, Date]);
+    applies(c, col.length.is_some(), "length", &[Text, Category]);
+    applies(c, col.true_share.is_some(), "true_share", &[Bool]);
+    applies(c, col.duplicates.is_some(), "duplicates", &[Key]);
+    applies(c, col.skew.is_some(), "skew", &[Int, Float, Text, Category, Date]);
+    applies(c, col.references.is_some(), "references", &[Int]);
+    if col.unmatched.is_some() && col.references.is_none() {
+        c.at_key(&p.key("unmatched"), "`unmatched` applies only with `references` (the share of values without a match)", None);
+    }
 }
 
 fn check_range(c: &mut Checker, col: &ColumnSpec, path: &YamlPath) -> RangePlan {
