@@ -753,3 +753,52 @@ fn chance_passes_among_a_workloads_many_tests_are_not_called() {
         }
     }
 }
+
+#[test]
+fn a_leftover_of_the_machine_move_is_not_called_a_change_of_the_design() {
+    // Workloads cut from three back-to-back catalog sweeps of unchanged code
+    // (tests/data/README.md, `drift-a`/`drift-b`, `selfjoin-a`/`selfjoin-b`): between them
+    // the machine slowed the whole workload, and one design more than its siblings and the
+    // drift probe — type-drift's 50 µs `one-cast`, sql-self-join's two-threaded `window`.
+    // What the corrections left over passed the threshold at (nearly) every size, but is
+    // smaller than what they took out: the machine's move, not the design's.
+    let dir = "tests/data/gate-runs";
+    for (a, b, design) in [("drift-a", "drift-b", "one-cast"), ("selfjoin-a", "selfjoin-b", "window")] {
+        let (code, g) = gate_recorded(&format!("{dir}/{a}"), &format!("{dir}/{b}"));
+        assert_eq!(code, 0, "{a} -> {b}: {g}");
+        let moves = g["workloads"][0]["moves"].as_array().expect("moves");
+        let m = moves.iter().find(|m| m["design"] == design).expect("the design's move");
+        let (left, raw) = (m["ratio"].as_f64().expect("ratio"), m["raw_ratio"].as_f64().expect("raw"));
+        // The recorded situation: past the 10% threshold after the corrections, with the
+        // interval above ×1, and the raw medians moved far more.
+        assert!(left > 1.10 && m["ratio_low"].as_f64().expect("low") > 1.0, "{m}");
+        assert!(left.ln() < (raw / left).ln(), "{m}");
+        assert_eq!(m["call"], "unclear", "{m}");
+        assert_eq!(g["design_regressions"], 0, "{g}");
+    }
+}
+
+#[test]
+fn a_slowdown_in_a_workload_whose_points_scatter_is_caught_over_its_sizes() {
+    // Two sweeps of row-growth alone (tests/data/README.md, `growth-a`, `growth-slowed`:
+    // `slowdown: 15%` on `build-once`'s step in the second). The workload's points scatter
+    // between sweeps by a robust spread of about 0.09 (log), so one point needs ×1.30 to
+    // stand out; eight sizes taken together need three standard errors of their mean.
+    let dir = "tests/data/gate-runs";
+    let (code, g) = gate_recorded(&format!("{dir}/growth-a"), &format!("{dir}/growth-slowed"));
+    assert_eq!(code, 1, "{g}");
+    let w = &g["workloads"][0];
+    let spread = w["common_mode"]["spread"].as_f64().expect("spread");
+    assert!(spread > 0.08, "{w}");
+    let moves = w["moves"].as_array().expect("moves");
+    let m = moves.iter().find(|m| m["design"] == "build-once").expect("build-once");
+    let ratio = m["ratio"].as_f64().expect("ratio");
+    let sizes = m["sizes"].as_f64().expect("sizes");
+    // The recorded situation: under the single point's bar, over the bar of the mean.
+    assert!(ratio.ln() < 3.0 * spread && ratio.ln() > 3.0 * spread / sizes.sqrt(), "{m}");
+    assert_eq!(m["call"], "regression", "{m}");
+    // Nothing else moved as a whole.
+    for other in moves.iter().filter(|m| m["design"] != "build-once") {
+        assert_ne!(other["call"], "regression", "{other}");
+    }
+}
