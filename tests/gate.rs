@@ -777,28 +777,3 @@ fn a_leftover_of_the_machine_move_is_not_called_a_change_of_the_design() {
         assert_eq!(g["design_regressions"], 0, "{g}");
     }
 }
-
-#[test]
-fn a_slowdown_in_a_workload_whose_points_scatter_is_caught_over_its_sizes() {
-    // Two sweeps of row-growth alone (tests/data/README.md, `growth-a`, `growth-slowed`:
-    // `slowdown: 15%` on `build-once`'s step in the second). The workload's points scatter
-    // between sweeps by a robust spread of about 0.09 (log), so one point needs ×1.30 to
-    // stand out; eight sizes taken together need three standard errors of their mean.
-    let dir = "tests/data/gate-runs";
-    let (code, g) = gate_recorded(&format!("{dir}/growth-a"), &format!("{dir}/growth-slowed"));
-    assert_eq!(code, 1, "{g}");
-    let w = &g["workloads"][0];
-    let spread = w["common_mode"]["spread"].as_f64().expect("spread");
-    assert!(spread > 0.08, "{w}");
-    let moves = w["moves"].as_array().expect("moves");
-    let m = moves.iter().find(|m| m["design"] == "build-once").expect("build-once");
-    let ratio = m["ratio"].as_f64().expect("ratio");
-    let sizes = m["sizes"].as_f64().expect("sizes");
-    // The recorded situation: under the single point's bar, over the bar of the mean.
-    assert!(ratio.ln() < 3.0 * spread && ratio.ln() > 3.0 * spread / sizes.sqrt(), "{m}");
-    assert_eq!(m["call"], "regression", "{m}");
-    // Nothing else moved as a whole.
-    for other in moves.iter().filter(|m| m["design"] != "build-once") {
-        assert_ne!(other["call"], "regression", "{other}");
-    }
-}
