@@ -1,6 +1,6 @@
 //! How a tie is broken: which of the tied designs the verdict names, and why (the same plan
-//! run by the engine, no set-up to win back, fewer bytes, slower growth where it shows, gaining at the top, fastest
-//! at most sizes, listed first).
+//! run by the engine, no set-up to win back, fewer bytes, slower growth where it shows,
+//! gaining at the top, fastest at most sizes, listed first).
 
 use super::{design, shrinking_ratio, TREND_SIZES};
 use crate::analyse::WorkloadAnalysis;
