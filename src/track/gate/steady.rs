@@ -50,9 +50,9 @@ pub const MIN_SIZES: usize = 4;
 /// A design whose samples fell into two separate groups at this many sizes or more is not
 /// judged as a whole: its medians jump between its two regimes from run to run at the
 /// other sizes too (cross-column's `horizontal-sum`, split at 8k and 16k rows: ×1.25–×2.1 at
-/// its five other sizes between two back-to-back sweeps of unchanged code; with the bar
-/// above it was not called, but a lower bar tried the same day called it). Its points are
-/// still judged one by one.
+/// its five other sizes between two back-to-back sweeps of unchanged code; three spreads
+/// of one point kept it uncalled, the lower bar tried the same day called it). Its points
+/// are still judged one by one.
 pub const SPLIT_SIZES: usize = 2;
 
 /// How large the pooled move left after the corrections (drift probe, common move) must be,
