@@ -44,6 +44,7 @@ fn with_setup(run: &str) -> Vec<String> {
         .filter(|r| r["record"] == "point" && r["setup_ns"].is_number())
         .map(|r| r["design"].as_str().expect("design").to_string())
         .collect();
+    out.sort();
     out.dedup();
     out
 }
