@@ -6,7 +6,10 @@
 # at least 90%, and every n² design). Given several runs of the same workloads (RUNS=DIR
 # with one folder per run), the last line is the ceiling: how often one run's measured
 # median at N lies within 25% of another's — no prediction can beat the measurements'
-# own reproducibility.
+# own reproducibility. The `cores` column gives the cores the step kept busy (CPU time over
+# wall time) at the largest fitted size and at N; a step that goes parallel in between (polars
+# splits sorts, joins and queries over threads above sizes of its own) runs faster than any
+# curve of the smaller sizes says, and the misses it explains are counted.
 #
 #   benches/prediction-accuracy.sh [WORKLOAD.yaml ...]     (default: every built-in workload)
 #   RUNS=DIR benches/prediction-accuracy.sh                 (re-judge saved runs, no sweeping)
@@ -28,7 +31,7 @@ python3 - "$bin" "$out" <<'PY'
 import json, os, subprocess, sys
 from collections import defaultdict
 binary, root = sys.argv[1], sys.argv[2]
-rows_out, within, total, quad_within, quad_total = [], 0, 0, 0, 0
+rows_out, within, total, quad_within, quad_total, missed_switch = [], 0, 0, 0, 0, 0
 for name in sorted(os.listdir(root)):
     pts = os.path.join(root, name, "points.jsonl")
     if not os.path.isfile(pts):
@@ -63,11 +66,19 @@ for name in sorted(os.listdir(root)):
                     cls = t.get("class", "?") + (" or " + t["alternative"] if t.get("alternative") else "")
                     if t.get("class") in ("n²", "n³"):
                         quad_total += 1; quad_within += ok
-                    rows_out.append(f'{w["workload"]:<20} {d["design"]:<26} {cls:<16} {limit:>9} {h["predicted_ns"]/1e6:>11.3f}ms {h["measured_ns"]/1e6:>11.3f}ms {h["error"]*100:>+7.1f}% {"yes" if h["inside_interval"] else "no"}')
-print(f'{"workload":<20} {"design":<26} {"class":<16} {"fit≤":>9} {"predicted":>13} {"measured":>13} {"error":>8} inside')
+                    # Cores kept busy at N against the largest fitted size: a step that
+                    # goes parallel in between runs faster than any curve of the fitted sizes.
+                    c, cf = h.get("cores"), h.get("cores_fitted")
+                    switched = bool(c and cf and max(c, cf) / min(c, cf) >= 1.3)
+                    if not ok:
+                        missed_switch += switched
+                    cores = f"{cf:.1f}->{c:.1f}" if c and cf else "-"
+                    rows_out.append(f'{w["workload"]:<20} {d["design"]:<26} {cls:<16} {limit:>9} {h["predicted_ns"]/1e6:>11.3f}ms {h["measured_ns"]/1e6:>11.3f}ms {h["error"]*100:>+7.1f}% {"yes" if h["inside_interval"] else "no":<6} {cores}')
+print(f'{"workload":<20} {"design":<26} {"class":<16} {"fit≤":>9} {"predicted":>13} {"measured":>13} {"error":>8} inside cores')
 print("\n".join(rows_out))
 print(f"within 25%: {within}/{total}" + (f" ({100*within/total:.0f}%)" if total else ""))
 print(f"n² or n³ designs within 25%: {quad_within}/{quad_total}")
+print(f"of the misses, steps whose cores changed x1.3 or more between the largest fitted size and N: {missed_switch}/{total - within}")
 # The ceiling any prediction faces: how often two runs of the same design at the same N
 # (the point predicted above) measured medians within 25% of each other. With one run
 # folder, nothing to compare.

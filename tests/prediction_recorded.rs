@@ -129,3 +129,50 @@ fn a_rise_over_the_largest_fitted_sizes_carries_the_prediction() {
     // Its lower bound stays the class's: the rise may yet be noise.
     assert!(p["low"].as_f64().expect("low") < class, "{p}");
 }
+
+/// CPU time over wall time of `design` at `rows` (the cores it kept busy), from the points.
+fn cores(run: &str, design: &str, rows: u64) -> f64 {
+    let text = std::fs::read_to_string(format!("{run}/points.jsonl")).expect("points");
+    let m = text
+        .lines()
+        .map(|l| serde_json::from_str::<Value>(l).expect("json line"))
+        .find(|r| r["record"] == "point" && r["design"] == design && r["rows"] == rows && r["measured"].is_object())
+        .map(|r| r["measured"].clone())
+        .expect("a measured point");
+    m["cpu_ns"].as_f64().expect("cpu") / m["median_ns"].as_f64().expect("median")
+}
+
+/// `joins-sorting-parallel` (a quiet catalog sweep on a 2-core Xeon): `hash-then-sort` ran on
+/// one core up to 64k rows and on about 1.7 at 256k, where polars splits the work over
+/// threads. Fitted up to 64k, its prediction at 256k is far over the measurement, and the
+/// check says the cores changed; the full run's findings say where the step went parallel.
+#[test]
+fn a_step_that_goes_parallel_is_named_where_it_does() {
+    let run = "tests/data/prediction-runs/joins-sorting-parallel";
+    let (one, several) = (cores(run, "hash-then-sort", 64_000), cores(run, "hash-then-sort", 256_000));
+    assert!(one <= 1.2 && several >= 1.3 * one, "the recorded points: {one} and {several} cores");
+    let w = analysis(run, &["--fit-up-to", "64000"]);
+    let d = design(&w, "hash-then-sort");
+    let h = d["holdout"].as_array().expect("holdout").iter().find(|h| h["rows"] == 256_000).expect("checked at 256k");
+    let close = |v: &Value, want: f64| v.as_f64().is_some_and(|x| (x / want - 1.0).abs() < 1e-9);
+    assert!(close(&h["cores"], several), "{h}");
+    assert!(close(&h["cores_fitted"], one), "{h}");
+    assert!(h["error"].as_f64().expect("error") > 0.25, "a curve of one-core sizes over-predicts the parallel size: {h}");
+
+    let out = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--json"]).output().expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let doc: Value = serde_json::from_slice(&out.stdout).expect("json");
+    let findings = doc["explanations"][0]["findings"].as_array().expect("findings");
+    let f = findings.iter().find(|f| f["design"] == "hash-then-sort" && f["kind"] == "parallel").expect("a parallel finding");
+    let measured = f["measured"].as_str().expect("text");
+    assert!(measured.contains(&format!("{one:.1}× wall time at 64k rows and {several:.1}× at 256k rows")), "{measured}");
+    // Over that step the time rose less than the CPU time, by the cores gained.
+    let wall = measured_ratio(run, "hash-then-sort");
+    let implies = f["implies"].as_str().expect("text");
+    assert!(implies.contains(&format!("time rose ×{wall:.2}")), "{implies}");
+    assert!(implies.contains(&format!("CPU time rose ×{:.2}", wall * several / one)), "{implies}");
+}
+
+fn measured_ratio(run: &str, design: &str) -> f64 {
+    measured(run, design, 256_000) / measured(run, design, 64_000)
+}

@@ -15,6 +15,7 @@
 mod copying;
 mod trend;
 mod design;
+pub use design::{cores, cores_changed, CORES_CHANGE};
 mod fits;
 mod output;
 

@@ -142,6 +142,13 @@ pub struct HoldoutCheck {
     /// (predicted − measured) / measured.
     pub error: f64,
     pub inside_interval: bool,
+    /// Cores the design kept busy (CPU time over wall time) at the checked size, and at the
+    /// largest fitted size: a step that goes parallel between them (polars splits work across
+    /// threads above a size of its own) runs faster than any curve of the fitted sizes says.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cores: Option<f64>,
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cores_fitted: Option<f64>,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]

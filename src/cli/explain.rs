@@ -91,13 +91,14 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
             }
             for h in &d.holdout {
                 println!(
-                    "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{})",
+                    "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{}{})",
                     "",
                     wa.axis().point(h.rows),
                     crate::units::time_ns(h.predicted_ns),
                     crate::units::time_ns(h.measured_ns),
                     h.error * 100.0,
-                    if h.inside_interval { ", inside the interval" } else { ", outside the interval" }
+                    if h.inside_interval { ", inside the interval" } else { ", outside the interval" },
+                    crate::analyse::cores_changed(h).map(|(at, fitted)| format!("; {at:.1} cores busy there against {fitted:.1} at the largest fitted size")).unwrap_or_default()
                 );
             }
             for n in &d.notes {

@@ -184,6 +184,56 @@ fn memory(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), fi
     }
 }
 
+/// Most cores a step may keep busy while it still counts as running on one.
+const ONE_CORE: f64 = 1.2;
+
+/// A step that ran on about one core at one measured size and on clearly more at the next
+/// (polars splits a sort, a join or a query's work across threads above sizes of its own):
+/// its time over that step rose less than its work, a one-off gain that no class continues
+/// and that a busier machine or one with fewer cores does not give. Only clean points of
+/// 100 µs or more count (the CPU clock's resolution).
+fn went_parallel(d: &Design) -> Option<Finding> {
+    use crate::analyse::{cores, CORES_CHANGE};
+    let pts: Vec<(u64, &Measured, f64)> = d
+        .w
+        .design_points(&d.dh.name)
+        .into_iter()
+        .filter_map(|p| {
+            let m = p.measured.as_ref().filter(|m| !m.is_contaminated() && m.median_ns > 1e5)?;
+            Some((p.rows, m, cores(m)?))
+        })
+        .collect();
+    let last = pts.last()?;
+    if last.2 < ONE_CORE * CORES_CHANGE {
+        return None;
+    }
+    // The last size on one core; every larger size on more.
+    let k = pts.iter().rposition(|p| p.2 <= ONE_CORE)?;
+    let (a, b) = (&pts[k], pts.get(k + 1)?);
+    if b.2 < a.2 * CORES_CHANGE {
+        return None;
+    }
+    let cpu = |m: &Measured, c: f64| c * m.median_ns;
+    let (wall_rise, cpu_rise) = (b.1.median_ns / a.1.median_ns, cpu(b.1, b.2) / cpu(a.1, a.2));
+    let at = |x: u64| d.ax.point(x);
+    let program = if d.dh.program.is_some() { "the program's CPU time" } else { "CPU time" };
+    Some(d.finding(
+        "parallel",
+        format!(
+            "{program} is {:.1}× wall time at {} and {:.1}× at {}{}: the work went from one core to several between them",
+            a.2,
+            at(a.0),
+            b.2,
+            at(b.0),
+            if last.0 != b.0 { format!(" ({:.1}× at {})", last.2, at(last.0)) } else { String::new() }
+        ),
+        format!(
+            "over that step its time rose ×{wall_rise:.2} while its CPU time rose ×{cpu_rise:.2}: a one-off gain from the cores, which the fitted class averages in and which past the largest size only the cores still idle can add to; on a busier machine or one with fewer cores its time at the larger sizes is higher"
+        ),
+        "read how its work grows from the CPU time, and measure past the switch before acting on a prediction".into(),
+    ))
+}
+
 /// Fragmented output, parallelism, unstable samples and stalls at the largest size.
 fn runs(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), findings: &mut Vec<Finding>) {
     let Design { dh, ax, .. } = *d;
@@ -201,7 +251,9 @@ fn runs(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), find
         ));
     }
     // Parallelism and stalls at the largest size.
-    if m1.median_ns > 1e5 {
+    if let Some(finding) = went_parallel(d) {
+        findings.push(finding);
+    } else if m1.median_ns > 1e5 {
         let par = m1.cpu_ns / m1.median_ns;
         if par >= 1.4 {
             findings.push(f(
