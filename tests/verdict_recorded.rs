@@ -252,3 +252,35 @@ fn a_tie_of_sql_designs_the_optimizer_runs_as_one_plan_names_the_first_listed() 
     let wins = |run: &str| medians(run).values().filter(|at| fastest(at) == "join-then-filter").count();
     assert_ne!(wins("tests/data/verdict-runs/sql-same-plan-s1"), wins("tests/data/verdict-runs/sql-same-plan-s2"));
 }
+
+/// The set-up time of `design` at `rows`, from the points.
+fn setup_ns(run: &str, design: &str, rows: u64) -> f64 {
+    let text = std::fs::read_to_string(format!("{run}/points.jsonl")).expect("points");
+    text.lines()
+        .map(|l| serde_json::from_str::<serde_json::Value>(l).expect("json line"))
+        .find(|r| r["record"] == "point" && r["design"] == design && r["rows"] == rows)
+        .and_then(|r| r["setup_ns"].as_f64())
+        .expect("a set-up time")
+}
+
+#[test]
+fn a_winner_with_set_up_says_what_its_set_up_costs_and_when_it_is_won_back() {
+    // Recorded cell-reads where `vector-copied-once` won by more than the tie ratio at the
+    // largest size (tests/data/README.md): its column copy is untimed set-up. The verdict
+    // names it (it is the fastest per run) and says the set-up and the runs that win it back
+    // against the runner-up, both from the points.
+    let run = "tests/data/verdict-runs/cell-reads-setup-wins";
+    let m = medians(run);
+    let (&rows, at) = m.iter().next_back().expect("sizes");
+    let v = verdict(run);
+    assert_eq!(v["kind"], "winner", "{v}");
+    let best = fastest(at).to_string();
+    assert_eq!(v["design"], best.as_str(), "{v}");
+    assert!(with_setup(run).contains(&best), "{best}");
+    let runner = at.iter().filter(|(d, _)| **d != best).min_by(|a, b| a.1.total_cmp(b.1)).map(|(d, t)| (d.clone(), *t)).expect("runner-up");
+    assert!(!with_setup(run).contains(&runner.0), "{runner:?}");
+    let runs = (setup_ns(run, &best, rows) / (runner.1 - at[&best])).ceil();
+    let text = v["text"].as_str().expect("text");
+    assert!(text.contains("it needs a set-up first") && text.contains("untimed"), "{text}");
+    assert!(text.contains(&format!("won back after {runs:.0} runs at this size: for fewer, `{}` costs less overall", runner.0)), "{text}");
+}

@@ -198,11 +198,12 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         return v;
     }
     let (below, unsupported) = crossing_notes(a, &cmps, &best, ax);
+    let setup = tie::setup_won_back(w, &best, &runner.design, last.rows);
     Verdict {
         kind: VerdictKind::Winner,
         design: Some(best.clone()),
         text: format!(
-            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{}{below}{unsupported}{busy_note}",
+            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{setup}{}{below}{unsupported}{busy_note}",
             ratio(runner.ratio),
             runner.design,
             at_target(a, &best)
