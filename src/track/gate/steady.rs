@@ -40,6 +40,16 @@
 //! relative to their siblings (row-wise's `function-per-reused-row` ×1.3–×1.6 at every
 //! size in one sweep), as large as the slowdowns it caught (×1.14–×1.21). Between separate
 //! sweeps no bar tells them apart; measuring both versions in one sweep (`--pair`) does.
+//!
+//! Tried and dropped on 4 December (another machine): judging a design against three
+//! spreads of its *siblings'* points instead of the whole workload's, since a slowed
+//! design's own points widen that spread (row-growth's `build-once`, slowed 15%, moved
+//! ×1.12–×1.16 over its sizes where three workload spreads asked ×1.13–×1.19). On the six
+//! sweeps it was devised on it caught the slowdown in 8 of 8 pairings (before: 4) with no
+//! unchanged pairing called; on three later sweeps, after the machine slowed ×1.2, it called
+//! unchanged designs in one pairing more than the kept rule (10 of the 20 pairings across
+//! that move, against 9) and more designs in six: the siblings' spread is exactly what keeps a design that answers the
+//! machine's move differently from being called.
 
 use super::{Call, WorkloadGate, COMMON_MODE_SPREADS};
 use serde::{Deserialize, Serialize};
