@@ -283,4 +283,11 @@ fn a_winner_with_set_up_says_what_its_set_up_costs_and_when_it_is_won_back() {
     let text = v["text"].as_str().expect("text");
     assert!(text.contains("it needs a set-up first") && text.contains("untimed"), "{text}");
     assert!(text.contains(&format!("won back after {runs:.0} runs at this size: for fewer, `{}` costs less overall", runner.0)), "{text}");
+    // The report's answer says it too, under the winner.
+    let tmp = tempfile::tempdir().expect("tempdir");
+    let out = Command::cargo_bin("framecost").expect("binary").arg("report").arg(run).arg("--out").arg(tmp.path()).output().expect("runs");
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let md = std::fs::read_to_string(tmp.path().join("report.md")).expect("report.md");
+    let answer = md.lines().skip_while(|l| !l.contains("cell-reads")).collect::<Vec<_>>().join("\n");
+    assert!(answer.contains(&format!("`{best}`'s set-up took")) && answer.contains(&format!("pays for itself after {runs:.0} runs")), "{answer}");
 }

@@ -137,7 +137,15 @@ pub fn digest(w: &WorkloadResults, a: &WorkloadAnalysis, e: &Explanation) -> Dig
             });
             said.crossover = "—".into();
         }
-        (VerdictKind::Winner, Some(best)) => winner(&mut said, w, a, v, &cmps, best),
+        (VerdictKind::Winner, Some(best)) => {
+            winner(&mut said, w, a, v, &cmps, best);
+            // Timed without its set-up, a winner is the fastest per run, not overall: say
+            // what the set-up costs (the pay-back finding).
+            if let Some(f) = e.findings.iter().find(|f| f.kind == "payback" && f.design.as_deref() == Some(best)) {
+                let what = f.measured.strip_prefix("its ").map_or_else(|| format!(" {}", f.measured), |rest| format!("'s {rest}"));
+                said.why.push(sentence(&format!("`{best}`{what}: {}", f.implies)));
+            }
+        }
         (VerdictKind::Crossover, Some(to)) => crossover(&mut said, w, a, v, &cmps, to),
         (VerdictKind::Tie, Some(pick)) => {
             said.answer = format!("a tie; `{pick}` suggested");
