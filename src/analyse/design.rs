@@ -197,13 +197,9 @@ fn holdout_checks(pts: &[&PointRecord], limit: u64, pred: &dyn Fn(u64) -> Option
 }
 
 /// CPU time over wall time of a point's samples (the cores it kept busy), when both were
-/// recorded: a program design's own CPU time, a step's the whole process's.
+/// recorded (`Measured::cpu_ns`: a program design's own CPU time, a step's the process's).
 pub fn cores(m: &crate::results::Measured) -> Option<f64> {
-    let cpu = match &m.program {
-        Some(p) => p.child_cpu_ns?,
-        None => m.cpu_ns,
-    };
-    (cpu > 0.0 && m.median_ns > 0.0).then(|| cpu / m.median_ns)
+    (m.cpu_ns > 0.0 && m.median_ns > 0.0).then(|| m.cpu_ns / m.median_ns)
 }
 
 /// How much more (or fewer) cores a step kept busy at a checked size than at the largest

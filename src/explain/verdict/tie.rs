@@ -223,23 +223,6 @@ fn led_most<'t>(cmps: &[&ComparisonRecord], tied: &[&'t str]) -> Option<(&'t str
     (of >= 3 && 3 * counts[k] >= 2 * of).then_some((tied[k], counts[k], of))
 }
 
-#[cfg(test)]
-mod tests {
-    use super::normalised_plan;
-
-    #[test]
-    fn scan_columns_are_compared_in_name_order() {
-        // Text of polars' optimized plans as `sql-filter-join` records them (two queries
-        // whose scans read the same columns in another order).
-        let a = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"district\", \"member_id\"] 2/3 COLUMNS";
-        let b = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"member_id\", \"district\"] 2/3 COLUMNS";
-        assert_eq!(normalised_plan(a), normalised_plan(b));
-        let c = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"member_id\", \"joined_on\"] 2/3 COLUMNS";
-        assert_ne!(normalised_plan(a), normalised_plan(c));
-        assert_eq!(normalised_plan("no scan"), "no scan");
-    }
-}
-
 /// What a winner with set-up steps costs besides its runs, as a clause of the verdict: its
 /// untimed set-up at the deciding size and how many runs win it back against the runner-up
 /// (when the runner-up has none). A winner timed without its set-up is the fastest per
@@ -258,5 +241,22 @@ pub(super) fn setup_won_back(w: &WorkloadResults, best: &str, runner: &str, rows
             format!("{spent}, won back after {runs:.0} run{} at this size: for fewer, `{runner}` costs less overall", if runs == 1.0 { "" } else { "s" })
         }
         _ => spent,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::normalised_plan;
+
+    #[test]
+    fn scan_columns_are_compared_in_name_order() {
+        // Text of polars' optimized plans as `sql-filter-join` records them (two queries
+        // whose scans read the same columns in another order).
+        let a = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"district\", \"member_id\"] 2/3 COLUMNS";
+        let b = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"member_id\", \"district\"] 2/3 COLUMNS";
+        assert_eq!(normalised_plan(a), normalised_plan(b));
+        let c = "INNER JOIN:\n  FROM\n    DF [\"member_id\", \"district\", \"joined_on\"]; PROJECT[\"member_id\", \"joined_on\"] 2/3 COLUMNS";
+        assert_ne!(normalised_plan(a), normalised_plan(c));
+        assert_eq!(normalised_plan("no scan"), "no scan");
     }
 }

@@ -48,8 +48,8 @@
 //! sweeps it was devised on it caught the slowdown in 8 of 8 pairings (before: 4) with no
 //! unchanged pairing called; on three later sweeps, after the machine slowed ×1.2, it called
 //! unchanged designs in one pairing more than the kept rule (10 of the 20 pairings across
-//! that move, against 9) and more designs in six: the siblings' spread is exactly what keeps a design that answers the
-//! machine's move differently from being called.
+//! that move, against 9) and more designs in six: the siblings' spread is exactly what
+//! keeps a design that answers the machine's move differently from being called.
 
 use super::{Call, WorkloadGate, COMMON_MODE_SPREADS};
 use serde::{Deserialize, Serialize};
