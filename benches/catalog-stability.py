@@ -73,7 +73,11 @@ pred_sets = [[v for v in vs if v] for vs in preds.values()]
 pred_sets = [vs for vs in pred_sets if len(vs) == len(runs)]
 within2 = sum(1 for vs in pred_sets if max(vs) <= 2 * min(vs))
 met = sum(1 for vs in expects.values() if all(vs))
+# Weaker, for context: the same design named in every run, whatever the kind (a tie at ×1.16
+# and a winner at ×1.21 that name the same design give the reader the same advice).
+same_d = sum(1 for vs in verdicts.values() if len({d for _, d in vs}) == 1 and len(vs) == len(runs))
 print(f"same verdict in every run: {same_v}/{n_w}")
+print(f"same design named in every run (kind aside): {same_d}/{n_w}")
 print(f"same class (or pair) in every run: {same_c}/{len(cells)} design x metric cells ({100*same_c/max(1,len(cells)):.0f}%)")
 # Weaker, for context: cells where some class is admitted by every run ("n or n log n",
 # "n", "n or n log n" share n), so no run contradicts another, only states it less sharply.
