@@ -83,7 +83,15 @@ fn columns_made_whole_are_named() {
     assert_eq!(chunk_blocker(&plan.tables[0]), None);
     let mut t = plan.tables[0].clone();
     t.columns[1].order = framecost::spec::model::Order::Sorted;
-    assert!(chunk_blocker(&t).is_some_and(|m| m.contains("variety")));
+    let m = chunk_blocker(&t).expect("a sorted column is made whole");
+    assert!(m.contains("variety") && m.contains("use `order: random` or `clustered`"), "{m}");
+    // A key in random order is a permutation made whole: the way out is its own order, not
+    // the random order it already has.
+    let mut k = plan.tables[0].clone();
+    assert_eq!(k.columns[0].kind, framecost::spec::model::ColumnKind::Key);
+    k.columns[0].order = framecost::spec::model::Order::Random;
+    let m = chunk_blocker(&k).expect("a shuffled key is made whole");
+    assert!(m.contains("order random") && m.contains("a key is made in chunks only with `order: sorted` and no `duplicates`") && !m.contains("use `order: random`"), "{m}");
 }
 
 #[test]

@@ -78,16 +78,13 @@ pub fn chunk_blocker(t: &TablePlan) -> Option<String> {
             ColumnKind::Key => !(c.order == Order::Sorted && c.duplicates <= 0.0),
             _ => matches!(c.order, Order::Sorted | Order::Reverse),
         };
-        whole.then(|| {
-            format!(
-                "column `{}.{}` ({}, order {:?}) is made whole, not in chunks; use `order: random` or `clustered` (keys: `order: sorted` without duplicates)",
-                t.name,
-                c.name,
-                c.kind.label(),
-                c.order
-            )
-            .to_lowercase()
-        })
+        // The way out depends on the kind: a key is a permutation of its rows, made in chunks
+        // only in its own order; other columns only need their order not to span the table.
+        let fix = match c.kind {
+            ColumnKind::Key => "a key is made in chunks only with `order: sorted` and no `duplicates`",
+            _ => "use `order: random` or `clustered`",
+        };
+        whole.then(|| format!("column `{}.{}` ({}, order {}) is made whole, not in chunks; {fix}", t.name, c.name, c.kind.label(), format!("{:?}", c.order).to_lowercase()))
     })
 }
 
