@@ -9,7 +9,10 @@
 //!
 //! Designs on the streaming engine keep their tables on disk (Parquet chunks, counted as
 //! disk) and hold a few chunks at a time: before they are measured, their working memory is
-//! their memory factor times two chunks of every table.
+//! their memory factor times two chunks of every table, or — when a query groups or removes
+//! duplicates — the state its groups keep, whichever is larger: the hashing factor times the
+//! tables, in the share of the largest table's rows that the groups can reach
+//! ([`super::groups`]: a unique key's groups are every row, a variety's a handful).
 
 use crate::measure::stats::loglog_slope;
 use crate::plan::Plan;
@@ -91,10 +94,29 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
                 Some(_) => table / rows.max(1) as f64 * super::inputs::CHUNK_ROWS as f64,
             };
             let chunks = (2.0 * chunk).min(table);
-            let working = extrapolate(peaks, x).unwrap_or(d.memory_factor() * chunks);
+            let working = extrapolate(peaks, x).unwrap_or_else(|| (d.memory_factor() * chunks).max(group_state(plan, d, x)));
             Estimate { table: chunks, records: 0.0, generator: generator_bytes_at(plan, x), working, disk: table }
         }
     }
+}
+
+/// Bytes a streaming design's grouping keeps at swept value `x` before it is measured: the
+/// hashing factor times the tables, in the share of the largest table's rows its groups can
+/// reach (0 when no query groups). Measured here: a unique-key GROUP BY on the streaming
+/// engine kept 4.3× the table (see [`super::groups`]); the factor of 10 is the in-memory
+/// engine's for hashing, so the bound errs on the side of refusing.
+fn group_state(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> f64 {
+    let tables = plan.tables_at(x);
+    let rows = plan.rows_at(x);
+    let largest = tables.iter().map(|t| t.rows.at(rows)).max().unwrap_or(rows).max(1) as f64;
+    let groups = d
+        .setup
+        .iter()
+        .chain(&d.steps)
+        .filter(|s| crate::patterns::sql::is_sql(s.def))
+        .filter_map(|s| super::groups::groups_bound(s.params.text("query"), &tables, rows))
+        .fold(0.0, f64::max);
+    crate::patterns::sql::HASHING_MEMORY_FACTOR * plan.table_bytes_at(x) * (groups / largest).min(1.0)
 }
 
 fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
