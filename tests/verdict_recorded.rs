@@ -268,7 +268,7 @@ fn a_winner_with_set_up_says_what_its_set_up_costs_and_when_it_is_won_back() {
     // Recorded cell-reads where `vector-copied-once` won by more than the tie ratio at the
     // largest size (tests/data/README.md): its column copy is untimed set-up. The verdict
     // names it (it is the fastest per run) and says the set-up and the runs that win it back
-    // against the runner-up, both from the points.
+    // against the fastest design without set-up (here the runner-up), both from the points.
     let run = "tests/data/verdict-runs/cell-reads-setup-wins";
     let m = medians(run);
     let (&rows, at) = m.iter().next_back().expect("sizes");

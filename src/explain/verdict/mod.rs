@@ -198,7 +198,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         return v;
     }
     let (below, unsupported) = crossing_notes(a, &cmps, &best, ax);
-    let setup = tie::setup_won_back(w, &best, &runner.design, last.rows);
+    let setup = tie::setup_won_back(w, &best, last.rows);
     Verdict {
         kind: VerdictKind::Winner,
         design: Some(best.clone()),

@@ -224,21 +224,20 @@ fn led_most<'t>(cmps: &[&ComparisonRecord], tied: &[&'t str]) -> Option<(&'t str
 }
 
 /// What a winner with set-up steps costs besides its runs, as a clause of the verdict: its
-/// untimed set-up at the deciding size and how many runs win it back against the runner-up
-/// (when the runner-up has none). A winner timed without its set-up is the fastest per
+/// untimed set-up at the deciding size and how many runs win it back against the fastest
+/// design without set-up measured there (`payback::won_back_at`, the pay-back finding's
+/// count). A winner timed without its set-up is the fastest per
 /// run, not overall: cell-reads' `vector-copied-once` won one sweep in six by ×1.24 on runs
 /// whose column copy took longer than two of them. Empty when there is no set-up.
-pub(super) fn setup_won_back(w: &WorkloadResults, best: &str, runner: &str, rows: u64) -> String {
+pub(super) fn setup_won_back(w: &WorkloadResults, best: &str, rows: u64) -> String {
     let Some(setup) = w.point(best, rows).and_then(|p| p.setup_ns) else {
         return String::new();
     };
-    let median = |n: &str| w.point(n, rows).and_then(|p| p.measured.as_ref()).map(|m| m.median_ns);
     let at = w.header.axis().point(rows);
     let spent = format!("; it needs a set-up first ({} at {at}, untimed)", crate::units::time_ns(setup));
-    match (median(best), median(runner), w.point(runner, rows).and_then(|p| p.setup_ns)) {
-        (Some(mine), Some(theirs), None) if theirs > mine => {
-            let runs = (setup / (theirs - mine)).ceil().max(1.0);
-            format!("{spent}, won back after {runs:.0} run{} at this size: for fewer, `{runner}` costs less overall", if runs == 1.0 { "" } else { "s" })
+    match crate::explain::payback::won_back_at(w, best, rows) {
+        Some((other, Some(runs))) => {
+            format!("{spent}, won back after {runs:.0} run{} at this size: for fewer, `{other}` costs less overall", if runs == 1.0 { "" } else { "s" })
         }
         _ => spent,
     }
