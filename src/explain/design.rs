@@ -250,11 +250,10 @@ fn runs(d: &Design, (n0, m0): (u64, &Measured), (n1, m1): (u64, &Measured), find
             "consolidate once at the end (or build once) instead of leaving the chunks".into(),
         ));
     }
-    // Parallelism and stalls at the largest size.
+    // Parallelism and stalls at the largest size (nothing to say without a CPU time).
     if let Some(finding) = went_parallel(d) {
         findings.push(finding);
-    } else if m1.median_ns > 1e5 {
-        let par = m1.cpu_ns / m1.median_ns;
+    } else if let Some(par) = crate::analyse::cores(m1).filter(|_| m1.median_ns > 1e5) {
         if par >= 1.4 {
             findings.push(f(
                 "parallel",
