@@ -81,7 +81,15 @@ impl Groups<'_> {
             },
             _ => return None,
         };
-        Some(keys.iter().map(|e| self.expr_groups(e, &scope, sel, 0)).product::<f64>().min(self.ceiling))
+        let groups = |e: &Expr| match number(e) {
+            // GROUP BY 2: the projection's second expression.
+            Some(k) if k >= 1.0 && k.fract() == 0.0 => match sel.projection.get(k as usize - 1) {
+                Some(SelectItem::UnnamedExpr(x) | SelectItem::ExprWithAlias { expr: x, .. }) => self.expr_groups(x, &scope, sel, 0),
+                _ => self.ceiling,
+            },
+            _ => self.expr_groups(e, &scope, sel, 0),
+        };
+        Some(keys.iter().map(|e| groups(e)).product::<f64>().min(self.ceiling))
     }
 
     /// Distinct values `e` can take in the select's scope (at most the ceiling).
@@ -186,9 +194,8 @@ impl<'a> Scope<'a> {
         Scope { named, read }
     }
 
-    /// The table and plan of column `name` (of table or alias `table` when qualified); for an
-    /// unqualified name, the read table with the most distinct values of it is not chosen
-    /// here: the first that has it, as SQL would refuse an ambiguous name.
+    /// The table and plan of column `name`: of table or alias `table` when qualified, else of
+    /// the first table read that has it (SQL refuses a name two tables share).
     fn column(&self, table: Option<&str>, name: &str) -> Option<(&'a TablePlan, &'a ColumnPlan)> {
         let find = |t: &'a TablePlan| t.columns.iter().find(|c| c.name.eq_ignore_ascii_case(name)).map(|c| (t, c));
         match table {
@@ -286,6 +293,9 @@ mod tests {
         // An output name (polars allows it), and DISTINCT over the projection.
         assert_eq!(bound("SELECT grams % 7 AS g, SUM(grams) FROM deliveries GROUP BY g", n), Some(7.0));
         assert_eq!(bound("SELECT DISTINCT crew, ripe FROM deliveries", n), Some(14.0));
+        // By position: the projection's expressions, not the constants 1 and 2.
+        assert_eq!(bound("SELECT delivery_id, crew, COUNT(*) FROM deliveries GROUP BY 1, 2", n), Some(n as f64));
+        assert_eq!(bound("SELECT crew, ripe, COUNT(*) FROM deliveries GROUP BY 2", n), Some(2.0));
         // The largest over subqueries.
         let nested = "SELECT crew, MAX(total) FROM (SELECT crew, delivery_id, SUM(grams) AS total FROM deliveries \
                       GROUP BY crew, delivery_id) AS t GROUP BY crew";
