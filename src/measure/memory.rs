@@ -12,7 +12,11 @@
 //! their memory factor times two chunks of every table, or — when a query groups or removes
 //! duplicates — the state its groups keep, whichever is larger: the hashing factor times the
 //! tables, in the share of the largest table's rows that the groups can reach
-//! ([`super::groups`]: a unique key's groups are every row, a variety's a handful).
+//! ([`super::query_sizes`]: a unique key's groups are every row, a variety's a handful).
+//!
+//! An SQL join whose keys repeat makes more rows than its tables (a self-join on 14
+//! varieties makes about n²/11): before it is measured, a design is allowed at least the
+//! joined rows bounded from the table plan times their row bytes, on either engine.
 
 use crate::measure::stats::loglog_slope;
 use crate::plan::Plan;
@@ -38,6 +42,10 @@ pub struct Estimate {
     pub working: f64,
     /// Bytes the largest-writing design puts in the temp folder.
     pub disk: f64,
+    /// The rows of an SQL join whose bound set the working memory (before measuring).
+    pub joined_rows: Option<f64>,
+    /// The groups of a streaming query whose bound set the working memory (before measuring).
+    pub groups: Option<f64>,
 }
 
 impl Estimate {
@@ -46,7 +54,14 @@ impl Estimate {
     }
     /// The memory part, as results record it (worded by `present::causes::memory_need`).
     pub fn need(&self) -> crate::results::MemoryNeed {
-        crate::results::MemoryNeed { table: self.table, records: self.records, generator: self.generator, working: self.working }
+        crate::results::MemoryNeed {
+            table: self.table,
+            records: self.records,
+            generator: self.generator,
+            working: self.working,
+            joined_rows: self.joined_rows,
+            groups: self.groups,
+        }
     }
 }
 
@@ -57,7 +72,7 @@ pub fn estimate(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> E
     let streaming: Vec<usize> = (0..plan.designs.len()).filter(|&i| plan.designs[i].engine == EngineChoice::Streaming).collect();
     let disk_streaming = if streaming.is_empty() { 0.0 } else { plan.table_bytes_at(rows) };
     if streaming.len() == plan.designs.len() && !streaming.is_empty() {
-        let mut largest = Estimate { table: 0.0, records: 0.0, generator: 0.0, working: 0.0, disk: 0.0 };
+        let mut largest = Estimate { table: 0.0, records: 0.0, generator: 0.0, working: 0.0, disk: 0.0, joined_rows: None, groups: None };
         for &i in &streaming {
             let e = estimate_design(plan, i, rows, measured_peaks);
             if e.total() > largest.total() {
@@ -85,8 +100,11 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
             let records = if d.feed == Feed::Records { rows as f64 * width * RECORD_VALUE_BYTES } else { 0.0 };
             // What its parameters make it build (new columns, probe lists, pieces) comes on top
             // of the table-sized working memory, measured or not.
-            let working = extrapolate(peaks, x).unwrap_or(d.memory_factor() * table).max(params_bytes(d, rows) + table);
-            Estimate { table, records, generator: generator_bytes_at(plan, x), working, disk: d.disk_factor() * table }
+            let measured = extrapolate(peaks, x);
+            let join = joined(plan, d, x, false).filter(|j| measured.is_none() && j.bytes > d.memory_factor() * table);
+            let working = measured.unwrap_or_else(|| join.map_or(d.memory_factor() * table, |j| j.bytes)).max(params_bytes(d, rows) + table);
+            let joined_rows = join.filter(|j| j.bytes >= working).map(|j| j.rows);
+            Estimate { table, records, generator: generator_bytes_at(plan, x), working, disk: d.disk_factor() * table, joined_rows, groups: None }
         }
         EngineChoice::Streaming => {
             let chunk = match plan.axis {
@@ -94,29 +112,51 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
                 Some(_) => table / rows.max(1) as f64 * super::inputs::CHUNK_ROWS as f64,
             };
             let chunks = (2.0 * chunk).min(table);
-            let working = extrapolate(peaks, x).unwrap_or_else(|| (d.memory_factor() * chunks).max(group_state(plan, d, x)));
-            Estimate { table: chunks, records: 0.0, generator: generator_bytes_at(plan, x), working, disk: table }
+            let base = d.memory_factor() * chunks;
+            let (mut working, mut joined_rows, mut groups) = (base, None, None);
+            match extrapolate(peaks, x) {
+                Some(m) => working = m,
+                None => {
+                    if let Some((g, bytes)) = group_state(plan, d, x).filter(|s| s.1 > working) {
+                        (working, groups) = (bytes, Some(g));
+                    }
+                    if let Some(j) = joined(plan, d, x, true).filter(|j| j.bytes > working) {
+                        (working, joined_rows, groups) = (j.bytes, Some(j.rows), None);
+                    }
+                }
+            }
+            Estimate { table: chunks, records: 0.0, generator: generator_bytes_at(plan, x), working, disk: table, joined_rows, groups }
         }
     }
 }
 
-/// Bytes a streaming design's grouping keeps at swept value `x` before it is measured: the
-/// hashing factor times the tables, in the share of the largest table's rows its groups can
-/// reach (0 when no query groups). Measured here: a unique-key GROUP BY on the streaming
-/// engine kept 4.3× the table (see [`super::groups`]); the factor of 10 is the in-memory
+/// The groups a streaming design's grouping keeps at swept value `x` before it is measured,
+/// and their bytes: the hashing factor times the tables, in the share of the largest table's
+/// rows its groups can reach (None when no query groups). Measured here: a unique-key GROUP BY on the streaming
+/// engine kept 4.3× the table (see [`super::query_sizes`]); the factor of 10 is the in-memory
 /// engine's for hashing, so the bound errs on the side of refusing.
-fn group_state(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> f64 {
+fn group_state(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> Option<(f64, f64)> {
     let tables = plan.tables_at(x);
     let rows = plan.rows_at(x);
     let largest = tables.iter().map(|t| t.rows.at(rows)).max().unwrap_or(rows).max(1) as f64;
-    let groups = d
-        .setup
-        .iter()
-        .chain(&d.steps)
-        .filter(|s| crate::patterns::sql::is_sql(s.def))
-        .filter_map(|s| super::groups::groups_bound(s.params.text("query"), &tables, rows))
-        .fold(0.0, f64::max);
-    crate::patterns::sql::HASHING_MEMORY_FACTOR * plan.table_bytes_at(x) * (groups / largest).min(1.0)
+    let groups = queries(d).filter_map(|q| super::query_sizes::groups_bound(q, &tables, rows)).reduce(f64::max)?;
+    Some((groups, crate::patterns::sql::HASHING_MEMORY_FACTOR * plan.table_bytes_at(x) * (groups / largest).min(1.0)))
+}
+
+/// Bytes the largest join of a design's queries makes at swept value `x` before it is
+/// measured (None without joins): its rows bounded from the table plan times the joined tables'
+/// row bytes ([`super::query_sizes::joined_bytes`]). A self-join on 14 varieties peaked at
+/// 40–41 bytes a joined row, the bound counts 64. `streaming`: only the joins of SELECTs that
+/// do not group (the engine feeds the others into their groups).
+fn joined(plan: &Plan, d: &crate::plan::DesignPlan, x: u64, streaming: bool) -> Option<super::query_sizes::Joins> {
+    let tables = plan.tables_at(x);
+    let rows = plan.rows_at(x);
+    queries(d).filter_map(|q| super::query_sizes::joined_bytes(q, &tables, rows, streaming)).max_by(|a, b| a.bytes.total_cmp(&b.bytes))
+}
+
+/// The queries of a design's `sql` steps, set-up included.
+fn queries(d: &crate::plan::DesignPlan) -> impl Iterator<Item = &str> {
+    d.setup.iter().chain(&d.steps).filter(|s| crate::patterns::sql::is_sql(s.def)).map(|s| s.params.text("query"))
 }
 
 fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f64)>]) -> Estimate {
@@ -126,12 +166,15 @@ fn estimate_memory_designs(plan: &Plan, rows: u64, measured_peaks: &[Vec<(u64, f
         .map(|i| estimate_design(plan, i, rows, measured_peaks))
         .collect();
     let largest = |f: fn(&Estimate) -> f64| per.iter().map(f).fold(0.0, f64::max);
+    let widest = per.iter().max_by(|a, b| a.working.total_cmp(&b.working));
     Estimate {
         table: plan.table_bytes_at(rows),
         records: largest(|e| e.records),
         generator: generator_bytes_at(plan, rows),
         working: largest(|e| e.working),
         disk: largest(|e| e.disk),
+        joined_rows: widest.and_then(|e| e.joined_rows),
+        groups: widest.and_then(|e| e.groups),
     }
 }
 

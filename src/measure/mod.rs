@@ -6,7 +6,7 @@ pub mod clock;
 pub mod admit;
 pub mod equivalence;
 pub mod execute;
-pub mod groups;
+pub mod query_sizes;
 pub mod extra;
 pub mod headers;
 pub mod hygiene;

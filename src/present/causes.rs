@@ -17,8 +17,13 @@ pub fn skip_words(s: &SkipInfo, axis: Axis<'_>) -> String {
 /// A memory estimate in parts: `about 3 GiB (table …, records …, generator …, largest
 /// design's working memory …)`.
 pub fn memory_need(n: &MemoryNeed) -> String {
+    let why = match (n.joined_rows, n.groups) {
+        (Some(r), _) => format!(": an SQL join makes about {} rows, by how its keys repeat in the table plan", crate::units::rows_label_f(r)),
+        (None, Some(g)) => format!(": an SQL query keeps up to {} groups by the table plan", crate::units::rows_label_f(g)),
+        _ => String::new(),
+    };
     format!(
-        "about {} (table {}, records {}, generator {}, largest design's working memory {})",
+        "about {} (table {}, records {}, generator {}, largest design's working memory {}{why})",
         bytes(n.total()),
         bytes(n.table),
         bytes(n.records),
@@ -106,7 +111,7 @@ mod tests {
     #[test]
     fn every_cause_is_worded_with_its_numbers() {
         let rows = Axis(None);
-        let need = MemoryNeed { table: 1024.0 * 1024.0, records: 0.0, generator: 0.0, working: 3.0 * 1024.0 * 1024.0 };
+        let need = MemoryNeed { table: 1024.0 * 1024.0, records: 0.0, generator: 0.0, working: 3.0 * 1024.0 * 1024.0, ..Default::default() };
         let step = || Box::new(SkipCause::Step { message: "no column `weight`".into() });
         let cases: Vec<(SkipCause, &[&str])> = vec![
             (SkipCause::PointBudget { predicted_ns: 2e9, runs: 4.0, budget_ns: 5e9 }, &["predicted", "4 runs", "point budget"]),

@@ -59,7 +59,7 @@ pub enum SkipCause {
 }
 
 /// A memory estimate in parts (bytes).
-#[derive(Debug, Clone, Copy, PartialEq, Serialize, Deserialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Default, Serialize, Deserialize)]
 pub struct MemoryNeed {
     pub table: f64,
     pub records: f64,
@@ -67,6 +67,14 @@ pub struct MemoryNeed {
     pub generator: f64,
     /// The largest design's working memory.
     pub working: f64,
+    /// Set when the working memory is that of an SQL join's rows, bounded from the table
+    /// plan before the design was measured: the rows.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub joined_rows: Option<f64>,
+    /// Set when the working memory is that of a streaming query's groups, bounded the same
+    /// way: the groups.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub groups: Option<f64>,
 }
 
 impl MemoryNeed {
@@ -134,7 +142,7 @@ mod tests {
         assert!(!crate::results::sane::plausible(&bad));
         let deep = point(SkipCause::FailedAt { at: 0, cause: Box::new(SkipCause::Step { message: "x".into() }) });
         assert!(!crate::results::sane::plausible(&deep), "a swept value of 0 is no size");
-        let need = MemoryNeed { table: 1.0, records: 0.0, generator: 0.0, working: 0.0 };
+        let need = MemoryNeed { table: 1.0, records: 0.0, generator: 0.0, working: 0.0, ..Default::default() };
         let odd = point(SkipCause::Memory { need, engine: "memory\u{1b}[2J".into(), limit_bytes: 1, limit_source: "x".into(), share: 0.8, hard: false });
         assert!(crate::results::sane::plausible(&odd));
         let crate::results::Record::Point(p) = crate::results::sane::tidy(odd) else { panic!("a point") };
@@ -145,7 +153,7 @@ mod tests {
     /// Every cause survives a round trip through the file format.
     #[test]
     fn causes_round_trip() {
-        let need = MemoryNeed { table: 1e9, records: 0.0, generator: 2e6, working: 3e9 };
+        let need = MemoryNeed { table: 1e9, records: 0.0, generator: 2e6, working: 3e9, ..Default::default() };
         let causes = vec![
             SkipCause::PointBudget { predicted_ns: 2.5e9, runs: 4.0, budget_ns: 5e9 },
             SkipCause::RunBudget { predicted_ns: 1e9, runs: 4.0, budget_ns: 6e10, used_ns: 5.9e10, kept_ns: 0.0 },
