@@ -69,8 +69,15 @@ pub fn bytes(b: f64) -> String {
         (b / (K * K), "MiB")
     } else if b < K * K * K * K {
         (b / (K * K * K), "GiB")
+    } else if b < K.powi(5) {
+        (b / K.powi(4), "TiB")
+    } else if b < K.powi(6) {
+        (b / K.powi(5), "PiB")
+    } else if b < K.powi(7) {
+        (b / K.powi(6), "EiB")
     } else {
-        (b / (K * K * K * K), "TiB")
+        // (An estimate of a join's rows can reach this; nothing holds it.)
+        return format!("{b:.1e} B");
     };
     if u == "B" {
         format!("{} B", b.round())
@@ -144,7 +151,12 @@ pub fn rows_label_f(n: f64) -> String {
     if !n.is_finite() || n <= 0.0 {
         return String::new();
     }
-    let (v, u) = if n >= 1e9 {
+    if n >= 1e15 {
+        return format!("{n:.1e}");
+    }
+    let (v, u) = if n >= 1e12 {
+        (n / 1e12, "T")
+    } else if n >= 1e9 {
         (n / 1e9, "G")
     } else if n >= 1e6 {
         (n / 1e6, "M")
@@ -193,6 +205,11 @@ mod tests {
         assert_eq!(bytes(512.0), "512 B");
         assert_eq!(bytes(3.0 * 1024.0), "3.00 KiB");
         assert_eq!(bytes(1.5 * 1024.0 * 1024.0 * 1024.0), "1.50 GiB");
+        assert_eq!(bytes(3.0 * 1024f64.powi(5)), "3.00 PiB");
+        assert_eq!(bytes(6.4e301), "6.4e301 B");
+        assert_eq!(rows_label_f(1.53e9), "1.53G");
+        assert_eq!(rows_label_f(2.5e12), "2.5T");
+        assert_eq!(rows_label_f(1.5e60), "1.5e60");
         assert_eq!(ratio(12.34), "×12.3");
         assert_eq!(time_tick(5e5), "500 µs");
         assert_eq!(time_tick(2e6), "2 ms");
