@@ -90,6 +90,23 @@ for old, new in [
 ]:
     if old in TINY:
         spec(f"{old} -> {new[:60]}", sub(old, new))
+# SQL the memory estimate reads before anything runs (joined rows, groups), on both engines.
+sql_design = "  - name: hostile-sql\n    engine: {}\n    steps:\n      - sql:\n          query: |\n            {}\n"
+for q in [
+    "SELECT COUNT(*) AS n FROM " + ", ".join(f"data AS t{i}" for i in range(60)),
+    "SELECT COUNT(*) AS n FROM data AS a JOIN data AS b ON a.variety = b.variety JOIN data AS c ON b.variety = c.variety",
+    "SELECT COUNT(*) AS n FROM data AS a NATURAL JOIN data AS b",
+    "SELECT COUNT(*) AS n FROM data AS a JOIN data AS b USING (no_such_column)",
+    "SELECT COUNT(*) AS n FROM data AS a JOIN data AS b ON a.kilograms < b.kilograms",
+    "SELECT variety, COUNT(*) AS n FROM data GROUP BY 999",
+    "SELECT variety, COUNT(*) AS n FROM data GROUP BY 0",
+    "SELECT variety AS variety, COUNT(*) AS n FROM data GROUP BY variety",
+    "SELECT DISTINCT * FROM data",
+    "SELECT * FROM " + "(SELECT * FROM " * 60 + "data" + ") AS x" * 60,
+    "SELECT line % 0 AS g, COUNT(*) AS n FROM data GROUP BY line % 0",
+]:
+    for engine in ["memory", "streaming"]:
+        spec(f"sql on {engine}: {q[:60]}", TINY + sql_design.format(engine, q))
 spec("200 KB of [", "name: x\nsizes: " + "[" * 200_000 + "\n")
 spec("200 KB of {a:", "name: x\nsizes: " + "{a: " * 50_000 + "\n")
 spec("10k compact - ", "- " * 10_000 + "x\n")
