@@ -207,6 +207,17 @@ impl CrossoverOut {
 }
 
 impl GrowthOut {
+    /// The class that came closest, in words: "next best n², ΔAICc 4.6", or — when the
+    /// parsimony rule kept the slower-growing class over a better AICc (a negative ΔAICc,
+    /// which printed bare reads as an error) — "n² fits 1.0 AICc units better, inside the
+    /// parsimony margin, so the slower-growing class is kept". Empty without a runner-up.
+    pub fn contender(&self) -> String {
+        match &self.runner_up {
+            None => String::new(),
+            Some(r) if self.delta_aicc < 0.0 => format!("{r} fits {:.1} AICc units better, inside the parsimony margin, so the slower-growing class is kept", -self.delta_aicc),
+            Some(r) => format!("next best {r}, ΔAICc {:.1}", self.delta_aicc),
+        }
+    }
     /// "n", "n or n log n", "n to n²", or "unclear (slope 0.42)".
     pub fn label(&self) -> String {
         if self.class == "unclear" {

@@ -62,13 +62,8 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
         println!("▌ {}", w.header.workload);
         for d in &wa.designs {
             let t = d.time.as_ref().map(|t| {
-                format!(
-                    "time {} (runner-up {}, ΔAICc {:.1}, weight {:.2})",
-                    t.label(),
-                    t.runner_up.clone().unwrap_or_else(|| "none".into()),
-                    t.delta_aicc,
-                    t.evidence_weight
-                )
+                let c = t.contender();
+                format!("time {} ({}, weight {:.2})", t.label(), if c.is_empty() { "no other class fits".into() } else { c }, t.evidence_weight)
             });
             let b = d.bytes.as_ref().map(|b| format!("bytes {}", b.label())).or(d.bytes_exponent.map(|e| format!("bytes exp {e:.2}")));
             let p = d.peak.as_ref().map(|b| format!("peak {}", b.label())).or(d.peak_exponent.map(|e| format!("peak exp {e:.2}")));

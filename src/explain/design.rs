@@ -79,11 +79,7 @@ fn growth(d: &Design, findings: &mut Vec<Finding>) {
             .as_ref()
             .map(|e| format!(", log-log slope {:.2} [{:.2}–{:.2}] over the top {} sizes", e.slope, e.low, e.high, e.sizes_used))
             .unwrap_or_default();
-        let runner = t
-            .runner_up
-            .as_ref()
-            .map(|r| format!("; runner-up {r}, ΔAICc {:.1}", t.delta_aicc))
-            .unwrap_or_default();
+        let runner = Some(t.contender()).filter(|c| !c.is_empty()).map(|c| format!("; {c}")).unwrap_or_default();
         findings.push(f(
             "growth",
             format!("time grows as {} over {} sizes{runner}{exp}", t.label(), t.sizes),
