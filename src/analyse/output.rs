@@ -300,3 +300,19 @@ pub fn pair_of(class: &str, alternative: Option<&str>) -> String {
         (None, _) => class.to_string(),
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::GrowthOut;
+
+    #[test]
+    fn the_closest_class_is_worded_by_the_sign_of_its_difference() {
+        let mut g = GrowthOut::unclear(1.0, 5);
+        assert_eq!(g.contender(), "");
+        g.runner_up = Some("n²".into());
+        g.delta_aicc = 4.6;
+        assert_eq!(g.contender(), "next best n², ΔAICc 4.6");
+        g.delta_aicc = -1.0;
+        assert_eq!(g.contender(), "n² fits 1.0 AICc units better, inside the parsimony margin, so the slower-growing class is kept");
+    }
+}
