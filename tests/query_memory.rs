@@ -102,3 +102,25 @@ fn joined_rows_follow_the_generated_keys() {
     let bound = n as f64 * n as f64 * match_share(&v, &v);
     assert!((bound / made - 1.0).abs() < 0.05, "bound {bound:.4e} rows, the table makes {made:.4e}");
 }
+
+#[test]
+fn a_streaming_join_is_allowed_what_it_builds() {
+    // Deliveries joined to growers on the streaming engine, the growers a quarter, a
+    // sixteenth, or a fixed 1000 of them: every design at every recorded size was estimated,
+    // before anything was measured, at least at its measured peak, and at most ×6 above it.
+    let mut checked = 0;
+    for run in ["quarter-1M-8M", "quarter-16M-32M", "sixteenth", "fixed-1000"] {
+        let dir = Path::new("tests/data/memory-runs/stream-join").join(run);
+        let plan = framecost::spec::load(&dir.join("workload.yaml")).expect("spec");
+        let r = RunResults::read(&dir).expect("recorded run");
+        let w = &r.workloads[0];
+        for p in w.points.iter().filter(|p| p.measured.is_some()) {
+            let i = plan.designs.iter().position(|d| d.name == p.design).expect("design");
+            let peak = p.measured.as_ref().expect("measured").alloc.peak_live as f64;
+            let before = estimate_design(&plan, i, p.rows, &[]).working;
+            assert!(before >= peak && before <= 6.0 * peak, "{run}: {} at {} rows: estimated {before:.3e} B, measured {peak:.3e} B", p.design, p.rows);
+            checked += 1;
+        }
+    }
+    assert_eq!(checked, 20);
+}

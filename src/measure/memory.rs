@@ -16,7 +16,14 @@
 //!
 //! An SQL join whose keys repeat makes more rows than its tables (a self-join on 14
 //! varieties makes about n²/11): before it is measured, a design is allowed at least the
-//! joined rows bounded from the table plan times their row bytes, on either engine.
+//! joined rows bounded from the table plan times their row bytes, on either engine. On the
+//! streaming engine a join also holds what its hash table is built from, whatever the
+//! chunks: the hashing factor times the smaller input of each join is added to the chunks.
+//! Measured here (polars 0.55, 2 threads), deliveries joined to growers and summed: growers a
+//! quarter of the deliveries, 261, 503 and 762 MiB at 8M, 16M and 32M deliveries (about
+//! 84–100 bytes per grower row above a floor of about 90 MiB); a sixteenth, 84 and 292 MiB at
+//! 4M and 16M; 1000 or 50 000 growers, 72–107 MiB (bounded), as the catalog's 14 prices
+//! (77 MiB at 8M and at 32M deliveries).
 
 use crate::measure::stats::loglog_slope;
 use crate::plan::Plan;
@@ -112,7 +119,9 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
                 Some(_) => table / rows.max(1) as f64 * super::inputs::CHUNK_ROWS as f64,
             };
             let chunks = (2.0 * chunk).min(table);
-            let base = d.memory_factor() * chunks;
+            let join = joined(plan, d, x, true);
+            // A hash join holds what it builds, whatever the chunks.
+            let base = d.memory_factor() * chunks + join.map_or(0.0, |j| crate::patterns::sql::HASHING_MEMORY_FACTOR * j.build_bytes);
             let (mut working, mut joined_rows, mut groups) = (base, None, None);
             match extrapolate(peaks, x) {
                 Some(m) => working = m,
@@ -120,7 +129,7 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
                     if let Some((g, bytes)) = group_state(plan, d, x).filter(|s| s.1 > working) {
                         (working, groups) = (bytes, Some(g));
                     }
-                    if let Some(j) = joined(plan, d, x, true).filter(|j| j.bytes > working) {
+                    if let Some(j) = join.filter(|j| j.bytes > working) {
                         (working, joined_rows, groups) = (j.bytes, Some(j.rows), None);
                     }
                 }

@@ -9,8 +9,8 @@ use std::ops::ControlFlow;
 /// its estimated rows times the joined tables' row bytes (all their columns: an upper bound,
 /// as polars carries only those the query uses). With `ungrouped_only`, only joins whose
 /// SELECT neither groups nor removes duplicates count (on the streaming engine the joined
-/// rows of a grouping SELECT flow into its groups instead of being held). None when no join
-/// is counted.
+/// rows of a grouping SELECT flow into its groups instead of being held). None when the
+/// query joins no two workload tables.
 pub fn joined_bytes(query: &str, tables: &[TablePlan], rows: u64, ungrouped_only: bool) -> Option<Joins> {
     let statements = sqlparser::parser::Parser::parse_sql(&sqlparser::dialect::GenericDialect {}, query).ok()?;
     let mut v = JoinVisit { tables, rows, ungrouped_only, most: None };
@@ -20,11 +20,15 @@ pub fn joined_bytes(query: &str, tables: &[TablePlan], rows: u64, ungrouped_only
     v.most
 }
 
-/// The largest join of a query: its rows and bytes.
+/// The largest join of a query: its rows and bytes, and what the streaming engine builds.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Joins {
+    /// Rows and bytes of the largest counted join (0 when only uncounted ones join).
     pub rows: f64,
     pub bytes: f64,
+    /// The bytes of the smaller input of each join, summed over the SELECT's joins (the
+    /// largest SELECT's; every SELECT counts, grouping or not): the side a hash join builds.
+    pub build_bytes: f64,
 }
 
 struct JoinVisit<'a> {
@@ -38,12 +42,15 @@ impl Visitor for JoinVisit<'_> {
     type Break = ();
     fn pre_visit_select(&mut self, sel: &Select) -> ControlFlow<()> {
         let grouped = crate::spec::sql_rules::is_grouped(sel) || sel.distinct.is_some();
-        if !(self.ungrouped_only && grouped) {
-            if let Some(j) = select_joins(sel, self.tables, self.rows) {
-                if self.most.is_none_or(|m| j.bytes > m.bytes) {
-                    self.most = Some(j);
-                }
+        if let Some(mut j) = select_joins(sel, self.tables, self.rows) {
+            if self.ungrouped_only && grouped {
+                (j.rows, j.bytes) = (0.0, 0.0);
             }
+            let m = self.most.get_or_insert(Joins { rows: 0.0, bytes: 0.0, build_bytes: 0.0 });
+            if j.bytes > m.bytes {
+                (m.rows, m.bytes) = (j.rows, j.bytes);
+            }
+            m.build_bytes = m.build_bytes.max(j.build_bytes);
         }
         ControlFlow::Continue(())
     }
@@ -61,7 +68,8 @@ fn select_joins(sel: &Select, tables: &[TablePlan], rows: u64) -> Option<Joins> 
     let mut inputs: Vec<Joined> = Vec::new();
     let mut out_rows = 0.0_f64;
     let mut row_bytes = 0.0_f64;
-    let mut joins = 0;
+    let (mut joins, mut left_bytes, mut build_bytes) = (0, 0.0_f64, 0.0_f64);
+    let bytes_of = |t: &TablePlan| t.bytes(rows);
     let wheres = sel.selection.as_ref().map(conjuncts).unwrap_or_default();
     for (i, twj) in sel.from.iter().enumerate() {
         let first = resolve(&twj.relation, tables)?;
@@ -72,7 +80,9 @@ fn select_joins(sel: &Select, tables: &[TablePlan], rows: u64) -> Option<Joins> 
             // A comma: a cross product unless WHERE equates it with what came before.
             joins += 1;
             out_rows = joined_rows(out_rows, n, &wheres, &inputs, &first, tables, rows, true);
+            build_bytes += left_bytes.min(bytes_of(first.table));
         }
+        left_bytes += bytes_of(first.table);
         row_bytes += first.table.columns.iter().map(ColumnPlan::bytes_per_row).sum::<f64>();
         inputs.push(first);
         for j in &twj.joins {
@@ -103,12 +113,14 @@ fn select_joins(sel: &Select, tables: &[TablePlan], rows: u64) -> Option<Joins> 
                 }
             };
             row_bytes += next.table.columns.iter().map(ColumnPlan::bytes_per_row).sum::<f64>();
+            build_bytes += left_bytes.min(bytes_of(next.table));
+            left_bytes += bytes_of(next.table);
             inputs.push(next);
         }
     }
     // (A cross join of many tables passes any float; nothing holds 1e300 rows either.)
     let out_rows = out_rows.min(1e300);
-    (joins > 0).then_some(Joins { rows: out_rows, bytes: out_rows * row_bytes })
+    (joins > 0).then_some(Joins { rows: out_rows, bytes: out_rows * row_bytes, build_bytes })
 }
 
 /// The join's constraint, for the operators that have one.
