@@ -83,6 +83,22 @@ fn a_self_join_on_few_varieties_is_allowed_the_rows_it_makes() {
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     assert!(text.contains("would refuse") && text.contains("an SQL join makes about 1.53G rows, by how its keys repeat"), "{text}");
+    // A sweep refuses it before building anything, measures the window design, and its
+    // summary says why a table of a few MiB would not fit.
+    let dir = tempfile::tempdir().expect("tempdir");
+    let run = dir.path().join("run");
+    let out = assert_cmd::Command::cargo_bin("framecost")
+        .expect("binary")
+        .args(["sweep", "workloads/sql-self-join.yaml", "--sizes", "128k", "--quiet", "--out"])
+        .arg(&run)
+        .output()
+        .expect("runs");
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("run");
+    assert!(r.workloads[0].point("window", 128_000).and_then(|p| p.measured.as_ref()).is_some());
+    let recap = assert_cmd::Command::cargo_bin("framecost").expect("binary").arg("recap").arg(&run).output().expect("runs");
+    let text = String::from_utf8_lossy(&recap.stdout).split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(text.contains("would not fit in memory: an SQL join makes about 1.53G rows"), "{text}");
 }
 
 #[test]

@@ -17,11 +17,7 @@ pub fn skip_words(s: &SkipInfo, axis: Axis<'_>) -> String {
 /// A memory estimate in parts: `about 3 GiB (table …, records …, generator …, largest
 /// design's working memory …)`.
 pub fn memory_need(n: &MemoryNeed) -> String {
-    let why = match (n.joined_rows, n.groups) {
-        (Some(r), _) => format!(": an SQL join makes about {} rows, by how its keys repeat in the table plan", crate::units::rows_label_f(r)),
-        (None, Some(g)) => format!(": an SQL query keeps up to {} groups by the table plan", crate::units::rows_label_f(g)),
-        _ => String::new(),
-    };
+    let why = memory_reason(n).map(|r| format!(": {r}")).unwrap_or_default();
     format!(
         "about {} (table {}, records {}, generator {}, largest design's working memory {}{why})",
         bytes(n.total()),
@@ -30,6 +26,16 @@ pub fn memory_need(n: &MemoryNeed) -> String {
         bytes(n.generator),
         bytes(n.working)
     )
+}
+
+/// What set the working memory, when an SQL query's bound from the table plan did: "an SQL
+/// join makes about 1.53G rows, by how its keys repeat in the table plan".
+pub fn memory_reason(n: &MemoryNeed) -> Option<String> {
+    match (n.joined_rows, n.groups) {
+        (Some(r), _) => Some(format!("an SQL join makes about {} rows, by how its keys repeat in the table plan", crate::units::rows_label_f(r))),
+        (None, Some(g)) => Some(format!("an SQL query keeps up to {} groups by the table plan", crate::units::rows_label_f(g))),
+        _ => None,
+    }
 }
 
 /// What a size writes to the temp folder.

@@ -75,6 +75,13 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
                     Some(crate::results::SkipCause::TrialOverBudget { limit_ns, .. }) => {
                         format!("a trial run there was stopped unfinished after {}, the point budget", crate::units::time_ns(*limit_ns))
                     }
+                    // Why a small table would not fit: what the query makes of it.
+                    Some(crate::results::SkipCause::Memory { need, .. }) if crate::present::causes::memory_reason(need).is_some() => format!(
+                        "{}: {}, about {} of working memory",
+                        s.reason.label(),
+                        crate::present::causes::memory_reason(need).unwrap_or_default(),
+                        crate::units::bytes(need.working)
+                    ),
                     _ => s.reason.label().to_string(),
                 },
                 None => String::new(),
