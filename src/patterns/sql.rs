@@ -53,7 +53,7 @@ tables, sorted runs) rather than the tables themselves. The optimized plan is re
 /// five values 0.2×, a window over five partitions 0.6×, ORDER BY 1.3×. So 10 for a query
 /// with DISTINCT or GROUP BY, whatever its groups (they are unknown before it runs).
 pub fn memory_factor(query: &str) -> f64 {
-    use sqlparser::ast::{SetExpr, Visit, Visitor};
+    use sqlparser::ast::{SetExpr, Visitor};
     use std::ops::ControlFlow;
     struct Hashes(bool);
     impl Visitor for Hashes {
@@ -78,12 +78,9 @@ pub fn memory_factor(query: &str) -> f64 {
         }
     }
     let base = STEPS[0].memory_factor;
-    let Ok(statements) = sqlparser::parser::Parser::parse_sql(&sqlparser::dialect::GenericDialect {}, query) else {
-        return base;
-    };
     let mut v = Hashes(false);
-    for s in &statements {
-        let _ = s.visit(&mut v);
+    if crate::spec::sql_rules::visit_statements(query, &mut v).is_none() {
+        return base;
     }
     if v.0 {
         HASHING_MEMORY_FACTOR

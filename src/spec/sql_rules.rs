@@ -24,12 +24,19 @@ pub struct RuleBreak {
 /// The first rule the query breaks, if any (a query that does not parse breaks none here:
 /// polars reports it).
 pub fn check(query: &str) -> Option<RuleBreak> {
-    let statements = Parser::parse_sql(&GenericDialect {}, query).ok()?;
     let mut v = Finder { found: None };
-    for s in &statements {
-        let _ = s.visit(&mut v);
-    }
+    visit_statements(query, &mut v)?;
     v.found
+}
+
+/// Parse `query` as polars' SQL parser does (the generic dialect) and walk every statement
+/// with `v`; None when it does not parse.
+pub fn visit_statements<V: Visitor>(query: &str, v: &mut V) -> Option<()> {
+    let statements = Parser::parse_sql(&GenericDialect {}, query).ok()?;
+    for s in &statements {
+        let _ = s.visit(v);
+    }
+    Some(())
 }
 
 struct Finder {

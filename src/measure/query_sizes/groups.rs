@@ -4,7 +4,7 @@ use super::joins::resolve;
 use crate::plan::{ColumnPlan, TablePlan};
 use crate::results::schema::RangePlan;
 use crate::spec::model::ColumnKind;
-use sqlparser::ast::{BinaryOperator, Expr, GroupByExpr, Query, Select, SelectItem, SetExpr, Value, Visit, Visitor};
+use sqlparser::ast::{BinaryOperator, Expr, GroupByExpr, Query, Select, SelectItem, SetExpr, Value, Visitor};
 use std::collections::HashMap;
 use std::ops::ControlFlow;
 
@@ -12,12 +12,9 @@ use std::ops::ControlFlow;
 /// point) at `rows` rows of the swept size; None when the query does not hash its rows (or
 /// does not parse: polars reports that).
 pub fn groups_bound(query: &str, tables: &[TablePlan], rows: u64) -> Option<f64> {
-    let statements = sqlparser::parser::Parser::parse_sql(&sqlparser::dialect::GenericDialect {}, query).ok()?;
     let ceiling = tables.iter().map(|t| t.rows.at(rows)).max().unwrap_or(rows).max(1) as f64;
     let mut v = Groups { tables, rows, ceiling, most: None };
-    for s in &statements {
-        let _ = s.visit(&mut v);
-    }
+    crate::spec::sql_rules::visit_statements(query, &mut v)?;
     v.most.map(|g| g.clamp(1.0, ceiling))
 }
 

@@ -2,7 +2,7 @@
 
 use super::spread::{match_share, values};
 use crate::plan::{ColumnPlan, TablePlan};
-use sqlparser::ast::{BinaryOperator, Expr, JoinConstraint, JoinOperator, Select, TableFactor, Visit, Visitor};
+use sqlparser::ast::{BinaryOperator, Expr, JoinConstraint, JoinOperator, Select, TableFactor, Visitor};
 use std::ops::ControlFlow;
 
 /// The most bytes any join of `query` makes over `tables` at `rows` rows of the swept size:
@@ -12,11 +12,8 @@ use std::ops::ControlFlow;
 /// rows of a grouping SELECT flow into its groups instead of being held). None when the
 /// query joins no two workload tables.
 pub fn joined_bytes(query: &str, tables: &[TablePlan], rows: u64, ungrouped_only: bool) -> Option<Joins> {
-    let statements = sqlparser::parser::Parser::parse_sql(&sqlparser::dialect::GenericDialect {}, query).ok()?;
     let mut v = JoinVisit { tables, rows, ungrouped_only, most: None };
-    for s in &statements {
-        let _ = s.visit(&mut v);
-    }
+    crate::spec::sql_rules::visit_statements(query, &mut v)?;
     v.most
 }
 
