@@ -141,9 +141,9 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
 
 /// The groups a streaming design's grouping keeps at swept value `x` before it is measured,
 /// and their bytes: the hashing factor times the tables, in the share of the largest table's
-/// rows its groups can reach (None when no query groups). Measured here: a unique-key GROUP BY on the streaming
-/// engine kept 4.3× the table (see [`super::query_sizes`]); the factor of 10 is the in-memory
-/// engine's for hashing, so the bound errs on the side of refusing.
+/// rows its groups can reach (None when no query groups). Measured here: a unique-key GROUP
+/// BY on the streaming engine kept 4.3× the table (see [`super::query_sizes`]); the factor of
+/// 10 is the in-memory engine's for hashing, so the bound errs on the side of refusing.
 fn group_state(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> Option<(f64, f64)> {
     let tables = plan.tables_at(x);
     let rows = plan.rows_at(x);
@@ -153,8 +153,8 @@ fn group_state(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> Option<(f64,
 }
 
 /// Bytes the largest join of a design's queries makes at swept value `x` before it is
-/// measured (None without joins): its rows bounded from the table plan times the joined tables'
-/// row bytes ([`super::query_sizes::joined_bytes`]). A self-join on 14 varieties peaked at
+/// measured (None without joins): its rows bounded from the table plan times the joined
+/// tables' row bytes ([`super::query_sizes::joined_bytes`]). A self-join on 14 varieties peaked at
 /// 40–41 bytes a joined row, the bound counts 64. `streaming`: only the joins of SELECTs that
 /// do not group (the engine feeds the others into their groups).
 fn joined(plan: &Plan, d: &crate::plan::DesignPlan, x: u64, streaming: bool) -> Option<super::query_sizes::Joins> {

@@ -53,7 +53,7 @@ impl Visitor for JoinVisit<'_> {
     }
 }
 
-/// One joined input of a SELECT: the name it is known by, its table, its rows.
+/// One joined input of a SELECT: the name it is known by and its table.
 pub(super) struct Joined<'a> {
     pub(super) names: Vec<String>,
     pub(super) table: &'a TablePlan,
@@ -145,10 +145,7 @@ pub(super) fn resolve<'a>(factor: &TableFactor, tables: &'a [TablePlan]) -> Opti
         .iter()
         .find(|t| t.name.eq_ignore_ascii_case(&written))
         .or_else(|| written.eq_ignore_ascii_case(crate::spec::tables::DEFAULT_TABLE).then(|| tables.first()).flatten())?;
-    let mut names = vec![written.to_lowercase()];
-    if let Some(a) = alias {
-        names = vec![a.name.value.to_lowercase()];
-    }
+    let names = vec![alias.as_ref().map_or(written.to_lowercase(), |a| a.name.value.to_lowercase())];
     Some(Joined { names, table })
 }
 
