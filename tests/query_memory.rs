@@ -83,6 +83,10 @@ fn a_self_join_on_few_varieties_is_allowed_the_rows_it_makes() {
     let text = String::from_utf8_lossy(&out.stdout);
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     assert!(text.contains("would refuse") && text.contains("an SQL join makes about 1.53G rows, by how its keys repeat"), "{text}");
+    // At the workload's own sizes, --plan names the first size refused: 64k rows (22.9 GiB).
+    let out = assert_cmd::Command::cargo_bin("framecost").expect("binary").args(["sweep", "workloads/sql-self-join.yaml", "--plan"]).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("would refuse: sql-self-join design `self-join` from 64k rows: needs about 22.9 GiB"), "{text}");
     // A sweep refuses it before building anything, measures the window design, and its
     // summary says why a table of a few MiB would not fit.
     let dir = tempfile::tempdir().expect("tempdir");

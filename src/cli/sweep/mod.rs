@@ -189,10 +189,22 @@ fn memory_plan(plans: &[Plan], a: &Args) -> bool {
                 refused.push(format!("{} at {} rows writes {}; {} free on disk", p.name, rows_label(largest), crate::present::causes::disk_need(est.disk), crate::units::bytes(free as f64)));
             }
         }
-        let refusals = crate::measure::inputs::refusals(p, largest, &[], &limit, share, false);
-        for (d, why) in p.designs.iter().zip(&refusals) {
-            if let Some(why) = why.as_ref().filter(|w| w.reason == crate::results::SkipReason::Memory) {
-                refused.push(format!("{} design `{}` at {} rows: {}", p.name, d.name, rows_label(largest), crate::present::causes::skip_words(why, crate::results::Axis(p.axis.as_ref()))));
+        // Each design from the first size its memory estimate is refused at (with nothing
+        // measured yet): what a user choosing sizes needs, said at that size.
+        let mut first: Vec<Option<(u64, crate::results::SkipInfo)>> = vec![None; p.designs.len()];
+        for &n in &p.sizes {
+            let refusals = crate::measure::inputs::refusals(p, n, &[], &limit, share, false);
+            for (slot, why) in first.iter_mut().zip(refusals) {
+                if let Some(why) = why.filter(|w| w.reason == crate::results::SkipReason::Memory) {
+                    slot.get_or_insert((n, why));
+                }
+            }
+        }
+        let ax = crate::results::Axis(p.axis.as_ref());
+        for (d, slot) in p.designs.iter().zip(first) {
+            if let Some((n, why)) = slot {
+                let from = if n == largest { format!("at {} {}", ax.value(n), ax.name()) } else { format!("from {} {}", ax.value(n), ax.name()) };
+                refused.push(format!("{} design `{}` {from}: {}", p.name, d.name, crate::present::causes::skip_words(&why, ax)));
             }
         }
     }
