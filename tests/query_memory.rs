@@ -144,3 +144,35 @@ fn a_streaming_join_is_allowed_what_it_builds() {
     }
     assert_eq!(checked, 20);
 }
+
+#[test]
+fn an_in_memory_group_by_is_allowed_by_its_groups_and_never_below_its_peak() {
+    // GROUP BY and DISTINCT on the in-memory engine at 100 to 4M groups: the estimate before
+    // measuring follows the groups' share of the rows (10× the table for a unique key, the
+    // plain query's 3× for a few groups), and is never below the recorded peak.
+    let dir = Path::new("tests/data/memory-runs/mem-groups");
+    let plan = framecost::spec::load(&dir.join("workload.yaml")).expect("spec");
+    let r = RunResults::read(dir).expect("recorded run");
+    let w = &r.workloads[0];
+    let mut checked = 0;
+    for p in w.points.iter().filter(|p| p.measured.is_some()) {
+        let i = plan.designs.iter().position(|d| d.name == p.design).expect("design");
+        let peak = p.measured.as_ref().expect("measured").alloc.peak_live as f64;
+        let e = estimate_design(&plan, i, p.rows, &[]);
+        assert!(e.working >= peak, "{} at {} rows: estimated {:.3e} B, measured {peak:.3e} B", p.design, p.rows, e.working);
+        let factor = e.working / plan.table_bytes(p.rows);
+        // Every row its own group: the hashing factor; 100 groups: the plain query's.
+        let want = match p.design.as_str() {
+            "group-unique" | "distinct-unique" => Some(10.0),
+            "group-100" => Some(3.0),
+            _ => None,
+        };
+        assert!(want.map_or(factor <= 10.0, |f| (factor - f).abs() < 1e-9), "{} at {} rows: ×{factor}", p.design, p.rows);
+        checked += 1;
+    }
+    assert_eq!(checked, 12);
+    // 100 groups of 400M rows: the plain query's factor, not the hashing one.
+    let few = plan.designs.iter().position(|d| d.name == "group-100").expect("design");
+    let e = estimate_design(&plan, few, 400_000_000, &[]);
+    assert!((e.working / plan.table_bytes(400_000_000) - 3.0).abs() < 1e-9, "{e:?}");
+}

@@ -51,7 +51,8 @@ tables, sorted runs) rather than the tables themselves. The optimized plan is re
 /// 0.55, 2 threads; peak live bytes over table bytes): DISTINCT over two columns 8.5×,
 /// GROUP BY a unique key 4.3× (6.6× and 6.8× on 2M and 8M rows of two columns), GROUP BY
 /// five values 0.2×, a window over five partitions 0.6×, ORDER BY 1.3×. So 10 for a query
-/// with DISTINCT or GROUP BY, whatever its groups (they are unknown before it runs).
+/// with DISTINCT or GROUP BY, whatever its groups; the memory estimate scales it by the share
+/// of the rows its groups can reach, from the table plan (`measure::memory`, at least 3).
 pub fn memory_factor(query: &str) -> f64 {
     use sqlparser::ast::{SetExpr, Visitor};
     use std::ops::ControlFlow;
