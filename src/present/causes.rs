@@ -29,11 +29,11 @@ pub fn memory_need(n: &MemoryNeed) -> String {
 }
 
 /// What set the working memory, when an SQL query's bound from the table plan did: "an SQL
-/// join makes about 1.53G rows, by how its keys repeat in the table plan".
+/// join makes about 1.53G rows, bounded from the table plan".
 pub fn memory_reason(n: &MemoryNeed) -> Option<String> {
     match (n.joined_rows, n.groups) {
-        (Some(r), _) => Some(format!("an SQL join makes about {} rows, by how its keys repeat in the table plan", crate::units::rows_label_f(r))),
-        (None, Some(g)) => Some(format!("an SQL query keeps up to {} groups by the table plan", crate::units::rows_label_f(g))),
+        (Some(r), _) => Some(format!("an SQL join makes about {} rows, bounded from the table plan", crate::units::rows_label_f(r))),
+        (None, Some(g)) => Some(format!("an SQL query keeps up to {} groups, bounded from the table plan", crate::units::rows_label_f(g))),
         _ => None,
     }
 }
