@@ -14,6 +14,22 @@ use std::path::Path;
 
 const RUN: &str = "tests/data/memory-runs/stream-groups";
 
+/// Every measured point of the recorded run in `dir` (its `workload.yaml` and `points.jsonl`):
+/// (design, rows, peak live bytes, the estimate made with nothing measured, table bytes).
+fn estimated_against_peaks(dir: &Path) -> Vec<(String, u64, f64, framecost::measure::memory::Estimate, f64)> {
+    let plan = framecost::spec::load(&dir.join("workload.yaml")).expect("spec");
+    let r = RunResults::read(dir).expect("recorded run");
+    r.workloads[0]
+        .points
+        .iter()
+        .filter_map(|p| {
+            let peak = p.measured.as_ref()?.alloc.peak_live as f64;
+            let i = plan.designs.iter().position(|d| d.name == p.design).expect("design");
+            Some((p.design.clone(), p.rows, peak, estimate_design(&plan, i, p.rows, &[]), plan.table_bytes(p.rows)))
+        })
+        .collect()
+}
+
 #[test]
 fn a_streaming_group_by_is_allowed_what_its_groups_were_measured_to_keep() {
     let plan = framecost::spec::load(&Path::new(RUN).join("workload.yaml")).expect("spec");
@@ -130,15 +146,8 @@ fn a_streaming_join_is_allowed_what_it_builds() {
     // before anything was measured, at least at its measured peak, and at most ×6 above it.
     let mut checked = 0;
     for run in ["quarter-1M-8M", "quarter-16M-32M", "sixteenth", "fixed-1000"] {
-        let dir = Path::new("tests/data/memory-runs/stream-join").join(run);
-        let plan = framecost::spec::load(&dir.join("workload.yaml")).expect("spec");
-        let r = RunResults::read(&dir).expect("recorded run");
-        let w = &r.workloads[0];
-        for p in w.points.iter().filter(|p| p.measured.is_some()) {
-            let i = plan.designs.iter().position(|d| d.name == p.design).expect("design");
-            let peak = p.measured.as_ref().expect("measured").alloc.peak_live as f64;
-            let before = estimate_design(&plan, i, p.rows, &[]).working;
-            assert!(before >= peak && before <= 6.0 * peak, "{run}: {} at {} rows: estimated {before:.3e} B, measured {peak:.3e} B", p.design, p.rows);
+        for (design, rows, peak, e, _) in estimated_against_peaks(&Path::new("tests/data/memory-runs/stream-join").join(run)) {
+            assert!(e.working >= peak && e.working <= 6.0 * peak, "{run}: {design} at {rows} rows: estimated {:.3e} B, measured {peak:.3e} B", e.working);
             checked += 1;
         }
     }
@@ -152,22 +161,17 @@ fn an_in_memory_group_by_is_allowed_by_its_groups_and_never_below_its_peak() {
     // plain query's 3× for a few groups), and is never below the recorded peak.
     let dir = Path::new("tests/data/memory-runs/mem-groups");
     let plan = framecost::spec::load(&dir.join("workload.yaml")).expect("spec");
-    let r = RunResults::read(dir).expect("recorded run");
-    let w = &r.workloads[0];
     let mut checked = 0;
-    for p in w.points.iter().filter(|p| p.measured.is_some()) {
-        let i = plan.designs.iter().position(|d| d.name == p.design).expect("design");
-        let peak = p.measured.as_ref().expect("measured").alloc.peak_live as f64;
-        let e = estimate_design(&plan, i, p.rows, &[]);
-        assert!(e.working >= peak, "{} at {} rows: estimated {:.3e} B, measured {peak:.3e} B", p.design, p.rows, e.working);
-        let factor = e.working / plan.table_bytes(p.rows);
+    for (design, rows, peak, e, table) in estimated_against_peaks(dir) {
+        assert!(e.working >= peak, "{design} at {rows} rows: estimated {:.3e} B, measured {peak:.3e} B", e.working);
+        let factor = e.working / table;
         // Every row its own group: the hashing factor; 100 groups: the plain query's.
-        let want = match p.design.as_str() {
+        let want = match design.as_str() {
             "group-unique" | "distinct-unique" => Some(10.0),
             "group-100" => Some(3.0),
             _ => None,
         };
-        assert!(want.map_or(factor <= 10.0, |f| (factor - f).abs() < 1e-9), "{} at {} rows: ×{factor}", p.design, p.rows);
+        assert!(want.map_or(factor <= 10.0, |f| (factor - f).abs() < 1e-9), "{design} at {rows} rows: ×{factor}");
         checked += 1;
     }
     assert_eq!(checked, 12);
@@ -182,17 +186,10 @@ fn a_join_without_an_equality_is_allowed_every_pair() {
     // `ON a.grams < b.grams` and the same as CROSS JOIN … WHERE: polars pairs every row with
     // every row (976 MiB at 8k rows, 16 bytes a pair). The estimate before measuring counts
     // every pair times both tables' row bytes: never below the peak, at most ×5 above it.
-    let dir = Path::new("tests/data/memory-runs/range-join");
-    let plan = framecost::spec::load(&dir.join("workload.yaml")).expect("spec");
-    let r = RunResults::read(dir).expect("recorded run");
-    let w = &r.workloads[0];
     let mut checked = 0;
-    for p in w.points.iter().filter(|p| p.measured.is_some()) {
-        let i = plan.designs.iter().position(|d| d.name == p.design).expect("design");
-        let peak = p.measured.as_ref().expect("measured").alloc.peak_live as f64;
-        let e = estimate_design(&plan, i, p.rows, &[]);
-        assert!(e.working >= peak && e.working <= 5.0 * peak, "{} at {} rows: estimated {:.3e} B, measured {peak:.3e} B", p.design, p.rows, e.working);
-        assert_eq!(e.joined_rows, Some(p.rows as f64 * p.rows as f64), "{e:?}");
+    for (design, rows, peak, e, _) in estimated_against_peaks(Path::new("tests/data/memory-runs/range-join")) {
+        assert!(e.working >= peak && e.working <= 5.0 * peak, "{design} at {rows} rows: estimated {:.3e} B, measured {peak:.3e} B", e.working);
+        assert_eq!(e.joined_rows, Some(rows as f64 * rows as f64), "{e:?}");
         checked += 1;
     }
     assert_eq!(checked, 8);

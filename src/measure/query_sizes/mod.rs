@@ -29,9 +29,9 @@
 //! expressions it cannot read is counted as the larger of its inputs (a key join), and a cross
 //! join or a join with no equality at all as their product: polars pairs every row with every
 //! row and filters the pairs (`ON a.grams < b.grams` on 8k rows peaked at 976 MiB, 16 bytes
-//! a pair, as the same query written as a CROSS JOIN and WHERE). Measured here on sql-self-join (14 varieties, Zipf 0.6): peak live bytes of 40–41
-//! bytes per joined row from 500 to 8k rows, against the bound's rows times the two tables'
-//! row bytes (64).
+//! a pair, as the same query written as a CROSS JOIN and WHERE). Measured here on
+//! sql-self-join (14 varieties, Zipf 0.6): peak live bytes of 40–41 bytes per joined row
+//! from 500 to 8k rows, against the bound's rows times the two tables' row bytes (64).
 
 mod groups;
 mod joins;
