@@ -108,8 +108,9 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
             // What its parameters make it build (new columns, probe lists, pieces) comes on top
             // of the table-sized working memory, measured or not.
             let measured = extrapolate(peaks, x);
-            let factor = memory_factor_at(plan, d, x);
-            let join = joined(plan, d, x, false).filter(|j| measured.is_none() && j.bytes > factor * table);
+            let at = Shaped::at(plan, x);
+            let factor = memory_factor_at(&at, d);
+            let join = joined(&at, d, false).filter(|j| measured.is_none() && j.bytes > factor * table);
             let working = measured.unwrap_or_else(|| join.map_or(factor * table, |j| j.bytes)).max(params_bytes(d, rows) + table);
             let joined_rows = join.filter(|j| j.bytes >= working).map(|j| j.rows);
             Estimate { table, records, generator: generator_bytes_at(plan, x), working, disk: d.disk_factor() * table, joined_rows, groups: None }
@@ -120,7 +121,8 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
                 Some(_) => table / rows.max(1) as f64 * super::inputs::CHUNK_ROWS as f64,
             };
             let chunks = (2.0 * chunk).min(table);
-            let join = joined(plan, d, x, true);
+            let at = Shaped::at(plan, x);
+            let join = joined(&at, d, true);
             // A hash join holds what it builds, whatever the chunks.
             // (The chunks keep the full hashing factor: a streaming query's fixed buffers
             // weigh more at small sizes, 2.9× the table at 250k rows for 14 groups; its
@@ -130,7 +132,7 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
             match extrapolate(peaks, x) {
                 Some(m) => working = m,
                 None => {
-                    if let Some((g, bytes)) = group_state(plan, d, x).filter(|s| s.1 > working) {
+                    if let Some((g, bytes)) = group_state(&at, d, plan.table_bytes_at(x)).filter(|s| s.1 > working) {
                         (working, groups) = (bytes, Some(g));
                     }
                     if let Some(j) = join.filter(|j| j.bytes > working) {
@@ -143,52 +145,68 @@ pub fn estimate_design(plan: &Plan, design: usize, x: u64, measured_peaks: &[Vec
     }
 }
 
-/// A design's memory factor on the in-memory engine at swept value `x`: its steps' factors,
-/// where a query that hashes (GROUP BY, DISTINCT) counts the hashing factor in the share of
-/// the largest table's rows its groups can reach, and at least what any query counts. Measured here on the in-memory
-/// engine, 1M and 4M rows of five integer columns (peak live bytes over the table's): GROUP
-/// BY 100 values 0.17×, 100k groups (GROUP BY or DISTINCT of two columns) 1.46–1.61×, 1M
-/// groups 0.79–1.46×, a unique key 2.4–2.6×, DISTINCT of a unique key and another column
-/// 5.1×: a per-row cost whatever the groups, so the floor stays the plain query's 3.
-fn memory_factor_at(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> f64 {
+/// A design's memory factor on the in-memory engine over the tables `at`: its steps'
+/// factors, where a query that hashes (GROUP BY, DISTINCT) counts the hashing factor in the
+/// share of the largest table's rows its groups can reach, and at least what any query
+/// counts. Measured here on the in-memory engine, 1M and 4M rows of five integer columns
+/// (peak live bytes over the table's): GROUP BY 100 values 0.17×, 100k groups (GROUP BY or
+/// DISTINCT of two columns) 1.46–1.61×, 1M groups 0.79–1.46×, a unique key 2.4–2.6×,
+/// DISTINCT of a unique key and another column 5.1×: a per-row cost whatever the groups, so
+/// the floor stays the plain query's 3.
+fn memory_factor_at(at: &Shaped, d: &crate::plan::DesignPlan) -> f64 {
     if d.program.is_some() {
         return d.memory_factor();
     }
-    let tables = plan.tables_at(x);
-    let rows = plan.rows_at(x);
-    let largest = tables.iter().map(|t| t.rows.at(rows)).max().unwrap_or(rows).max(1) as f64;
     d.setup
         .iter()
         .chain(&d.steps)
-        .map(|s| match crate::patterns::sql::is_sql(s.def).then(|| super::query_sizes::groups_bound(s.params.text("query"), &tables, rows)).flatten() {
-            Some(g) => (crate::patterns::sql::HASHING_MEMORY_FACTOR * (g / largest).min(1.0)).max(s.def.memory_factor),
+        .map(|s| match crate::patterns::sql::is_sql(s.def).then(|| at.group_share(s.params.text("query"))).flatten() {
+            Some((_, share)) => (crate::patterns::sql::HASHING_MEMORY_FACTOR * share).max(s.def.memory_factor),
             None => s.memory_factor(),
         })
         .fold(1.0, f64::max)
 }
 
-/// The groups a streaming design's grouping keeps at swept value `x` before it is measured,
-/// and their bytes: the hashing factor times the tables, in the share of the largest table's
-/// rows its groups can reach (None when no query groups). Measured here: a unique-key GROUP
-/// BY on the streaming engine kept 4.3× the table (see [`super::query_sizes`]); the factor of
-/// 10 is the in-memory engine's for hashing, so the bound errs on the side of refusing.
-fn group_state(plan: &Plan, d: &crate::plan::DesignPlan, x: u64) -> Option<(f64, f64)> {
-    let tables = plan.tables_at(x);
-    let rows = plan.rows_at(x);
-    let largest = tables.iter().map(|t| t.rows.at(rows)).max().unwrap_or(rows).max(1) as f64;
-    let groups = queries(d).filter_map(|q| super::query_sizes::groups_bound(q, &tables, rows)).reduce(f64::max)?;
-    Some((groups, crate::patterns::sql::HASHING_MEMORY_FACTOR * plan.table_bytes_at(x) * (groups / largest).min(1.0)))
+/// The groups a streaming design's grouping keeps at a swept value before it is measured,
+/// and their bytes: the hashing factor times the tables (`table_bytes`), in the share of the
+/// largest table's rows its groups can reach (None when no query groups). Measured here: a
+/// unique-key GROUP BY on the streaming engine kept 4.3× the table (see
+/// [`super::query_sizes`]); the factor of 10 is the in-memory engine's for hashing, so the
+/// bound errs on the side of refusing.
+fn group_state(at: &Shaped, d: &crate::plan::DesignPlan, table_bytes: f64) -> Option<(f64, f64)> {
+    let (groups, share) = queries(d).filter_map(|q| at.group_share(q)).max_by(|a, b| a.0.total_cmp(&b.0))?;
+    Some((groups, crate::patterns::sql::HASHING_MEMORY_FACTOR * table_bytes * share))
 }
 
-/// Bytes the largest join of a design's queries makes at swept value `x` before it is
-/// measured (None without joins): its rows bounded from the table plan times the joined
-/// tables' row bytes ([`super::query_sizes::joined_bytes`]). A self-join on 14 varieties peaked at
-/// 40–41 bytes a joined row, the bound counts 64. `streaming`: only the joins of SELECTs that
-/// do not group (the engine feeds the others into their groups).
-fn joined(plan: &Plan, d: &crate::plan::DesignPlan, x: u64, streaming: bool) -> Option<super::query_sizes::Joins> {
-    let tables = plan.tables_at(x);
-    let rows = plan.rows_at(x);
-    queries(d).filter_map(|q| super::query_sizes::joined_bytes(q, &tables, rows, streaming)).max_by(|a, b| a.bytes.total_cmp(&b.bytes))
+/// Bytes the largest join of a design's queries makes at a swept value before it is measured
+/// (None without joins): its rows bounded from the table plan times the joined tables' row
+/// bytes ([`super::query_sizes::joined_bytes`]). A self-join on 14 varieties peaked at 40–41
+/// bytes a joined row, the bound counts 64. `streaming`: only the joins of SELECTs that do
+/// not group (the engine feeds the others into their groups).
+fn joined(at: &Shaped, d: &crate::plan::DesignPlan, streaming: bool) -> Option<super::query_sizes::Joins> {
+    queries(d).filter_map(|q| super::query_sizes::joined_bytes(q, &at.tables, at.rows, streaming)).max_by(|a, b| a.bytes.total_cmp(&b.bytes))
+}
+
+/// The tables at one swept value, shaped once for the query bounds of a design's estimate.
+struct Shaped {
+    tables: Vec<crate::plan::TablePlan>,
+    rows: u64,
+    /// Rows of the largest table: what a query's groups are a share of.
+    largest: f64,
+}
+
+impl Shaped {
+    fn at(plan: &Plan, x: u64) -> Shaped {
+        let (tables, rows) = (plan.tables_at(x), plan.rows_at(x));
+        let largest = tables.iter().map(|t| t.rows.at(rows)).max().unwrap_or(rows).max(1) as f64;
+        Shaped { tables, rows, largest }
+    }
+    /// The groups `query` keeps and their share of the largest table's rows (None when it
+    /// does not hash).
+    fn group_share(&self, query: &str) -> Option<(f64, f64)> {
+        let g = super::query_sizes::groups_bound(query, &self.tables, self.rows)?;
+        Some((g, (g / self.largest).min(1.0)))
+    }
 }
 
 /// The queries of a design's `sql` steps, set-up included.
