@@ -31,7 +31,7 @@ python3 - "$bin" "$out" <<'PY'
 import json, os, subprocess, sys
 from collections import defaultdict
 binary, root = sys.argv[1], sys.argv[2]
-rows_out, within, total, quad_within, quad_total, missed_switch = [], 0, 0, 0, 0, 0
+rows_out, within, total, quad_within, quad_total, missed_switch, inside = [], 0, 0, 0, 0, 0, 0
 for name in sorted(os.listdir(root)):
     pts = os.path.join(root, name, "points.jsonl")
     if not os.path.isfile(pts):
@@ -62,7 +62,7 @@ for name in sorted(os.listdir(root)):
                     if h["rows"] != n:
                         continue
                     ok = abs(h["error"]) <= 0.25
-                    total += 1; within += ok
+                    total += 1; within += ok; inside += bool(h["inside_interval"])
                     cls = t.get("class", "?") + (" or " + t["alternative"] if t.get("alternative") else "")
                     if t.get("class") in ("n²", "n³"):
                         quad_total += 1; quad_within += ok
@@ -78,6 +78,8 @@ print(f'{"workload":<20} {"design":<26} {"class":<16} {"fit≤":>9} {"predicted"
 print("\n".join(rows_out))
 print(f"within 25%: {within}/{total}" + (f" ({100*within/total:.0f}%)" if total else ""))
 print(f"n² or n³ designs within 25%: {quad_within}/{quad_total}")
+# The 95% intervals (widened for the distance past the fitted sizes) should hold about 95%.
+print(f"inside the 95% interval: {inside}/{total}" + (f" ({100*inside/total:.0f}%)" if total else ""))
 print(f"of the misses, steps whose cores changed x1.3 or more between the largest fitted size and N: {missed_switch}/{total - within}")
 # The ceiling any prediction faces: how often two runs of the same design at the same N
 # (the point predicted above) measured medians within 25% of each other. With one run

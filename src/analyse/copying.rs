@@ -209,6 +209,7 @@ mod tests {
             alternative: None,
             copying: None,
             trend: None,
+            allowance: None,
         }
     }
 

@@ -6,7 +6,7 @@
 
 use super::copying::{copy_model, CopyModel};
 use super::trend::{trend, Trend};
-use super::fits::{bounded_by_bytes, fit_time, predict_with_alternative};
+use super::fits::{allow_for_extrapolation, bounded_by_bytes, fit_time, predict_with_alternative};
 use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
 use super::AnalyseOptions;
 use crate::fit::growth::{doubling_ratios, fit_growth, loglog_slope, GrowthFit, MIN_SIZES};
@@ -95,7 +95,8 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     let time_pred = |rows: u64| {
         let base = pred(&time, rows)?;
         let base = copy.as_ref().and_then(|c| c.predict(&base)).unwrap_or(base);
-        Some(recent.as_ref().and_then(|t| t.raise(&base, &class_cost)).unwrap_or(base))
+        let base = recent.as_ref().and_then(|t| t.raise(&base, &class_cost)).unwrap_or(base);
+        Some(allow_for_extrapolation(base, max_fitted))
     };
     let prediction = predict_at.and_then(time_pred);
     let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));

@@ -5,7 +5,7 @@
 
 use super::output::{ExponentOut, PredictionOut};
 use crate::fit::growth::{exponent_with_ci, fit_timed, GrowthClass, GrowthFit};
-use crate::fit::predict::predict;
+use crate::fit::predict::{extrapolation_allowance, predict, widen_for_extrapolation};
 
 /// Fit how time grows over measured points `(rows, measured)`: the growth class on each
 /// size's quartiles (`fit::growth::fit_timed`), and the log-log exponent of medians over
@@ -43,7 +43,20 @@ pub fn predict_with_alternative(f: &GrowthFit, rows: u64, max_fitted: f64) -> Op
         alternative: alt.and(f.alternative).map(|c| c.label().to_string()),
         copying: None,
         trend: None,
+        allowance: None,
     })
+}
+
+/// A time prediction past the largest fitted size, its interval widened for the
+/// extrapolation itself (`fit::predict`, "Extrapolation allowance"): the last step of a
+/// time prediction, after any copying term and recent trend, so it widens what is reported.
+pub fn allow_for_extrapolation(p: PredictionOut, max_fitted: f64) -> PredictionOut {
+    let allowance = extrapolation_allowance(p.rows as f64, max_fitted);
+    if allowance <= 0.0 {
+        return p;
+    }
+    let (low, high) = widen_for_extrapolation(p.median, p.low, p.high, allowance);
+    PredictionOut { low, high, rough: high > 10.0 * low, allowance: Some(allowance.exp()), ..p }
 }
 
 /// Below this log-log slope over the largest sizes, a superlinear time class is not taken

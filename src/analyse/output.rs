@@ -69,6 +69,11 @@ pub struct PredictionOut {
     /// than the class continues it (`analyse::trend`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub trend: Option<TrendOut>,
+    /// The factor each way the interval was widened by for extrapolating past the largest
+    /// fitted size (`fit::predict::extrapolation_allowance`), in quadrature with the noise;
+    /// absent inside the fitted sizes and in analyses made before it existed.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub allowance: Option<f64>,
 }
 
 /// The recent trend a prediction was raised to.

@@ -122,6 +122,7 @@ mod tests {
             alternative: None,
             copying: None,
             trend: None,
+            allowance: None,
         }
     }
 

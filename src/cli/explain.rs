@@ -83,6 +83,13 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
                         _ => "",
                     }
                 );
+                if let Some(a) = pr.allowance {
+                    println!(
+                        "  {:<24} (the interval allows ×{a:.1} either way for reaching ×{} past the largest fitted size)",
+                        "",
+                        crate::units::short(10f64.powf(pr.extrapolation_decades))
+                    );
+                }
             }
             for h in &d.holdout {
                 println!(

@@ -63,6 +63,9 @@ pub struct Cost {
     pub rough: bool,
     /// The growth class it was predicted with ("n", "n or n log n").
     pub class: String,
+    /// The factor each way the interval allows for extrapolating, and how far past the
+    /// largest fitted size the target lies (`PredictionOut::allowance`).
+    pub allowance: Option<(f64, f64)>,
 }
 
 impl Cost {
@@ -72,6 +75,14 @@ impl Cost {
             format!("about {} (an order of magnitude only)", time_ns(self.median))
         } else {
             format!("{} ({} to {})", time_ns(self.median), time_ns(self.low), time_ns(self.high))
+        }
+    }
+    /// "; the interval allows ×1.9 either way for reaching ×4 past the largest fitted size",
+    /// or nothing inside the fitted sizes.
+    pub fn allowance_clause(&self) -> String {
+        match self.allowance {
+            Some((a, beyond)) => format!("; the interval allows ×{a:.1} either way for reaching ×{} past the largest fitted size", crate::units::short(beyond)),
+            None => String::new(),
         }
     }
     /// "~195 ms", or "~3 s (rough)" when the interval spans more than ×10.
@@ -86,7 +97,7 @@ fn design<'a>(a: &'a WorkloadAnalysis, name: &str) -> Option<&'a DesignAnalysis>
 
 fn cost_of(name: &str, p: &PredictionOut, da: Option<&DesignAnalysis>) -> Cost {
     let class = da.and_then(|d| d.time.as_ref()).map(|t| t.label()).unwrap_or_else(|| p.class.clone());
-    Cost { design: name.to_string(), rows: p.rows, median: p.median, low: p.low, high: p.high, rough: p.rough, class }
+    Cost { design: name.to_string(), rows: p.rows, median: p.median, low: p.low, high: p.high, rough: p.rough, class, allowance: p.allowance.map(|a| (a, 10f64.powf(p.extrapolation_decades))) }
 }
 
 /// Comparisons with two or more designs and no point measured on a busy machine, by size.

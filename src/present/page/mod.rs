@@ -161,7 +161,7 @@ fn target_line(d: &Digest) -> Option<(String, String)> {
     let axis = ax.name();
     let t = d.target?;
     let text = match d.costs.first() {
-        Some(c) if Some(&c.design) == d.design.as_ref() => format!("`{}`: {} per run, time growing as {}", c.design, c.phrase(), c.class),
+        Some(c) if Some(&c.design) == d.design.as_ref() => format!("`{}`: {} per run, time growing as {}{}", c.design, c.phrase(), c.class, c.allowance_clause()),
         _ => "no prediction for the decided design".into(),
     };
     Some((format!("At {} {axis}", ax.value(t)), text))
