@@ -20,7 +20,7 @@ mod fits;
 mod output;
 
 pub use fits::{bounded_by_bytes, fit_time, predict_with_alternative, MEMORY_HIERARCHY_SLOPE};
-pub use output::{class_of, pair_of, CopyingOut, CrossoverOut, DesignAnalysis, ExponentOut, GrowthOut, HoldoutCheck, PredictionOut};
+pub use output::{class_of, pair_of, CopyingOut, CrossoverOut, DesignAnalysis, ExponentOut, GrowthOut, HoldoutCheck, Meets, PredictionOut};
 
 use crate::fit::predict::{crossover, Which};
 use crate::results::reader::{RunResults, WorkloadResults};

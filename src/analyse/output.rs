@@ -238,6 +238,23 @@ impl GrowthOut {
         (best.rank().min(alt.rank())..=best.rank().max(alt.rank())).contains(&class.rank())
     }
 
+    /// How this growth meets a workload's expected class (`expect: {time: …}`): the one
+    /// reading the finding, the report's table and the terminal's share.
+    pub fn meets(&self, expected: &str) -> Meets {
+        let want = class_of(expected);
+        // A pair ("n or n log n") meets an expectation of either class.
+        if want.is_some_and(|c| self.admits(c)) {
+            return Meets::Yes;
+        }
+        // Neighbours that a few decades of sizes cannot separate well: n and n log n,
+        // constant and log n (a rise of a few percent per decade).
+        use GrowthClass::*;
+        match (want, class_of(&self.class)) {
+            (Some(Linear), Some(Linearithmic)) | (Some(Linearithmic), Some(Linear)) | (Some(Constant), Some(Log)) | (Some(Log), Some(Constant)) => Meets::Near,
+            _ => Meets::No,
+        }
+    }
+
     /// The fitted cost at `n` (None when unclear or from an old analysis without terms).
     pub fn cost_at(&self, n: f64) -> Option<f64> {
         if self.terms.is_empty() {
@@ -293,6 +310,27 @@ fn out(f: &GrowthFit) -> GrowthOut {
 }
 
 /// A class label back to the class.
+/// How a measured growth meets an expected class ([`GrowthOut::meets`]).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Meets {
+    /// The class, or one of the pair (or between them).
+    Yes,
+    /// A neighbouring class a few decades of sizes cannot separate well.
+    Near,
+    No,
+}
+
+impl Meets {
+    /// "met", "close", "not met".
+    pub fn word(self) -> &'static str {
+        match self {
+            Meets::Yes => "met",
+            Meets::Near => "close",
+            Meets::No => "not met",
+        }
+    }
+}
+
 pub fn class_of(label: &str) -> Option<GrowthClass> {
     GrowthClass::from_label(label)
 }

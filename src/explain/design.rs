@@ -4,7 +4,7 @@
 //! at, and predictions far past the measured sizes. Each finding carries its numbers.
 
 use super::Finding;
-use crate::analyse::{class_of, DesignAnalysis};
+use crate::analyse::{class_of, DesignAnalysis, Meets};
 use crate::fit::growth::GrowthClass;
 use crate::units::{bytes, time_ns};
 use crate::results::reader::WorkloadResults;
@@ -93,18 +93,8 @@ fn growth(d: &Design, findings: &mut Vec<Finding>) {
             String::new(),
         ));
         if let Some(e) = &dh.expect_time {
-            let (want, got) = (class_of(e), class_of(&t.class));
-            // A pair ("n or n log n") meets an expectation of either class.
-            let ok = want.is_some_and(|c| t.admits(c));
-            // Neighbours that a few decades of sizes cannot separate well: n and n log n,
-            // constant and log n (a rise of a few percent per decade).
-            let near = matches!(
-                (want, got),
-                (Some(GrowthClass::Linear), Some(GrowthClass::Linearithmic))
-                    | (Some(GrowthClass::Linearithmic), Some(GrowthClass::Linear))
-                    | (Some(GrowthClass::Constant), Some(GrowthClass::Log))
-                    | (Some(GrowthClass::Log), Some(GrowthClass::Constant))
-            );
+            let meets = t.meets(e);
+            let (ok, near) = (meets == Meets::Yes, meets == Meets::Near);
             findings.push(f(
                 "expectation",
                 format!("the workload expects time to grow as {e}; measured {}", t.label()),

@@ -216,8 +216,8 @@ fn growth_rows(p: &Part) -> Vec<[String; 5]> {
             let (mem, bytes_met) = digest::bytes_growth(p.w, da, d.expect_bytes.as_deref());
             let mut exp = Vec::new();
             if let Some(e) = &d.expect_time {
-                let ok = da.time.as_ref().is_some_and(|t| crate::fit::growth::GrowthClass::from_label(e).is_some_and(|c| t.admits(c)));
-                exp.push(format!("time {e} ({})", if ok { "met" } else { "not met" }));
+                let meets = da.time.as_ref().map_or(crate::analyse::Meets::No, |t| t.meets(e));
+                exp.push(format!("time {e} ({})", meets.word()));
             }
             if let Some(e) = &d.expect_bytes {
                 exp.push(format!("bytes {e} ({})", match bytes_met { Some(true) => "met", Some(false) => "not met", None => "not judged" }));

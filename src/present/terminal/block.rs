@@ -122,6 +122,9 @@ fn figures(p: &Parts, o: Options) -> String {
         keys.push("* measured while the machine was busy (left out of classes and the verdict)".into());
     }
     keys.push("~ a time predicted from the smaller sizes".into());
+    if w.header.designs.iter().any(|d| d.expect_time.is_some() || d.expect_bytes.is_some()) {
+        keys.push("expected: ✓ met, ≈ a neighbouring class the sizes cannot separate well, ✗ not met, ? not judged".into());
+    }
     if !w.extra_sizes().is_empty() {
         keys.push("+ one more size than planned, measured only for the design whose growth class the planned sizes left unsettled".into());
     }

@@ -4,7 +4,6 @@
 
 use super::layout::grid;
 use super::{Options, Parts};
-use crate::fit::growth::GrowthClass;
 use crate::present::digest::{self, counts_allocations, times};
 use crate::results::reader::WorkloadResults;
 use crate::units::{bytes, escaped, time_ns};
@@ -147,8 +146,12 @@ pub(super) fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
         let mem = vec![bytes_label];
         let mut exp = Vec::new();
         if let Some(e) = &d.expect_time {
-            let ok = da.time.as_ref().is_some_and(|t| GrowthClass::from_label(e).is_some_and(|c| t.admits(c)));
-            exp.push(format!("time {e} {}", if ok { "✓" } else { "✗" }));
+            let mark = match da.time.as_ref().map_or(crate::analyse::Meets::No, |t| t.meets(e)) {
+                crate::analyse::Meets::Yes => "✓",
+                crate::analyse::Meets::Near => "≈",
+                crate::analyse::Meets::No => "✗",
+            };
+            exp.push(format!("time {e} {mark}"));
         }
         if let Some(e) = &d.expect_bytes {
             exp.push(format!("bytes {e} {}", match bytes_met { Some(true) => "✓", Some(false) => "✗", None => "?" }));
