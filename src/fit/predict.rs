@@ -20,8 +20,8 @@
 //! measured sizes the interval only reflects noise *given the class is
 //! right*; a wrong class is not in it — hence [`Prediction::warn_far`], and
 //! [`extrapolation_allowance`], which the analysis adds to every reported time
-//! prediction past the fitted sizes (this module's own intervals, which the
-//! crossover search uses, stay noise-only).
+//! prediction past the fitted sizes, and which the crossover search adds to
+//! both bands ([`predict`]'s own intervals stay noise-only).
 //!
 //! ## Extrapolation allowance
 //!
@@ -56,7 +56,10 @@
 //! fitted cost is not positive are skipped), then bisects the first bracketing
 //! pair in `ln n` to full precision. The uncertainty range `[n_lo, n_hi]` is
 //! the stretch of sizes around the crossing where the two 95 % prediction
-//! bands overlap: walking the grid down (up) from the crossing to the first
+//! bands, each widened past its fit's largest size by the extrapolation
+//! allowance, overlap (so a crossing far past the data, of curves whose
+//! slopes differ by less than about one, is left unbounded: the distance
+//! alone could move it anywhere): walking the grid down (up) from the crossing to the first
 //! size where the bands separate, then bisecting that edge. If the bands
 //! still overlap at the end of the search range, the edge is that end of the
 //! range. Only the first crossing is reported.
@@ -290,10 +293,15 @@ fn bisect(g: &impl Fn(f64) -> Option<f64>, below: f64, above: f64, g_low: f64) -
 /// Band overlap around the crossing: the sizes below and above `n_cross` where the two
 /// 95 % prediction bands stop overlapping (`lo_n` and `search_max_n` when they never do).
 fn band_overlap(a: &GrowthFit, b: &GrowthFit, grid: &[f64], n_cross: f64, lo_n: f64, search_max_n: f64) -> Result<(f64, f64), FitError> {
+    // Each band as reported: widened past its own fit's largest size for the distance.
+    let band = |f: &GrowthFit, n: f64| -> Result<(f64, f64), FitError> {
+        let p = predict(f, n, f.max_n)?;
+        Ok(widen_for_extrapolation(p.median, p.lo, p.hi, extrapolation_allowance(n, f.max_n)))
+    };
     let overlaps = |n: f64| -> Result<bool, FitError> {
-        let pa = predict(a, n, a.max_n)?;
-        let pb = predict(b, n, b.max_n)?;
-        Ok(pa.lo <= pb.hi && pb.lo <= pa.hi)
+        let (a_lo, a_hi) = band(a, n)?;
+        let (b_lo, b_hi) = band(b, n)?;
+        Ok(a_lo <= b_hi && b_lo <= a_hi)
     };
     let edge = |inside: f64, outside: f64| -> Result<f64, FitError> {
         let (mut u_in, mut u_out) = (inside.ln(), outside.ln());
