@@ -230,3 +230,24 @@ fn intervals_past_the_fitted_sizes_hold_what_was_then_measured() {
     assert!(checked >= 60, "only {checked} checks: the recorded runs are missing");
     assert!(inside as f64 >= 0.9 * checked as f64, "{inside} of {checked} inside");
 }
+
+/// The allowance a prediction carries, in the JSON and in the words of `explain`: fitted up
+/// to 16k rows and predicted at 64k, two doublings out, it is exp(1.959964 × 0.17 × 2) =
+/// ×1.947 either way (hand check; 1.959964 is the normal 97.5% quantile, any table), and
+/// the interval is at least that wide on each side of the median.
+#[test]
+fn a_prediction_says_how_much_it_allows_for_the_distance() {
+    let run = "tests/data/prediction-runs/row-growth-appends";
+    let w = analysis(run, &["--fit-up-to", "16000", "--at", "64000"]);
+    let p = &design(&w, "build-once")["prediction"];
+    let a = p["allowance"].as_f64().expect("an allowance past the fitted sizes");
+    assert!((a - 1.947).abs() < 1e-3, "{p}");
+    let (m, lo, hi) = (p["median"].as_f64().expect("median"), p["low"].as_f64().expect("low"), p["high"].as_f64().expect("high"));
+    assert!(hi / m >= a * 0.9999 && m / lo >= a * 0.9999, "{p}");
+    // Inside the fitted sizes there is none.
+    let inside = analysis(run, &["--at", "16000"]);
+    assert!(design(&inside, "build-once")["prediction"]["allowance"].is_null(), "{inside}");
+    let out = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--fit-up-to", "16000", "--at", "64000"]).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("the interval allows ×1.95 either way for reaching ×4 past the largest fitted size"), "{text}");
+}

@@ -85,8 +85,9 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
                 );
                 if let Some(a) = pr.allowance {
                     println!(
-                        "  {:<24} (the interval allows ×{a:.1} either way for reaching ×{} past the largest fitted size)",
+                        "  {:<24} (the interval allows ×{} either way for reaching ×{} past the largest fitted size)",
                         "",
+                        crate::units::short(a),
                         crate::units::short(10f64.powf(pr.extrapolation_decades))
                     );
                 }

@@ -81,7 +81,7 @@ impl Cost {
     /// or nothing inside the fitted sizes.
     pub fn allowance_clause(&self) -> String {
         match self.allowance {
-            Some((a, beyond)) => format!("; the interval allows ×{a:.1} either way for reaching ×{} past the largest fitted size", crate::units::short(beyond)),
+            Some((a, beyond)) => format!("; the interval allows ×{} either way for reaching ×{} past the largest fitted size", crate::units::short(a), crate::units::short(beyond)),
             None => String::new(),
         }
     }
