@@ -76,6 +76,14 @@ pub struct PredictionOut {
     pub allowance: Option<f64>,
 }
 
+impl PredictionOut {
+    /// How many times the largest fitted size the predicted size is (1 inside the fitted
+    /// sizes).
+    pub fn beyond_fitted(&self) -> f64 {
+        10f64.powf(self.extrapolation_decades)
+    }
+}
+
 /// The recent trend a prediction was raised to.
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct TrendOut {
@@ -309,7 +317,6 @@ fn out(f: &GrowthFit) -> GrowthOut {
     }
 }
 
-/// A class label back to the class.
 /// How a measured growth meets an expected class ([`GrowthOut::meets`]).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Meets {
@@ -329,8 +336,18 @@ impl Meets {
             Meets::No => "not met",
         }
     }
+
+    /// The terminal's mark: ✓, ≈, ✗.
+    pub fn mark(self) -> &'static str {
+        match self {
+            Meets::Yes => "✓",
+            Meets::Near => "≈",
+            Meets::No => "✗",
+        }
+    }
 }
 
+/// A class label back to the class.
 pub fn class_of(label: &str) -> Option<GrowthClass> {
     GrowthClass::from_label(label)
 }

@@ -88,7 +88,7 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
                         "  {:<24} (the interval allows ×{} either way for reaching ×{} past the largest fitted size)",
                         "",
                         crate::units::short(a),
-                        crate::units::short(10f64.powf(pr.extrapolation_decades))
+                        crate::units::short(pr.beyond_fitted())
                     );
                 }
             }

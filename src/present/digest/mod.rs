@@ -97,7 +97,7 @@ fn design<'a>(a: &'a WorkloadAnalysis, name: &str) -> Option<&'a DesignAnalysis>
 
 fn cost_of(name: &str, p: &PredictionOut, da: Option<&DesignAnalysis>) -> Cost {
     let class = da.and_then(|d| d.time.as_ref()).map(|t| t.label()).unwrap_or_else(|| p.class.clone());
-    Cost { design: name.to_string(), rows: p.rows, median: p.median, low: p.low, high: p.high, rough: p.rough, class, allowance: p.allowance.map(|a| (a, 10f64.powf(p.extrapolation_decades))) }
+    Cost { design: name.to_string(), rows: p.rows, median: p.median, low: p.low, high: p.high, rough: p.rough, class, allowance: p.allowance.map(|a| (a, p.beyond_fitted())) }
 }
 
 /// Comparisons with two or more designs and no point measured on a busy machine, by size.

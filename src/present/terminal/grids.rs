@@ -146,12 +146,8 @@ pub(super) fn growth_grid(p: &Parts, o: Options) -> Vec<String> {
         let mem = vec![bytes_label];
         let mut exp = Vec::new();
         if let Some(e) = &d.expect_time {
-            let mark = match da.time.as_ref().map_or(crate::analyse::Meets::No, |t| t.meets(e)) {
-                crate::analyse::Meets::Yes => "✓",
-                crate::analyse::Meets::Near => "≈",
-                crate::analyse::Meets::No => "✗",
-            };
-            exp.push(format!("time {e} {mark}"));
+            let meets = da.time.as_ref().map_or(crate::analyse::Meets::No, |t| t.meets(e));
+            exp.push(format!("time {e} {}", meets.mark()));
         }
         if let Some(e) = &d.expect_bytes {
             exp.push(format!("bytes {e} {}", match bytes_met { Some(true) => "✓", Some(false) => "✗", None => "?" }));
