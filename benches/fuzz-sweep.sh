@@ -12,6 +12,8 @@
 # every thread's stack when gdb is installed and the sweep passed the time limit. Needs the
 # release binary (cargo build --release) and python3.
 set -uo pipefail
+# Paths given relative to where the script was started from stay valid after the cd below.
+[ -z "${FRAMECOST:-}" ] || FRAMECOST=$(realpath "$FRAMECOST")
 cd "$(dirname "$0")/.."
 bin=${FRAMECOST:-${CARGO_TARGET_DIR:-target}/release/framecost}
 [ -x "$bin" ] || { echo "build first: cargo build --release" >&2; exit 2; }

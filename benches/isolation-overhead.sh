@@ -8,6 +8,8 @@
 #   benches/isolation-overhead.sh [ROUNDS] [WORKLOAD...]   (default 5 rounds, the catalog)
 #   SWEEP_ARGS='--sizes 1k,2k' benches/isolation-overhead.sh 10 tests/data/tiny.yaml
 set -euo pipefail
+# Paths given relative to where the script was started from stay valid after the cd below.
+[ -z "${FRAMECOST:-}" ] || FRAMECOST=$(realpath "$FRAMECOST")
 cd "$(dirname "$0")/.."
 bin=${FRAMECOST:-${CARGO_TARGET_DIR:-target}/release/framecost}
 [ -x "$bin" ] || { echo "build first: cargo build --release" >&2; exit 2; }

@@ -17,8 +17,11 @@
 # It needs the release binary (cargo build --release) and python3 for the table. Runs take
 # as long as the sweeps themselves; run it on a quiet machine.
 set -euo pipefail
+# Paths given relative to where the script was started from stay valid after the cd below.
+[ -z "${FRAMECOST:-}" ] || FRAMECOST=$(realpath "$FRAMECOST")
+[ -z "${RUNS:-}" ] || RUNS=$(realpath "$RUNS")
 cd "$(dirname "$0")/.."
-bin=${FRAMECOST:-target/release/framecost}
+bin=${FRAMECOST:-${CARGO_TARGET_DIR:-target}/release/framecost}
 [ -x "$bin" ] || cargo build --release
 files=("$@")
 [ ${#files[@]} -gt 0 ] || files=(workloads/*.yaml)
