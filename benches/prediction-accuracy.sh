@@ -20,10 +20,12 @@ set -euo pipefail
 # Paths given relative to where the script was started from stay valid after the cd below.
 [ -z "${FRAMECOST:-}" ] || FRAMECOST=$(realpath "$FRAMECOST")
 [ -z "${RUNS:-}" ] || RUNS=$(realpath "$RUNS")
+given=()
+for f in "$@"; do given+=("$(realpath "$f")"); done
 cd "$(dirname "$0")/.."
 bin=${FRAMECOST:-${CARGO_TARGET_DIR:-target}/release/framecost}
 [ -x "$bin" ] || cargo build --release
-files=("$@")
+files=("${given[@]}")
 [ ${#files[@]} -gt 0 ] || files=(workloads/*.yaml)
 out=${RUNS:-$(mktemp -d)}
 for f in "${files[@]}"; do
