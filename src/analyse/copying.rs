@@ -159,7 +159,7 @@ impl CopyModel {
             median,
             low,
             high,
-            rough: high > 10.0 * low,
+            rough: crate::fit::predict::is_rough(low, high),
             copying: Some(CopyingOut {
                 bytes_class: self.bytes_class.label().to_string(),
                 ns_per_byte: self.k,

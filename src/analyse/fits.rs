@@ -5,7 +5,7 @@
 
 use super::output::{ExponentOut, PredictionOut};
 use crate::fit::growth::{exponent_with_ci, fit_timed, GrowthClass, GrowthFit};
-use crate::fit::predict::{extrapolation_allowance, predict, widen_for_extrapolation};
+use crate::fit::predict::{extrapolation_allowance, is_rough, predict, widen_for_extrapolation};
 
 /// Fit how time grows over measured points `(rows, measured)`: the growth class on each
 /// size's quartiles (`fit::growth::fit_timed`), and the log-log exponent of medians over
@@ -38,7 +38,7 @@ pub fn predict_with_alternative(f: &GrowthFit, rows: u64, max_fitted: f64) -> Op
         high,
         extrapolation_decades: p.extrapolation_decades,
         far: p.warn_far,
-        rough: high > 10.0 * low,
+        rough: is_rough(low, high),
         class: f.best.label().to_string(),
         alternative: alt.and(f.alternative).map(|c| c.label().to_string()),
         copying: None,
@@ -56,7 +56,7 @@ pub fn allow_for_extrapolation(p: PredictionOut, max_fitted: f64) -> PredictionO
         return p;
     }
     let (low, high) = widen_for_extrapolation(p.median, p.low, p.high, allowance);
-    PredictionOut { low, high, rough: high > 10.0 * low, allowance: Some(allowance.exp()), ..p }
+    PredictionOut { low, high, rough: is_rough(low, high), allowance: Some(allowance.exp()), ..p }
 }
 
 /// Below this log-log slope over the largest sizes, a superlinear time class is not taken

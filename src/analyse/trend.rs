@@ -94,7 +94,7 @@ impl Trend {
         Some(PredictionOut {
             median: t,
             high,
-            rough: high > 10.0 * base.low,
+            rough: crate::fit::predict::is_rough(base.low, high),
             trend: Some(TrendOut { slope: self.slope, from_rows: self.rows, from_ns: self.median_ns, class_ns: base.median, reach_rows: self.reach() }),
             ..base.clone()
         })

@@ -72,6 +72,12 @@ use super::FitError;
 /// Grid density of the crossover search, points per decade of `n`.
 pub const GRID_PER_DECADE: usize = 50;
 
+/// Whether an interval `[lo, hi]` spans more than ×10: an order of magnitude only
+/// ([`Prediction::rough`], and every interval the analysis widens after it).
+pub fn is_rough(lo: f64, hi: f64) -> bool {
+    hi > 10.0 * lo
+}
+
 /// Standard deviation of the log cost added per doubling past the largest
 /// fitted size (module doc, "Extrapolation allowance"; set on saved sweeps).
 pub const EXTRAPOLATION_SD_PER_DOUBLING: f64 = 0.17;
@@ -162,7 +168,7 @@ pub fn predict(fit: &GrowthFit, n: f64, measured_max_n: f64) -> Result<Predictio
         hi,
         extrapolation_decades,
         warn_far: extrapolation_decades > 1.0,
-        rough: hi > 10.0 * lo,
+        rough: is_rough(lo, hi),
     })
 }
 
