@@ -56,13 +56,15 @@
 //! `search_max_n` ([`GRID_PER_DECADE`] points per decade, grid points where a
 //! fitted cost is not positive are skipped), then bisects the first bracketing
 //! pair in `ln n` to full precision. The uncertainty range `[n_lo, n_hi]` is
-//! the stretch of sizes around the crossing where the two 95 % prediction
-//! bands, each widened past its fit's largest size by the extrapolation
-//! allowance, overlap (so a crossing far past the data, of curves whose
-//! slopes differ by less than about one, is left unbounded: the distance
-//! alone could move it anywhere): walking the grid down (up) from the crossing to the first
-//! size where the bands separate, then bisecting that edge. If the bands
-//! still overlap at the end of the search range, the edge is that end of the
+//! the stretch of sizes around the crossing where the costs may still be equal:
+//! the log distance between the two fitted costs is within their 95 %
+//! half-widths combined in quadrature ([`may_be_equal`]), each half-width
+//! widened past its fit's largest size by the extrapolation allowance (so a
+//! crossing far past the data, of curves whose slopes differ by less than about
+//! one, is left unbounded: the distance alone could move it anywhere): walking
+//! the grid down (up) from the crossing to the first size where they cannot be
+//! equal, then bisecting that edge. If they may still be equal at the end of
+//! the search range, the edge is that end of the
 //! range. Only the first crossing is reported.
 
 use super::dist::student_t_quantile;
@@ -184,9 +186,9 @@ pub enum Which {
 pub struct Crossover {
     /// The size where the fitted costs are equal.
     pub n: f64,
-    /// Smallest size, around `n`, where the 95 % prediction bands overlap.
+    /// Smallest size, around `n`, where the costs may still be equal ([`may_be_equal`]).
     pub n_lo: f64,
-    /// Largest size, around `n`, where the 95 % prediction bands overlap.
+    /// Largest size, around `n`, where the costs may still be equal ([`may_be_equal`]).
     pub n_hi: f64,
     /// Whether `n` lies within the measured sizes `[lo_n, hi_n]`.
     pub inside_measured: bool,
@@ -297,18 +299,26 @@ fn bisect(g: &impl Fn(f64) -> Option<f64>, below: f64, above: f64, g_low: f64) -
     (0.5 * (lo + hi)).exp()
 }
 
-/// Band overlap around the crossing: the sizes below and above `n_cross` where the two
-/// 95 % prediction bands stop overlapping (`lo_n` and `search_max_n` when they never do).
+/// The stretch around the crossing where the two costs may still be equal: the sizes
+/// below and above `n_cross` where the 95 % interval of `ln ĉ_A − ln ĉ_B` stops
+/// including 0 (`lo_n` and `search_max_n` when it never does). Each design's log
+/// half-width is its prediction band's, widened past its own fit's largest size for
+/// the distance; the two are combined in quadrature, as for the difference of two
+/// independent estimates. (Asking for the two bands to overlap adds the half-widths
+/// instead: √2 too wide for equal ones, and with the distance allowance it left a
+/// crossing that a later sweep measured at about 2k rows, fitted at 1.4k from sizes up
+/// to 512, unbounded at the far end.)
 fn band_overlap(a: &GrowthFit, b: &GrowthFit, grid: &[f64], n_cross: f64, lo_n: f64, search_max_n: f64) -> Result<(f64, f64), FitError> {
     // Each band as reported: widened past its own fit's largest size for the distance.
-    let band = |f: &GrowthFit, n: f64| -> Result<(f64, f64), FitError> {
+    let band = |f: &GrowthFit, n: f64| -> Result<(f64, f64, f64), FitError> {
         let p = predict(f, n, f.max_n)?;
-        Ok(widen_for_extrapolation(p.median, p.lo, p.hi, extrapolation_allowance(n, f.max_n)))
+        let (lo, hi) = widen_for_extrapolation(p.median, p.lo, p.hi, extrapolation_allowance(n, f.max_n));
+        Ok((p.median, lo, hi))
     };
     let overlaps = |n: f64| -> Result<bool, FitError> {
-        let (a_lo, a_hi) = band(a, n)?;
-        let (b_lo, b_hi) = band(b, n)?;
-        Ok(a_lo <= b_hi && b_lo <= a_hi)
+        let (am, a_lo, a_hi) = band(a, n)?;
+        let (bm, b_lo, b_hi) = band(b, n)?;
+        Ok(may_be_equal((am, a_lo, a_hi), (bm, b_lo, b_hi)))
     };
     let edge = |inside: f64, outside: f64| -> Result<f64, FitError> {
         let (mut u_in, mut u_out) = (inside.ln(), outside.ln());
@@ -348,9 +358,40 @@ fn band_overlap(a: &GrowthFit, b: &GrowthFit, grid: &[f64], n_cross: f64, lo_n: 
     Ok((n_lo, n_hi))
 }
 
+/// Whether two costs, each a median with its 95 % band `(median, lo, hi)`, may be equal:
+/// the log distance between the medians is within the two facing half-widths combined in
+/// quadrature. A band with a lower end that is not positive says nothing, so it may.
+pub fn may_be_equal(a: (f64, f64, f64), b: (f64, f64, f64)) -> bool {
+    let ((am, a_lo, a_hi), (bm, b_lo, b_hi)) = (a, b);
+    if [am, a_lo, bm, b_lo].iter().any(|v| !(*v > 0.0)) {
+        return true;
+    }
+    let d = am.ln() - bm.ln();
+    // A above B: A's lower half-width faces B's upper one.
+    let (down, up) = if d >= 0.0 { ((am / a_lo).ln(), (b_hi / bm).ln()) } else { ((bm / b_lo).ln(), (a_hi / am).ln()) };
+    d.abs() <= down.hypot(up)
+}
+
 #[cfg(test)]
 mod allowance_tests {
     use super::*;
+
+    /// Hand check of the crossing's test: medians ×4 apart (ln 4 = 1.386) with bands of
+    /// ×2 either way (ln 2 = 0.693 each) may not be equal: √(0.693² + 0.693²) = 0.980.
+    /// The two bands still touch (2 ≤ 2), which is what the test they replaced asked.
+    /// ×2 apart (0.693 ≤ 0.980) may be.
+    #[test]
+    fn two_costs_may_be_equal_within_their_half_widths_in_quadrature() {
+        assert!(!may_be_equal((4.0, 2.0, 8.0), (1.0, 0.5, 2.0)));
+        assert!(!may_be_equal((1.0, 0.5, 2.0), (4.0, 2.0, 8.0)));
+        assert!(may_be_equal((2.0, 1.0, 4.0), (1.0, 0.5, 2.0)));
+        // The facing sides decide: A above B uses A's lower side and B's upper side.
+        // ln(3) = 1.0986; A's lower side ln(3/1) = 1.0986 alone reaches B's median.
+        assert!(may_be_equal((3.0, 1.0, 3.3), (1.0, 0.99, 1.01)));
+        assert!(!may_be_equal((3.0, 2.9, 30.0), (1.0, 0.1, 1.01)));
+        // A band with no positive lower end says nothing.
+        assert!(may_be_equal((4.0, 0.0, 8.0), (1.0, 0.5, 2.0)));
+    }
 
     /// Hand check: four times the largest fitted size is two doublings, so the allowance is
     /// 1.959964 × 0.17 × 2 = 0.66639 on the log scale, ×1.947 each way (z = 1.959964, the

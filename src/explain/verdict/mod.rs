@@ -197,7 +197,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
     if let Some(v) = overtaken(w, a, &cmps, &ranked, last.rows, &busy_note) {
         return v;
     }
-    let (below, unsupported) = crossing_notes(a, &cmps, &best, ax);
+    let (below, unsupported) = crossing_notes(w, a, &cmps, &best, ax);
     let setup = tie::setup_won_back(w, &best, last.rows);
     Verdict {
         kind: VerdictKind::Winner,
@@ -256,7 +256,7 @@ fn split_samples_winner(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&Comp
             format!(" (from {} to {})", time_ns(lo), time_ns(hi))
         })
         .unwrap_or_default();
-    let (below, unsupported) = crossing_notes(a, cmps, best, ax);
+    let (below, unsupported) = crossing_notes(w, a, cmps, best, ax);
     Some(Verdict {
         kind: VerdictKind::Winner,
         design: Some(best.clone()),
@@ -319,10 +319,31 @@ fn overtaken(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecor
     None
 }
 
+/// A fitted crossing of `best` by another design before the target that the verdict does
+/// not act on, with the first of [`overtaken`]'s conditions it fails, in words ("but its
+/// measured ratio is not shrinking steadily").
+pub fn unacted_crossing<'a>(w: &WorkloadResults, a: &'a WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str) -> Option<(&'a CrossoverOut, String)> {
+    let largest = cmps.last()?.rows;
+    let c = a.crossovers.iter().find(|c| c.faster_below == best && !c.inside_measured && a.predict_at.is_some_and(|t| c.rows <= t as f64))?;
+    let ax = w.header.axis();
+    let why = if !c.bounded {
+        format!("but the fits do not pin it down (the two costs may still be equal from {} to the end of the search)", ax.value_f(c.rows_low))
+    } else if c.rows_low <= largest as f64 * 0.5 {
+        format!("but its interval reaches back to {}, inside the measured sizes", ax.value_f(c.rows_low))
+    } else if shrinking_ratio(cmps, best, &c.faster_above).is_none() {
+        format!("but its measured ratio to `{best}` is not shrinking steadily")
+    } else if !rises_less(w, cmps, best, &c.faster_above) {
+        format!("but its cost rose about as much as `{best}`'s over the last step measured (a larger fixed cost with the same cost per row comes closer without passing)")
+    } else {
+        return None;
+    };
+    Some((c, why))
+}
+
 /// For a measured winner: a crossover inside the measured range ("below about 8k `x` is
 /// cheaper"), and a fitted crossing before the target that the measured trend does not
 /// support.
-fn crossing_notes(a: &WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str, ax: Axis) -> (String, String) {
+fn crossing_notes(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str, ax: Axis) -> (String, String) {
     let below = a
         .crossovers
         .iter()
@@ -332,18 +353,14 @@ fn crossing_notes(a: &WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str, 
         .max_by(|x, y| x.rows.total_cmp(&y.rows))
         .map(|c| format!("; below about {} `{}` is cheaper", ax.point_f(c.rows), c.faster_below))
         .unwrap_or_default();
-    let unsupported = a
-        .crossovers
-        .iter()
-        .find(|c| c.faster_below == best && !c.inside_measured && a.predict_at.is_some_and(|t| c.rows <= t as f64))
-        .map(|c| {
-            format!(
-                " (the fitted curves of `{}` cross below the target, at about {}, but its measured ratio is not shrinking steadily: measure a larger size before acting on it)",
-                c.faster_above,
-                ax.point_f(c.rows)
-            )
-        })
-        .unwrap_or_default();
+    let unsupported = match (cmps.last(), unacted_crossing(w, a, cmps, best)) {
+        (Some(_), Some((c, why))) => format!(
+            " (the fitted curves of `{}` cross below the target, at about {}, {why}: measure a larger size before acting on it)",
+            c.faster_above,
+            ax.point_f(c.rows)
+        ),
+        _ => String::new(),
+    };
     (below, unsupported)
 }
 

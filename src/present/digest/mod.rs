@@ -251,14 +251,14 @@ fn winner(said: &mut Said, w: &WorkloadResults, a: &WorkloadAnalysis, v: &Verdic
         // Every size was measured on a busy machine: the verdict's own words.
         said.why.push(sentence(&number_first(&v.text)));
     }
-    if let Some(x) = a.crossovers.iter().find(|x| x.faster_below == best && !x.inside_measured && a.predict_at.is_some_and(|t| x.rows <= t as f64)) {
+    if let Some((x, why)) = crate::explain::verdict::unacted_crossing(w, a, cmps, best) {
         said.why.push(format!(
-            "The fitted curves of `{}` cross below the target, at about {} {axis}, but its measured ratio to `{best}` is not shrinking steadily: measure a larger size before acting on it.",
+            "The fitted curves of `{}` cross below the target, at about {} {axis}, {why}: measure a larger size before acting on it.",
             x.faster_above,
             ax.value_f(x.rows)
         ));
         if said.crossover == "none" {
-            said.crossover = format!("`{}` fitted at about {} {axis} (not borne out by the trend)", x.faster_above, ax.value_f(x.rows));
+            said.crossover = format!("`{}` fitted at about {} {axis} (not borne out by the measurements)", x.faster_above, ax.value_f(x.rows));
         }
     }
 }
