@@ -2,7 +2,7 @@
 //! kept unchanged), each checked against a later sweep of the same designs over sizes well
 //! past the first one's: what was then measured, not a hard-coded crossing, is the answer.
 //!
-//! - `sample-trap` (the built-in workload, 32 to 512 rows): a scan per wanted tag is faster
+//! - `sample-trap` (the built-in workload, 32 to 1k rows): a scan per wanted tag is faster
 //!   at every size and a join of the wanted tags only gains. The verdict must be
 //!   `crossover` to the join, with a crossing interval beyond the measured sizes that holds
 //!   the crossing measured by the wide sweep (32 to 16k rows).
