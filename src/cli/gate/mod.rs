@@ -49,6 +49,12 @@ pub struct Args {
     /// Judge sizes only: no growth check of time exponents (bytes keep theirs).
     #[arg(long)]
     pub no_growth_check: bool,
+    /// A folder of earlier runs of the baseline's code (one run folder each; the baseline
+    /// counts too): a change is then called only beyond how far each design wandered across
+    /// those runs by itself. Workloads with fewer than five such runs are judged against the
+    /// baseline alone. Keep eight or more (README, "Using the gate in CI").
+    #[arg(long, value_name = "DIR", conflicts_with = "pair")]
+    pub history: Option<PathBuf>,
     /// Print the comparison as JSON.
     #[arg(long)]
     pub json: bool,
@@ -121,11 +127,40 @@ pub fn run(a: Args) -> Result<(), Failure> {
         }
         eprintln!("framecost gate: partial comparison (--partial-ok):\n{lines}");
     }
-    let report = compare(&base, &new, &opts);
+    let mut report = compare(&base, &new, &opts);
+    if let Some(dir) = &a.history {
+        let earlier = match history_runs(dir, &base, &new) {
+            Ok(r) => r,
+            Err(m) => return bad(m),
+        };
+        let mut runs: Vec<&RunResults> = earlier.iter().collect();
+        runs.push(&base);
+        crate::track::gate::judge_with_history(&mut report, &runs, &new);
+        report.history_runs = Some(runs.len());
+    }
     if report.workloads.is_empty() {
         return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
     }
     answer(&report, a.json)
+}
+
+/// The complete runs in `dir` (its subfolders holding `points.jsonl`, or `dir` itself),
+/// leaving out the baseline and the new run (by run id): the baseline is added by the
+/// caller, the new run is what is judged.
+fn history_runs(dir: &Path, base: &RunResults, new: &RunResults) -> Result<Vec<RunResults>, String> {
+    let id = |r: &RunResults| r.run.as_ref().map(|h| h.run_id.clone());
+    let entries = std::fs::read_dir(dir).map_err(|e| format!("--history {}: {e}", dir.display()))?;
+    let mut paths: Vec<PathBuf> = entries.filter_map(|e| e.ok()).map(|e| e.path()).filter(|p| p.join("points.jsonl").is_file()).collect();
+    paths.sort();
+    let runs: Vec<RunResults> = paths
+        .iter()
+        .filter_map(|p| RunResults::read(p).ok())
+        .filter(|r| r.complete() && id(r).is_some() && id(r) != id(base) && id(r) != id(new))
+        .collect();
+    if runs.is_empty() {
+        return Err(format!("--history {}: no complete run folder in it (folders holding points.jsonl)", dir.display()));
+    }
+    Ok(runs)
 }
 
 /// Print the report and give the exit.

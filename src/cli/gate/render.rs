@@ -43,6 +43,19 @@ pub fn render(r: &GateReport) -> String {
     if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.memory_ratio.is_some()) {
         para(&mut s, "memory", "a change must also pass the threshold divided by the memory probe's ratio at its point (the cache sweeps before the design's samples): memory that got slower explains a slowdown away, never makes one; the probe's ratios are in --json");
     }
+    if let Some(k) = r.history_runs {
+        let judged = r.workloads.iter().filter(|w| w.history.is_some()).count();
+        let text = if judged == 0 {
+            format!("{k} runs of the baseline's code, but no workload had {} of them: judged against the baseline alone", crate::track::gate::HISTORY_MIN_RUNS)
+        } else {
+            format!(
+                "{k} runs of the baseline's code, {judged} of {} workloads judged against them (a workload needs {}): a change is called only beyond how far the design wandered across those runs by itself, after each run's common move",
+                r.workloads.len(),
+                crate::track::gate::HISTORY_MIN_RUNS
+            )
+        };
+        para(&mut s, "history", &text);
+    }
     if let Some(text) = machine_moves(r) {
         para(&mut s, "machine", &text);
     }
@@ -139,6 +152,19 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
             m.ratio, m.ratio_low, m.ratio_high, m.same_way, m.sizes, m.raw_ratio
         ));
     }
+    let hist = w.history.as_ref();
+    if let Some(m) = hist.and_then(|h| h.moves.iter().find(|m| m.design == d && matches!(m.call, Call::Regression | Call::Improvement))) {
+        let word = if m.call == Call::Regression { "slower" } else { "faster" };
+        said.push(format!(
+            "{word} than its history: {:.2}× the mean time of {} earlier runs over {} sizes, relative to the run's common move (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
+            m.ratio,
+            hist.map_or(0, |h| h.runs),
+            m.sizes,
+            m.raw_ratio,
+            m.bar,
+            m.spread
+        ));
+    }
     if !slower.is_empty() {
         said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
     }
@@ -157,7 +183,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
     let split = pts.iter().filter(|p| p.call == Call::Unclear && p.split && !p.busy).count();
-    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split).count();
+    let held_by_history = |p: &crate::track::gate::PointGate| hist.is_some_and(|h| h.held.iter().any(|(hd, n)| hd == d && *n == p.rows));
+    let within_history = pts.iter().filter(|p| p.call == Call::Unclear && held_by_history(p)).count();
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split && !held_by_history(p)).count();
     let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
     if said.is_empty() {
         let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
@@ -170,6 +198,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     if unclear > 0 {
         said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
     }
+    if within_history > 0 {
+        say_history(&mut said, within_history, hist.map_or(0, |h| h.runs));
+    }
     if busy > 0 {
         said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
     }
@@ -181,6 +212,11 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     for l in wrap(&said.join("; "), width, &first, &rest) {
         let _ = writeln!(s, "{l}");
     }
+}
+
+/// Points whose change against the baseline the history's own spread holds.
+fn say_history(said: &mut Vec<String>, points: usize, runs: usize) {
+    said.push(format!("{points} size(s) beyond the threshold against the baseline but within how far its {runs} history runs wandered, not judged"));
 }
 
 /// What a workload adds after its designs: growth changes, a move of the whole workload,
@@ -292,7 +328,7 @@ mod tests {
                 small_only: false,
             })
             .collect();
-        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None, moves: vec![] };
+        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None, moves: vec![], history: None };
         GateReport { baseline_run: "a".into(), new_run: "b".into(), yardstick_ratio: Some(1.02), workloads: vec![w], ..Default::default() }
     }
 

@@ -144,6 +144,7 @@ mod tests {
             common_mode: None,
             axis: None,
             moves: vec![],
+            history: None,
         }
     }
 

@@ -42,11 +42,13 @@
 
 mod common;
 mod growth;
+mod history;
 mod pair;
 mod points;
 mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
+pub use history::{judge as judge_with_history, History, HistoryMove, MIN_RUNS as HISTORY_MIN_RUNS};
 pub use pair::compare_pair;
 pub use steady::{design_moves, DesignMove};
 
@@ -201,6 +203,10 @@ pub struct WorkloadGate {
     /// the gate even when no single size was confirmed.
     #[serde(default)]
     pub moves: Vec<DesignMove>,
+    /// What a history of earlier runs said (`gate --history`; see `history.rs`), when the
+    /// workload had enough of them.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub history: Option<History>,
 }
 
 /// What the points of a workload moved together between the two runs.
@@ -237,6 +243,9 @@ pub struct GateReport {
     /// ids are then that run's.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub pair: Option<(String, String)>,
+    /// `gate --history DIR`: how many runs the history held (the baseline among them).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub history_runs: Option<usize>,
 }
 
 /// How far the machine itself moved between the two runs, as its probes saw it: the
@@ -284,13 +293,27 @@ impl GateReport {
         self.regressions > 0 || self.growth_regressions > 0 || self.design_regressions > 0
     }
 
+    /// Count the totals again from the workloads (after `history` changed calls).
+    pub fn recount(&mut self) {
+        let workloads = std::mem::take(&mut self.workloads);
+        (self.regressions, self.unconfirmed_regressions, self.improvements, self.growth_regressions, self.design_regressions, self.missing) = (0, 0, 0, 0, 0, 0);
+        for wg in workloads {
+            self.add(wg);
+        }
+    }
+
     /// Add one workload's comparison and its counts to the totals.
     pub(super) fn add(&mut self, wg: WorkloadGate) {
         self.regressions += wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).count();
         self.unconfirmed_regressions += wg.points.iter().filter(|p| p.call == Call::Regression && !p.confirmed).count();
         self.improvements += wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).count();
         self.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
-        self.design_regressions += wg.moves.iter().filter(|m| m.call == Call::Regression).count();
+        // A design slower over its sizes against the baseline, or against its history, once.
+        let mut slower: Vec<&str> = wg.moves.iter().filter(|m| m.call == Call::Regression).map(|m| m.design.as_str()).collect();
+        slower.extend(wg.history.iter().flat_map(|h| &h.moves).filter(|m| m.call == Call::Regression).map(|m| m.design.as_str()));
+        slower.sort_unstable();
+        slower.dedup();
+        self.design_regressions += slower.len();
         self.missing += wg.missing.len();
         self.workloads.push(wg);
     }
@@ -353,6 +376,7 @@ fn compare_workload(bw: &WorkloadResults, nw: &WorkloadResults, opts: &GateOptio
         common_mode: None,
         axis: nw.header.axis.clone(),
         moves: vec![],
+        history: None,
     };
     for d in &bw.header.designs {
         if !nw.header.designs.iter().any(|x| x.name == d.name) {

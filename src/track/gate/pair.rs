@@ -55,6 +55,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
         common_mode: None,
         axis: w.header.axis.clone(),
         moves: vec![],
+        history: None,
     };
     let mut sizes: Vec<u64> = w.points.iter().filter(|p| p.design == old || p.design == new).map(|p| p.rows).collect();
     sizes.sort_unstable();
