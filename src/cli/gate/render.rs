@@ -156,10 +156,11 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     if let Some(m) = hist.and_then(|h| h.moves.iter().find(|m| m.design == d && matches!(m.call, Call::Regression | Call::Improvement))) {
         let word = if m.call == Call::Regression { "slower" } else { "faster" };
         said.push(format!(
-            "{word} than its history: {:.2}× the mean time of {} earlier runs over {} sizes, relative to the run's common move (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
+            "{word} than its history: {:.2}× the mean time of {} earlier runs over {} sizes ({} of them the same way), relative to the run's common move (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
             m.ratio,
             hist.map_or(0, |h| h.runs),
             m.sizes,
+            m.same_way,
             m.raw_ratio,
             m.bar,
             m.spread
