@@ -200,7 +200,7 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         said.push(format!("{unclear} size(s) beyond the threshold but not significant"));
     }
     if within_history > 0 {
-        say_history(&mut said, within_history, hist.map_or(0, |h| h.runs));
+        said.push(format!("{within_history} size(s) beyond the threshold against the baseline but within how far its {} history runs wandered, not judged", hist.map_or(0, |h| h.runs)));
     }
     if busy > 0 {
         said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
@@ -213,11 +213,6 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     for l in wrap(&said.join("; "), width, &first, &rest) {
         let _ = writeln!(s, "{l}");
     }
-}
-
-/// Points whose change against the baseline the history's own spread holds.
-fn say_history(said: &mut Vec<String>, points: usize, runs: usize) {
-    said.push(format!("{points} size(s) beyond the threshold against the baseline but within how far its {runs} history runs wandered, not judged"));
 }
 
 /// What a workload adds after its designs: growth changes, a move of the whole workload,

@@ -129,19 +129,34 @@ fn rises_less(w: &WorkloadResults, cmps: &[&ComparisonRecord], winner: &str, los
 }
 
 /// A fitted crossover where `loser` becomes cheaper than `winner` beyond the measured
-/// sizes, with a finite interval, before the target (or within ×100 of the largest size
-/// when there is no target).
+/// sizes, before the target (or within ×100 of the largest size when there is no target).
+/// Whether it may decide the verdict is [`overtake_fails`]'s to say.
 fn predicted_overtake<'a>(a: &'a WorkloadAnalysis, winner: &str, loser: &str, largest: u64) -> Option<&'a CrossoverOut> {
     let limit = a.predict_at.map(|t| t as f64).unwrap_or(largest as f64 * 100.0);
-    a.crossovers.iter().find(|c| {
-        c.faster_below == winner
-            && c.faster_above == loser
-            && !c.inside_measured
-            && c.bounded
-            && c.rows > largest as f64
-            && c.rows_low > largest as f64 * 0.5
-            && c.rows <= limit
-    })
+    a.crossovers.iter().find(|c| c.faster_below == winner && c.faster_above == loser && !c.inside_measured && c.rows > largest as f64 && c.rows <= limit)
+}
+
+/// The first condition of a `crossover` verdict that the fitted crossing `c` of `winner`
+/// fails, in words ("but its measured ratio is not shrinking steadily"); None when it meets
+/// them all: an interval that is finite and lies beyond the measured sizes, a ratio that
+/// shrank at each of the last [`TREND_SIZES`] sizes, and a cost that rose clearly less than
+/// the winner's over the last step (a shrinking ratio alone also fits a design with a larger
+/// fixed cost and the same cost per row, which approaches the winner but never passes it).
+/// The verdict ([`overtaken`]) and the note on a crossing it does not act on
+/// ([`unacted_crossing`]) both ask here, so the two cannot disagree.
+fn overtake_fails(w: &WorkloadResults, cmps: &[&ComparisonRecord], winner: &str, c: &CrossoverOut, largest: u64) -> Option<String> {
+    let ax = w.header.axis();
+    if !c.bounded {
+        Some(format!("but the fits do not pin it down (the two costs may still be equal from {} to the end of the search)", ax.value_f(c.rows_low)))
+    } else if c.rows_low <= largest as f64 * 0.5 {
+        Some(format!("but its interval reaches back to {}, inside the measured sizes", ax.value_f(c.rows_low)))
+    } else if shrinking_ratio(cmps, winner, &c.faster_above).is_none() {
+        Some(format!("but its measured ratio to `{winner}` is not shrinking steadily"))
+    } else if !rises_less(w, cmps, winner, &c.faster_above) {
+        Some(format!("but its cost rose about as much as `{winner}`'s over the last step measured (a larger fixed cost with the same cost per row comes closer without passing)"))
+    } else {
+        None
+    }
 }
 
 /// Which design to use, from what size, and why (module doc).
@@ -290,14 +305,11 @@ fn overtaken(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecor
     let best = &ranked[0].design;
     let at = ax.point(largest);
     for r in ranked.iter().skip(1) {
-        let Some(trend) = shrinking_ratio(cmps, best, &r.design) else { continue };
         let Some(c) = predicted_overtake(a, best, &r.design, largest) else { continue };
-        // A shrinking ratio alone also fits a design with a larger fixed cost and the same
-        // cost per row, which approaches the winner but never passes it: the loser's cost
-        // must also have risen clearly less than the winner's over the last step.
-        if !rises_less(w, cmps, best, &r.design) {
+        if overtake_fails(w, cmps, best, c, largest).is_some() {
             continue;
         }
+        let Some(trend) = shrinking_ratio(cmps, best, &r.design) else { continue };
         let steps: Vec<String> = trend.iter().map(|x| ratio(*x)).collect();
         return Some(Verdict {
             kind: VerdictKind::Crossover,
@@ -320,24 +332,11 @@ fn overtaken(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&ComparisonRecor
 }
 
 /// A fitted crossing of `best` by another design before the target that the verdict does
-/// not act on, with the first of [`overtaken`]'s conditions it fails, in words ("but its
-/// measured ratio is not shrinking steadily").
+/// not act on, with the condition it fails ([`overtake_fails`]).
 pub fn unacted_crossing<'a>(w: &WorkloadResults, a: &'a WorkloadAnalysis, cmps: &[&ComparisonRecord], best: &str) -> Option<(&'a CrossoverOut, String)> {
     let largest = cmps.last()?.rows;
     let c = a.crossovers.iter().find(|c| c.faster_below == best && !c.inside_measured && a.predict_at.is_some_and(|t| c.rows <= t as f64))?;
-    let ax = w.header.axis();
-    let why = if !c.bounded {
-        format!("but the fits do not pin it down (the two costs may still be equal from {} to the end of the search)", ax.value_f(c.rows_low))
-    } else if c.rows_low <= largest as f64 * 0.5 {
-        format!("but its interval reaches back to {}, inside the measured sizes", ax.value_f(c.rows_low))
-    } else if shrinking_ratio(cmps, best, &c.faster_above).is_none() {
-        format!("but its measured ratio to `{best}` is not shrinking steadily")
-    } else if !rises_less(w, cmps, best, &c.faster_above) {
-        format!("but its cost rose about as much as `{best}`'s over the last step measured (a larger fixed cost with the same cost per row comes closer without passing)")
-    } else {
-        return None;
-    };
-    Some((c, why))
+    overtake_fails(w, cmps, best, c, largest).map(|why| (c, why))
 }
 
 /// For a measured winner: a crossover inside the measured range ("below about 8k `x` is
@@ -353,14 +352,9 @@ fn crossing_notes(w: &WorkloadResults, a: &WorkloadAnalysis, cmps: &[&Comparison
         .max_by(|x, y| x.rows.total_cmp(&y.rows))
         .map(|c| format!("; below about {} `{}` is cheaper", ax.point_f(c.rows), c.faster_below))
         .unwrap_or_default();
-    let unsupported = match (cmps.last(), unacted_crossing(w, a, cmps, best)) {
-        (Some(_), Some((c, why))) => format!(
-            " (the fitted curves of `{}` cross below the target, at about {}, {why}: measure a larger size before acting on it)",
-            c.faster_above,
-            ax.point_f(c.rows)
-        ),
-        _ => String::new(),
-    };
+    let unsupported = unacted_crossing(w, a, cmps, best)
+        .map(|(c, why)| format!(" (the fitted curves of `{}` cross below the target, at about {}, {why}: measure a larger size before acting on it)", c.faster_above, ax.point_f(c.rows)))
+        .unwrap_or_default();
     (below, unsupported)
 }
 

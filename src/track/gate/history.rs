@@ -6,9 +6,9 @@
 //! catalog sweeps of unchanged code over two sessions (4 December, a 2-core Xeon): the
 //! two-run gate failed 10 of 63 ordered pairings (on `ipc-per-parcel` ×1.4–×1.6, `window`
 //! ×1.2–×1.5, `binary-search` ×1.2–×1.4, `hash-index-prebuilt` ×1.2–×1.3, a column build
-//! ×1.2 at two sizes, a self-join ×1.11 over its sizes: each time one run out of line). A history of runs of the
-//! baseline's code shows how far each design wanders by itself, and a change is called only
-//! beyond that.
+//! ×1.2 at two sizes, a self-join ×1.11 over its sizes: each time one run out of line). A
+//! history of runs of the baseline's code shows how far each design wanders by itself, and
+//! a change is called only beyond that.
 //!
 //! For one workload with at least [`MIN_RUNS`] history runs (the baseline among them), over
 //! the points measured cleanly (not busy, not split) in the new run and every history run:
@@ -94,11 +94,6 @@ fn sd(v: &[f64]) -> f64 {
     (v.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (v.len() as f64 - 1.0)).sqrt()
 }
 
-fn median(mut v: Vec<f64>) -> f64 {
-    v.sort_by(f64::total_cmp);
-    crate::fit::sample::quantile_sorted(&v, 0.5)
-}
-
 /// The log median of a clean point.
 fn clean(w: &WorkloadResults, design: &str, rows: u64) -> Option<f64> {
     let m = w.point(design, rows)?.measured.as_ref()?;
@@ -136,6 +131,8 @@ fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], nw: &WorkloadR
         return;
     }
     let mu: Vec<f64> = keys.iter().map(|(_, _, _, h)| mean(h)).collect();
+    // Logs of positive medians: finite, and at least MIN_SIZES of them.
+    let median = |v: Vec<f64>| crate::fit::sample::median(&v).unwrap_or(0.0);
     let common_new = median(keys.iter().zip(&mu).map(|(key, m)| key.2 - m).collect());
     let common_h: Vec<f64> = (0..k).map(|j| median(keys.iter().zip(&mu).map(|(key, m)| key.3[j] - m).collect())).collect();
     let eff_new: Vec<f64> = keys.iter().zip(&mu).map(|(key, m)| key.2 - m - common_new).collect();
