@@ -11,6 +11,7 @@ use crate::spec::units::parse_share;
 use crate::track::gate::{compare, compare_pair, GateOptions, GateReport};
 use std::path::{Path, PathBuf};
 
+mod recheck;
 mod render;
 pub use render::render;
 
@@ -55,6 +56,16 @@ pub struct Args {
     /// baseline alone. Keep eight or more (README, "Using the gate in CI").
     #[arg(long, value_name = "DIR", conflicts_with = "pair")]
     pub history: Option<PathBuf>,
+    /// Before failing, sweep each failing workload of the new run again (same file, sizes,
+    /// budgets and designs, a fresh process each) until N runs of the new code are at hand,
+    /// and call a change only beyond how far those runs wander by themselves. Costs up to
+    /// N − 1 sweeps of each failing workload; they are kept in NEW/rechecks and reused.
+    /// Run the gate from the folder the sweep was run from (workload paths are relative).
+    #[arg(long, value_name = "N", conflicts_with = "pair")]
+    pub recheck: Option<usize>,
+    /// Let `--recheck` run designs that are programs again.
+    #[arg(long, requires = "recheck")]
+    pub allow_programs: bool,
     /// Print the comparison as JSON.
     #[arg(long)]
     pub json: bool,
@@ -83,6 +94,9 @@ pub fn run(a: Args) -> Result<(), Failure> {
     };
     if let Some(m) = threshold.and_then(crate::spec::limits::threshold_problem) {
         return bad(format!("--threshold: {m}"));
+    }
+    if let Some(n) = a.recheck.filter(|&n| n < recheck::MIN_RUNS) {
+        return bad(format!("--recheck: expected at least {} runs of the new code (the new run among them), found {n}", recheck::MIN_RUNS));
     }
     if !(a.alpha > 0.0 && a.alpha < 1.0) {
         return bad(format!("--alpha: expected a level between 0 and 1, found {}", a.alpha));
@@ -140,6 +154,12 @@ pub fn run(a: Args) -> Result<(), Failure> {
     }
     if report.workloads.is_empty() {
         return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
+    }
+    if let Some(runs) = a.recheck {
+        let how = recheck::Recheck { runs, allow_programs: a.allow_programs, new_dir, quiet: false };
+        if let Err(m) = recheck::recheck(&mut report, &base, &new, &how) {
+            return bad(m);
+        }
     }
     answer(&report, a.json)
 }

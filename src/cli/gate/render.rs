@@ -56,6 +56,25 @@ pub fn render(r: &GateReport) -> String {
         };
         para(&mut s, "history", &text);
     }
+    if let Some(rc) = &r.recheck {
+        let mut text = if rc.workloads.is_empty() && rc.not_rechecked.is_empty() {
+            "nothing would have failed, so nothing was swept again".to_string()
+        } else if rc.workloads.is_empty() {
+            "no failing workload could be swept again".to_string()
+        } else {
+            format!(
+                "{} swept again to {} runs of the new code ({} new sweep(s), kept in {}): a change there is called only where the baseline lies beyond how far those runs wandered by themselves, after each run's common move",
+                rc.workloads.join(", "),
+                rc.runs,
+                rc.swept,
+                rc.folder
+            )
+        };
+        for (w, why) in &rc.not_rechecked {
+            text.push_str(&format!("; {w} not rechecked: {why}"));
+        }
+        para(&mut s, "rechecked", &text);
+    }
     if let Some(text) = machine_moves(r) {
         para(&mut s, "machine", &text);
     }
@@ -101,6 +120,17 @@ fn para(s: &mut String, width: usize, label: &str, text: &str) {
     for l in wrap(text, width, &first, &rest) {
         let _ = writeln!(s, "{l}");
     }
+}
+
+/// A design's call against runs of one side's code (`--history`, `--recheck`), in words.
+fn against_runs(h: Option<&crate::track::gate::History>, d: &str, how: &str, runs: &str) -> Option<String> {
+    let h = h?;
+    let m = h.moves.iter().find(|m| m.design == d && matches!(m.call, Call::Regression | Call::Improvement))?;
+    let word = if m.call == Call::Regression { "slower" } else { "faster" };
+    Some(format!(
+        "{word} {how}: {:.2}× over {} sizes ({} of them the same way), the new code's time against the baseline's relative to each run's common move, from {} {runs} (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
+        m.ratio, m.sizes, m.same_way, h.runs, m.raw_ratio, m.bar, m.spread
+    ))
 }
 
 /// One design's paragraph: where it got slower or faster (ratio judged, interval, rank
@@ -153,19 +183,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         ));
     }
     let hist = w.history.as_ref();
-    if let Some(m) = hist.and_then(|h| h.moves.iter().find(|m| m.design == d && matches!(m.call, Call::Regression | Call::Improvement))) {
-        let word = if m.call == Call::Regression { "slower" } else { "faster" };
-        said.push(format!(
-            "{word} than its history: {:.2}× the mean time of {} earlier runs over {} sizes ({} of them the same way), relative to the run's common move (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
-            m.ratio,
-            hist.map_or(0, |h| h.runs),
-            m.sizes,
-            m.same_way,
-            m.raw_ratio,
-            m.bar,
-            m.spread
-        ));
-    }
+    let again = w.recheck.as_ref();
+    said.extend(against_runs(hist, d, "than its history", "earlier runs"));
+    said.extend(against_runs(again, d, "in the new code's own runs", "runs of the new code"));
     if !slower.is_empty() {
         said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
     }
@@ -184,9 +204,12 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
     let split = pts.iter().filter(|p| p.call == Call::Unclear && p.split && !p.busy).count();
-    let held_by_history = |p: &crate::track::gate::PointGate| hist.is_some_and(|h| h.held.iter().any(|(hd, n)| hd == d && *n == p.rows));
+    let held_in = |h: Option<&crate::track::gate::History>, p: &crate::track::gate::PointGate| h.is_some_and(|h| h.held.iter().any(|(hd, n)| hd == d && *n == p.rows));
+    let held_by_history = |p: &crate::track::gate::PointGate| held_in(hist, p);
+    let held_by_recheck = |p: &crate::track::gate::PointGate| held_in(again, p) && !held_in(hist, p);
     let within_history = pts.iter().filter(|p| p.call == Call::Unclear && held_by_history(p)).count();
-    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split && !held_by_history(p)).count();
+    let within_recheck = pts.iter().filter(|p| p.call == Call::Unclear && held_by_recheck(p)).count();
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split && !held_by_history(p) && !held_by_recheck(p)).count();
     let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
     if said.is_empty() {
         let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
@@ -201,6 +224,9 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     if within_history > 0 {
         said.push(format!("{within_history} size(s) beyond the threshold against the baseline but within how far its {} history runs wandered, not judged", hist.map_or(0, |h| h.runs)));
+    }
+    if within_recheck > 0 {
+        said.push(format!("{within_recheck} size(s) beyond the threshold against the baseline but within how far {} runs of the new code wandered, not judged", again.map_or(0, |h| h.runs)));
     }
     if busy > 0 {
         said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
@@ -324,7 +350,7 @@ mod tests {
                 small_only: false,
             })
             .collect();
-        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None, moves: vec![], history: None };
+        let w = WorkloadGate { workload: "w".into(), threshold: 0.1, points, growth: vec![], missing: vec![], unmatched_designs: vec![], common_mode: None, axis: None, moves: vec![], history: None, recheck: None };
         GateReport { baseline_run: "a".into(), new_run: "b".into(), yardstick_ratio: Some(1.02), workloads: vec![w], ..Default::default() }
     }
 

@@ -93,9 +93,14 @@ fn least_moved(wg: &WorkloadGate, judged: &dyn Fn(&PointGate) -> f64) -> Option<
         })
         .collect();
     match moves[..] {
-        [a, b] if a * b > 0.0 => Some(if a.abs() < b.abs() { a } else { b }),
+        [a, b] => shared_move(a, b),
         _ => None,
     }
+}
+
+/// What two designs' moves (logs) share: the smaller when both went the same way.
+pub(super) fn shared_move(a: f64, b: f64) -> Option<f64> {
+    (a * b > 0.0).then_some(if a.abs() < b.abs() { a } else { b })
 }
 
 #[cfg(test)]
@@ -145,6 +150,7 @@ mod tests {
             axis: None,
             moves: vec![],
             history: None,
+            recheck: None,
         }
     }
 

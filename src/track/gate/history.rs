@@ -30,6 +30,19 @@
 //!   history agrees: a point whose effect stays within its own bar, or a design move the
 //!   history does not call, is `unclear` (the text says the history holds it).
 //!
+//! The same judgement serves `gate --recheck N` from the other side ([`Side::New`]): the
+//! runs are the new run and its workloads swept again, the run judged is the baseline, and
+//! its effect is turned round so that a slower new code still reads as a regression. There
+//! it only confirms or clears the designs the baseline alone called ([`suspects`]), at the
+//! one-sided level [`RECHECK_LEVEL`]. Measured on 56 ordered pairings of eight unchanged
+//! catalog sweeps and 40 pairings of those against five with `build-once` slowed 15%, each
+//! new run with four others of its own code as its resweeps: 16 of 56 unchanged pairings
+//! failed against the baseline alone, none with the recheck; the slowdown was caught in 20
+//! of 40, and 19 with the recheck; other designs called beside it went from 8 of 40 to
+//! none. A baseline sweep that was itself out of line can still read as a change: before
+//! the two-design common move below, one unchanged pairing kept failing that way (a window
+//! query its baseline's sweep ran ×1.2–×1.5 faster than the other sweeps did).
+//!
 //! Measured (`benches/gate-history.py`) on fourteen catalog sweeps of unchanged code over
 //! two sessions and five with row-growth's `build-once` slowed by `slowdown: 15%`: against
 //! the baseline alone 39 of 182 unchanged pairings failed and the slowdown was caught in 29
@@ -51,6 +64,9 @@ use serde::{Deserialize, Serialize};
 pub const MIN_RUNS: usize = 5;
 /// One-sided level of the prediction bound.
 pub const LEVEL: f64 = 0.995;
+/// One-sided level of the bound when the runs are the new code's (`--recheck`): each design
+/// the baseline alone called is asked once, not every design of every workload.
+pub const RECHECK_LEVEL: f64 = 0.975;
 /// Fewest sizes a design's effect is averaged over.
 pub const MIN_SIZES: usize = 3;
 
@@ -63,6 +79,21 @@ pub struct History {
     pub moves: Vec<HistoryMove>,
     /// Points whose change against the baseline the history's spread holds (design, size).
     pub held: Vec<(String, u64)>,
+}
+
+/// The resweeps of `gate --recheck N`.
+#[derive(Debug, Clone, Default, Serialize, Deserialize)]
+pub struct RecheckSummary {
+    /// Runs of the new code asked for per workload, the new run among them.
+    pub runs: usize,
+    /// Workloads judged against their resweeps.
+    pub workloads: Vec<String>,
+    /// Resweeps made now (earlier ones kept in the new run's `rechecks/` are reused).
+    pub swept: usize,
+    /// Workloads that would have failed but could not be swept again, with the reason.
+    pub not_rechecked: Vec<(String, String)>,
+    /// Where the resweeps are.
+    pub folder: String,
 }
 
 /// One design's move against its history.
@@ -94,6 +125,24 @@ fn sd(v: &[f64]) -> f64 {
     (v.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (v.len() as f64 - 1.0)).sqrt()
 }
 
+/// A run's common move over a workload's points (`moved[i]`: log median − the history's
+/// mean at point i, of design `designs[i]`): the median over the points, which one design
+/// of three or more cannot carry. With two designs a median lies between them, so one
+/// design slowed by ×3 read as ×1.5 slower and the other ×0.7 faster (measured, a recheck
+/// of a build step made three times the work); there, as for the gate against the baseline
+/// alone (`common::least_moved`), the smaller of the two designs' median moves when both
+/// went the same way, and none when they went opposite ways.
+fn common_move(designs: &[&str], moved: &[f64]) -> f64 {
+    let median = |v: &[f64]| crate::fit::sample::median(v).unwrap_or(0.0);
+    let mut names: Vec<&str> = designs.to_vec();
+    names.dedup();
+    if names.len() != 2 {
+        return median(moved);
+    }
+    let of = |d: &str| median(&designs.iter().zip(moved).filter(|(n, _)| **n == d).map(|(_, v)| *v).collect::<Vec<_>>());
+    common::shared_move(of(names[0]), of(names[1])).unwrap_or(0.0)
+}
+
 /// The log median of a clean point.
 fn clean(w: &WorkloadResults, design: &str, rows: u64) -> Option<f64> {
     let m = w.point(design, rows)?.measured.as_ref()?;
@@ -110,13 +159,48 @@ pub fn judge(report: &mut GateReport, history: &[&RunResults], new: &RunResults)
             .filter_map(|r| r.workloads.iter().find(|w| w.header.workload == wg.workload && w.header.axis == nw.header.axis))
             .collect();
         if hs.len() >= MIN_RUNS {
-            judge_workload(wg, &hs, nw);
+            let out = judge_workload(wg, &hs, nw, Side::Baseline);
+            wg.history = Some(out);
         }
     }
     report.recount();
 }
 
-fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], nw: &WorkloadResults) {
+/// Whose code the runs of a history are: the baseline's (`--history`: the new run is judged
+/// against them) or the new run's (`--recheck`: the new run's workloads swept again, and
+/// the baseline judged against them, with the sign turned so that a slower new code still
+/// reads as a regression).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Side {
+    Baseline,
+    New,
+}
+
+/// The designs a recheck asks about: those the baseline alone (or the baseline's history)
+/// called slower, at confirmed sizes, across their sizes or in growth. A recheck confirms or
+/// clears these; it calls nothing new. (Asking also about designs that came out slower by
+/// more than the threshold without being called caught a 15% slowdown in 31 of 40 pairings
+/// instead of 19, but let 11 of 56 pairings of unchanged code fail instead of 1: a baseline
+/// sweep out of line on some design reads as a slowdown of the new code, and the recheck,
+/// which has only the new code at hand, cannot tell.)
+pub fn suspects(wg: &WorkloadGate) -> Vec<String> {
+    let mut v: Vec<String> = wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).map(|p| p.design.clone()).collect();
+    v.extend(wg.moves.iter().filter(|m| m.call == Call::Regression).map(|m| m.design.clone()));
+    v.extend(wg.growth.iter().filter(|g| g.call == Call::Regression).map(|g| g.design.clone()));
+    v.extend(wg.history.iter().flat_map(|h| &h.moves).filter(|m| m.call == Call::Regression).map(|m| m.design.clone()));
+    v.sort();
+    v.dedup();
+    v
+}
+
+/// Judge one workload's calls against runs of one side's code, `judged` being a run of the
+/// other side (module doc); the calls against the baseline alone that the runs do not
+/// support become `unclear`.
+pub fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], judged: &WorkloadResults, side: Side) -> History {
+    let nw = judged;
+    // Effects are read as the new code's change: the judged run's own for a history of the
+    // baseline's code, turned round for a history of the new code.
+    let sign = if side == Side::Baseline { 1.0 } else { -1.0 };
     let k = hs.len();
     // Points clean in the new run and in every history run: (design, rows, new, history).
     let mut keys: Vec<(String, u64, f64, Vec<f64>)> = Vec::new();
@@ -128,16 +212,20 @@ fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], nw: &WorkloadR
         }
     }
     if keys.len() < MIN_SIZES {
-        return;
+        return History { runs: k, ..Default::default() };
     }
     let mu: Vec<f64> = keys.iter().map(|(_, _, _, h)| mean(h)).collect();
-    // Logs of positive medians: finite, and at least MIN_SIZES of them.
-    let median = |v: Vec<f64>| crate::fit::sample::median(&v).unwrap_or(0.0);
-    let common_new = median(keys.iter().zip(&mu).map(|(key, m)| key.2 - m).collect());
-    let common_h: Vec<f64> = (0..k).map(|j| median(keys.iter().zip(&mu).map(|(key, m)| key.3[j] - m).collect())).collect();
-    let eff_new: Vec<f64> = keys.iter().zip(&mu).map(|(key, m)| key.2 - m - common_new).collect();
+    let designs: Vec<&str> = keys.iter().map(|key| key.0.as_str()).collect();
+    let common_new = common_move(&designs, &keys.iter().zip(&mu).map(|(key, m)| key.2 - m).collect::<Vec<_>>());
+    let common_h: Vec<f64> = (0..k).map(|j| common_move(&designs, &keys.iter().zip(&mu).map(|(key, m)| key.3[j] - m).collect::<Vec<_>>())).collect();
+    let eff_new: Vec<f64> = keys.iter().zip(&mu).map(|(key, m)| sign * (key.2 - m - common_new)).collect();
     let eff_h: Vec<Vec<f64>> = keys.iter().zip(&mu).map(|(key, m)| (0..k).map(|j| key.3[j] - m - common_h[j]).collect()).collect();
-    let t = crate::fit::dist::student_t_quantile(LEVEL, (k - 1) as f64).unwrap_or(f64::INFINITY);
+    let level = if side == Side::Baseline { LEVEL } else { RECHECK_LEVEL };
+    let t = crate::fit::dist::student_t_quantile(level, (k - 1) as f64).unwrap_or(f64::INFINITY);
+    // A recheck confirms or clears what the baseline alone called or came near calling.
+    let mut flagged = if side == Side::New { suspects(wg) } else { vec![] };
+    flagged.extend(wg.moves.iter().filter(|m| m.call == Call::Improvement).map(|m| m.design.clone()));
+    flagged.extend(wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).map(|p| p.design.clone()));
     let floor = (1.0 + wg.threshold).ln();
     let bar = |s: f64| floor.max(t * s * (1.0 + 1.0 / k as f64).sqrt());
     let mut out = History { runs: k, ..Default::default() };
@@ -165,13 +253,15 @@ fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], nw: &WorkloadR
         let e = mean(&idx.iter().map(|&i| eff_new[i]).collect::<Vec<_>>());
         let per_run: Vec<f64> = (0..k).map(|j| mean(&idx.iter().map(|&i| eff_h[i][j]).collect::<Vec<_>>())).collect();
         let s = sd(&per_run);
-        let raw = mean(&idx.iter().map(|&i| keys[i].2 - mu[i]).collect::<Vec<_>>());
+        let raw = sign * mean(&idx.iter().map(|&i| keys[i].2 - mu[i]).collect::<Vec<_>>());
         let b = bar(s);
         // A change of the code moves every size; one size far out (a point ×1.8 in one
         // run) can carry the mean alone.
         let same_way = idx.iter().filter(|&&i| eff_new[i] != 0.0 && (eff_new[i] > 0.0) == (e > 0.0)).count();
         let steady = same_way + 1 >= idx.len();
-        let call = if e.abs() <= b {
+        let call = if side == Side::New && !flagged.iter().any(|f| f == name) {
+            Call::Same
+        } else if e.abs() <= b {
             Call::Same
         } else if e > 0.0 && raw > 0.0 && steady {
             Call::Regression
@@ -184,17 +274,41 @@ fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], nw: &WorkloadR
     }
     // A design moved over its sizes against the baseline alone stands only where its history
     // calls it the same way.
+    let earlier = wg.history.iter_mut().flat_map(|h| h.moves.iter_mut()).filter(|_| side == Side::New);
     for m in wg.moves.iter_mut().filter(|m| matches!(m.call, Call::Regression | Call::Improvement)) {
         if !out.moves.iter().any(|h| h.design == m.design && h.call == m.call) {
             m.call = Call::Unclear;
         }
     }
-    wg.history = Some(out);
+    // With both a history and a recheck, a design the history called stands only where the
+    // recheck calls it too.
+    for m in earlier.filter(|m| matches!(m.call, Call::Regression | Call::Improvement)) {
+        if !out.moves.iter().any(|h| h.design == m.design && h.call == m.call) {
+            m.call = Call::Unclear;
+        }
+    }
+    out
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The common move by hand: with two designs, what both moved (the smaller move when
+    /// they agree, none when they do not); with three, the median over the points.
+    #[test]
+    fn two_designs_share_only_what_both_moved() {
+        let d = ["a", "a", "a", "b", "b", "b"];
+        let one_moved = [3f64.ln(); 3].iter().chain(&[0.0; 3]).copied().collect::<Vec<_>>();
+        assert_eq!(common_move(&d, &one_moved), 0.0);
+        let both = [0.3, 0.3, 0.3, 0.1, 0.1, 0.1];
+        assert!((common_move(&d, &both) - 0.1).abs() < 1e-12);
+        let apart = [0.3, 0.3, 0.3, -0.1, -0.1, -0.1];
+        assert_eq!(common_move(&d, &apart), 0.0);
+        let three = ["a", "a", "b", "b", "c", "c"];
+        let moved = [1.0, 1.0, 0.1, 0.1, 0.0, 0.0];
+        assert!((common_move(&three, &moved) - 0.1).abs() < 1e-12);
+    }
 
     /// Hand check of the bar: five history runs whose effects have a standard deviation of
     /// 0.02; t(0.995, 4) = 4.604 (any t table); √(1 + 1/5) = 1.0954; so the bar is

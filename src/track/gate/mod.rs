@@ -48,7 +48,7 @@ mod points;
 mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
-pub use history::{judge as judge_with_history, History, HistoryMove, MIN_RUNS as HISTORY_MIN_RUNS};
+pub use history::{judge as judge_with_history, judge_workload as judge_runs, suspects, History, HistoryMove, RecheckSummary, Side, MIN_RUNS as HISTORY_MIN_RUNS};
 pub use pair::compare_pair;
 pub use steady::{design_moves, DesignMove};
 
@@ -207,6 +207,11 @@ pub struct WorkloadGate {
     /// workload had enough of them.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub history: Option<History>,
+    /// What the new run's workload swept again said (`gate --recheck`): the baseline judged
+    /// against the new code's own runs, with the sign turned (a regression is still the new
+    /// code slower). `runs` counts the new run with its resweeps.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recheck: Option<History>,
 }
 
 /// What the points of a workload moved together between the two runs.
@@ -246,7 +251,11 @@ pub struct GateReport {
     /// `gate --history DIR`: how many runs the history held (the baseline among them).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub history_runs: Option<usize>,
+    /// `gate --recheck N`: what was swept again and what could not be.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub recheck: Option<RecheckSummary>,
 }
+
 
 /// How far the machine itself moved between the two runs, as its probes saw it: the
 /// yardstick (once per run), and the drift probe and the memory probe (at every compared
@@ -310,7 +319,7 @@ impl GateReport {
         self.growth_regressions += wg.growth.iter().filter(|g| g.call == Call::Regression).count();
         // A design slower over its sizes against the baseline, or against its history, once.
         let mut slower: Vec<&str> = wg.moves.iter().filter(|m| m.call == Call::Regression).map(|m| m.design.as_str()).collect();
-        slower.extend(wg.history.iter().flat_map(|h| &h.moves).filter(|m| m.call == Call::Regression).map(|m| m.design.as_str()));
+        slower.extend(wg.history.iter().chain(&wg.recheck).flat_map(|h| &h.moves).filter(|m| m.call == Call::Regression).map(|m| m.design.as_str()));
         slower.sort_unstable();
         slower.dedup();
         self.design_regressions += slower.len();
@@ -377,6 +386,7 @@ fn compare_workload(bw: &WorkloadResults, nw: &WorkloadResults, opts: &GateOptio
         axis: nw.header.axis.clone(),
         moves: vec![],
         history: None,
+        recheck: None,
     };
     for d in &bw.header.designs {
         if !nw.header.designs.iter().any(|x| x.name == d.name) {

@@ -56,6 +56,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
         axis: w.header.axis.clone(),
         moves: vec![],
         history: None,
+        recheck: None,
     };
     let mut sizes: Vec<u64> = w.points.iter().filter(|p| p.design == old || p.design == new).map(|p| p.rows).collect();
     sizes.sort_unstable();

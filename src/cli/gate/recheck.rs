@@ -1,0 +1,187 @@
+//! `gate BASELINE NEW --recheck N`: before failing, sweep each failing workload of the new
+//! run again (the same workload file, sizes, budgets and designs, in a fresh `framecost
+//! sweep` process each time) until N runs of the new code are at hand, and judge the
+//! baseline against how far those runs wander by themselves (`track::gate::history`, from
+//! the new code's side). A design that was only out of line in the new sweep is then let
+//! through; one that is slower in every run of the new code still fails.
+//!
+//! What it cannot do: the baseline's code is not at hand, so a baseline that was itself out
+//! of line (a design faster than usual in that sweep) still reads as a slowdown; a history
+//! of the baseline's code (`--history`) covers that side.
+//!
+//! The resweeps are kept in the new run's folder (`rechecks/<workload>-<k>`); a later gate
+//! of the same run reuses those whose workload file is unchanged (same spec hash).
+
+use crate::results::reader::{RunResults, WorkloadResults};
+use crate::track::gate::{GateReport, RecheckSummary, Side, HISTORY_MIN_RUNS};
+use std::path::{Path, PathBuf};
+use std::process::{Command, Stdio};
+
+/// Fewest runs of the new code `--recheck` accepts (the new run among them).
+pub const MIN_RUNS: usize = HISTORY_MIN_RUNS;
+
+/// What `--recheck` needs besides the runs.
+pub struct Recheck<'a> {
+    pub runs: usize,
+    pub allow_programs: bool,
+    pub new_dir: &'a Path,
+    pub quiet: bool,
+}
+
+/// Sweep the failing workloads again and judge them (module doc). Errors are for the
+/// folder itself; a workload that cannot be swept again is listed with its reason.
+pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: &Recheck) -> Result<(), String> {
+    let folder = r.new_dir.join("rechecks");
+    let mut summary = RecheckSummary { runs: r.runs, folder: folder.display().to_string(), ..Default::default() };
+    let wanted: Vec<String> = report.workloads.iter().filter(|w| !crate::track::gate::suspects(w).is_empty()).map(|w| w.workload.clone()).collect();
+    // Each failing workload with the resweeps it still needs, and how to make them (or why
+    // they cannot be made: the kept ones still count).
+    let mut plans: Vec<(&WorkloadResults, usize, Result<Vec<String>, String>)> = Vec::new();
+    for name in &wanted {
+        let Some(nw) = new.workloads.iter().find(|w| &w.header.workload == name) else { continue };
+        let need = r.runs.saturating_sub(1 + kept(&folder, nw).len());
+        let args = if need > 0 { sweep_args(nw, new, r.allow_programs) } else { Ok(vec![]) };
+        plans.push((nw, need, args));
+    }
+    if plans.iter().any(|(_, need, args)| *need > 0 && args.is_ok()) {
+        std::fs::create_dir_all(&folder).map_err(|e| format!("--recheck: cannot create {}: {e}", folder.display()))?;
+    }
+    for (nw, need, args) in plans.iter_mut() {
+        if let (Err(why), true) = (&args, *need > 0) {
+            summary.not_rechecked.push((nw.header.workload.clone(), why.clone()));
+            *need = 0;
+        }
+    }
+    // Rounds: every workload once per round, so a slow spell of the machine spreads over them.
+    let rounds = plans.iter().map(|(_, need, _)| *need).max().unwrap_or(0);
+    for round in 0..rounds {
+        for (nw, need, args) in plans.iter_mut() {
+            let (true, Ok(args)) = (*need > 0, &args) else { continue };
+            let name = &nw.header.workload;
+            let out = free_folder(&folder, name);
+            if !r.quiet {
+                eprintln!("framecost gate: sweeping {name} again ({} of {rounds}; the new run sampled it for {}) into {}", round + 1, crate::units::time_ns(spent_s(nw) * 1e9), out.display());
+            }
+            match sweep_again(args, &out) {
+                Ok(()) => {
+                    summary.swept += 1;
+                    *need -= 1;
+                }
+                Err(why) => {
+                    summary.not_rechecked.push((name.clone(), why));
+                    *need = 0;
+                }
+            }
+        }
+    }
+    for (nw, _, _) in &plans {
+        let name = &nw.header.workload;
+        let runs = kept(&folder, nw);
+        let Some(bw) = base.workloads.iter().find(|w| &w.header.workload == name) else { continue };
+        let Some(wg) = report.workloads.iter_mut().find(|w| &w.workload == name) else { continue };
+        let mut hs: Vec<&WorkloadResults> = vec![nw];
+        hs.extend(runs.iter().filter_map(|run| run.workloads.iter().find(|w| &w.header.workload == name)));
+        if hs.len() < MIN_RUNS {
+            if !summary.not_rechecked.iter().any(|(n, _)| n == name) {
+                summary.not_rechecked.push((name.clone(), format!("only {} run(s) of the new code; {MIN_RUNS} are needed", hs.len())));
+            }
+            continue;
+        }
+        let out = crate::track::gate::judge_runs(wg, &hs, bw, Side::New);
+        wg.recheck = Some(out);
+        summary.workloads.push(name.clone());
+    }
+    report.recheck = Some(summary);
+    report.recount();
+    Ok(())
+}
+
+/// Seconds the new run spent sampling the workload: what one resweep takes, about.
+fn spent_s(nw: &WorkloadResults) -> f64 {
+    nw.points.iter().filter_map(|p| p.measured.as_ref()).map(|m| m.spent_s).sum()
+}
+
+/// The complete resweeps of `nw`'s workload kept in `folder`, of the same workload file.
+fn kept(folder: &Path, nw: &WorkloadResults) -> Vec<RunResults> {
+    let name = &nw.header.workload;
+    let Ok(entries) = std::fs::read_dir(folder) else { return vec![] };
+    let mut paths: Vec<PathBuf> = entries.filter_map(|e| e.ok()).map(|e| e.path()).filter(|p| p.join("points.jsonl").is_file()).collect();
+    paths.sort();
+    paths
+        .iter()
+        .filter_map(|p| RunResults::read(p).ok())
+        .filter(|run| run.complete() && run.workloads.iter().any(|w| &w.header.workload == name && w.header.spec_hash == nw.header.spec_hash && w.header.axis == nw.header.axis))
+        .collect()
+}
+
+/// The first `rechecks/<workload>-<k>` not taken.
+fn free_folder(folder: &Path, name: &str) -> PathBuf {
+    (1..).map(|k| folder.join(format!("{name}-{k}"))).find(|p| !p.exists()).expect("a free name")
+}
+
+/// The `framecost sweep` arguments that measure the workload as the new run did, or why
+/// that is not possible.
+fn sweep_args(nw: &WorkloadResults, new: &RunResults, allow_programs: bool) -> Result<Vec<String>, String> {
+    let h = &nw.header;
+    let mut args = vec!["sweep".to_string()];
+    if let Some(name) = h.file.strip_prefix("builtin:") {
+        if crate::builtin::text(name) != Some(h.spec_text.as_str()) {
+            return Err(format!("the built-in `{name}` of this framecost differs from the one the new run swept"));
+        }
+        args.extend(["--builtin".to_string(), name.to_string()]);
+    } else {
+        match std::fs::read_to_string(&h.file) {
+            Ok(t) if t == h.spec_text => args.push(h.file.clone()),
+            Ok(_) => return Err(format!("{} changed since the new run was made", h.file)),
+            Err(e) => return Err(format!("{}: {e} (run the gate from the folder the sweep was run from)", h.file)),
+        }
+    }
+    if h.designs.iter().any(|d| d.program.is_some()) {
+        if !allow_programs {
+            return Err("its designs include programs; --allow-programs lets the gate run them again".into());
+        }
+        args.push("--allow-programs".into());
+    }
+    if h.axis.is_none() {
+        args.push("--sizes".into());
+        args.push(h.sizes.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(","));
+    }
+    let b = &h.budget;
+    args.extend([
+        "--point-budget".to_string(),
+        format!("{}s", b.per_point_s),
+        "--run-budget".to_string(),
+        format!("{}s", b.whole_run_s),
+        "--precision".to_string(),
+        format!("{}%", b.precision * 100.0),
+        "--max-samples".to_string(),
+        b.max_samples.to_string(),
+    ]);
+    for d in &h.designs {
+        args.extend(["--design".to_string(), d.name.clone()]);
+    }
+    if let Some(run) = &new.run {
+        if run.forced {
+            args.push("--force".into());
+        }
+        if run.cache_sweep_bytes.is_none() {
+            args.push("--warm-caches".into());
+        }
+    }
+    args.push("--quiet".into());
+    Ok(args)
+}
+
+/// One resweep in a fresh process; its own output is kept out of the gate's.
+fn sweep_again(args: &[String], out: &Path) -> Result<(), String> {
+    let exe = std::env::current_exe().map_err(|e| format!("cannot find framecost's own executable: {e}"))?;
+    let done = Command::new(exe).args(args).arg("--out").arg(out).stdin(Stdio::null()).stdout(Stdio::null()).stderr(Stdio::piped()).output();
+    let done = done.map_err(|e| format!("could not start a sweep: {e}"))?;
+    // 0, or 3 (a step failed or designs disagreed): the run is written either way.
+    if matches!(done.status.code(), Some(0) | Some(3)) && out.join("points.jsonl").is_file() {
+        return Ok(());
+    }
+    let err = String::from_utf8_lossy(&done.stderr);
+    let last = err.lines().rev().find(|l| !l.trim().is_empty()).unwrap_or("no message");
+    Err(format!("the sweep ended with {}: {last}", done.status))
+}
