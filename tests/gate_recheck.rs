@@ -104,6 +104,8 @@ fn too_few_runs_or_a_workload_file_out_of_reach_are_said() {
     let (rc, _, err) = gate(&d.join("baseline"), &d.join("new"), &["--recheck", "3"], &here);
     assert_eq!(rc, 2, "{err}");
     assert!(err.contains("at least 5"), "{err}");
+    let (rc, _, err) = gate(&d.join("baseline"), &d.join("new"), &["--recheck", "1000"], &here);
+    assert_eq!(rc, 2, "{err}");
     // No kept resweeps, and the workload file the new run was swept from is not reachable
     // from here: nothing is swept, the reason is given, and the baseline alone decides.
     let new = run_with_rechecks(&d.join("new"), &[]);

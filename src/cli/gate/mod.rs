@@ -95,8 +95,8 @@ pub fn run(a: Args) -> Result<(), Failure> {
     if let Some(m) = threshold.and_then(crate::spec::limits::threshold_problem) {
         return bad(format!("--threshold: {m}"));
     }
-    if let Some(n) = a.recheck.filter(|&n| n < recheck::MIN_RUNS) {
-        return bad(format!("--recheck: expected at least {} runs of the new code (the new run among them), found {n}", recheck::MIN_RUNS));
+    if let Some(n) = a.recheck.filter(|&n| !(recheck::MIN_RUNS..=recheck::MAX_RUNS).contains(&n)) {
+        return bad(format!("--recheck: expected at least {} and at most {} runs of the new code (the new run among them), found {n}", recheck::MIN_RUNS, recheck::MAX_RUNS));
     }
     if !(a.alpha > 0.0 && a.alpha < 1.0) {
         return bad(format!("--alpha: expected a level between 0 and 1, found {}", a.alpha));

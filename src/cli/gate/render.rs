@@ -122,14 +122,21 @@ fn para(s: &mut String, width: usize, label: &str, text: &str) {
     }
 }
 
-/// A design's call against runs of one side's code (`--history`, `--recheck`), in words.
-fn against_runs(h: Option<&crate::track::gate::History>, d: &str, how: &str, runs: &str) -> Option<String> {
+/// A design's call against runs of one side's code (`--history`, `--recheck`), in words;
+/// `what` says what its ratio is, given the number of runs.
+fn against_runs(h: Option<&crate::track::gate::History>, d: &str, how: &str, what: &dyn Fn(usize) -> String) -> Option<String> {
     let h = h?;
     let m = h.moves.iter().find(|m| m.design == d && matches!(m.call, Call::Regression | Call::Improvement))?;
     let word = if m.call == Call::Regression { "slower" } else { "faster" };
     Some(format!(
-        "{word} {how}: {:.2}× over {} sizes ({} of them the same way), the new code's time against the baseline's relative to each run's common move, from {} {runs} (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
-        m.ratio, m.sizes, m.same_way, h.runs, m.raw_ratio, m.bar, m.spread
+        "{word} {how}: {:.2}× over {} sizes ({} of them the same way), {}, relative to each run's common move (raw medians {:.2}×), beyond the ×{:.2} those runs allow (their own spread ×{:.3})",
+        m.ratio,
+        m.sizes,
+        m.same_way,
+        what(h.runs),
+        m.raw_ratio,
+        m.bar,
+        m.spread
     ))
 }
 
@@ -184,8 +191,8 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     let hist = w.history.as_ref();
     let again = w.recheck.as_ref();
-    said.extend(against_runs(hist, d, "than its history", "earlier runs"));
-    said.extend(against_runs(again, d, "in the new code's own runs", "runs of the new code"));
+    said.extend(against_runs(hist, d, "than its history", &|k| format!("the new run's time over the mean of {k} runs of the baseline's code")));
+    said.extend(against_runs(again, d, "in the new code's own runs", &|k| format!("the mean of {k} runs of the new code over the baseline's time")));
     if !slower.is_empty() {
         said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
     }

@@ -34,12 +34,14 @@
 //! runs are the new run and its workloads swept again, the run judged is the baseline, and
 //! its effect is turned round so that a slower new code still reads as a regression. There
 //! it only confirms or clears the designs the baseline alone called ([`suspects`]), at the
-//! one-sided level [`RECHECK_LEVEL`]. Measured on 56 ordered pairings of eight unchanged
-//! catalog sweeps and 40 pairings of those against five with `build-once` slowed 15%, each
-//! new run with four others of its own code as its resweeps: 16 of 56 unchanged pairings
-//! failed against the baseline alone, none with the recheck; the slowdown was caught in 20
-//! of 40, and 19 with the recheck; other designs called beside it went from 8 of 40 to
-//! none. A baseline sweep that was itself out of line can still read as a change: before
+//! one-sided level [`RECHECK_LEVEL`]. Measured (`benches/gate-recheck.py`) on 56 ordered
+//! pairings of eight unchanged catalog sweeps of one session and 40 pairings of those
+//! against five with `build-once` slowed 15%, each new run with four others of its own code
+//! as its resweeps: 16 of 56 unchanged pairings failed against the baseline alone, none
+//! with the recheck; the slowdown was caught in 20 of 40, and 19 with the recheck; other
+//! designs called beside it went from 8 of 40 to none. With fourteen unchanged sweeps of
+//! three sessions (182 pairings, 70 slowed): 39 failed alone, 8 with the recheck; caught 29
+//! and 25; others called beside it in 11 and 0. A baseline sweep that was itself out of line can still read as a change: before
 //! the two-design common move below, one unchanged pairing kept failing that way (a window
 //! query its baseline's sweep ran ×1.2–×1.5 faster than the other sweeps did).
 //!
@@ -178,11 +180,14 @@ pub enum Side {
 
 /// The designs a recheck asks about: those the baseline alone (or the baseline's history)
 /// called slower, at confirmed sizes, across their sizes or in growth. A recheck confirms or
-/// clears these; it calls nothing new. (Asking also about designs that came out slower by
-/// more than the threshold without being called caught a 15% slowdown in 31 of 40 pairings
-/// instead of 19, but let 11 of 56 pairings of unchanged code fail instead of 1: a baseline
-/// sweep out of line on some design reads as a slowdown of the new code, and the recheck,
-/// which has only the new code at hand, cannot tell.)
+/// clears these; it calls nothing new. Asking about more designs catches more and fails
+/// more unchanged code, because a baseline sweep out of line on some design reads as a
+/// slowdown of the new code, and the recheck, with only the new code at hand, cannot tell
+/// (`benches/gate-recheck.py`, 14 unchanged and 5 slowed catalog sweeps: these suspects
+/// failed 8 of 182 unchanged pairings and caught 25 of 70 slowed ones; adding designs
+/// slower over all their sizes by more than the threshold, with the interval past half of
+/// it and the raw medians risen, 17 and 44; adding every design whose move passed the
+/// threshold, on the first eight and five, 11 of 56 and 31 of 40 against 0 and 19).
 pub fn suspects(wg: &WorkloadGate) -> Vec<String> {
     let mut v: Vec<String> = wg.points.iter().filter(|p| p.call == Call::Regression && p.confirmed).map(|p| p.design.clone()).collect();
     v.extend(wg.moves.iter().filter(|m| m.call == Call::Regression).map(|m| m.design.clone()));
