@@ -20,21 +20,10 @@ Exit 0 always: this is a measurement, not a test. Nothing is swept; runs take se
 """
 import json, os, subprocess, sys, tempfile
 
-args = sys.argv[1:]
-groups, key = {"--unchanged": [], "--changed": []}, None
-design = None
-i = 0
-while i < len(args):
-    a = args[i]
-    if a in groups:
-        key = a
-    elif a == "--design":
-        design = args[i + 1]
-        i += 1
-    elif key:
-        groups[key].append(os.path.abspath(a))
-    i += 1
-unchanged, changed = groups["--unchanged"], groups["--changed"]
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from run_groups import parse
+
+unchanged, changed, design, _ = parse(sys.argv[1:])
 if len(unchanged) < 2:
     sys.exit(__doc__)
 binary = os.path.abspath(os.environ.get("FRAMECOST", "target/release/framecost"))

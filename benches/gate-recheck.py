@@ -20,21 +20,10 @@ there; with every resweep kept it needs none). Exit 0 always: a measurement, not
 """
 import json, os, shutil, subprocess, sys, tempfile
 
-args = sys.argv[1:]
-groups, key, design, runs = {"--unchanged": [], "--changed": []}, None, None, 5
-i = 0
-while i < len(args):
-    a = args[i]
-    if a in groups:
-        key = a
-    elif a == "--design":
-        design, i = args[i + 1], i + 1
-    elif a == "--runs":
-        runs, i = int(args[i + 1]), i + 1
-    elif key:
-        groups[key].append(a)
-    i += 1
-U, S = groups["--unchanged"], groups["--changed"]
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from run_groups import parse
+
+U, S, design, runs = parse(sys.argv[1:])
 fc = os.environ.get("FRAMECOST", "framecost")
 if len(U) < 2 or not design:
     sys.exit(__doc__)

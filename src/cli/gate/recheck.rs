@@ -57,18 +57,26 @@ pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: 
     }
     // Rounds: every workload once per round, so a slow spell of the machine spreads over them.
     let rounds = plans.iter().map(|(_, need, _)| *need).max().unwrap_or(0);
+    // What one resweep of each workload took, once one has been made.
+    let mut took: Vec<Option<f64>> = vec![None; plans.len()];
     for round in 0..rounds {
-        for (nw, need, args) in plans.iter_mut() {
+        for ((nw, need, args), took) in plans.iter_mut().zip(took.iter_mut()) {
             let (true, Ok(args)) = (*need > 0, &args) else { continue };
             let name = &nw.header.workload;
             let out = free_folder(&folder, name);
             if !r.quiet {
-                eprintln!("framecost gate: sweeping {name} again ({} of {rounds}; the new run sampled it for {}) into {}", round + 1, crate::units::time_ns(spent_s(nw) * 1e9), out.display());
+                let cost = match took {
+                    Some(s) => format!("the last took {}", crate::units::time_ns(*s * 1e9)),
+                    None => format!("the new run sampled it for {}, more with its tables and probes", crate::units::time_ns(spent_s(nw) * 1e9)),
+                };
+                eprintln!("framecost gate: sweeping {name} again ({} of {rounds}; {cost}) into {}", round + 1, out.display());
             }
+            let started = std::time::Instant::now();
             match sweep_again(args, &out) {
                 Ok(()) => {
                     summary.swept += 1;
                     *need -= 1;
+                    *took = Some(started.elapsed().as_secs_f64());
                 }
                 Err(why) => {
                     summary.not_rechecked.push((name.clone(), why));

@@ -227,10 +227,13 @@ pub fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], judged: &W
     let eff_h: Vec<Vec<f64>> = keys.iter().zip(&mu).map(|(key, m)| (0..k).map(|j| key.3[j] - m - common_h[j]).collect()).collect();
     let level = if side == Side::Baseline { LEVEL } else { RECHECK_LEVEL };
     let t = crate::fit::dist::student_t_quantile(level, (k - 1) as f64).unwrap_or(f64::INFINITY);
-    // A recheck confirms or clears what the baseline alone called or came near calling.
-    let mut flagged = if side == Side::New { suspects(wg) } else { vec![] };
-    flagged.extend(wg.moves.iter().filter(|m| m.call == Call::Improvement).map(|m| m.design.clone()));
-    flagged.extend(wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).map(|p| p.design.clone()));
+    // A recheck confirms or clears the designs the baseline alone called, and nothing else.
+    let mut flagged = Vec::new();
+    if side == Side::New {
+        flagged = suspects(wg);
+        flagged.extend(wg.moves.iter().filter(|m| m.call == Call::Improvement).map(|m| m.design.clone()));
+        flagged.extend(wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).map(|p| p.design.clone()));
+    }
     let floor = (1.0 + wg.threshold).ln();
     let bar = |s: f64| floor.max(t * s * (1.0 + 1.0 / k as f64).sqrt());
     let mut out = History { runs: k, ..Default::default() };
