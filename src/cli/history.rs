@@ -25,16 +25,9 @@ pub struct Args {
 }
 
 pub fn run(a: Args) -> Result<(), Failure> {
-    let Ok(entries) = std::fs::read_dir(&a.dir) else {
+    let Ok(mut runs) = RunResults::read_folder(&a.dir) else {
         return Err(Failure::Usage(format!("cannot list {}", a.dir.display())));
     };
-    let mut runs: Vec<RunResults> = entries
-        .filter_map(|e| e.ok())
-        .map(|e| e.path())
-        .filter(|p| p.join("points.jsonl").exists())
-        .filter_map(|p| RunResults::read(&p).ok())
-        .filter(|r| r.complete())
-        .collect();
     runs.sort_by(|x, y| {
         let k = |r: &RunResults| r.run.as_ref().map(|h| (h.started_at.clone(), h.run_id.clone())).unwrap_or_default();
         k(x).cmp(&k(y))

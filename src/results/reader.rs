@@ -102,6 +102,16 @@ impl RunResults {
         self.workloads.iter_mut().rev().find(|w| w.header.workload == name)
     }
 
+    /// The complete runs in the folders of `dir` (those holding `points.jsonl`), in path
+    /// order; folders that cannot be read or hold an unfinished run are passed over. An
+    /// error only when `dir` itself cannot be listed. Used by `history`, `gate --history`
+    /// and `gate --recheck`.
+    pub fn read_folder(dir: &Path) -> std::io::Result<Vec<RunResults>> {
+        let mut paths: Vec<std::path::PathBuf> = std::fs::read_dir(dir)?.filter_map(|e| e.ok()).map(|e| e.path()).filter(|p| p.join("points.jsonl").is_file()).collect();
+        paths.sort();
+        Ok(paths.iter().filter_map(|p| RunResults::read(p).ok()).filter(|r| r.complete()).collect())
+    }
+
     /// Read `points.jsonl` from a run folder (or the file itself).
     pub fn read(path: &Path) -> Result<RunResults, ReadError> {
         let file = if path.is_dir() { path.join("points.jsonl") } else { path.to_path_buf() };

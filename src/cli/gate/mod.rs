@@ -169,14 +169,8 @@ pub fn run(a: Args) -> Result<(), Failure> {
 /// caller, the new run is what is judged.
 fn history_runs(dir: &Path, base: &RunResults, new: &RunResults) -> Result<Vec<RunResults>, String> {
     let id = |r: &RunResults| r.run.as_ref().map(|h| h.run_id.clone());
-    let entries = std::fs::read_dir(dir).map_err(|e| format!("--history {}: {e}", dir.display()))?;
-    let mut paths: Vec<PathBuf> = entries.filter_map(|e| e.ok()).map(|e| e.path()).filter(|p| p.join("points.jsonl").is_file()).collect();
-    paths.sort();
-    let runs: Vec<RunResults> = paths
-        .iter()
-        .filter_map(|p| RunResults::read(p).ok())
-        .filter(|r| r.complete() && id(r).is_some() && id(r) != id(base) && id(r) != id(new))
-        .collect();
+    let mut runs = RunResults::read_folder(dir).map_err(|e| format!("--history {}: {e}", dir.display()))?;
+    runs.retain(|r| id(r).is_some() && id(r) != id(base) && id(r) != id(new));
     if runs.is_empty() {
         return Err(format!("--history {}: no complete run folder in it (folders holding points.jsonl)", dir.display()));
     }

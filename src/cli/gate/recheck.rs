@@ -115,14 +115,9 @@ fn spent_s(nw: &WorkloadResults) -> f64 {
 /// The complete resweeps of `nw`'s workload kept in `folder`, of the same workload file.
 fn kept(folder: &Path, nw: &WorkloadResults) -> Vec<RunResults> {
     let name = &nw.header.workload;
-    let Ok(entries) = std::fs::read_dir(folder) else { return vec![] };
-    let mut paths: Vec<PathBuf> = entries.filter_map(|e| e.ok()).map(|e| e.path()).filter(|p| p.join("points.jsonl").is_file()).collect();
-    paths.sort();
-    paths
-        .iter()
-        .filter_map(|p| RunResults::read(p).ok())
-        .filter(|run| run.complete() && run.workloads.iter().any(|w| &w.header.workload == name && w.header.spec_hash == nw.header.spec_hash && w.header.axis == nw.header.axis))
-        .collect()
+    let mut runs = RunResults::read_folder(folder).unwrap_or_default();
+    runs.retain(|run| run.workloads.iter().any(|w| &w.header.workload == name && w.header.spec_hash == nw.header.spec_hash && w.header.axis == nw.header.axis));
+    runs
 }
 
 /// The first `rechecks/<workload>-<k>` not taken.
