@@ -28,7 +28,6 @@ pub struct Recheck<'a> {
     pub runs: usize,
     pub allow_programs: bool,
     pub new_dir: &'a Path,
-    pub quiet: bool,
 }
 
 /// Sweep the failing workloads again and judge them (module doc). Errors are for the
@@ -37,14 +36,20 @@ pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: 
     let folder = r.new_dir.join("rechecks");
     let mut summary = RecheckSummary { runs: r.runs, folder: folder.display().to_string(), ..Default::default() };
     let wanted: Vec<String> = report.workloads.iter().filter(|w| !crate::track::gate::suspects(w).is_empty()).map(|w| w.workload.clone()).collect();
+    // Resweeps kept by an earlier gate of this run, read once.
+    let earlier = RunResults::read_folder(&folder).unwrap_or_default();
     // Each failing workload with the resweeps it still needs, and how to make them (or why
     // they cannot be made: the kept ones still count).
     let mut plans: Vec<(&WorkloadResults, usize, Result<Vec<String>, String>)> = Vec::new();
+    // Per plan: the runs of the new code it is judged on, kept ones first.
+    let mut runs: Vec<Vec<RunResults>> = Vec::new();
     for name in &wanted {
         let Some(nw) = new.workloads.iter().find(|w| &w.header.workload == name) else { continue };
-        let need = r.runs.saturating_sub(1 + kept(&folder, nw).len());
+        let mine: Vec<RunResults> = earlier.iter().filter(|run| same_workload(run, nw)).cloned().collect();
+        let need = r.runs.saturating_sub(1 + mine.len());
         let args = if need > 0 { sweep_args(nw, new, r.allow_programs) } else { Ok(vec![]) };
         plans.push((nw, need, args));
+        runs.push(mine);
     }
     if plans.iter().any(|(_, need, args)| *need > 0 && args.is_ok()) {
         std::fs::create_dir_all(&folder).map_err(|e| format!("--recheck: cannot create {}: {e}", folder.display()))?;
@@ -60,23 +65,22 @@ pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: 
     // What one resweep of each workload took, once one has been made.
     let mut took: Vec<Option<f64>> = vec![None; plans.len()];
     for round in 0..rounds {
-        for ((nw, need, args), took) in plans.iter_mut().zip(took.iter_mut()) {
+        for (((nw, need, args), took), mine) in plans.iter_mut().zip(took.iter_mut()).zip(runs.iter_mut()) {
             let (true, Ok(args)) = (*need > 0, &args) else { continue };
             let name = &nw.header.workload;
             let out = free_folder(&folder, name);
-            if !r.quiet {
-                let cost = match took {
-                    Some(s) => format!("the last took {}", crate::units::time_ns(*s * 1e9)),
-                    None => format!("the new run sampled it for {}, more with its tables and probes", crate::units::time_ns(spent_s(nw) * 1e9)),
-                };
-                eprintln!("framecost gate: sweeping {name} again ({} of {rounds}; {cost}) into {}", round + 1, out.display());
-            }
+            let cost = match took {
+                Some(s) => format!("the last took {}", crate::units::time_ns(*s * 1e9)),
+                None => format!("the new run sampled it for {}, more with its tables and probes", crate::units::time_ns(spent_s(nw) * 1e9)),
+            };
+            eprintln!("framecost gate: sweeping {name} again ({} of {rounds}; {cost}) into {}", round + 1, out.display());
             let started = std::time::Instant::now();
             match sweep_again(args, &out) {
-                Ok(()) => {
+                Ok(run) => {
                     summary.swept += 1;
                     *need -= 1;
                     *took = Some(started.elapsed().as_secs_f64());
+                    mine.push(run);
                 }
                 Err(why) => {
                     summary.not_rechecked.push((name.clone(), why));
@@ -85,9 +89,8 @@ pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: 
             }
         }
     }
-    for (nw, _, _) in &plans {
+    for ((nw, _, _), runs) in plans.iter().zip(&runs) {
         let name = &nw.header.workload;
-        let runs = kept(&folder, nw);
         let Some(bw) = base.workloads.iter().find(|w| &w.header.workload == name) else { continue };
         let Some(wg) = report.workloads.iter_mut().find(|w| &w.workload == name) else { continue };
         let mut hs: Vec<&WorkloadResults> = vec![nw];
@@ -112,12 +115,9 @@ fn spent_s(nw: &WorkloadResults) -> f64 {
     nw.points.iter().filter_map(|p| p.measured.as_ref()).map(|m| m.spent_s).sum()
 }
 
-/// The complete resweeps of `nw`'s workload kept in `folder`, of the same workload file.
-fn kept(folder: &Path, nw: &WorkloadResults) -> Vec<RunResults> {
-    let name = &nw.header.workload;
-    let mut runs = RunResults::read_folder(folder).unwrap_or_default();
-    runs.retain(|run| run.workloads.iter().any(|w| &w.header.workload == name && w.header.spec_hash == nw.header.spec_hash && w.header.axis == nw.header.axis));
-    runs
+/// True when `run` measured `nw`'s workload from the same workload file (a resweep of it).
+fn same_workload(run: &RunResults, nw: &WorkloadResults) -> bool {
+    run.workloads.iter().any(|w| w.header.workload == nw.header.workload && w.header.spec_hash == nw.header.spec_hash && w.header.axis == nw.header.axis)
 }
 
 /// The first `rechecks/<workload>-<k>` not taken.
@@ -178,14 +178,14 @@ fn sweep_args(nw: &WorkloadResults, new: &RunResults, allow_programs: bool) -> R
     Ok(args)
 }
 
-/// One resweep in a fresh process; its own output is kept out of the gate's.
-fn sweep_again(args: &[String], out: &Path) -> Result<(), String> {
+/// One resweep in a fresh process, read back; its own output is kept out of the gate's.
+fn sweep_again(args: &[String], out: &Path) -> Result<RunResults, String> {
     let exe = std::env::current_exe().map_err(|e| format!("cannot find framecost's own executable: {e}"))?;
     let done = Command::new(exe).args(args).arg("--out").arg(out).stdin(Stdio::null()).stdout(Stdio::null()).stderr(Stdio::piped()).output();
     let done = done.map_err(|e| format!("could not start a sweep: {e}"))?;
     // 0, or 3 (a step failed or designs disagreed): the run is written either way.
-    if matches!(done.status.code(), Some(0) | Some(3)) && out.join("points.jsonl").is_file() {
-        return Ok(());
+    if let Some(run) = RunResults::read(out).ok().filter(|r| matches!(done.status.code(), Some(0) | Some(3)) && r.complete()) {
+        return Ok(run);
     }
     let err = String::from_utf8_lossy(&done.stderr);
     let last = err.lines().rev().find(|l| !l.trim().is_empty()).unwrap_or("no message");

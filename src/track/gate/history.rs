@@ -41,9 +41,10 @@
 //! with the recheck; the slowdown was caught in 20 of 40, and 19 with the recheck; other
 //! designs called beside it went from 8 of 40 to none. With fourteen unchanged sweeps of
 //! three sessions (182 pairings, 70 slowed): 39 failed alone, 8 with the recheck; caught 29
-//! and 25; others called beside it in 11 and 0. A baseline sweep that was itself out of line can still read as a change: before
-//! the two-design common move below, one unchanged pairing kept failing that way (a window
-//! query its baseline's sweep ran ×1.2–×1.5 faster than the other sweeps did).
+//! and 25; others called beside it in 11 and 0. A baseline sweep that was itself out of
+//! line can still read as a change: before the two-design common move below, one unchanged
+//! pairing kept failing that way (a window query its baseline's sweep ran ×1.2–×1.5 faster
+//! than the other sweeps did).
 //!
 //! Measured (`benches/gate-history.py`) on fourteen catalog sweeps of unchanged code over
 //! two sessions and five with row-growth's `build-once` slowed by `slowdown: 15%`: against
@@ -282,16 +283,14 @@ pub fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], judged: &W
     }
     // A design moved over its sizes against the baseline alone stands only where its history
     // calls it the same way.
-    let earlier = wg.history.iter_mut().flat_map(|h| h.moves.iter_mut()).filter(|_| side == Side::New);
-    for m in wg.moves.iter_mut().filter(|m| matches!(m.call, Call::Regression | Call::Improvement)) {
-        if !out.moves.iter().any(|h| h.design == m.design && h.call == m.call) {
-            m.call = Call::Unclear;
-        }
+    let unsupported = |design: &str, call: Call| matches!(call, Call::Regression | Call::Improvement) && !out.moves.iter().any(|h| h.design == design && h.call == call);
+    for m in wg.moves.iter_mut().filter(|m| unsupported(&m.design, m.call)) {
+        m.call = Call::Unclear;
     }
     // With both a history and a recheck, a design the history called stands only where the
     // recheck calls it too.
-    for m in earlier.filter(|m| matches!(m.call, Call::Regression | Call::Improvement)) {
-        if !out.moves.iter().any(|h| h.design == m.design && h.call == m.call) {
+    if side == Side::New {
+        for m in wg.history.iter_mut().flat_map(|h| h.moves.iter_mut()).filter(|m| unsupported(&m.design, m.call)) {
             m.call = Call::Unclear;
         }
     }

@@ -256,7 +256,6 @@ pub struct GateReport {
     pub recheck: Option<RecheckSummary>,
 }
 
-
 /// How far the machine itself moved between the two runs, as its probes saw it: the
 /// yardstick (once per run), and the drift probe and the memory probe (at every compared
 /// point) as the range holding the middle 80% of the points.
