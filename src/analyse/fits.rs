@@ -87,6 +87,23 @@ pub const MEMORY_HIERARCHY_SLOPE: f64 = 1.5;
 /// 16k 62% under. Letting a linear bytes slope start the reading instead misread
 /// `column-growth`'s designs, whose work grows as n² without allocating more: fitted on
 /// four sizes they went from within 25% to 69–72% under.)
+///
+/// Below [`CACHE_BEND_SLOPE`], with the bytes counted and growing no faster than n log n
+/// (their class, or over fewer than five sizes their slope under 1.5: this changes a pair,
+/// never the class a median comes from, so the slope may start it),
+/// the superlinear class is not even kept as the alternative: the time is read as "n or
+/// n log n" (the neighbour only where its fit was accepted), whether the superlinear class
+/// fitted best or only nearly as well ([`ALTERNATIVE_MARGIN`](crate::fit::growth::ALTERNATIVE_MARGIN)).
+/// A bend that small is what the caches do, and whether a run's few percent of curvature
+/// lands within the alternative's margin or just outside it is chance: re-judging six triples
+/// of saved catalog sweeps of unchanged code, 33 of the 64 design × metric cells whose class
+/// differed between the runs of a triple were "n or n log n" in one run and "n log n or n²"
+/// in another, at slopes of 1.0–1.25; with this reading the cells
+/// with the same class or pair in all three runs went from 89–93% to 95–98%, and the hold-out
+/// checks (fit on sizes up to N/4, predict N) kept the same 97% inside their intervals — the
+/// extrapolation allowance, not the n² curve, is what widens an interval past the fitted
+/// sizes. Medians are unchanged: they come from the class. Without byte counts nothing says
+/// the work is linear, and the n² alternative stays.
 pub fn bounded_by_bytes(time: &GrowthFit, bytes: Option<&GrowthFit>, bytes_slope: Option<f64>) -> Option<(GrowthFit, String)> {
     let evidence = || match (bytes, bytes_slope) {
         (Some(b), _) => format!("allocated bytes grow as {}", b.label()),
@@ -118,44 +135,156 @@ pub fn bounded_by_bytes(time: &GrowthFit, bytes: Option<&GrowthFit>, bytes_slope
             ));
         }
     }
-    if time.best.rank() < GrowthClass::Quadratic.rank() || time.top_slope >= MEMORY_HIERARCHY_SLOPE {
+    if time.top_slope >= MEMORY_HIERARCHY_SLOPE {
         return None;
     }
     let bytes_linear = match (bytes, bytes_slope) {
         (Some(b), _) => b.best.rank() <= GrowthClass::Linearithmic.rank() && b.alternative.is_none_or(|a| a.rank() <= GrowthClass::Linearithmic.rank()),
-        (None, Some(s)) => time.top_slope < 1.3 && s < MEMORY_HIERARCHY_SLOPE,
-        (None, None) => time.top_slope < 1.3,
+        (None, Some(s)) => time.top_slope < CACHE_BEND_SLOPE && s < MEMORY_HIERARCHY_SLOPE,
+        (None, None) => time.top_slope < CACHE_BEND_SLOPE,
     };
     if !bytes_linear {
         return None;
+    }
+    // A small bend with the bytes counted: no superlinear alternative either.
+    let counted = bytes.is_some() || bytes_slope.is_some();
+    let calm = counted && time.top_slope < CACHE_BEND_SLOPE;
+    if time.best.rank() < GrowthClass::Quadratic.rank() {
+        let faster = time.alternative.filter(|a| a.rank() >= GrowthClass::Quadratic.rank())?;
+        if !calm || time.best.rank() < GrowthClass::Linear.rank() {
+            return None;
+        }
+        let f = with_neighbour(time, time.best)?;
+        return Some((f.clone(), cache_bend_note(faster, "fits nearly as well", time.top_slope, &evidence(), &f)));
     }
     let slower = time
         .candidates
         .iter()
         .filter(|c| c.rejection.is_none() && matches!(c.class, GrowthClass::Linear | GrowthClass::Linearithmic))
         .min_by(|x, y| x.aicc.total_cmp(&y.aicc))?;
-    let mut f = time.as_class(slower.class)?;
-    f.alternative = Some(time.best);
+    let f = if calm {
+        with_neighbour(time, slower.class)?
+    } else {
+        let mut f = time.as_class(slower.class)?;
+        f.alternative = Some(time.best);
+        f
+    };
     let why = match (bytes, bytes_slope) {
         (None, None) => "no byte counts".to_string(),
         _ => evidence(),
     };
-    Some((
-        f,
-        format!(
-            "time: {} fits best (slope {:.2} over the largest sizes) but {why}: read as {} or {} — data outgrowing the caches bends the curve the same way",
-            time.best.label(),
-            time.top_slope,
-            slower.class.label(),
-            time.best.label()
-        ),
-    ))
+    Some((f.clone(), cache_bend_note(time.best, "fits best", time.top_slope, &why, &f)))
+}
+
+/// Under this log-log slope over the largest sizes, time that bends upward while the
+/// counted bytes grow no faster than n log n is read as "n or n log n", with no superlinear
+/// alternative ([`bounded_by_bytes`]); without byte counts, the slope under which a
+/// superlinear best class is read as "n or n log n" with that class as its alternative.
+pub const CACHE_BEND_SLOPE: f64 = 1.3;
+
+/// `time` seen as `class` (n or n log n) with the other of the two as its alternative,
+/// where that one's fit was accepted.
+fn with_neighbour(time: &GrowthFit, class: GrowthClass) -> Option<GrowthFit> {
+    let neighbour = match class {
+        GrowthClass::Linear => GrowthClass::Linearithmic,
+        GrowthClass::Linearithmic => GrowthClass::Linear,
+        _ => return None,
+    };
+    let mut f = time.as_class(class)?;
+    f.alternative = time.candidate(neighbour).filter(|c| c.rejection.is_none()).map(|_| neighbour);
+    Some(f)
+}
+
+/// "time: n² fits best (slope 1.12 over the largest sizes) but allocated bytes grow as n:
+/// read as n or n log n — …".
+fn cache_bend_note(faster: GrowthClass, how: &str, slope: f64, why: &str, read: &GrowthFit) -> String {
+    format!(
+        "time: {} {how} (slope {slope:.2} over the largest sizes) but {why}: read as {} — data outgrowing the caches bends the curve the same way",
+        faster.label(),
+        read.label(),
+    )
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
     use crate::fit::growth::fit_growth;
+
+    /// Each size's time quartiles (µs) and allocated bytes: `(rows, [q1, median, q3], bytes)`.
+    type Measured = [(f64, [f64; 3], f64)];
+
+    fn fits_of(points: &Measured) -> (GrowthFit, GrowthFit) {
+        let (mut xs, mut ys) = (vec![], vec![]);
+        for (n, q, _) in points {
+            for v in q {
+                xs.push(*n);
+                ys.push(v * 1e3);
+            }
+        }
+        let time = crate::fit::growth::fit_growth_with(&xs, &ys, crate::fit::growth::TIME_REPRODUCIBILITY).unwrap();
+        let sizes: Vec<f64> = points.iter().map(|p| p.0).collect();
+        let bytes: Vec<f64> = points.iter().map(|p| p.2).collect();
+        (time, fit_growth(&sizes, &bytes).unwrap())
+    }
+
+    // `workloads/subsets.yaml`'s `deep-copy`, swept on this project's 2-core machine
+    // (December 2026): time bends up (slope 1.13 over the largest sizes) while the bytes
+    // grow as n exactly.
+    const DEEP_COPY: &Measured = &[
+        (4000.0, [75.0, 77.1, 79.2], 110984.0),
+        (16000.0, [147.0, 149.1, 153.1], 424472.0),
+        (64000.0, [427.4, 432.2, 478.3], 1678472.0),
+        (256000.0, [3046.8, 3093.2, 3129.6], 6694472.0),
+        (1024000.0, [14399.8, 14565.1, 14725.6], 26758472.0),
+    ];
+
+    // `workloads/cross-column.yaml`'s `transpose-numeric`, the same sweep: n log n fits
+    // best with n² within the alternative's margin (slope 1.24), bytes grow as n.
+    const TRANSPOSE: &Measured = &[
+        (1000.0, [1019.8, 1084.9, 1137.4], 838106.0),
+        (2000.0, [1843.9, 1885.0, 1947.5], 1640538.0),
+        (4000.0, [3284.6, 3335.8, 3545.9], 3245402.0),
+        (8000.0, [6163.4, 6434.5, 7770.2], 6455130.0),
+        (16000.0, [12215.4, 13752.3, 17886.7], 12874586.0),
+        (32000.0, [26791.2, 33555.9, 40388.0], 25713498.0),
+        (64000.0, [65823.3, 84789.1, 86875.4], 51391322.0),
+    ];
+
+    #[test]
+    fn a_small_bend_with_linear_bytes_is_read_as_n_or_n_log_n() {
+        let (time, bytes) = fits_of(DEEP_COPY);
+        assert!(time.best.rank() >= GrowthClass::Quadratic.rank() && time.top_slope < CACHE_BEND_SLOPE, "the case this guards: {:?} {}", time.best, time.top_slope);
+        assert_eq!(bytes.best, GrowthClass::Linear);
+        let (f, note) = bounded_by_bytes(&time, Some(&bytes), None).expect("re-read");
+        assert!(f.best.rank() <= GrowthClass::Linearithmic.rank() && f.alternative.is_none_or(|a| a.rank() <= GrowthClass::Linearithmic.rank()), "{}", f.label());
+        assert!(note.contains(&format!("fits best (slope {:.2}", time.top_slope)) && note.contains(&format!("read as {}", f.label())), "{note}");
+        // The median comes from the slower class either way; only the pair changed.
+        let slower = time.as_class(f.best).unwrap();
+        assert_eq!(f.cost_at(4.096e6), slower.cost_at(4.096e6));
+        // A bytes slope over fewer sizes counts as counted bytes; no counts at all keep n².
+        let (g, _) = bounded_by_bytes(&time, None, Some(1.0)).expect("re-read");
+        assert_eq!((g.best, g.alternative), (f.best, f.alternative));
+        let (h, _) = bounded_by_bytes(&time, None, None).expect("re-read");
+        assert_eq!((h.best, h.alternative), (f.best, Some(time.best)));
+    }
+
+    #[test]
+    fn a_quadratic_alternative_to_a_small_bend_is_dropped_when_bytes_are_linear() {
+        let (time, bytes) = fits_of(TRANSPOSE);
+        assert_eq!((time.best, time.alternative), (GrowthClass::Linearithmic, Some(GrowthClass::Quadratic)), "the case this guards (slope {})", time.top_slope);
+        assert_eq!(bytes.best, GrowthClass::Linear);
+        let (f, note) = bounded_by_bytes(&time, Some(&bytes), None).expect("re-read");
+        assert_eq!((f.best, f.alternative), (GrowthClass::Linearithmic, Some(GrowthClass::Linear)));
+        assert!(note.starts_with("time: n² fits nearly as well") && note.contains("read as n or n log n"), "{note}");
+        // Bytes that grow as fast as the time leave the pair alone, as does no count at all.
+        let (quad, _) = fits_of(&TRANSPOSE.iter().map(|&(n, q, _)| (n, q, n * n)).collect::<Vec<_>>());
+        assert!(bounded_by_bytes(&time, Some(&quad), None).is_none());
+        assert!(bounded_by_bytes(&time, None, None).is_none());
+        // A steeper bend (slope 1.3 or more) keeps the n² alternative.
+        let mut steep = time.clone();
+        steep.top_slope = CACHE_BEND_SLOPE;
+        assert!(bounded_by_bytes(&steep, Some(&bytes), None).is_none());
+    }
 
     #[test]
     fn a_cache_step_without_byte_counts_reads_as_n2_or_n3() {
