@@ -95,3 +95,32 @@ fn a_noise_floor_keeps_a_few_percent_of_curvature_from_deciding() {
     let pair = [floored.best, floored.alternative.unwrap_or(floored.best)];
     assert!(pair.contains(&GrowthClass::Linear) && pair.contains(&GrowthClass::Linearithmic), "{floored:?}");
 }
+
+#[test]
+fn n_flattened_by_a_fixed_cost_is_paired_with_log_n() {
+    // key-lookups' `hash-index-prebuilt` as swept on this project's 2-core machine (December
+    // 2026): each size's time quartiles in µs. A fixed cost flattens n to a slope of about
+    // 0.27 over the largest sizes, below what n usually shows; log n describes the same rise.
+    let quartiles = [
+        (4000.0, [110.3, 113.8, 118.5]),
+        (16000.0, [171.2, 176.9, 181.1]),
+        (64000.0, [270.6, 275.9, 280.8]),
+        (256000.0, [430.3, 451.4, 476.8]),
+        (1024000.0, [525.3, 568.6, 625.4]),
+    ];
+    let (mut xs, mut ys) = (vec![], vec![]);
+    for (n, q) in quartiles {
+        for v in q {
+            xs.push(n);
+            ys.push(v * 1e3);
+        }
+    }
+    let fit = fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY).unwrap();
+    assert!(fit.top_slope < admissible_slopes(GrowthClass::Linear).0, "the case this guards: slope {}", fit.top_slope);
+    assert_eq!(fit.label(), "log n or n", "{:?} {:?}", fit.best, fit.alternative);
+    // At a slope n usually shows, n keeps n log n as its neighbour.
+    let steeper: Vec<f64> = xs.iter().map(|n| 2e4 + 3.0 * n).collect();
+    let fit = fit_growth_with(&xs, &steeper, TIME_REPRODUCIBILITY).unwrap();
+    assert!(fit.top_slope >= 0.3 && fit.best == GrowthClass::Linear, "{} {:?}", fit.top_slope, fit.best);
+    assert_ne!(fit.alternative, Some(GrowthClass::Log));
+}
