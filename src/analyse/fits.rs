@@ -122,17 +122,8 @@ pub fn bounded_by_bytes(time: &GrowthFit, bytes: Option<&GrowthFit>, bytes_slope
         if quadratic && candidate {
             let mut f = time.as_class(GrowthClass::Quadratic)?;
             f.alternative = Some(time.best);
-            let evidence = evidence();
-            return Some((
-                f,
-                format!(
-                    "time: {} fits best (slope {:.2} over the largest sizes) but {evidence}: read as {} or {} — data outgrowing the caches bends the curve the same way",
-                    time.best.label(),
-                    time.top_slope,
-                    GrowthClass::Quadratic.label(),
-                    time.best.label()
-                ),
-            ));
+            let note = cache_bend_note(time.best, "fits best", time.top_slope, &evidence(), &f);
+            return Some((f, note));
         }
     }
     if time.top_slope >= MEMORY_HIERARCHY_SLOPE {
@@ -155,7 +146,8 @@ pub fn bounded_by_bytes(time: &GrowthFit, bytes: Option<&GrowthFit>, bytes_slope
             return None;
         }
         let f = with_neighbour(time, time.best)?;
-        return Some((f.clone(), cache_bend_note(faster, "fits nearly as well", time.top_slope, &evidence(), &f)));
+        let note = cache_bend_note(faster, "fits nearly as well", time.top_slope, &evidence(), &f);
+        return Some((f, note));
     }
     let slower = time
         .candidates
@@ -173,7 +165,8 @@ pub fn bounded_by_bytes(time: &GrowthFit, bytes: Option<&GrowthFit>, bytes_slope
         (None, None) => "no byte counts".to_string(),
         _ => evidence(),
     };
-    Some((f.clone(), cache_bend_note(time.best, "fits best", time.top_slope, &why, &f)))
+    let note = cache_bend_note(time.best, "fits best", time.top_slope, &why, &f);
+    Some((f, note))
 }
 
 /// Under this log-log slope over the largest sizes, time that bends upward while the
@@ -196,7 +189,8 @@ fn with_neighbour(time: &GrowthFit, class: GrowthClass) -> Option<GrowthFit> {
 }
 
 /// "time: n² fits best (slope 1.12 over the largest sizes) but allocated bytes grow as n:
-/// read as n or n log n — …".
+/// read as n or n log n — …": what a re-reading of `faster` (the class that fitted best, or
+/// nearly as well) was read as, and why.
 fn cache_bend_note(faster: GrowthClass, how: &str, slope: f64, why: &str, read: &GrowthFit) -> String {
     format!(
         "time: {} {how} (slope {slope:.2} over the largest sizes) but {why}: read as {} — data outgrowing the caches bends the curve the same way",
