@@ -128,6 +128,11 @@ pub fn copy_model(measured: &[(u64, &Measured)], time: &GrowthFit, bytes: Option
 }
 
 impl CopyModel {
+    /// How the bytes grow (n² or faster: a copying term is only made for such bytes).
+    pub fn bytes_class(&self) -> GrowthClass {
+        self.bytes_class
+    }
+
     /// The fitted time at `n`: fixed cost, rows, and the bytes predicted there.
     pub fn cost_at(&self, n: f64) -> f64 {
         self.a + self.b * n + self.k * curve_at(&self.bytes_curve, n)
