@@ -238,7 +238,6 @@ pub const CORES_CHANGE: f64 = 1.3;
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::fit::growth::{fit_growth_with, TIME_REPRODUCIBILITY};
 
     #[test]
     fn a_copying_term_puts_the_bytes_class_beside_the_time_class() {
@@ -255,8 +254,7 @@ mod tests {
             (16000.0, [140954.3, 141999.6, 143977.3]),
             (32000.0, [279271.1, 290903.0, 292968.4]),
         ];
-        let (xs, ys): (Vec<f64>, Vec<f64>) = quartiles.iter().flat_map(|(n, q)| q.iter().map(move |v| (*n, v * 1e3))).unzip();
-        let time = fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY).unwrap();
+        let time = crate::fit::growth::fit_quartiles_us(&quartiles);
         assert!(time.best.rank() <= GrowthClass::Linearithmic.rank() && time.alternative.is_none_or(|a| a.rank() < GrowthClass::Quadratic.rank()), "the case this guards: {}", time.label());
         let read = with_copying_alternative(time.clone(), GrowthClass::Quadratic);
         assert_eq!((read.best, read.alternative), (time.best, Some(GrowthClass::Quadratic)));

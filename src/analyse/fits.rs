@@ -208,14 +208,8 @@ mod tests {
     type Measured = [(f64, [f64; 3], f64)];
 
     fn fits_of(points: &Measured) -> (GrowthFit, GrowthFit) {
-        let (mut xs, mut ys) = (vec![], vec![]);
-        for (n, q, _) in points {
-            for v in q {
-                xs.push(*n);
-                ys.push(v * 1e3);
-            }
-        }
-        let time = crate::fit::growth::fit_growth_with(&xs, &ys, crate::fit::growth::TIME_REPRODUCIBILITY).unwrap();
+        let quartiles: Vec<(f64, [f64; 3])> = points.iter().map(|&(n, q, _)| (n, q)).collect();
+        let time = crate::fit::growth::fit_quartiles_us(&quartiles);
         let sizes: Vec<f64> = points.iter().map(|p| p.0).collect();
         let bytes: Vec<f64> = points.iter().map(|p| p.2).collect();
         (time, fit_growth(&sizes, &bytes).unwrap())

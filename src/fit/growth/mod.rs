@@ -429,5 +429,14 @@ fn flat_neighbour(best: GrowthClass, candidates: &[Candidate]) -> Option<GrowthC
     matches!(c.rejection, Some(Rejection::NegativeSlope { .. }) | Some(Rejection::LeadingTermNegligible { .. })).then_some(neighbour)
 }
 
+/// The time fit of measured points given as each size's three quartiles in µs,
+/// `(size, [q1, median, q3])`: the points [`fit_timed`] hands the classifier, for tests
+/// that replay a real sweep.
+#[cfg(test)]
+pub(crate) fn fit_quartiles_us(points: &[(f64, [f64; 3])]) -> GrowthFit {
+    let (xs, ys): (Vec<f64>, Vec<f64>) = points.iter().flat_map(|(n, q)| q.iter().map(move |v| (*n, v * 1e3))).unzip();
+    fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY).expect("a time fit")
+}
+
 #[cfg(test)]
 mod tests;

@@ -108,19 +108,12 @@ fn n_flattened_by_a_fixed_cost_is_paired_with_log_n() {
         (256000.0, [430.3, 451.4, 476.8]),
         (1024000.0, [525.3, 568.6, 625.4]),
     ];
-    let (mut xs, mut ys) = (vec![], vec![]);
-    for (n, q) in quartiles {
-        for v in q {
-            xs.push(n);
-            ys.push(v * 1e3);
-        }
-    }
-    let fit = fit_growth_with(&xs, &ys, TIME_REPRODUCIBILITY).unwrap();
+    let fit = fit_quartiles_us(&quartiles);
     assert!(fit.top_slope < admissible_slopes(GrowthClass::Linear).0, "the case this guards: slope {}", fit.top_slope);
     assert_eq!(fit.label(), "log n or n", "{:?} {:?}", fit.best, fit.alternative);
     // At a slope n usually shows, n keeps n log n as its neighbour.
-    let steeper: Vec<f64> = xs.iter().map(|n| 2e4 + 3.0 * n).collect();
-    let fit = fit_growth_with(&xs, &steeper, TIME_REPRODUCIBILITY).unwrap();
+    let steeper: Vec<(f64, [f64; 3])> = quartiles.iter().map(|&(n, _)| (n, [(2e4 + 3.0 * n) / 1e3; 3])).collect();
+    let fit = fit_quartiles_us(&steeper);
     assert!(fit.top_slope >= 0.3 && fit.best == GrowthClass::Linear, "{} {:?}", fit.top_slope, fit.best);
     assert_ne!(fit.alternative, Some(GrowthClass::Log));
 }
