@@ -6,7 +6,9 @@
 # at least 90%, and every n² design). Given several runs of the same workloads (RUNS=DIR
 # with one folder per run), the last line is the ceiling: how often one run's measured
 # median at N lies within 25% of another's — no prediction can beat the measurements'
-# own reproducibility. The `cores` column gives the cores the step kept busy (CPU time over
+# own reproducibility. The `caches passed` column names the cache levels the table grew past
+# between the largest fitted size and N (from the run's record of the caches, or this
+# machine's for older runs), which `explain` marks too. The `cores` column gives the cores the step kept busy (CPU time over
 # wall time) at the largest fitted size and at N; a step that goes parallel in between (polars
 # splits sorts, joins and queries over threads above sizes of its own) runs faster than any
 # curve of the smaller sizes says, and the misses it explains are counted.
@@ -37,20 +39,54 @@ import json, os, subprocess, sys
 from collections import defaultdict
 binary, root = sys.argv[1], sys.argv[2]
 rows_out, within, total, quad_within, quad_total, missed_switch, inside = [], 0, 0, 0, 0, 0, 0
+missed_cache, crossed, crossed_within = 0, 0, 0
+
+
+def sysfs_caches():
+    """This machine's data caches, for runs made before the run header recorded them."""
+    out, base = [], "/sys/devices/system/cpu/cpu0/cache"
+    for d in sorted(os.listdir(base)) if os.path.isdir(base) else []:
+        try:
+            kind = open(os.path.join(base, d, "type")).read().strip()
+            size = open(os.path.join(base, d, "size")).read().strip()
+            level = int(open(os.path.join(base, d, "level")).read())
+            shared = open(os.path.join(base, d, "shared_cpu_list")).read().strip()
+        except (OSError, ValueError):
+            continue
+        cpus = sum(int(b) - int(a) + 1 if "-" in p else 1 for p in shared.split(",") if p for a, _, b in [p.partition("-")])
+        if kind in ("Data", "Unified") and size[:-1].isdigit():
+            out.append({"level": level, "bytes": int(size[:-1]) * {"K": 1 << 10, "M": 1 << 20, "G": 1 << 30}.get(size[-1], 1), "shared_by": cpus})
+    return out
+
+
+def passed(caches, tables, fitted, n):
+    """Cache levels the table passes between the largest fitted size and N (the same rule as
+    `explain`'s `caches` finding, src/explain/caches.rs): "L2", "" when none."""
+    b0 = tables.get(fitted)
+    if not b0 or n <= fitted:
+        return ""
+    b1 = b0 * n / fitted
+    # Levels from L2 on, private to a core (`explain::caches::counted`).
+    return ",".join(f'L{c["level"]}' for c in caches if c["level"] >= 2 and c.get("shared_by", 1) == 1 and b0 <= c["bytes"] < b1)
 for name in sorted(os.listdir(root)):
     pts = os.path.join(root, name, "points.jsonl")
     if not os.path.isfile(pts):
         continue
     # A run folder may hold one workload or a whole catalog: key designs by workload too.
-    largest = defaultdict(int)
+    largest, sizes, tables, caches = defaultdict(int), defaultdict(set), defaultdict(dict), None
     for line in open(pts, errors="replace"):
         try:
             r = json.loads(line)
         except Exception:
             continue
+        if r.get("record") == "run":
+            caches = r.get("caches") or sysfs_caches()
+        if r.get("record") == "table" and r.get("table_bytes_estimate"):
+            tables[r["workload"]][r["rows"]] = r["table_bytes_estimate"]
         if r.get("record") == "point" and r.get("measured"):
             key = (r["workload"], r["design"])
             largest[key] = max(largest[key], r["rows"])
+            sizes[key].add(r["rows"])
     by_n = defaultdict(list)
     for key, n in largest.items():
         by_n[n].append(key)
@@ -78,14 +114,24 @@ for name in sorted(os.listdir(root)):
                     if not ok:
                         missed_switch += switched
                     cores = f"{cf:.1f}->{c:.1f}" if c and cf else "-"
-                    rows_out.append(f'{w["workload"]:<20} {d["design"]:<26} {cls:<16} {limit:>9} {h["predicted_ns"]/1e6:>11.3f}ms {h["measured_ns"]/1e6:>11.3f}ms {h["error"]*100:>+7.1f}% {"yes" if h["inside_interval"] else "no":<6} {cores}')
-print(f'{"workload":<20} {"design":<26} {"class":<16} {"fit≤":>9} {"predicted":>13} {"measured":>13} {"error":>8} inside cores')
+                    # Cache levels the table passed between the largest fitted size and N
+                    # (rows sweeps only: another axis keeps the rows, so the table, fixed).
+                    fitted = max((s for s in sizes[(w["workload"], d["design"])] if s <= limit), default=0)
+                    cache = passed(caches or [], tables[w["workload"]], fitted, n) if not w.get("axis") else ""
+                    if not ok:
+                        missed_cache += bool(cache)
+                    if cache:
+                        crossed += 1; crossed_within += ok
+                    rows_out.append(f'{w["workload"]:<20} {d["design"]:<26} {cls:<16} {limit:>9} {h["predicted_ns"]/1e6:>11.3f}ms {h["measured_ns"]/1e6:>11.3f}ms {h["error"]*100:>+7.1f}% {"yes" if h["inside_interval"] else "no":<6} {cores:<9} {cache or "-"}')
+print(f'{"workload":<20} {"design":<26} {"class":<16} {"fit≤":>9} {"predicted":>13} {"measured":>13} {"error":>8} inside cores     caches passed')
 print("\n".join(rows_out))
 print(f"within 25%: {within}/{total}" + (f" ({100*within/total:.0f}%)" if total else ""))
 print(f"n² or n³ designs within 25%: {quad_within}/{quad_total}")
 # The 95% intervals (widened for the distance past the fitted sizes) should hold about 95%.
 print(f"inside the 95% interval: {inside}/{total}" + (f" ({100*inside/total:.0f}%)" if total else ""))
 print(f"of the misses, steps whose cores changed x1.3 or more between the largest fitted size and N: {missed_switch}/{total - within}")
+print(f"of the misses, steps whose table passed a cache level between the largest fitted size and N: {missed_cache}/{total - within}")
+print(f"predictions whose table passed a cache level, within 25%: {crossed_within}/{crossed}; the others: {within - crossed_within}/{total - crossed}")
 # The ceiling any prediction faces: how often two runs of the same design at the same N
 # (the point predicted above) measured medians within 25% of each other. With one run
 # folder, nothing to compare.

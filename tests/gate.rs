@@ -55,6 +55,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
         forced: false,
         cache_sweep_bytes: None,
         cache_sweep_threads: None,
+        caches: vec![],
     }));
     r.push(Record::Workload(WorkloadHeader {
         workload: "ledger".into(),

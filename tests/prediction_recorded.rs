@@ -173,6 +173,47 @@ fn a_step_that_goes_parallel_is_named_where_it_does() {
     assert!(implies.contains(&format!("CPU time rose ×{:.2}", wall * several / one)), "{implies}");
 }
 
+/// `row-growth-appends` (a quiet catalog sweep on a 2-core Xeon), with the caches of the
+/// machine it was made on (sysfs lists a 48 KiB L1d and a 2 MiB L2 per core and a 480 MiB L3
+/// shared by both) written into its run header as a sweep now records them. Fitted up to 16k
+/// rows (a table of 1,156,000 bytes by the run's own estimate), the prediction at the 2M-row
+/// target (144.5 MB scaled by rows) carries the table past the L2 from 16k × 2 MiB /
+/// 1,156,000 B ≈ 29k rows on: every design says so. Fitted on every size, only the design
+/// the budget stopped at 16k says it (the others reach 64k rows, 4.6 MB, past the L2; the L3
+/// holds the target); without recorded caches, none.
+#[test]
+fn a_prediction_whose_table_outgrows_a_cache_says_where() {
+    let run = "tests/data/prediction-runs/row-growth-appends";
+    let dir = tempfile::tempdir().expect("tempdir");
+    let caches = r#""caches":[{"level":1,"bytes":49152,"shared_by":1},{"level":2,"bytes":2097152,"shared_by":1},{"level":3,"bytes":503316480,"shared_by":2}]"#;
+    let text = std::fs::read_to_string(format!("{run}/points.jsonl")).expect("points");
+    let (first, rest) = text.split_once('\n').expect("a run header first");
+    assert!(first.contains(r#""record":"run""#) && !first.contains("caches"), "{first}");
+    let header = format!("{},{caches}}}", first.trim_end().strip_suffix('}').expect("an object"));
+    std::fs::write(dir.path().join("points.jsonl"), format!("{header}\n{rest}")).expect("write");
+    let with = dir.path().to_str().expect("utf-8");
+
+    let findings = |run: &str, args: &[&str]| -> Vec<Value> {
+        let out = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--json"]).args(args).output().expect("runs");
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        let doc: Value = serde_json::from_slice(&out.stdout).expect("json");
+        doc["explanations"][0]["findings"].as_array().expect("findings").iter().filter(|f| f["kind"] == "caches").cloned().collect()
+    };
+    let marked = findings(with, &["--fit-up-to", "16000"]);
+    let designs: Vec<&str> = marked.iter().map(|f| f["design"].as_str().expect("a design")).collect();
+    assert_eq!(designs, ["one-at-a-time", "batches-of-256", "chunks-merged-once", "chunks-left", "extend-in-place", "build-once"], "{marked:?}");
+    for f in &marked {
+        let said = f["measured"].as_str().expect("text");
+        for part in ["1.10 MiB at 16k rows", "within the L2 cache (2.00 MiB)", "at 2M rows it is about 138 MiB", "past it from about 29k rows"] {
+            assert!(said.contains(part), "`{part}` in: {said}");
+        }
+        assert!(f["action"].as_str().expect("text").contains("measure a size past 29k rows"), "{f}");
+    }
+    let full: Vec<Value> = findings(with, &[]);
+    assert_eq!(full.iter().map(|f| f["design"].as_str().expect("a design")).collect::<Vec<_>>(), ["one-at-a-time"], "{full:?}");
+    assert!(findings(run, &["--fit-up-to", "16000"]).is_empty(), "no caches recorded");
+}
+
 fn measured_ratio(run: &str, design: &str) -> f64 {
     measured(run, design, 256_000) / measured(run, design, 64_000)
 }

@@ -31,11 +31,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
         match crate::spec::load(f) {
             Ok(plan) => {
                 let programs = super::sweep::program_commands(std::slice::from_ref(&plan));
+                let caches = cache_note(&plan, &crate::measure::scrub::cache_levels());
                 if args.json {
                     docs.push(serde_json::json!({
                         "file": f.display().to_string(), "ok": true, "workload": plan.name,
                         "designs": plan.designs.len(), "sizes": plan.sizes, "problems": [],
-                        "programs": programs,
+                        "programs": programs, "caches": caches,
                     }));
                 } else {
                     let over = match &plan.axis {
@@ -46,6 +47,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
                     // Programs run with the user's permissions: say what `sweep --allow-programs` would run.
                     for c in &programs {
                         println!("  runs a program (needs sweep --allow-programs): {c}");
+                    }
+                    if let Some(note) = &caches {
+                        println!("  note: {note}");
                     }
                 }
             }
@@ -74,4 +78,55 @@ pub fn run(args: Args) -> Result<(), Failure> {
         return Err(Failure::Workloads(problems));
     }
     Ok(())
+}
+
+/// Advice, not a problem: the table at the largest size fits in a cache of this machine
+/// that the table at the target does not (`explain::caches` for why it matters).
+fn cache_note(plan: &crate::plan::Plan, caches: &[crate::results::CacheLevel]) -> Option<String> {
+    let (target, largest) = (plan.target?, *plan.sizes.last()?);
+    if plan.axis.is_some() {
+        return None;
+    }
+    let c = crate::explain::caches::levels_passed(largest, plan.table_bytes(largest), target, caches)?;
+    Some(format!(
+        "the table at the largest size, {}, is about {} and fits in {} of this machine; at the target, {}, it is about {}: predictions there cross that cache, which usually raises the cost per row, and no size measured shows by how much — let the sizes reach past about {}",
+        plan.axis_point(largest),
+        crate::units::bytes(c.fitted_bytes),
+        crate::explain::caches::levels_text(&c.levels),
+        plan.axis_point(target),
+        crate::units::bytes(c.target_bytes),
+        format!("{} rows", crate::units::rows_label_f(c.past_rows as f64))
+    ))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::results::CacheLevel;
+
+    fn plan(sizes: &str, target: &str) -> crate::plan::Plan {
+        let text = format!(
+            "name: cast-ladder\nseed: 5\ntable:\n  columns:\n    - {{name: kilograms, kind: int, range: [4, 30]}}\nsizes: {sizes}\n{target}designs:\n  - {{name: one-cast, steps: [{{cast_column: {{column: kilograms, declared: float}}}}]}}\n"
+        );
+        crate::spec::load_str("ladder.yaml", &text).expect("a sound workload")
+    }
+
+    /// This project's machine as sysfs lists it (2 MiB L2 per core, 480 MiB L3 shared).
+    const XEON: [CacheLevel; 2] = [CacheLevel { level: 2, bytes: 2 << 20, shared_by: 1 }, CacheLevel { level: 3, bytes: 480 << 20, shared_by: 2 }];
+
+    #[test]
+    fn sizes_that_stop_inside_a_cache_the_target_leaves_are_advised() {
+        // One Int64 column: 8 bytes a row, as the plan estimates it.
+        let p = plan("[16k, 64k]", "target: 1M\n");
+        let per_row = p.table_bytes(64_000) / 64_000.0;
+        let note = cache_note(&p, &XEON).expect("a note");
+        assert!(note.contains("the L2 cache (2.00 MiB)"), "{note}");
+        let past = (64_000.0 * (2u64 << 20) as f64 / p.table_bytes(64_000)).ceil();
+        assert!(note.contains(&format!("past about {} rows", crate::units::rows_label_f(past))), "{note} ({per_row} bytes a row)");
+        // Sizes already past the L2, no target, or no caches known: nothing to say; nor for
+        // the shared L3 (`explain::caches::counted`).
+        assert!(cache_note(&plan("[16k, 4M]", "target: 16M\n"), &XEON).is_none());
+        assert!(cache_note(&plan("[16k, 64k]", ""), &XEON).is_none());
+        assert!(cache_note(&p, &[]).is_none());
+    }
 }

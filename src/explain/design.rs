@@ -397,6 +397,22 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
                 String::new(),
             ));
         }
+        if let Some(c) = super::caches::crossing(w, da) {
+            findings.push(f(
+                "caches",
+                format!(
+                    "the table is about {} at {}, the largest fitted size, within {}; at {} it is about {}, past it from about {}",
+                    crate::units::bytes(c.fitted_bytes),
+                    at(c.fitted_rows),
+                    super::caches::levels_text(&c.levels),
+                    at(c.target_rows),
+                    crate::units::bytes(c.target_bytes),
+                    ax.point_f(c.past_rows as f64)
+                ),
+                "data that leaves a cache is read from the next level out, so the cost per row usually steps up there (common practice), and no curve of the sizes inside the cache shows that step: the prediction is more likely too low than too high".into(),
+                format!("measure a size past {} before acting on the prediction", ax.point_f(c.past_rows as f64)),
+            ));
+        }
         if p.far {
             findings.push(f(
                 "extrapolation",

@@ -17,6 +17,7 @@ use crate::results::{EquivalenceStatus, Measured};
 use serde::{Deserialize, Serialize};
 
 pub mod analysed;
+pub mod caches;
 mod design;
 pub mod payback;
 pub mod verdict;

@@ -76,6 +76,7 @@ pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool, warm_cac
         forced,
         cache_sweep_bytes: (!warm_caches).then(super::scrub::bytes),
         cache_sweep_threads: (!warm_caches).then(super::scrub::threads),
+        caches: super::scrub::cache_levels(),
     }
 }
 

@@ -59,6 +59,49 @@ pub fn largest_cache_bytes() -> Option<usize> {
         .max()
 }
 
+/// The data caches of the first CPU (data and unified; not instruction caches), smallest
+/// level first, from Linux sysfs; empty where it cannot be read.
+pub fn cache_levels() -> Vec<crate::results::CacheLevel> {
+    let Ok(dir) = std::fs::read_dir("/sys/devices/system/cpu/cpu0/cache") else { return vec![] };
+    let read = |p: &std::path::Path, f: &str| std::fs::read_to_string(p.join(f)).unwrap_or_default();
+    let mut out: Vec<crate::results::CacheLevel> = dir
+        .filter_map(|e| e.ok())
+        .filter(|e| e.file_name().to_string_lossy().starts_with("index"))
+        .filter_map(|e| {
+            let p = e.path();
+            cache_level(&read(&p, "level"), &read(&p, "type"), &read(&p, "size"), &read(&p, "shared_cpu_list"))
+        })
+        .collect();
+    out.sort_by_key(|c| (c.level, c.bytes));
+    out.dedup_by_key(|c| c.level);
+    out
+}
+
+/// One sysfs cache entry (`level`, `type`, `size`, `shared_cpu_list` files), None for an
+/// instruction cache or an unreadable entry.
+fn cache_level(level: &str, kind: &str, size: &str, shared: &str) -> Option<crate::results::CacheLevel> {
+    if !matches!(kind.trim(), "Data" | "Unified") {
+        return None;
+    }
+    Some(crate::results::CacheLevel {
+        level: level.trim().parse().ok()?,
+        bytes: parse_size(size.trim())? as u64,
+        shared_by: cpu_count(shared.trim()).unwrap_or(1),
+    })
+}
+
+/// How many CPUs a kernel CPU list names ("0-1" → 2, "0,4-6" → 4).
+fn cpu_count(list: &str) -> Option<u32> {
+    let mut n = 0u32;
+    for part in list.split(',').filter(|p| !p.is_empty()) {
+        n += match part.split_once('-') {
+            Some((a, b)) => b.trim().parse::<u32>().ok()?.checked_sub(a.trim().parse::<u32>().ok()?)? + 1,
+            None => part.trim().parse::<u32>().map(|_| 1).ok()?,
+        };
+    }
+    (n > 0).then_some(n)
+}
+
 /// "32768K" → 33554432; "1M", "512" (bytes) likewise.
 fn parse_size(s: &str) -> Option<usize> {
     let (num, mult) = match s.chars().last()? {
@@ -160,6 +203,20 @@ mod tests {
         assert_eq!(parse_size("512"), Some(512));
         assert_eq!(parse_size("x"), None);
         assert_eq!(parse_size(""), None);
+        // shared_cpu_list uses the kernel's CPU list format (Documentation/admin-guide/
+        // kernel-parameters.rst, "cpu lists"): ranges and single numbers, comma separated.
+        assert_eq!(cpu_count("0"), Some(1));
+        assert_eq!(cpu_count("0-1"), Some(2));
+        assert_eq!(cpu_count("0,4-6"), Some(4));
+        assert_eq!(cpu_count("0-3,8-11"), Some(8));
+        assert_eq!(cpu_count("3-1"), None);
+        assert_eq!(cpu_count(""), None);
+        // The entries of this project's 2-core Xeon as sysfs lists them.
+        let l2 = cache_level("2\n", "Unified\n", "2048K\n", "0\n").expect("a data cache");
+        assert_eq!((l2.level, l2.bytes, l2.shared_by), (2, 2 << 20, 1));
+        assert_eq!(cache_level("3", "Unified", "491520K", "0-1").map(|c| (c.bytes, c.shared_by)), Some((480 << 20, 2)));
+        assert!(cache_level("1", "Instruction", "64K", "0").is_none());
+        assert!(cache_level("1", "Data", "48K", "0").is_some());
         // The sweep touches every line of the buffer (sum of 0, 8, 16, … below its length),
         // whether it is read on one thread or two.
         let n = buffer().len() as u64;

@@ -74,6 +74,22 @@ pub struct RunHeader {
     /// the same way.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub cache_sweep_threads: Option<u32>,
+    /// The processor's data caches as the system reported them (`measure::scrub::
+    /// cache_levels`), smallest level first; empty where they could not be read and in runs
+    /// made before they were recorded. `explain` says when a prediction's table outgrows a
+    /// level that held it at every fitted size.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub caches: Vec<CacheLevel>,
+}
+
+/// One level of the processor's data caches (data or unified; instruction caches left out).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CacheLevel {
+    /// 1, 2, 3…
+    pub level: u8,
+    pub bytes: u64,
+    /// Logical CPUs that share it (1: private to a core).
+    pub shared_by: u32,
 }
 
 impl RunHeader {

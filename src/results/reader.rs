@@ -23,6 +23,8 @@ pub struct WorkloadResults {
     pub tables: Vec<TableRecord>,
     pub points: Vec<PointRecord>,
     pub comparisons: Vec<ComparisonRecord>,
+    /// The run's record of the processor's data caches (`RunHeader::caches`).
+    pub caches: Vec<super::CacheLevel>,
 }
 
 impl WorkloadResults {
@@ -77,7 +79,8 @@ impl RunResults {
         match rec {
             Record::Run(h) => self.run = Some(h),
             Record::Workload(h) => {
-                self.workloads.push(WorkloadResults { header: h, tables: vec![], points: vec![], comparisons: vec![] })
+                let caches = self.run.as_ref().map(|r| r.caches.clone()).unwrap_or_default();
+                self.workloads.push(WorkloadResults { header: h, tables: vec![], points: vec![], comparisons: vec![], caches })
             }
             Record::Table(t) => {
                 if let Some(w) = self.workload_mut(&t.workload) {
