@@ -52,9 +52,22 @@ fn machine_lines(r: &RunResults) -> Vec<(String, String)> {
                 Some((b, 1)) => format!("swept before every sample (a {} read): each sample starts cold", bytes(b as f64)),
                 Some((b, t)) => format!("swept before every sample (a {} read, in {t} parts at once): each sample starts cold", bytes(b as f64)),
                 None => "left as the previous sample left them (--warm-caches, or a run before cache sweeps)".into(),
-            },
+            } + &cache_levels(&h.caches),
         ),
     ]
+}
+
+/// "; data caches L1 48.0 KiB, L2 2.00 MiB per core, L3 480 MiB shared by 2", empty when the
+/// run recorded none.
+fn cache_levels(caches: &[crate::results::CacheLevel]) -> String {
+    let each: Vec<String> = caches
+        .iter()
+        .map(|c| match c.shared_by {
+            1 => format!("L{} {} per core", c.level, bytes(c.bytes as f64)),
+            n => format!("L{} {} shared by {n}", c.level, bytes(c.bytes as f64)),
+        })
+        .collect();
+    if each.is_empty() { String::new() } else { format!("; data caches {}", each.join(", ")) }
 }
 
 /// Draw and write everything for an analysed run into `dir`.
@@ -84,4 +97,22 @@ pub fn write(dir: &Path, an: &Analysed) -> Result<Written, DrawError> {
     io(&markdown, &md)?;
     io(&html_path, &html)?;
     Ok(Written { markdown, html: html_path, csv: exports.csv, pictures })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::results::CacheLevel;
+
+    #[test]
+    fn the_caches_line_lists_each_level_and_who_shares_it() {
+        // This project's machine as sysfs lists it.
+        let xeon = [
+            CacheLevel { level: 1, bytes: 48 << 10, shared_by: 1 },
+            CacheLevel { level: 2, bytes: 2 << 20, shared_by: 1 },
+            CacheLevel { level: 3, bytes: 480 << 20, shared_by: 2 },
+        ];
+        assert_eq!(cache_levels(&xeon), "; data caches L1 48.0 KiB per core, L2 2.00 MiB per core, L3 480 MiB shared by 2");
+        assert_eq!(cache_levels(&[]), "");
+    }
 }
