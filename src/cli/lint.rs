@@ -27,11 +27,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
     let mut bad = 0;
     let mut problems = Vec::new();
     let mut docs = Vec::new();
+    let machine_caches = crate::measure::scrub::cache_levels();
     for f in &files {
         match crate::spec::load(f) {
             Ok(plan) => {
                 let programs = super::sweep::program_commands(std::slice::from_ref(&plan));
-                let caches = cache_note(&plan, &crate::measure::scrub::cache_levels());
+                let caches = cache_note(&plan, &machine_caches);
                 if args.json {
                     docs.push(serde_json::json!({
                         "file": f.display().to_string(), "ok": true, "workload": plan.name,

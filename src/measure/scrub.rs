@@ -49,14 +49,9 @@ fn buffer() -> &'static [u64] {
     })
 }
 
-/// The largest cache of the first CPU, in bytes (Linux sysfs; "32768K" style sizes).
+/// The largest data cache of the first CPU, in bytes ([`cache_levels`]).
 pub fn largest_cache_bytes() -> Option<usize> {
-    let dir = std::fs::read_dir("/sys/devices/system/cpu/cpu0/cache").ok()?;
-    dir.filter_map(|e| e.ok())
-        .filter(|e| e.file_name().to_string_lossy().starts_with("index"))
-        .filter_map(|e| std::fs::read_to_string(e.path().join("size")).ok())
-        .filter_map(|s| parse_size(s.trim()))
-        .max()
+    cache_levels().iter().map(|c| c.bytes as usize).max()
 }
 
 /// The data caches of the first CPU (data and unified; not instruction caches), smallest
