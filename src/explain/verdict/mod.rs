@@ -33,7 +33,7 @@ use crate::results::{Axis, ComparisonRecord, EquivalenceStatus, Ratio};
 use serde::{Deserialize, Serialize};
 
 mod tie;
-use tie::tie_break;
+use tie::{near_the_line, tie_break};
 pub use tie::{GROWTH_TIE_SLOPE, TIE_GAIN};
 
 /// A runner-up within this ratio of the fastest design is a tie.
@@ -189,23 +189,35 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
     };
     let at = ax.point(last.rows);
     let busy_note = if cmps.len() < total { format!(" ({} sizes measured on a busy machine were left out)", total - cmps.len()) } else { String::new() };
+    // Clearly behind (the interval stays above ×1.05) though less than TIE_RATIO.
+    let close = runner.low.is_some_and(|lo| lo > 1.05);
     if within_noise(runner) {
         if let Some(v) = split_samples_winner(w, a, &cmps, &ranked, last.rows, &busy_note) {
             return v;
+        }
+        // A loser clearly behind whose ratio kept shrinking toward a bounded crossing past
+        // the measured sizes is a crossover whether it ends ×1.17 or ×1.3 behind (sample-trap:
+        // ×3.5 → ×2.2 → ×1.17 in one of six sweeps, a tie before this, a crossover in the
+        // five others); within the noise, nothing says it loses.
+        if close {
+            if let Some(v) = overtaken(w, a, &cmps, &ranked, last.rows, &busy_note) {
+                return v;
+            }
         }
         let tied: Vec<&str> = ranked.iter().filter(|r| within_noise(r)).map(|r| r.design.as_str()).collect();
         let (pick, why) = tie_break(w, a, &cmps, &tied, last.rows);
         // Within the noise (the interval reaches ×1.05), or a clear difference too small to
         // choose on (under TIE_RATIO): the text says which, not "noise" for both.
-        let close = if runner.low.is_some_and(|lo| lo > 1.05) {
+        let apart = if close {
             format!("are less than ×{TIE_RATIO:.2} apart (×{:.2}{interval}), too close to choose on", runner.ratio)
         } else {
             format!("are within the noise (×{:.2}{interval})", runner.ratio)
         };
+        let near = if close { near_the_line(runner, false, &best) } else { String::new() };
         return Verdict {
             kind: VerdictKind::Tie,
             design: Some(pick.clone()),
-            text: format!("a tie at {at}, the largest size compared: `{best}` and `{}` {close}; {why}{busy_note}", runner.design),
+            text: format!("a tie at {at}, the largest size compared: `{best}` and `{}` {apart}{near}; {why}{busy_note}", runner.design),
             decided_at: Some(last.rows),
         };
     }
@@ -218,9 +230,10 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         kind: VerdictKind::Winner,
         design: Some(best.clone()),
         text: format!(
-            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{setup}{}{below}{unsupported}{busy_note}",
+            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{}{setup}{}{below}{unsupported}{busy_note}",
             ratio(runner.ratio),
             runner.design,
+            near_the_line(runner, true, &best),
             at_target(a, &best)
         ),
         decided_at: Some(last.rows),
