@@ -250,7 +250,7 @@ pub const NEAR_LINE: f64 = 1.1;
 /// Said beside a winner or a close tie whose runner-up sits near [`TIE_RATIO`] with its
 /// interval across it: another run of the same file may give the other kind. Why: the
 /// interval is this run's own, and runs of unchanged code differ by more than it (grouped-work
-/// measured ×1.12–×1.21 in 23 catalog sweeps, a winner in one); the kind stays as decided,
+/// measured ×1.12–×1.21 in 26 catalog sweeps, a winner in two); the kind stays as decided,
 /// the text warns. A winner far past the line (×5.8 with a bimodal interval down to ×1.11)
 /// is not near it. Empty otherwise.
 pub(super) fn near_the_line(runner: &Ratio, winner: bool, best: &str) -> String {
