@@ -67,6 +67,11 @@ fn fastest_plain(at: &BTreeMap<String, f64>, prepared: &[String]) -> String {
     fastest(&plain).to_string()
 }
 
+/// `a`'s median over `b`'s at each size, smallest size first.
+fn ratios(m: &BTreeMap<u64, BTreeMap<String, f64>>, a: &str, b: &str) -> Vec<f64> {
+    m.values().map(|at| at[a] / at[b]).collect()
+}
+
 fn verdict(run: &str) -> serde_json::Value {
     explain(run)["explanations"][0]["verdict"].clone()
 }
@@ -195,7 +200,7 @@ fn a_tie_names_the_design_gaining_at_the_top() {
     // The recorded situation: `b` faster at every size but the largest, `a` ahead there
     // within the noise, and `a`'s time relative to `b`'s falling at each of the last three
     // sizes by more than 15% in all.
-    let rel: Vec<f64> = m.values().map(|at| at[a] / at[b]).collect();
+    let rel = ratios(&m, a, b);
     assert!(rel[..rel.len() - 1].iter().all(|r| *r > 1.0) && rel[rel.len() - 1] < 1.0, "{rel:?}");
     let tail = &rel[rel.len() - 3..];
     assert!(tail.windows(2).all(|w| w[1] < w[0] * 0.97) && tail[0] / tail[2] >= 1.15, "{tail:?}");
@@ -339,7 +344,7 @@ fn a_close_loser_still_gaining_is_a_crossover_not_a_tie() {
     let (run, wide) = ("tests/data/verdict-runs/sample-trap-close", "tests/data/verdict-runs/sample-trap-wide");
     let (scan, join) = ("scan-per-tag", "join-wanted-tags");
     let m = medians(run);
-    let rel: Vec<f64> = m.values().map(|at| at[join] / at[scan]).collect();
+    let rel = ratios(&m, join, scan);
     let last = *rel.last().expect("sizes");
     assert!(last > 1.05 && last < 1.2, "the recorded case ends under ×1.20: {rel:?}");
     assert!(rel[rel.len() - 3..].windows(2).all(|w| w[1] < w[0]), "{rel:?}");
@@ -361,7 +366,7 @@ fn a_design_gaining_on_a_sample_is_named_from_the_size_where_it_takes_over() {
     let largest = *m.keys().next_back().expect("sizes") as f64;
     // The recorded situation: the join slower at every size, its ratio to the scan falling
     // at each of the last three sizes, and its time rising less over the last step.
-    let rel: Vec<f64> = m.values().map(|at| at[join] / at[scan]).collect();
+    let rel = ratios(&m, join, scan);
     assert!(rel.iter().all(|r| *r > 1.2), "{rel:?}");
     assert!(rel[rel.len() - 3..].windows(2).all(|w| w[1] < w[0] * 0.97), "{rel:?}");
     let doc = explain(run);
@@ -392,7 +397,7 @@ fn a_large_fixed_cost_being_diluted_is_not_called_a_crossover() {
     let m = medians(run);
     // The recorded situation: the expression slower at every size by ×9 or more, its ratio
     // shrinking over the last sizes.
-    let rel: Vec<f64> = m.values().map(|at| at[expr] / at[typed]).collect();
+    let rel = ratios(&m, expr, typed);
     assert!(rel.iter().all(|r| *r > 9.0), "{rel:?}");
     assert!(rel[rel.len() - 3..].windows(2).all(|w| w[1] < w[0]), "{rel:?}");
     let doc = explain(run);
