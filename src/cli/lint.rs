@@ -96,7 +96,7 @@ fn cache_note(plan: &crate::plan::Plan, caches: &[crate::results::CacheLevel]) -
         crate::explain::caches::levels_text(&c.levels),
         plan.axis_point(target),
         crate::units::bytes(c.target_bytes),
-        format!("{} rows", crate::units::rows_label_f(c.past_rows as f64))
+        crate::results::Axis(None).point_f(c.past_rows as f64)
     ))
 }
 

@@ -48,7 +48,7 @@ pub fn crossing(w: &WorkloadResults, da: &DesignAnalysis) -> Option<Crossing> {
     // The largest fitted size: the prediction says how far past it the target lies.
     let reach = p.rows as f64 / p.beyond_fitted();
     let fitted_rows = da.measured_sizes.iter().copied().filter(|r| (*r as f64) <= reach * 1.01).max()?;
-    let fitted_bytes = w.tables.iter().find(|t| t.rows == fitted_rows).map(|t| t.table_bytes_estimate).filter(|b| *b > 0.0)?;
+    let fitted_bytes = w.table_bytes(fitted_rows).filter(|b| *b > 0.0)?;
     levels_passed(fitted_rows, fitted_bytes, p.rows, &w.caches)
 }
 

@@ -38,7 +38,7 @@ impl Design<'_> {
 
     /// The estimated size of the table at `rows`.
     fn table_bytes(&self, rows: u64) -> Option<f64> {
-        self.w.tables.iter().find(|t| t.rows == rows).map(|t| t.table_bytes_estimate)
+        self.w.table_bytes(rows)
     }
 }
 

@@ -28,6 +28,11 @@ pub struct WorkloadResults {
 }
 
 impl WorkloadResults {
+    /// The estimated in-memory size of the table at swept value `rows` (its `table` record).
+    pub fn table_bytes(&self, rows: u64) -> Option<f64> {
+        self.tables.iter().find(|t| t.rows == rows).map(|t| t.table_bytes_estimate)
+    }
+
     /// Sizes with points beyond the header's planned sizes: the extra size a sweep spends
     /// on the designs whose class the planned sizes left unsettled (`sweep --extra-size`
     /// turns it on), ascending.
