@@ -417,3 +417,25 @@ fn a_large_fixed_cost_being_diluted_is_not_called_a_crossover() {
     assert!(text.contains("but the fits do not pin it down") && text.contains("measure a larger size"), "{text}");
     assert!(!text.contains("not shrinking steadily"), "{text}");
 }
+
+/// `grouped-work-line` (5 December 2026, one of six fresh catalog sweeps on the 2-core Xeon,
+/// cut to this workload): `join-back-totals` ended ×1.21 [×1.16–×1.22] behind
+/// `window-over-crew` at 1024k rows. Over 26 catalog sweeps this runner-up measured
+/// ×1.12–×1.21; the two whose median passed ×1.20 were winners and the 24 others ties, so
+/// the kind changed with the run. Just past the line, a winner's whole interval must clear
+/// it: this is a tie, naming the design fastest where it is decided, and it says another
+/// run may name that design the winner.
+#[test]
+fn a_median_just_past_the_line_with_its_interval_across_it_is_a_tie() {
+    let run = "tests/data/verdict-runs/grouped-work-line";
+    let (window, join) = ("window-over-crew", "join-back-totals");
+    let m = medians(run);
+    let last = *ratios(&m, join, window).last().expect("sizes");
+    assert!(last > 1.2 && last < 1.25, "the recorded case ends just past ×1.20: {last:.3}");
+    assert_eq!(fastest(m.values().next_back().expect("sizes")), window);
+    let v = verdict(run);
+    assert_eq!(v["kind"], "tie", "{v}");
+    assert_eq!(v["design"], window, "{v}");
+    let text = v["text"].as_str().expect("text");
+    assert!(text.contains("just past ×1.20 with an interval that reaches back below it") && text.contains(&format!("another run may name `{window}` the winner")), "{text}");
+}

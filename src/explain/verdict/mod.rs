@@ -3,7 +3,8 @@
 //!
 //! - `winner`: the fastest design at the largest size where the compared designs were all
 //!   measured, by more than the noise ([`TIE_RATIO`] — runs of unchanged code on a shared
-//!   2-core machine differ by 10–20% at a point — and the ratio's own interval); when only
+//!   2-core machine differ by 10–20% at a point — and the ratio's own interval, whole
+//!   interval past the line when the ratio is within ×1.1 of it); when only
 //!   a split point (samples in two groups) makes the largest size a tie, the next size down
 //!   decides, for the design fastest at both;
 //! - `crossover`: a design that loses at the measured sizes is predicted to win before the
@@ -33,7 +34,7 @@ use crate::results::{Axis, ComparisonRecord, EquivalenceStatus, Ratio};
 use serde::{Deserialize, Serialize};
 
 mod tie;
-use tie::{near_the_line, tie_break};
+use tie::{near_the_line, short_of_the_line, tie_break};
 pub use tie::{GROWTH_TIE_SLOPE, TIE_GAIN};
 
 /// A runner-up within this ratio of the fastest design is a tie.
@@ -208,12 +209,14 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         let (pick, why) = tie_break(w, a, &cmps, &tied, last.rows);
         // Within the noise (the interval reaches ×1.05), or a clear difference too small to
         // choose on (under TIE_RATIO): the text says which, not "noise" for both.
-        let apart = if close {
+        let apart = if close && runner.ratio >= TIE_RATIO {
+            format!("are ×{:.2}{interval} apart, just past ×{TIE_RATIO:.2} with an interval that reaches back below it, too close to choose on (another run may name `{best}` the winner)", runner.ratio)
+        } else if close {
             format!("are less than ×{TIE_RATIO:.2} apart (×{:.2}{interval}), too close to choose on", runner.ratio)
         } else {
             format!("are within the noise (×{:.2}{interval})", runner.ratio)
         };
-        let near = if close { near_the_line(runner, false, &best) } else { String::new() };
+        let near = if close && runner.ratio < TIE_RATIO { near_the_line(runner, &best) } else { String::new() };
         return Verdict {
             kind: VerdictKind::Tie,
             design: Some(pick.clone()),
@@ -230,20 +233,20 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         kind: VerdictKind::Winner,
         design: Some(best.clone()),
         text: format!(
-            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{}{setup}{}{below}{unsupported}{busy_note}",
+            "use `{best}`: fastest at {at}, the largest size compared, {} faster than `{}`{interval}{setup}{}{below}{unsupported}{busy_note}",
             ratio(runner.ratio),
             runner.design,
-            near_the_line(runner, true, &best),
             at_target(a, &best)
         ),
         decided_at: Some(last.rows),
     }
 }
 
-/// A design's ratio to the fastest is within the noise: under [`TIE_RATIO`], or its interval
-/// reaches down to ×1.05.
+/// A design's ratio to the fastest is within the noise: under [`TIE_RATIO`], its interval
+/// reaches down to ×1.05, or it sits just past the line with its interval reaching back
+/// across it ([`short_of_the_line`]).
 fn within_noise(r: &Ratio) -> bool {
-    r.ratio < TIE_RATIO || r.low.is_some_and(|lo| lo <= 1.05)
+    r.ratio < TIE_RATIO || r.low.is_some_and(|lo| lo <= 1.05) || short_of_the_line(r)
 }
 
 /// The design's samples at this size fell into two separate groups (`Measured::bimodal`).
