@@ -193,10 +193,13 @@ fn a_prediction_whose_table_outgrows_a_cache_says_where() {
     std::fs::write(dir.path().join("points.jsonl"), format!("{header}\n{rest}")).expect("write");
     let with = dir.path().to_str().expect("utf-8");
 
-    let findings = |run: &str, args: &[&str]| -> Vec<Value> {
+    let explain = |run: &str, args: &[&str]| -> Value {
         let out = Command::cargo_bin("framecost").expect("binary").args(["explain", run, "--json"]).args(args).output().expect("runs");
         assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
-        let doc: Value = serde_json::from_slice(&out.stdout).expect("json");
+        serde_json::from_slice(&out.stdout).expect("json")
+    };
+    let findings = |run: &str, args: &[&str]| -> Vec<Value> {
+        let doc = explain(run, args);
         doc["explanations"][0]["findings"].as_array().expect("findings").iter().filter(|f| f["kind"] == "caches").cloned().collect()
     };
     let marked = findings(with, &["--fit-up-to", "16000"]);
@@ -212,6 +215,17 @@ fn a_prediction_whose_table_outgrows_a_cache_says_where() {
     let full: Vec<Value> = findings(with, &[]);
     assert_eq!(full.iter().map(|f| f["design"].as_str().expect("a design")).collect::<Vec<_>>(), ["one-at-a-time"], "{full:?}");
     assert!(findings(run, &["--fit-up-to", "16000"]).is_empty(), "no caches recorded");
+    // The hold-out checks past 16k say the same per checked size (the accuracy bench
+    // counts them): 32k rows is 2.2 MiB, past the L2 already; without caches, nothing.
+    let checks = |run: &str| -> Vec<(u64, Value)> {
+        let doc = explain(run, &["--fit-up-to", "16000"]);
+        let designs = doc["analysis"]["workloads"][0]["designs"].as_array().expect("designs").clone();
+        let d = designs.iter().find(|d| d["design"] == "build-once").expect("build-once");
+        d["holdout"].as_array().expect("checks").iter().map(|h| (h["rows"].as_u64().expect("rows"), h["caches_passed"].clone())).collect()
+    };
+    let marked = checks(with);
+    assert!(marked.len() >= 2 && marked.iter().all(|(rows, c)| *rows > 16_000 && *c == serde_json::json!([2])), "{marked:?}");
+    assert!(checks(run).iter().all(|(_, c)| c.is_null()), "no caches recorded");
 }
 
 fn measured_ratio(run: &str, design: &str) -> f64 {

@@ -104,7 +104,7 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     };
     let prediction = predict_at.and_then(time_pred);
     let bytes_prediction = predict_at.and_then(|n| pred(&bytes_fit, n));
-    let holdout = holdout_checks(&pts, limit, &time_pred);
+    let holdout = holdout_checks(w, &pts, limit, &time_pred);
     let analysis = DesignAnalysis {
         design: name.to_string(),
         measured_sizes: pts.iter().map(|p| p.rows).collect(),
@@ -194,8 +194,16 @@ fn memory_fit(for_memory: &[&&PointRecord], get: &dyn Fn(&Measured) -> f64) -> (
 }
 
 /// The time prediction checked at every measured size beyond the fitted ones.
-fn holdout_checks(pts: &[&PointRecord], limit: u64, pred: &dyn Fn(u64) -> Option<super::PredictionOut>) -> Vec<HoldoutCheck> {
+fn holdout_checks(w: &WorkloadResults, pts: &[&PointRecord], limit: u64, pred: &dyn Fn(u64) -> Option<super::PredictionOut>) -> Vec<HoldoutCheck> {
     let cores_fitted = pts.iter().filter(|p| p.rows <= limit).filter_map(|p| p.measured.as_ref()).last().and_then(cores);
+    // The cache levels the table passed between the largest fitted size and a checked one,
+    // by the rule of the `caches` finding (rows sweeps only: other axes keep the rows).
+    let fitted = pts.iter().filter(|p| p.rows <= limit).map(|p| p.rows).max();
+    let passed = |rows: u64| -> Vec<u8> {
+        let (Some(f), true) = (fitted, w.header.axis().is_rows()) else { return vec![] };
+        let Some(bytes) = w.table_bytes(f).filter(|b| *b > 0.0) else { return vec![] };
+        super::caches::levels_passed(f, bytes, rows, &w.caches).map(|c| c.levels.iter().map(|l| l.level).collect()).unwrap_or_default()
+    };
     pts.iter()
         .filter(|p| p.rows > limit)
         .filter_map(|p| {
@@ -211,6 +219,7 @@ fn holdout_checks(pts: &[&PointRecord], limit: u64, pred: &dyn Fn(u64) -> Option
                 inside_interval: pr.low <= m.median_ns && m.median_ns <= pr.high,
                 cores: cores(m),
                 cores_fitted,
+                caches_passed: passed(p.rows),
             })
         })
         .collect()

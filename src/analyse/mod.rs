@@ -12,6 +12,7 @@
 //! prediction (`copying.rs`), and one design analysed (`design.rs`); this file runs them
 //! over a workload and finds the crossovers.
 
+pub mod caches;
 mod copying;
 mod trend;
 mod design;

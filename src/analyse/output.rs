@@ -162,6 +162,11 @@ pub struct HoldoutCheck {
     pub cores: Option<f64>,
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub cores_fitted: Option<f64>,
+    /// The cache levels (2, 3…) the table passed between the largest fitted size and the
+    /// checked one, by the rule of the `caches` finding (`analyse::caches`); empty when
+    /// none, when the run recorded no caches, or for a groups or columns sweep.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub caches_passed: Vec<u8>,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]

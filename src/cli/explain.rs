@@ -94,14 +94,15 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
             }
             for h in &d.holdout {
                 println!(
-                    "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{}{})",
+                    "  {:<24} check at {}: predicted {}, measured {} ({:+.1}%{}{}{})",
                     "",
                     wa.axis().point(h.rows),
                     crate::units::time_ns(h.predicted_ns),
                     crate::units::time_ns(h.measured_ns),
                     h.error * 100.0,
                     if h.inside_interval { ", inside the interval" } else { ", outside the interval" },
-                    crate::analyse::cores_changed(h).map(|(at, fitted)| format!("; {at:.1} cores busy there against {fitted:.1} at the largest fitted size")).unwrap_or_default()
+                    crate::analyse::cores_changed(h).map(|(at, fitted)| format!("; {at:.1} cores busy there against {fitted:.1} at the largest fitted size")).unwrap_or_default(),
+                    passed_text(&h.caches_passed)
                 );
             }
             for n in &d.notes {
@@ -130,6 +131,16 @@ pub fn run(a: Args) -> Result<(), super::Failure> {
         println!();
     }
     Ok(())
+}
+
+/// "; the table grew past the L2 cache after the largest fitted size", or nothing.
+fn passed_text(levels: &[u8]) -> String {
+    let names: Vec<String> = levels.iter().map(|l| format!("L{l}")).collect();
+    match names.len() {
+        0 => String::new(),
+        1 => format!("; the table grew past the {} cache after the largest fitted size", names[0]),
+        _ => format!("; the table grew past the {} caches after the largest fitted size", names.join(" and ")),
+    }
 }
 
 /// The optimized plan of each `sql` step, as recorded with the run (older runs have none).

@@ -82,18 +82,18 @@ pub fn run(args: Args) -> Result<(), Failure> {
 }
 
 /// Advice, not a problem: the table at the largest size fits in a cache of this machine
-/// that the table at the target does not (`explain::caches` for why it matters).
+/// that the table at the target does not (`analyse::caches` for why it matters).
 fn cache_note(plan: &crate::plan::Plan, caches: &[crate::results::CacheLevel]) -> Option<String> {
     let (target, largest) = (plan.target?, *plan.sizes.last()?);
     if plan.axis.is_some() {
         return None;
     }
-    let c = crate::explain::caches::levels_passed(largest, plan.table_bytes(largest), target, caches)?;
+    let c = crate::analyse::caches::levels_passed(largest, plan.table_bytes(largest), target, caches)?;
     Some(format!(
         "the table at the largest size, {}, is about {} and fits in {} of this machine; at the target, {}, it is about {}: predictions there cross that cache, which usually raises the cost per row, and no size measured shows by how much — let the sizes reach past about {}",
         plan.axis_point(largest),
         crate::units::bytes(c.fitted_bytes),
-        crate::explain::caches::levels_text(&c.levels),
+        crate::analyse::caches::levels_text(&c.levels),
         plan.axis_point(target),
         crate::units::bytes(c.target_bytes),
         crate::results::Axis(None).point_f(c.past_rows as f64)
@@ -125,7 +125,7 @@ mod tests {
         let past = (64_000.0 * (2u64 << 20) as f64 / p.table_bytes(64_000)).ceil();
         assert!(note.contains(&format!("past about {} rows", crate::units::rows_label_f(past))), "{note} ({per_row} bytes a row)");
         // Sizes already past the L2, no target, or no caches known: nothing to say; nor for
-        // the shared L3 (`explain::caches::counted`).
+        // the shared L3 (`analyse::caches::counted`).
         assert!(cache_note(&plan("[16k, 4M]", "target: 16M\n"), &XEON).is_none());
         assert!(cache_note(&plan("[16k, 64k]", ""), &XEON).is_none());
         assert!(cache_note(&p, &[]).is_none());

@@ -397,14 +397,14 @@ fn coverage(d: &Design, findings: &mut Vec<Finding>) {
                 String::new(),
             ));
         }
-        if let Some(c) = super::caches::crossing(w, da) {
+        if let Some(c) = crate::analyse::caches::crossing(w, da) {
             findings.push(f(
                 "caches",
                 format!(
                     "the table is about {} at {}, the largest fitted size, within {}; at {} it is about {}, past it from about {}",
                     crate::units::bytes(c.fitted_bytes),
                     at(c.fitted_rows),
-                    super::caches::levels_text(&c.levels),
+                    crate::analyse::caches::levels_text(&c.levels),
                     at(c.target_rows),
                     crate::units::bytes(c.target_bytes),
                     ax.point_f(c.past_rows as f64)

@@ -17,7 +17,6 @@ use crate::results::{EquivalenceStatus, Measured};
 use serde::{Deserialize, Serialize};
 
 pub mod analysed;
-pub mod caches;
 mod design;
 pub mod payback;
 pub mod verdict;

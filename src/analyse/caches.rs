@@ -12,6 +12,11 @@
 //! measure. Only for a rows sweep (a groups or columns sweep keeps the rows fixed) and where
 //! the run recorded its caches.
 //!
+//! The rule lives with the analysis because two stages read it: `explain`'s `caches` finding
+//! (on the prediction at the target) and the hold-out check of `explain --fit-up-to`
+//! (`HoldoutCheck::caches_passed`, between the largest fitted size and each checked one),
+//! which the accuracy bench counts; `lint` asks it too, before anything runs.
+//!
 //! Only the levels a core has to itself from L2 on count ([`counted`]). A table within the
 //! L1 is a few thousand rows, where fixed costs dominate every step measured here. A level
 //! shared by several cores is shared with whatever else runs, and on a virtual machine its
