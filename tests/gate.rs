@@ -56,6 +56,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
         cache_sweep_bytes: None,
         cache_sweep_threads: None,
         caches: vec![],
+        allocator: None,
     }));
     r.push(Record::Workload(WorkloadHeader {
         workload: "ledger".into(),
@@ -777,4 +778,35 @@ fn a_leftover_of_the_machine_move_is_not_called_a_change_of_the_design() {
         assert_eq!(m["call"], "unclear", "{m}");
         assert_eq!(g["design_regressions"], 0, "{g}");
     }
+}
+
+fn with_allocator(mut r: RunResults, allocator: Option<&str>) -> RunResults {
+    if let Some(h) = r.run.as_mut() {
+        h.allocator = allocator.map(str::to_string);
+    }
+    r
+}
+
+/// Runs measured with the allocator tuned differently (here: a run made before framecost
+/// recorded its tuning, when glibc's fast bins were still on, against one made after) are
+/// said to differ, in the JSON and the text; the same tuning, or none recorded in either,
+/// says nothing. It informs and changes no call.
+#[test]
+fn runs_measured_with_a_differently_tuned_allocator_are_said_to_differ() {
+    let tmp = tempfile::tempdir().expect("tempdir");
+    let tuned = Some("glibc: blocks of 128 KiB and more fresh from the system, heap never trimmed, fast bins off");
+    let older = with_allocator(run("160000", 41, "cpu", 1e8, &linear, &lin_bytes, &[]), None);
+    let newer = with_allocator(run("170000", 42, "cpu", 1e8, &linear, &lin_bytes, &[]), tuned);
+    let again = with_allocator(run("180000", 43, "cpu", 1e8, &linear, &lin_bytes, &[]), tuned);
+    let g = compare(&older, &newer, &GateOptions::default());
+    assert_eq!(g.allocators_differ, Some((None, tuned.map(str::to_string))));
+    let calls = |g: &framecost::track::gate::GateReport| g.workloads[0].points.iter().map(|p| p.call).collect::<Vec<_>>();
+    assert_eq!(calls(&g), calls(&compare(&with_allocator(older.clone(), tuned), &newer, &GateOptions::default())));
+    assert_eq!(compare(&newer, &again, &GateOptions::default()).allocators_differ, None);
+    for (name, r) in [("older", &older), ("newer", &newer)] {
+        write_run(&tmp.path().join(name), r);
+    }
+    let out = Command::cargo_bin("framecost").expect("binary").env("COLUMNS", "200").arg("gate").arg(tmp.path().join("older")).arg(tmp.path().join("newer")).output().expect("runs");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("allocator") && text.contains("baseline: not recorded") && text.contains("fast bins off"), "{text}");
 }

@@ -140,6 +140,17 @@ pub fn steady_thresholds() {
     });
 }
 
+/// The allocator tuning [`steady_thresholds`] applies, in words, for the run header: runs
+/// measured with different settings are not comparable for designs that allocate and free
+/// many blocks (fast bins on, before 5 December 2026, made `horizontal-arithmetic` ×4–×6
+/// slower beside a transpose). None where nothing is tuned.
+pub fn settings() -> Option<String> {
+    #[cfg(all(target_os = "linux", target_env = "gnu"))]
+    return Some("glibc: blocks of 128 KiB and more fresh from the system, heap never trimmed, fast bins off".to_string());
+    #[allow(unreachable_code)]
+    None
+}
+
 /// Bytes live in the whole process right now.
 pub fn live_bytes() -> u64 {
     LIVE.load(Relaxed)

@@ -77,6 +77,7 @@ pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool, warm_cac
         cache_sweep_bytes: (!warm_caches).then(super::scrub::bytes),
         cache_sweep_threads: (!warm_caches).then(super::scrub::threads),
         caches: super::scrub::cache_levels(),
+        allocator: super::alloc::settings(),
     }
 }
 

@@ -80,6 +80,12 @@ pub struct RunHeader {
     /// level that held it at every fitted size.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub caches: Vec<CacheLevel>,
+    /// How the measuring process tuned the system allocator (`measure::alloc::settings`);
+    /// absent where it was not tuned and in runs made before it was recorded. Medians of
+    /// designs that allocate and free many blocks depend on it, so `gate` says when the two
+    /// runs differ.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub allocator: Option<String>,
 }
 
 /// One level of the processor's data caches (data or unified; instruction caches left out).

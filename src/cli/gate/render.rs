@@ -78,6 +78,14 @@ pub fn render(r: &GateReport) -> String {
     if let Some(text) = machine_moves(r) {
         para(&mut s, "machine", &text);
     }
+    if let Some((b, n)) = &r.allocators_differ {
+        let said = |a: &Option<String>| a.clone().unwrap_or_else(|| "not recorded (a run made before framecost recorded it)".into());
+        para(&mut s, "allocator", &format!(
+            "the runs were measured with the allocator tuned differently (baseline: {}; new: {}): designs that allocate and free many small blocks can move by that alone, not by the change gated",
+            said(b),
+            said(n)
+        ));
+    }
     if r.machines_differ {
         let y = r.yardstick_ratio.map(|y| format!("{y:.3}×")).unwrap_or_else(|| "unknown".into());
         para(&mut s, "machines", &format!("the runs were made on different machines or versions; ratios are judged divided by the yardstick's ({y})"));

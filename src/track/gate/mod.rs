@@ -254,6 +254,11 @@ pub struct GateReport {
     /// `gate --recheck N`: what was swept again and what could not be.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub recheck: Option<RecheckSummary>,
+    /// The two runs tuned the allocator differently (`RunHeader::allocator`: baseline, new;
+    /// None where a run did not record it): designs that allocate and free many blocks can
+    /// move by that alone.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub allocators_differ: Option<(Option<String>, Option<String>)>,
 }
 
 /// How far the machine itself moved between the two runs, as its probes saw it: the
@@ -343,11 +348,16 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         _ => true,
     };
     let machines = Machines { differ: machines_differ, yardstick_ratio, same_sweep };
+    let allocators_differ = match (bh, nh) {
+        (Some(b), Some(n)) if b.allocator != n.allocator => Some((b.allocator.clone(), n.allocator.clone())),
+        _ => None,
+    };
     let mut report = GateReport {
         baseline_run: bh.map(|h| h.run_id.clone()).unwrap_or_default(),
         new_run: nh.map(|h| h.run_id.clone()).unwrap_or_default(),
         machines_differ,
         yardstick_ratio,
+        allocators_differ,
         ..Default::default()
     };
     for bw in &base.workloads {
