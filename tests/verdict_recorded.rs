@@ -437,5 +437,5 @@ fn a_median_just_past_the_line_with_its_interval_across_it_is_a_tie() {
     assert_eq!(v["kind"], "tie", "{v}");
     assert_eq!(v["design"], window, "{v}");
     let text = v["text"].as_str().expect("text");
-    assert!(text.contains("just past ×1.20 with an interval that reaches back below it") && text.contains(&format!("another run may name `{window}` the winner")), "{text}");
+    assert!(text.contains("on the ×1.20 line or just past it with an interval that reaches back below it") && text.contains(&format!("another run may name `{window}` the winner")), "{text}");
 }

@@ -210,7 +210,7 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         // Within the noise (the interval reaches ×1.05), or a clear difference too small to
         // choose on (under TIE_RATIO): the text says which, not "noise" for both.
         let apart = if close && runner.ratio >= TIE_RATIO {
-            format!("are ×{:.2}{interval} apart, just past ×{TIE_RATIO:.2} with an interval that reaches back below it, too close to choose on (another run may name `{best}` the winner)", runner.ratio)
+            format!("are ×{:.2}{interval} apart, on the ×{TIE_RATIO:.2} line or just past it with an interval that reaches back below it, too close to choose on (another run may name `{best}` the winner)", runner.ratio)
         } else if close {
             format!("are less than ×{TIE_RATIO:.2} apart (×{:.2}{interval}), too close to choose on", runner.ratio)
         } else {
