@@ -57,6 +57,7 @@ fn run(id: &str, seed: u64, cpu: &str, yard: f64, cost: &dyn Fn(u64) -> f64, byt
         cache_sweep_threads: None,
         caches: vec![],
         allocator: None,
+        build: None,
     }));
     r.push(Record::Workload(WorkloadHeader {
         workload: "ledger".into(),

@@ -147,6 +147,16 @@ fn the_resweeps_are_made_kept_and_reused() {
     assert_eq!(doc["recheck"]["swept"], 4, "{doc}");
     let kept = std::fs::read_dir(new.join("rechecks")).expect("rechecks").count();
     assert_eq!(kept, 4);
+    // Both runs were made by this build, so the baseline's workload was swept again too,
+    // from the text it recorded, in turn with the new side's, and kept beside the baseline.
+    assert!(err.contains("sweeping tripled (the baseline's workload) again (4 of 4"), "{err}");
+    assert_eq!(doc["recheck"]["baseline_swept"], 4, "{doc}");
+    let mut beside: Vec<String> = std::fs::read_dir(base.join("rechecks")).expect("rechecks").map(|e| e.expect("entry").file_name().to_string_lossy().into_owned()).collect();
+    beside.sort();
+    assert_eq!(beside, ["tripled-1", "tripled-2", "tripled-3", "tripled-4", "tripled.baseline.yaml"]);
+    assert_eq!(std::fs::read_to_string(base.join("rechecks").join("tripled.baseline.yaml")).expect("text"), SPEC.replace("STEP", "build_from_records"));
+    let w = doc["workloads"].as_array().expect("workloads").iter().find(|w| w["workload"] == "tripled").expect("workload");
+    assert_eq!((w["recheck"]["runs"].as_u64(), w["recheck"]["baseline_runs"].as_u64()), (Some(5), Some(5)), "{w}");
     let moves = recheck_moves(&doc, "tripled");
     if let Some(m) = moves.iter().find(|m| m.0 == "build") {
         // Three passes of the step instead of one; the design's time also holds what does
@@ -159,6 +169,48 @@ fn the_resweeps_are_made_kept_and_reused() {
     let (rc2, doc2, err2) = gate(&base, &new, &["--recheck", "5"], dir.path());
     assert!(!err2.contains("sweeping"), "{err2}");
     assert_eq!(doc2["recheck"]["swept"], 0, "{doc2}");
+    assert_eq!(doc2["recheck"]["baseline_swept"], 0, "{doc2}");
     assert_eq!(rc2, rc);
     assert_eq!(doc2["workloads"], doc["workloads"]);
+}
+
+fn read(dir: &Path) -> framecost::results::reader::RunResults {
+    framecost::results::reader::RunResults::read(dir).expect("a recorded run")
+}
+
+/// Two catalog sweeps made by one build, the second with `build-once` slowed by 15%, and
+/// the four resweeps of each side a recheck made in turn (`tests/data/recheck-runs/
+/// both-sides`, row-growth cut from them). Against the baseline alone the slowdown was not
+/// called: a steady ×1.18 over its 8 sizes, under three spreads of the workload's points.
+/// Judged on five runs of each side (`judge_both`), it is the one design called, and five
+/// runs of the unchanged baseline split three against two call nothing.
+#[test]
+fn both_sides_swept_again_catch_a_steady_slowdown_the_baseline_alone_missed() {
+    use framecost::track::gate::{compare, judge_both, wide_suspects, Call, GateOptions};
+    let d = Path::new(DATA).join("both-sides");
+    let (base, new) = (read(&d.join("baseline")), read(&d.join("new")));
+    let mut report = compare(&base, &new, &GateOptions::default());
+    assert!(!report.failed(), "the two runs alone pass, as measured");
+    let wg = report.workloads.iter_mut().find(|w| w.workload == "row-growth").expect("row-growth");
+    assert_eq!(wide_suspects(wg), ["build-once"]);
+    let bases: Vec<_> = std::iter::once(d.join("baseline")).chain((1..=4).map(|k| d.join(format!("baseline-{k}")))).map(|p| read(&p)).collect();
+    let news: Vec<_> = std::iter::once(d.join("new")).chain((1..=4).map(|k| d.join(format!("new-{k}")))).map(|p| read(&p)).collect();
+    let of = |runs: &[framecost::results::reader::RunResults]| runs.iter().map(|r| r.workloads[0].clone()).collect::<Vec<_>>();
+    let (b, n) = (of(&bases), of(&news));
+    let h = judge_both(wg, &n.iter().collect::<Vec<_>>(), &b.iter().collect::<Vec<_>>());
+    assert_eq!((h.runs, h.baseline_runs), (5, 5));
+    let called: Vec<_> = h.moves.iter().filter(|m| m.call != Call::Same).collect();
+    assert_eq!(called.len(), 1, "{:?}", h.moves);
+    assert_eq!((called[0].design.as_str(), called[0].call), ("build-once", Call::Regression), "{called:?}");
+    // The knob's 15% of the build's own time, through ten runs: ×1.10–×1.25 of the design.
+    assert!(called[0].ratio > 1.10 && called[0].ratio < 1.25, "{called:?}");
+    assert!(called[0].ratio > called[0].bar, "{called:?}");
+    // Unchanged code on both sides: the baseline's five runs, three against two.
+    let mut again = compare(&bases[0], &bases[3], &GateOptions::default());
+    let wg = again.workloads.iter_mut().find(|w| w.workload == "row-growth").expect("row-growth");
+    let h = judge_both(wg, &b[3..].iter().collect::<Vec<_>>(), &b[..3].iter().collect::<Vec<_>>());
+    assert!(h.moves.iter().all(|m| m.call == Call::Same), "{:?}", h.moves);
+    // Not only because nothing was asked about: every design's difference is within its bar.
+    assert_eq!(h.moves.len(), 6, "{:?}", h.moves);
+    assert!(h.moves.iter().all(|m| m.ratio.ln().abs() <= m.bar.ln()), "{:?}", h.moves);
 }

@@ -78,7 +78,19 @@ pub fn run_header(command: Vec<String>, clock: ClockInfo, forced: bool, warm_cac
         cache_sweep_threads: (!warm_caches).then(super::scrub::threads),
         caches: super::scrub::cache_levels(),
         allocator: super::alloc::settings(),
+        build: build_id(),
     }
+}
+
+/// This framecost build: the xxh3 hash of its own executable, in hex (read once, about
+/// 0.1 s for a 107 MB release build); None where the executable cannot be read.
+pub fn build_id() -> Option<String> {
+    static ID: std::sync::OnceLock<Option<String>> = std::sync::OnceLock::new();
+    ID.get_or_init(|| {
+        let bytes = std::fs::read(std::env::current_exe().ok()?).ok()?;
+        Some(format!("{:016x}", xxhash_rust::xxh3::xxh3_64(&bytes)))
+    })
+    .clone()
 }
 
 /// The closing record.

@@ -86,6 +86,12 @@ pub struct RunHeader {
     /// runs differ.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub allocator: Option<String>,
+    /// The framecost build that made the run: a hash of its executable
+    /// (`measure::headers::build_id`); absent in runs made before it was recorded. `gate
+    /// --recheck` sweeps the baseline's workloads again only with the same build, since
+    /// another build may measure them differently (a polars upgrade is a change to gate).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub build: Option<String>,
 }
 
 /// One level of the processor's data caches (data or unified; instruction caches left out).
@@ -99,6 +105,12 @@ pub struct CacheLevel {
 }
 
 impl RunHeader {
+    /// This run's and `other`'s allocator tunings, when they differ (None where a run did not
+    /// record it): designs that allocate and free many small blocks can move by that alone.
+    pub fn allocators_apart(&self, other: &RunHeader) -> Option<(Option<String>, Option<String>)> {
+        (self.allocator != other.allocator).then(|| (self.allocator.clone(), other.allocator.clone()))
+    }
+
     /// How the caches were swept before each sample: (buffer bytes, threads); None with warm
     /// caches.
     pub fn cache_sweep(&self) -> Option<(u64, u32)> {

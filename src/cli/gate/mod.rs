@@ -156,7 +156,7 @@ pub fn run(a: Args) -> Result<(), Failure> {
         return bad(format!("the runs share no workload ({})", report.unmatched_workloads.join(", ")));
     }
     if let Some(runs) = a.recheck {
-        let how = recheck::Recheck { runs, allow_programs: a.allow_programs, new_dir };
+        let how = recheck::Recheck { runs, allow_programs: a.allow_programs, new_dir, base_dir: &base_dir };
         if let Err(m) = recheck::recheck(&mut report, &base, &new, &how) {
             return bad(m);
         }

@@ -28,86 +28,156 @@ pub struct Recheck<'a> {
     pub runs: usize,
     pub allow_programs: bool,
     pub new_dir: &'a Path,
+    pub base_dir: &'a Path,
+}
+
+/// One workload to sweep again: its run on one side, the resweeps kept and made, how many
+/// are still needed, and the arguments that make one (or why none can be made).
+struct Plan<'a> {
+    w: &'a WorkloadResults,
+    runs: Vec<RunResults>,
+    need: usize,
+    args: Result<Vec<String>, String>,
+    folder: PathBuf,
+    took: Option<f64>,
 }
 
 /// Sweep the failing workloads again and judge them (module doc). Errors are for the
 /// folder itself; a workload that cannot be swept again is listed with its reason.
 pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: &Recheck) -> Result<(), String> {
     let folder = r.new_dir.join("rechecks");
+    let base_folder = r.base_dir.join("rechecks");
     let mut summary = RecheckSummary { runs: r.runs, folder: folder.display().to_string(), ..Default::default() };
-    let wanted: Vec<String> = report.workloads.iter().filter(|w| !crate::track::gate::suspects(w).is_empty()).map(|w| w.workload.clone()).collect();
-    // Resweeps kept by an earlier gate of this run, read once.
+    // The baseline's side too, when this very build made both runs (module doc).
+    let both = same_build(base, new);
+    if let Err(why) = &both {
+        summary.baseline_not_swept = Some(why.clone());
+    }
+    let asked = |w: &crate::track::gate::WorkloadGate| !crate::track::gate::suspects(w).is_empty() || (both.is_ok() && !crate::track::gate::wide_suspects(w).is_empty());
+    let wanted: Vec<String> = report.workloads.iter().filter(|w| asked(w)).map(|w| w.workload.clone()).collect();
+    // Resweeps kept by an earlier gate of these runs, read once.
     let earlier = RunResults::read_folder(&folder).unwrap_or_default();
-    // Each failing workload with the resweeps it still needs, and how to make them (or why
-    // they cannot be made: the kept ones still count).
-    let mut plans: Vec<(&WorkloadResults, usize, Result<Vec<String>, String>)> = Vec::new();
-    // Per plan: the runs of the new code it is judged on, kept ones first.
-    let mut runs: Vec<Vec<RunResults>> = Vec::new();
+    let earlier_base = if both.is_ok() { RunResults::read_folder(&base_folder).unwrap_or_default() } else { vec![] };
+    // Per failing workload, the new side's plan and the baseline's (when it is swept too).
+    let mut plans: Vec<(Plan, Option<Plan>)> = Vec::new();
     for name in &wanted {
         let Some(nw) = new.workloads.iter().find(|w| &w.header.workload == name) else { continue };
         let mine: Vec<RunResults> = earlier.iter().filter(|run| same_workload(run, nw)).cloned().collect();
         let need = r.runs.saturating_sub(1 + mine.len());
         let args = if need > 0 { sweep_args(nw, new, r.allow_programs) } else { Ok(vec![]) };
-        plans.push((nw, need, args));
-        runs.push(mine);
+        let new_plan = Plan { w: nw, runs: mine, need, args, folder: folder.clone(), took: None };
+        let base_plan = base.workloads.iter().find(|w| &w.header.workload == name).filter(|_| both.is_ok()).map(|bw| {
+            let theirs: Vec<RunResults> = earlier_base.iter().filter(|run| same_workload(run, bw)).cloned().collect();
+            let need = r.runs.saturating_sub(1 + theirs.len());
+            let args = if need > 0 { baseline_args(bw, base, &base_folder) } else { Ok(vec![]) };
+            Plan { w: bw, runs: theirs, need, args, folder: base_folder.clone(), took: None }
+        });
+        plans.push((new_plan, base_plan));
     }
-    if plans.iter().any(|(_, need, args)| *need > 0 && args.is_ok()) {
-        std::fs::create_dir_all(&folder).map_err(|e| format!("--recheck: cannot create {}: {e}", folder.display()))?;
-    }
-    for (nw, need, args) in plans.iter_mut() {
-        if let (Err(why), true) = (&args, *need > 0) {
-            summary.not_rechecked.push((nw.header.workload.clone(), why.clone()));
-            *need = 0;
+    for (np, bp) in plans.iter_mut() {
+        if let (Err(why), true) = (&np.args, np.need > 0) {
+            summary.not_rechecked.push((np.w.header.workload.clone(), why.clone()));
+            np.need = 0;
+        }
+        if let Some(b) = bp.as_mut().filter(|b| b.need > 0 && b.args.is_err()) {
+            if let Err(why) = &b.args {
+                summary.not_rechecked.push((b.w.header.workload.clone(), format!("the baseline's side: {why}")));
+            }
+            b.need = 0;
         }
     }
-    // Rounds: every workload once per round, so a slow spell of the machine spreads over them.
-    let rounds = plans.iter().map(|(_, need, _)| *need).max().unwrap_or(0);
-    // What one resweep of each workload took, once one has been made.
-    let mut took: Vec<Option<f64>> = vec![None; plans.len()];
+    for p in plans.iter().flat_map(|(n, b)| std::iter::once(n).chain(b.as_ref())).filter(|p| p.need > 0) {
+        std::fs::create_dir_all(&p.folder).map_err(|e| format!("--recheck: cannot create {}: {e}", p.folder.display()))?;
+    }
+    // Rounds: every workload once per round, each side in turn, so a slow spell of the
+    // machine spreads over them and over both sides alike.
+    let rounds = plans.iter().flat_map(|(n, b)| std::iter::once(n.need).chain(b.as_ref().map(|b| b.need))).max().unwrap_or(0);
     for round in 0..rounds {
-        for (((nw, need, args), took), mine) in plans.iter_mut().zip(took.iter_mut()).zip(runs.iter_mut()) {
-            let (true, Ok(args)) = (*need > 0, &args) else { continue };
-            let name = &nw.header.workload;
-            let out = free_folder(&folder, name);
-            let cost = match took {
-                Some(s) => format!("the last took {}", crate::units::time_ns(*s * 1e9)),
-                None => format!("the new run sampled it for {}, more with its tables and probes", crate::units::time_ns(spent_s(nw) * 1e9)),
-            };
-            eprintln!("framecost gate: sweeping {name} again ({} of {rounds}; {cost}) into {}", round + 1, out.display());
-            let started = std::time::Instant::now();
-            match sweep_again(args, &out) {
-                Ok(run) => {
-                    summary.swept += 1;
-                    *need -= 1;
-                    *took = Some(started.elapsed().as_secs_f64());
-                    mine.push(run);
-                }
-                Err(why) => {
-                    summary.not_rechecked.push((name.clone(), why));
-                    *need = 0;
+        for (np, bp) in plans.iter_mut() {
+            for (p, side) in std::iter::once((np, "")).chain(bp.as_mut().map(|b| (b, " (the baseline's workload)"))) {
+                let (true, Ok(args)) = (p.need > 0, &p.args) else { continue };
+                let name = p.w.header.workload.clone();
+                let out = free_folder(&p.folder, &name);
+                let cost = match p.took {
+                    Some(s) => format!("the last took {}", crate::units::time_ns(s * 1e9)),
+                    None => format!("the run sampled it for {}, more with its tables and probes", crate::units::time_ns(spent_s(p.w) * 1e9)),
+                };
+                eprintln!("framecost gate: sweeping {name}{side} again ({} of {rounds}; {cost}) into {}", round + 1, out.display());
+                let started = std::time::Instant::now();
+                match sweep_again(args, &out) {
+                    Ok(run) => {
+                        if side.is_empty() {
+                            summary.swept += 1;
+                        } else {
+                            summary.baseline_swept += 1;
+                        }
+                        p.need -= 1;
+                        p.took = Some(started.elapsed().as_secs_f64());
+                        p.runs.push(run);
+                    }
+                    Err(why) => {
+                        summary.not_rechecked.push((name, format!("{}{why}", if side.is_empty() { "" } else { "the baseline's side: " })));
+                        p.need = 0;
+                    }
                 }
             }
         }
     }
-    for ((nw, _, _), runs) in plans.iter().zip(&runs) {
-        let name = &nw.header.workload;
+    for (np, bp) in &plans {
+        let name = &np.w.header.workload;
         let Some(bw) = base.workloads.iter().find(|w| &w.header.workload == name) else { continue };
         let Some(wg) = report.workloads.iter_mut().find(|w| &w.workload == name) else { continue };
-        let mut hs: Vec<&WorkloadResults> = vec![nw];
-        hs.extend(runs.iter().filter_map(|run| run.workloads.iter().find(|w| &w.header.workload == name)));
+        let mut hs: Vec<&WorkloadResults> = vec![np.w];
+        hs.extend(np.runs.iter().filter_map(|run| run.workloads.iter().find(|w| &w.header.workload == name)));
         if hs.len() < MIN_RUNS {
             if !summary.not_rechecked.iter().any(|(n, _)| n == name) {
                 summary.not_rechecked.push((name.clone(), format!("only {} run(s) of the new code; {MIN_RUNS} are needed", hs.len())));
             }
             continue;
         }
-        let out = crate::track::gate::judge_runs(wg, &hs, bw, Side::New);
+        let mut bs: Vec<&WorkloadResults> = vec![bw];
+        if let Some(bp) = bp {
+            bs.extend(bp.runs.iter().filter_map(|run| run.workloads.iter().find(|w| &w.header.workload == name)));
+        }
+        let out = if bs.len() >= MIN_RUNS { crate::track::gate::judge_both(wg, &hs, &bs) } else { crate::track::gate::judge_runs(wg, &hs, bw, Side::New) };
         wg.recheck = Some(out);
         summary.workloads.push(name.clone());
     }
     report.recheck = Some(summary);
     report.recount();
     Ok(())
+}
+
+/// Whether the baseline's workloads can be swept again as the baseline measured them: only
+/// by the framecost build that made both runs (another build may measure them differently,
+/// and a change of framecost or polars is itself a change to gate).
+fn same_build(base: &RunResults, new: &RunResults) -> Result<(), String> {
+    let this = crate::measure::headers::build_id();
+    let of = |r: &RunResults| r.run.as_ref().and_then(|h| h.build.clone());
+    match (of(base), of(new), this) {
+        (Some(b), Some(n), Some(t)) if b == t && n == t => Ok(()),
+        (None, _, _) | (_, None, _) => Err("a run does not record the framecost build that made it, so the baseline's workloads were not swept again (only the new code's)".into()),
+        _ => Err("the runs were not both made by this framecost build, so the baseline's workloads were not swept again (only the new code's)".into()),
+    }
+}
+
+/// The `framecost sweep` arguments that measure the baseline's workload as the baseline
+/// did: its recorded workload text written to `folder` (a workload with program designs is
+/// not swept again: a program's code is not recorded, and the change gated may be there).
+fn baseline_args(bw: &WorkloadResults, base: &RunResults, folder: &Path) -> Result<Vec<String>, String> {
+    let h = &bw.header;
+    if h.designs.iter().any(|d| d.program.is_some()) {
+        return Err("its designs include programs, whose code the baseline does not record".into());
+    }
+    if h.spec_text.is_empty() {
+        return Err("the baseline did not record its workload text".into());
+    }
+    std::fs::create_dir_all(folder).map_err(|e| format!("cannot create {}: {e}", folder.display()))?;
+    let file = folder.join(format!("{}.baseline.yaml", h.workload));
+    std::fs::write(&file, &h.spec_text).map_err(|e| format!("cannot write {}: {e}", file.display()))?;
+    let mut args = vec!["sweep".to_string(), file.display().to_string()];
+    args.extend(measure_args(bw, base));
+    Ok(args)
 }
 
 /// Seconds the new run spent sampling the workload: what one resweep takes, about.
@@ -148,6 +218,15 @@ fn sweep_args(nw: &WorkloadResults, new: &RunResults, allow_programs: bool) -> R
         }
         args.push("--allow-programs".into());
     }
+    args.extend(measure_args(nw, new));
+    Ok(args)
+}
+
+/// The sizes, budgets, designs and options a run measured a workload with, as `sweep`
+/// arguments.
+fn measure_args(nw: &WorkloadResults, new: &RunResults) -> Vec<String> {
+    let h = &nw.header;
+    let mut args = Vec::new();
     if h.axis.is_none() {
         args.push("--sizes".into());
         args.push(h.sizes.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(","));
@@ -175,7 +254,7 @@ fn sweep_args(nw: &WorkloadResults, new: &RunResults, allow_programs: bool) -> R
         }
     }
     args.push("--quiet".into());
-    Ok(args)
+    args
 }
 
 /// One resweep in a fresh process, read back; its own output is kept out of the gate's.

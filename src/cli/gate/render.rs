@@ -57,23 +57,7 @@ pub fn render(r: &GateReport) -> String {
         para(&mut s, "history", &text);
     }
     if let Some(rc) = &r.recheck {
-        let mut text = if rc.workloads.is_empty() && rc.not_rechecked.is_empty() {
-            "nothing would have failed, so nothing was swept again".to_string()
-        } else if rc.workloads.is_empty() {
-            "no failing workload could be swept again".to_string()
-        } else {
-            format!(
-                "{} swept again to {} runs of the new code ({} new sweep(s), kept in {}): a change there is called only where the baseline lies beyond how far those runs wandered by themselves, after each run's common move",
-                rc.workloads.join(", "),
-                rc.runs,
-                rc.swept,
-                rc.folder
-            )
-        };
-        for (w, why) in &rc.not_rechecked {
-            text.push_str(&format!("; {w} not rechecked: {why}"));
-        }
-        para(&mut s, "rechecked", &text);
+        para(&mut s, "rechecked", &rechecked(r, rc));
     }
     if let Some(text) = machine_moves(r) {
         para(&mut s, "machine", &text);
@@ -117,6 +101,43 @@ pub fn render(r: &GateReport) -> String {
         let _ = writeln!(s, "{l}");
     }
     s
+}
+
+/// The `rechecked` paragraph: what was swept again, on which side, and what could not be.
+fn rechecked(r: &GateReport, rc: &crate::track::gate::RecheckSummary) -> String {
+    let both: Vec<&str> = r.workloads.iter().filter(|w| w.recheck.as_ref().is_some_and(|h| h.baseline_runs > 0)).map(|w| w.workload.as_str()).collect();
+    let one: Vec<&str> = rc.workloads.iter().map(String::as_str).filter(|w| !both.contains(w)).collect();
+    let mut parts = Vec::new();
+    if !one.is_empty() {
+        parts.push(format!(
+            "{} swept again to {} runs of the new code: a change there is called only where the baseline lies beyond how far those runs wandered by themselves, after each run's common move",
+            one.join(", "),
+            rc.runs
+        ));
+    }
+    if !both.is_empty() {
+        parts.push(format!(
+            "{} swept again to {} runs of the new code and {} of the baseline's (from the workload text it recorded), both sides in turn: a change there is called where the new code's runs differ from the baseline's beyond the threshold and a two-sample bound (Welch's t, one-sided 97.5%), after each run's common move",
+            both.join(", "),
+            rc.runs,
+            rc.runs
+        ));
+    }
+    let mut text = if rc.workloads.is_empty() && rc.not_rechecked.is_empty() {
+        "nothing would have failed, so nothing was swept again".to_string()
+    } else if rc.workloads.is_empty() {
+        "no failing workload could be swept again".to_string()
+    } else {
+        let base_kept = if both.is_empty() { String::new() } else { format!(", {} of the baseline's, kept in its rechecks folder", rc.baseline_swept) };
+        format!("{} ({} new sweep(s) of the new code, kept in {}{base_kept})", parts.join("; "), rc.swept, rc.folder)
+    };
+    if let (true, Some(why)) = (both.is_empty(), &rc.baseline_not_swept) {
+        text.push_str(&format!("; {why}"));
+    }
+    for (w, why) in &rc.not_rechecked {
+        text.push_str(&format!("; {w} not rechecked: {why}"));
+    }
+    text
 }
 
 /// One labelled paragraph of the gate's answer, wrapped to the width.
@@ -200,7 +221,10 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     let hist = w.history.as_ref();
     let again = w.recheck.as_ref();
     said.extend(against_runs(hist, d, "than its history", &|k| format!("the new run's time over the mean of {k} runs of the baseline's code")));
-    said.extend(against_runs(again, d, "in the new code's own runs", &|k| format!("the mean of {k} runs of the new code over the baseline's time")));
+    match again.filter(|h| h.baseline_runs > 0) {
+        Some(h) => said.extend(against_runs(again, d, "in the new code's runs than in the baseline's", &|k| format!("the mean of {k} runs of the new code over the mean of {} of the baseline's", h.baseline_runs))),
+        None => said.extend(against_runs(again, d, "in the new code's own runs", &|k| format!("the mean of {k} runs of the new code over the baseline's time"))),
+    }
     if !slower.is_empty() {
         said.push(format!("got slower at {}: {} the baseline's time{}", sizes(&slower), times(&slower), detail(&slower)));
     }

@@ -78,6 +78,10 @@ pub const MIN_SIZES: usize = 3;
 pub struct History {
     /// History runs with this workload (the baseline among them).
     pub runs: usize,
+    /// With `--recheck` when the baseline's workload was swept again too ([`judge_both`]):
+    /// its runs, the baseline among them (`runs` then counts the new code's). 0 otherwise.
+    #[serde(default, skip_serializing_if = "is_zero")]
+    pub baseline_runs: usize,
     /// Each design's effect in the new run against its history.
     pub moves: Vec<HistoryMove>,
     /// Points whose change against the baseline the history's spread holds (design, size).
@@ -97,6 +101,13 @@ pub struct RecheckSummary {
     pub not_rechecked: Vec<(String, String)>,
     /// Where the resweeps are.
     pub folder: String,
+    /// Resweeps of the baseline's workloads made now, from the text the baseline recorded
+    /// (kept in the baseline's `rechecks/`), when both runs were made by this framecost build.
+    #[serde(default)]
+    pub baseline_swept: usize,
+    /// Why the baseline's workloads were not swept again, when they were not.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub baseline_not_swept: Option<String>,
 }
 
 /// One design's move against its history.
@@ -119,11 +130,15 @@ pub struct HistoryMove {
     pub call: Call,
 }
 
-fn mean(v: &[f64]) -> f64 {
+fn is_zero(n: &usize) -> bool {
+    *n == 0
+}
+
+pub(super) fn mean(v: &[f64]) -> f64 {
     v.iter().sum::<f64>() / v.len() as f64
 }
 
-fn sd(v: &[f64]) -> f64 {
+pub(super) fn sd(v: &[f64]) -> f64 {
     let m = mean(v);
     (v.iter().map(|x| (x - m).powi(2)).sum::<f64>() / (v.len() as f64 - 1.0)).sqrt()
 }
@@ -135,7 +150,7 @@ fn sd(v: &[f64]) -> f64 {
 /// of a build step made three times the work); there, as for the gate against the baseline
 /// alone (`common::least_moved`), the smaller of the two designs' median moves when both
 /// went the same way, and none when they went opposite ways.
-fn common_move(designs: &[&str], moved: &[f64]) -> f64 {
+pub(super) fn common_move(designs: &[&str], moved: &[f64]) -> f64 {
     let median = |v: &[f64]| crate::fit::sample::median(v).unwrap_or(0.0);
     let mut names: Vec<&str> = designs.to_vec();
     names.dedup();
@@ -147,7 +162,7 @@ fn common_move(designs: &[&str], moved: &[f64]) -> f64 {
 }
 
 /// The log median of a clean point.
-fn clean(w: &WorkloadResults, design: &str, rows: u64) -> Option<f64> {
+pub(super) fn clean(w: &WorkloadResults, design: &str, rows: u64) -> Option<f64> {
     let m = w.point(design, rows)?.measured.as_ref()?;
     (!m.is_contaminated() && !m.bimodal && m.median_ns > 0.0).then(|| m.median_ns.ln())
 }

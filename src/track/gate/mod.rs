@@ -1,5 +1,4 @@
-//! The regression gate: compare a baseline run with a new run of the same workloads, size by
-//! size and class by class.
+//! The regression gate: a baseline run against a new run, size by size and class by class.
 //!
 //! A point (design × size) is a **regression** only when both hold: the ratio of medians
 //! new/base exceeds the threshold (default 10%, or the workload's `gate.threshold`), and a
@@ -33,21 +32,23 @@
 //! ratio is judged together with the raw one: a change is called only when both pass the
 //! threshold in the same direction, so the correction can explain a change away but never
 //! create one from equal medians. Both are shown. Runs without probes fall back to dividing
-//! by the ratio of the runs' yardsticks when the machines differ. A newcomer must know: this works from saved results
-//! alone and never reruns anything.
+//! by the ratio of the runs' yardsticks when the machines differ. A newcomer must know: this
+//! works from saved results alone and never reruns anything (`gate --recheck` does, in cli).
 //!
 //! The parts: one design's points compared and confirmed (`points.rs`), growth compared
-//! (`growth.rs`), the workload's common move (`common.rs`); this file holds the records and
-//! walks the runs' workloads and designs.
+//! (`growth.rs`), the workload's common move (`common.rs`), judged against runs of one side
+//! (`history.rs`) or of both (`both.rs`); this file holds the records and walks the runs.
 
 mod common;
 mod growth;
+mod both;
 mod history;
 mod pair;
 mod points;
 mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
+pub use both::{judge_both, wide_suspects};
 pub use history::{judge as judge_with_history, judge_workload as judge_runs, suspects, History, HistoryMove, RecheckSummary, Side, MIN_RUNS as HISTORY_MIN_RUNS};
 pub use pair::compare_pair;
 pub use steady::{design_moves, DesignMove};
@@ -254,9 +255,7 @@ pub struct GateReport {
     /// `gate --recheck N`: what was swept again and what could not be.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub recheck: Option<RecheckSummary>,
-    /// The two runs tuned the allocator differently (`RunHeader::allocator`: baseline, new;
-    /// None where a run did not record it): designs that allocate and free many blocks can
-    /// move by that alone.
+    /// The allocator tunings (baseline, new) when they differ (`RunHeader::allocators_apart`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub allocators_differ: Option<(Option<String>, Option<String>)>,
 }
@@ -348,16 +347,12 @@ pub fn compare(base: &RunResults, new: &RunResults, opts: &GateOptions) -> GateR
         _ => true,
     };
     let machines = Machines { differ: machines_differ, yardstick_ratio, same_sweep };
-    let allocators_differ = match (bh, nh) {
-        (Some(b), Some(n)) if b.allocator != n.allocator => Some((b.allocator.clone(), n.allocator.clone())),
-        _ => None,
-    };
     let mut report = GateReport {
         baseline_run: bh.map(|h| h.run_id.clone()).unwrap_or_default(),
         new_run: nh.map(|h| h.run_id.clone()).unwrap_or_default(),
         machines_differ,
         yardstick_ratio,
-        allocators_differ,
+        allocators_differ: bh.zip(nh).and_then(|(b, n)| b.allocators_apart(n)),
         ..Default::default()
     };
     for bw in &base.workloads {
