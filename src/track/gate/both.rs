@@ -8,8 +8,8 @@
 //! against a bar of ×1.2, uncalled by the two runs alone, was called on five runs of each
 //! side (×1.15 against a bar of ×1.10), and nothing else was.
 
-use super::history::{clean, common_move, mean, sd, suspects, History, HistoryMove, MIN_SIZES, RECHECK_LEVEL};
-use super::{common, Call, WorkloadGate};
+use super::history::{asked_with_improvements, clean, common_move, demote_unsupported, design_call, hold_points, mean, sd, suspects, History, HistoryMove, MIN_SIZES, RECHECK_LEVEL};
+use super::{Call, WorkloadGate};
 use crate::results::reader::WorkloadResults;
 
 /// The designs a recheck of both sides also asks about ([`judge_both`]): moved past the
@@ -64,21 +64,14 @@ pub fn judge_both(wg: &mut WorkloadGate, news: &[&WorkloadResults], bases: &[&Wo
     let eff_b = effects(&keys.iter().map(|k| &k.3).collect::<Vec<_>>(), kb);
     let floor = (1.0 + wg.threshold).ln();
     let bar = |se: f64, df: f64| floor.max(crate::fit::dist::student_t_quantile(RECHECK_LEVEL, df.max(1.0)).unwrap_or(f64::INFINITY) * se);
-    let mut flagged = suspects(wg);
-    flagged.extend(wide_suspects(wg));
-    flagged.extend(wg.moves.iter().filter(|m| m.call == Call::Improvement).map(|m| m.design.clone()));
-    flagged.extend(wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).map(|p| p.design.clone()));
+    let flagged = asked_with_improvements(wg, suspects(wg).into_iter().chain(wide_suspects(wg)).collect());
 
     // Points: a change against the baseline alone stands only where both sides' runs differ.
-    for p in wg.points.iter_mut().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
-        let Some(i) = keys.iter().position(|key| key.0 == p.design && key.1 == p.rows) else { continue };
+    hold_points(wg, &mut out, &|design, rows, call| {
+        let i = keys.iter().position(|key| key.0 == design && key.1 == rows)?;
         let (d, se, df) = welch(&eff_n[i], &eff_b[i]);
-        if !(d.abs() > bar(se, df) && (d > 0.0) == (p.call == Call::Regression)) {
-            p.call = Call::Unclear;
-            out.held.push((p.design.clone(), p.rows));
-        }
-    }
-    common::reconfirm(wg);
+        Some(d.abs() > bar(se, df) && (d > 0.0) == (call == Call::Regression))
+    });
 
     let mut names: Vec<&str> = keys.iter().map(|key| key.0.as_str()).collect();
     names.dedup();
@@ -95,25 +88,11 @@ pub fn judge_both(wg: &mut WorkloadGate, news: &[&WorkloadResults], bases: &[&Wo
         let at_size: Vec<f64> = idx.iter().map(|&i| mean(&eff_n[i]) - mean(&eff_b[i])).collect();
         let same_way = at_size.iter().filter(|x| **x != 0.0 && (**x > 0.0) == (d > 0.0)).count();
         let steady = same_way + 1 >= idx.len();
-        let call = if !flagged.iter().any(|f| f == name) || d.abs() <= b {
-            Call::Same
-        } else if d > 0.0 && raw > 0.0 && steady {
-            Call::Regression
-        } else if d < 0.0 && raw < 0.0 && steady {
-            Call::Improvement
-        } else {
-            Call::Unclear
-        };
+        let call = design_call(flagged.iter().any(|f| f == name), d, b, raw, steady);
         let spread = ((sd(&dn).powi(2) + sd(&db).powi(2)) / 2.0).sqrt();
         out.moves.push(HistoryMove { design: name.to_string(), sizes: idx.len(), same_way, ratio: d.exp(), bar: b.exp(), spread: spread.exp(), raw_ratio: raw.exp(), call });
     }
-    let unsupported = |design: &str, call: Call| matches!(call, Call::Regression | Call::Improvement) && !out.moves.iter().any(|h| h.design == design && h.call == call);
-    for m in wg.moves.iter_mut().filter(|m| unsupported(&m.design, m.call)) {
-        m.call = Call::Unclear;
-    }
-    for m in wg.history.iter_mut().flat_map(|h| h.moves.iter_mut()).filter(|m| unsupported(&m.design, m.call)) {
-        m.call = Call::Unclear;
-    }
+    demote_unsupported(wg, &out, true);
     out
 }
 

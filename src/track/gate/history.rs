@@ -214,6 +214,55 @@ pub fn suspects(wg: &WorkloadGate) -> Vec<String> {
     v
 }
 
+/// The designs a recheck asks about: `asked` (the suspects) and the improvements the
+/// baseline alone called, which it may clear too.
+pub(super) fn asked_with_improvements(wg: &WorkloadGate, mut asked: Vec<String>) -> Vec<String> {
+    asked.extend(wg.moves.iter().filter(|m| m.call == Call::Improvement).map(|m| m.design.clone()));
+    asked.extend(wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).map(|p| p.design.clone()));
+    asked
+}
+
+/// Points called against the baseline alone stand only where `beyond` (None: no runs at
+/// that point) says the runs agree; the others become `unclear` and are listed as held.
+pub(super) fn hold_points(wg: &mut WorkloadGate, out: &mut History, beyond: &dyn Fn(&str, u64, Call) -> Option<bool>) {
+    for p in wg.points.iter_mut().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
+        if beyond(&p.design, p.rows, p.call) == Some(false) {
+            p.call = Call::Unclear;
+            out.held.push((p.design.clone(), p.rows));
+        }
+    }
+    common::reconfirm(wg);
+}
+
+/// A design's call from its effect (log, above 0 slower), the bar it must pass, its raw
+/// move and whether all its sizes but one moved the same way; only designs asked about.
+pub(super) fn design_call(asked: bool, effect: f64, bar: f64, raw: f64, steady: bool) -> Call {
+    if !asked || effect.abs() <= bar {
+        Call::Same
+    } else if effect > 0.0 && raw > 0.0 && steady {
+        Call::Regression
+    } else if effect < 0.0 && raw < 0.0 && steady {
+        Call::Improvement
+    } else {
+        Call::Unclear
+    }
+}
+
+/// A design moved over its sizes against the baseline alone stands only where `out` calls
+/// it the same way; with `history_too`, so does a design a history called (a recheck beside
+/// a history).
+pub(super) fn demote_unsupported(wg: &mut WorkloadGate, out: &History, history_too: bool) {
+    let unsupported = |design: &str, call: Call| matches!(call, Call::Regression | Call::Improvement) && !out.moves.iter().any(|h| h.design == design && h.call == call);
+    for m in wg.moves.iter_mut().filter(|m| unsupported(&m.design, m.call)) {
+        m.call = Call::Unclear;
+    }
+    if history_too {
+        for m in wg.history.iter_mut().flat_map(|h| h.moves.iter_mut()).filter(|m| unsupported(&m.design, m.call)) {
+            m.call = Call::Unclear;
+        }
+    }
+}
+
 /// Judge one workload's calls against runs of one side's code, `judged` being a run of the
 /// other side (module doc); the calls against the baseline alone that the runs do not
 /// support become `unclear`.
@@ -244,27 +293,17 @@ pub fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], judged: &W
     let level = if side == Side::Baseline { LEVEL } else { RECHECK_LEVEL };
     let t = crate::fit::dist::student_t_quantile(level, (k - 1) as f64).unwrap_or(f64::INFINITY);
     // A recheck confirms or clears the designs the baseline alone called, and nothing else.
-    let mut flagged = Vec::new();
-    if side == Side::New {
-        flagged = suspects(wg);
-        flagged.extend(wg.moves.iter().filter(|m| m.call == Call::Improvement).map(|m| m.design.clone()));
-        flagged.extend(wg.points.iter().filter(|p| p.call == Call::Improvement && p.confirmed).map(|p| p.design.clone()));
-    }
+    let flagged = if side == Side::New { asked_with_improvements(wg, suspects(wg)) } else { Vec::new() };
     let floor = (1.0 + wg.threshold).ln();
     let bar = |s: f64| floor.max(t * s * (1.0 + 1.0 / k as f64).sqrt());
     let mut out = History { runs: k, ..Default::default() };
 
     // Points: a change against the baseline stands only beyond its own history's bar.
-    for p in wg.points.iter_mut().filter(|p| matches!(p.call, Call::Regression | Call::Improvement)) {
-        let Some(i) = keys.iter().position(|key| key.0 == p.design && key.1 == p.rows) else { continue };
+    hold_points(wg, &mut out, &|design, rows, call| {
+        let i = keys.iter().position(|key| key.0 == design && key.1 == rows)?;
         let e = eff_new[i];
-        let beyond = e.abs() > bar(sd(&eff_h[i])) && (e > 0.0) == (p.call == Call::Regression);
-        if !beyond {
-            p.call = Call::Unclear;
-            out.held.push((p.design.clone(), p.rows));
-        }
-    }
-    common::reconfirm(wg);
+        Some(e.abs() > bar(sd(&eff_h[i])) && (e > 0.0) == (call == Call::Regression))
+    });
 
     // Designs: the mean effect over their sizes.
     let mut names: Vec<&str> = keys.iter().map(|key| key.0.as_str()).collect();
@@ -283,32 +322,14 @@ pub fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], judged: &W
         // run) can carry the mean alone.
         let same_way = idx.iter().filter(|&&i| eff_new[i] != 0.0 && (eff_new[i] > 0.0) == (e > 0.0)).count();
         let steady = same_way + 1 >= idx.len();
-        let call = if side == Side::New && !flagged.iter().any(|f| f == name) {
-            Call::Same
-        } else if e.abs() <= b {
-            Call::Same
-        } else if e > 0.0 && raw > 0.0 && steady {
-            Call::Regression
-        } else if e < 0.0 && raw < 0.0 && steady {
-            Call::Improvement
-        } else {
-            Call::Unclear
-        };
+        let asked = side == Side::Baseline || flagged.iter().any(|f| f == name);
+        let call = design_call(asked, e, b, raw, steady);
         out.moves.push(HistoryMove { design: name.to_string(), sizes: idx.len(), same_way, ratio: e.exp(), bar: b.exp(), spread: s.exp(), raw_ratio: raw.exp(), call });
     }
     // A design moved over its sizes against the baseline alone stands only where its history
-    // calls it the same way.
-    let unsupported = |design: &str, call: Call| matches!(call, Call::Regression | Call::Improvement) && !out.moves.iter().any(|h| h.design == design && h.call == call);
-    for m in wg.moves.iter_mut().filter(|m| unsupported(&m.design, m.call)) {
-        m.call = Call::Unclear;
-    }
-    // With both a history and a recheck, a design the history called stands only where the
-    // recheck calls it too.
-    if side == Side::New {
-        for m in wg.history.iter_mut().flat_map(|h| h.moves.iter_mut()).filter(|m| unsupported(&m.design, m.call)) {
-            m.call = Call::Unclear;
-        }
-    }
+    // calls it the same way; with both a history and a recheck, a design the history called
+    // stands only where the recheck calls it too.
+    demote_unsupported(wg, &out, side == Side::New);
     out
 }
 
