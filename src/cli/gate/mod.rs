@@ -60,7 +60,10 @@ pub struct Args {
     /// budgets and designs, a fresh process each) until N runs of the new code are at hand,
     /// and call a change only beyond how far those runs wander by themselves. Costs up to
     /// N − 1 sweeps of each failing workload; they are kept in NEW/rechecks and reused.
-    /// Run the gate from the folder the sweep was run from (workload paths are relative).
+    /// When this framecost build made both runs, the baseline's workloads are swept again
+    /// too (from the text the baseline recorded, kept in BASELINE/rechecks) and the two
+    /// sides' runs compared. Run the gate from the folder the sweep was run from (workload
+    /// paths are relative).
     #[arg(long, value_name = "N", conflicts_with = "pair")]
     pub recheck: Option<usize>,
     /// Let `--recheck` run designs that are programs again.

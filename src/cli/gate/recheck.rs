@@ -5,9 +5,13 @@
 //! the new code's side). A design that was only out of line in the new sweep is then let
 //! through; one that is slower in every run of the new code still fails.
 //!
-//! What it cannot do: the baseline's code is not at hand, so a baseline that was itself out
-//! of line (a design faster than usual in that sweep) still reads as a slowdown; a history
-//! of the baseline's code (`--history`) covers that side.
+//! When the baseline, the new run and the gate are one framecost build (`RunHeader::build`),
+//! the baseline's side is swept again too, from the workload text the baseline recorded, in
+//! turn with the new side's, and the two sides' runs are compared (`track::gate::
+//! judge_both`); designs that moved steadily under the two-run bar are asked about as well.
+//! Otherwise the baseline's code is not at hand, so a baseline that was itself out of line
+//! (a design faster than usual in that sweep) still reads as a slowdown; a history of the
+//! baseline's code (`--history`) covers that side.
 //!
 //! The resweeps are kept in the new run's folder (`rechecks/<workload>-<k>`); a later gate
 //! of the same run reuses those whose workload file is unchanged (same spec hash).
