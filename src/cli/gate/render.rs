@@ -265,7 +265,11 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         said.push(format!("{within_history} size(s) beyond the threshold against the baseline but within how far its {} history runs wandered, not judged", hist.map_or(0, |h| h.runs)));
     }
     if within_recheck > 0 {
-        said.push(format!("{within_recheck} size(s) beyond the threshold against the baseline but within how far {} runs of the new code wandered, not judged", again.map_or(0, |h| h.runs)));
+        let runs = match again {
+            Some(h) if h.baseline_runs > 0 => format!("{} runs of the new code and {} of the baseline's differ", h.runs, h.baseline_runs),
+            h => format!("{} runs of the new code wandered", h.map_or(0, |h| h.runs)),
+        };
+        said.push(format!("{within_recheck} size(s) beyond the threshold against the baseline but within how far {runs}, not judged"));
     }
     if busy > 0 {
         said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
