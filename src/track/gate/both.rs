@@ -8,7 +8,7 @@
 //! against a bar of ×1.2, uncalled by the two runs alone, was called on five runs of each
 //! side (×1.15 against a bar of ×1.10), and nothing else was.
 
-use super::history::{asked_with_improvements, clean, common_move, demote_unsupported, design_call, hold_points, mean, sd, suspects, History, HistoryMove, MIN_SIZES, RECHECK_LEVEL};
+use super::history::{asked_with_improvements, by_design, clean, common_move, demote_unsupported, design_call, hold_points, mean, sd, suspects, History, HistoryMove, MIN_SIZES, RECHECK_LEVEL};
 use super::{Call, WorkloadGate};
 use crate::results::reader::WorkloadResults;
 
@@ -73,13 +73,7 @@ pub fn judge_both(wg: &mut WorkloadGate, news: &[&WorkloadResults], bases: &[&Wo
         Some(d.abs() > bar(se, df) && (d > 0.0) == (call == Call::Regression))
     });
 
-    let mut names: Vec<&str> = keys.iter().map(|key| key.0.as_str()).collect();
-    names.dedup();
-    for name in names {
-        let idx: Vec<usize> = (0..keys.len()).filter(|&i| keys[i].0 == name).collect();
-        if idx.len() < MIN_SIZES {
-            continue;
-        }
+    for (name, idx) in by_design(&designs) {
         let per_run = |eff: &[Vec<f64>], runs: usize| -> Vec<f64> { (0..runs).map(|j| mean(&idx.iter().map(|&i| eff[i][j]).collect::<Vec<_>>())).collect() };
         let (dn, db) = (per_run(&eff_n, kn), per_run(&eff_b, kb));
         let (d, se, df) = welch(&dn, &db);

@@ -194,6 +194,14 @@ pub enum Side {
     New,
 }
 
+/// The indices of each design's points in `designs` (one name per point, a design's points
+/// contiguous), for the designs with at least [`MIN_SIZES`] of them.
+pub(super) fn by_design<'a>(designs: &[&'a str]) -> Vec<(&'a str, Vec<usize>)> {
+    let mut names = designs.to_vec();
+    names.dedup();
+    names.into_iter().map(|name| (name, (0..designs.len()).filter(|&i| designs[i] == name).collect::<Vec<_>>())).filter(|(_, idx)| idx.len() >= MIN_SIZES).collect()
+}
+
 /// The designs a recheck asks about: those the baseline alone (or the baseline's history)
 /// called slower, at confirmed sizes, across their sizes or in growth. A recheck confirms or
 /// clears these; it calls nothing new. Asking about more designs catches more and fails
@@ -306,13 +314,7 @@ pub fn judge_workload(wg: &mut WorkloadGate, hs: &[&WorkloadResults], judged: &W
     });
 
     // Designs: the mean effect over their sizes.
-    let mut names: Vec<&str> = keys.iter().map(|key| key.0.as_str()).collect();
-    names.dedup();
-    for name in names {
-        let idx: Vec<usize> = (0..keys.len()).filter(|&i| keys[i].0 == name).collect();
-        if idx.len() < MIN_SIZES {
-            continue;
-        }
+    for (name, idx) in by_design(&designs) {
         let e = mean(&idx.iter().map(|&i| eff_new[i]).collect::<Vec<_>>());
         let per_run: Vec<f64> = (0..k).map(|j| mean(&idx.iter().map(|&i| eff_h[i][j]).collect::<Vec<_>>())).collect();
         let s = sd(&per_run);
