@@ -20,6 +20,7 @@ mod point;
 pub mod program;
 pub mod runner;
 pub mod sampling;
+pub mod stopping;
 pub mod scrub;
 pub mod supervise;
 pub mod stats;

@@ -11,6 +11,7 @@ use crate::spec::units::parse_share;
 use crate::track::gate::{compare, compare_pair, GateOptions, GateReport};
 use std::path::{Path, PathBuf};
 
+mod next;
 mod recheck;
 mod render;
 pub use render::render;
