@@ -23,10 +23,7 @@ pub fn next_step(r: &GateReport) -> Option<String> {
     let steady: Vec<String> = r
         .workloads
         .iter()
-        .flat_map(|w| {
-            let asked = crate::track::gate::wide_suspects(w);
-            w.moves.iter().filter(move |m| asked.contains(&m.design)).map(move |m| format!("{} `{}` ×{:.3} [×{:.3}–×{:.3}]", w.workload, m.design, m.ratio, m.ratio_low, m.ratio_high))
-        })
+        .flat_map(|w| crate::track::gate::wide_suspect_moves(w).map(move |m| format!("{} `{}` ×{:.3} [×{:.3}–×{:.3}]", w.workload, m.design, m.ratio, m.ratio_low, m.ratio_high)))
         .collect();
     (!steady.is_empty()).then(|| {
         format!(

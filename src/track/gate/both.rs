@@ -29,13 +29,16 @@ use crate::results::reader::WorkloadResults;
 /// [×1.047–×1.139] at 8 of 8 sizes, was not asked about, and went uncaught. Asking costs
 /// resweeps, never a call: the two sides' runs decide.
 pub fn wide_suspects(wg: &WorkloadGate) -> Vec<String> {
+    wide_suspect_moves(wg).map(|m| m.design.clone()).collect()
+}
+
+/// The moves [`wide_suspects`] names, with their ratios (the gate's `next step` text).
+pub fn wide_suspect_moves(wg: &WorkloadGate) -> impl Iterator<Item = &super::DesignMove> {
     let floor = (1.0 + wg.threshold).ln();
     wg.moves
         .iter()
-        .filter(|m| m.ratio.ln() > floor || (m.ratio_high.ln() > floor && m.ratio_low > 1.0))
+        .filter(move |m| m.ratio.ln() > floor || (m.ratio_high.ln() > floor && m.ratio_low > 1.0))
         .filter(|m| m.same_way + 1 >= m.sizes && m.raw_ratio > 1.0)
-        .map(|m| m.design.clone())
-        .collect()
 }
 
 /// Judge one workload's calls against runs of both sides (`--recheck N` when the baseline's

@@ -48,7 +48,7 @@ mod points;
 mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
-pub use both::{judge_both, wide_suspects};
+pub use both::{judge_both, wide_suspect_moves, wide_suspects};
 pub use history::{judge as judge_with_history, judge_workload as judge_runs, suspects, History, HistoryMove, RecheckSummary, Side, MIN_RUNS as HISTORY_MIN_RUNS};
 pub use pair::compare_pair;
 pub use steady::{design_moves, DesignMove};
