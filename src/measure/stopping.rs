@@ -23,7 +23,7 @@ pub(super) fn limit(a: &Active, b: &Budget, run_elapsed_s: f64) -> Option<StopRe
     if n >= b.max_samples {
         return Some(StopReason::SampleCap);
     }
-    if a.spent_s >= b.per_point_s && !third_sample_due(&a.samples, a.spent_s, b.per_point_s) {
+    if a.spent_s >= b.per_point_s && !third_sample_due(&a.samples, a.batch, a.spent_s, b.per_point_s) {
         return Some(StopReason::PointBudget);
     }
     if a.share_s.is_some_and(|s| a.spent_s >= s) {
@@ -49,12 +49,13 @@ pub const THIRD_SAMPLE_GRACE: f64 = 1.5;
 /// rows with samples of 1829 and 343 ms (three other sweeps: 281–310 ms), recorded
 /// 1086 ms, and its prediction at the target came out ×7 above the other runs'. A third
 /// sample makes the median one of the samples. It is taken only when it is expected to
-/// fit (the smaller sample's time) within [`THIRD_SAMPLE_GRACE`] times the point budget;
-/// the run budget still applies.
-pub fn third_sample_due(samples: &[f64], spent_s: f64, per_point_s: f64) -> bool {
+/// fit (the smaller sample's time: `batch` runs of the smaller per-run time, since samples
+/// are recorded per run) within [`THIRD_SAMPLE_GRACE`] times the point budget; the run
+/// budget still applies.
+pub fn third_sample_due(samples: &[f64], batch: u64, spent_s: f64, per_point_s: f64) -> bool {
     let [x, y] = samples else { return false };
     let (lo, hi) = (x.min(*y), x.max(*y));
-    lo > 0.0 && hi / lo > PAIR_APART && spent_s + lo / 1e9 <= per_point_s * THIRD_SAMPLE_GRACE
+    lo > 0.0 && hi / lo > PAIR_APART && spent_s + lo * batch.max(1) as f64 / 1e9 <= per_point_s * THIRD_SAMPLE_GRACE
 }
 
 #[cfg(test)]
@@ -64,13 +65,16 @@ mod tests {
     #[test]
     fn two_samples_that_disagree_take_a_third_when_it_fits() {
         // The recorded point: 1829 and 343 ms after 3.69 s of a 3.5 s budget.
-        assert!(third_sample_due(&[1_829_013_457.0, 343_117_645.0], 3.69, 3.5));
+        assert!(third_sample_due(&[1_829_013_457.0, 343_117_645.0], 1, 3.69, 3.5));
         // Two samples that agree: their mean is as good as a median.
-        assert!(!third_sample_due(&[343e6, 360e6], 3.69, 3.5));
+        assert!(!third_sample_due(&[343e6, 360e6], 1, 3.69, 3.5));
         // A third that would not fit within 1.5 budgets: stop.
-        assert!(!third_sample_due(&[4e9, 2e9], 6.5, 3.5));
+        assert!(!third_sample_due(&[4e9, 2e9], 1, 6.5, 3.5));
         // One sample, or three: nothing to do here (three have a middle).
-        assert!(!third_sample_due(&[1e9], 3.6, 3.5));
-        assert!(!third_sample_due(&[1e9, 3e8, 3e8], 3.6, 3.5));
+        assert!(!third_sample_due(&[1e9], 1, 3.6, 3.5));
+        assert!(!third_sample_due(&[1e9, 3e8, 3e8], 1, 3.6, 3.5));
+        // Samples are per run: a batch of 4 runs of 0.3 s is a 1.2 s sample, past 1.5 budgets.
+        assert!(third_sample_due(&[1e9, 3e8], 1, 4.2, 3.5));
+        assert!(!third_sample_due(&[1e9, 3e8], 4, 4.2, 3.5));
     }
 }
