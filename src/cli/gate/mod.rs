@@ -165,6 +165,7 @@ pub fn run(a: Args) -> Result<(), Failure> {
             return bad(m);
         }
     }
+    report.next_step = next::next_step(&report, recheck::same_build(&base, &new).is_ok());
     answer(&report, a.json)
 }
 

@@ -9,15 +9,19 @@ use crate::track::gate::GateReport;
 /// asks about). On this machine, 4 of 6 pairings of three back-to-back catalog sweeps of
 /// unchanged code failed alone and none with `--recheck 5`; two 15% slowdowns passed alone
 /// under the threshold and were caught with it.
-pub fn next_step(r: &GateReport) -> Option<String> {
+///
+/// `both_sides`: the runs were both made by the build running the gate, so `--recheck` would
+/// sweep the baseline's side too, and ask about the wide suspects as well (`recheck::asks`).
+pub fn next_step(r: &GateReport, both_sides: bool) -> Option<String> {
     if r.pair.is_some() || r.recheck.is_some() || r.history_runs.is_some() {
         return None;
     }
     if r.failed() {
-        let failing: Vec<String> = r.workloads.iter().filter(|w| !crate::track::gate::suspects(w).is_empty()).map(|w| w.workload.clone()).collect();
+        let asked: Vec<String> = r.workloads.iter().filter(|w| super::recheck::asks(w, both_sides)).map(|w| w.workload.clone()).collect();
         return Some(format!(
-            "a design also wanders by itself between two sweeps; before acting on this, run the same gate with `--recheck 5`: it sweeps {} again (the baseline's side too when one framecost build made both runs, which is the build running the gate) and calls only what holds over those runs",
-            if failing.is_empty() { "the failing workloads".to_string() } else { failing.join(", ") }
+            "a design also wanders by itself between two sweeps; before acting on this, run the same gate with `--recheck 5`: it sweeps {} again ({}) and calls only what holds over those runs",
+            if asked.is_empty() { "the failing workloads".to_string() } else { asked.join(", ") },
+            if both_sides { "the baseline's side too: this framecost build made both runs" } else { "the new code's side only: the baseline's is swept too when the framecost build running the gate made both runs" }
         ));
     }
     let steady: Vec<String> = r
@@ -50,18 +54,18 @@ mod tests {
         // `build-once` slowed 15%, ×1.098 [×1.051–×1.147] at 8 of 8 sizes), on a gate that passed.
         let mut r = report();
         r.workloads[0].moves = vec![DesignMove { design: "d".into(), sizes: 8, same_way: 8, ratio: 1.098, ratio_low: 1.051, ratio_high: 1.147, raw_ratio: 1.085, call: Call::Same }];
-        let text = next_step(&r).expect("a steady move is named");
+        let text = next_step(&r, true).expect("a steady move is named");
         assert!(text.contains("w `d` ×1.098 [×1.051–×1.147]") && text.contains("--recheck 5"), "{text}");
         // Failed: the failing workloads are named with the recheck that would sweep them.
         let mut failed = r.clone();
         failed.workloads[0].moves[0].call = Call::Regression;
         failed.design_regressions = 1;
-        let text = next_step(&failed).expect("a failure names the recheck");
-        assert!(text.contains("sweeps w again"), "{text}");
+        let text = next_step(&failed, false).expect("a failure names the recheck");
+        assert!(text.contains("sweeps w again (the new code's side only"), "{text}");
         // Already rechecked, or nothing steady: nothing to add.
         let mut done = failed.clone();
         done.recheck = Some(Default::default());
-        assert_eq!(next_step(&done), None);
-        assert_eq!(next_step(&report()), None);
+        assert_eq!(next_step(&done, true), None);
+        assert_eq!(next_step(&report(), true), None);
     }
 }

@@ -57,8 +57,7 @@ pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: 
     if let Err(why) = &both {
         summary.baseline_not_swept = Some(why.clone());
     }
-    let asked = |w: &crate::track::gate::WorkloadGate| !crate::track::gate::suspects(w).is_empty() || (both.is_ok() && !crate::track::gate::wide_suspects(w).is_empty());
-    let wanted: Vec<String> = report.workloads.iter().filter(|w| asked(w)).map(|w| w.workload.clone()).collect();
+    let wanted: Vec<String> = report.workloads.iter().filter(|w| asks(w, both.is_ok())).map(|w| w.workload.clone()).collect();
     // Resweeps kept by an earlier gate of these runs, read once.
     let earlier = RunResults::read_folder(&folder).unwrap_or_default();
     let earlier_base = if both.is_ok() { RunResults::read_folder(&base_folder).unwrap_or_default() } else { vec![] };
@@ -152,10 +151,18 @@ pub fn recheck(report: &mut GateReport, base: &RunResults, new: &RunResults, r: 
     Ok(())
 }
 
+/// Whether `--recheck` sweeps this workload again: when it has a suspect (a change the gate
+/// called), and, when the baseline's side is swept too (`both_sides`), when it has a wide
+/// suspect (a steady move whose interval reaches past the threshold). The `next step`
+/// paragraph names the same workloads.
+pub(super) fn asks(w: &crate::track::gate::WorkloadGate, both_sides: bool) -> bool {
+    !crate::track::gate::suspects(w).is_empty() || (both_sides && !crate::track::gate::wide_suspects(w).is_empty())
+}
+
 /// Whether the baseline's workloads can be swept again as the baseline measured them: only
 /// by the framecost build that made both runs (another build may measure them differently,
 /// and a change of framecost or polars is itself a change to gate).
-fn same_build(base: &RunResults, new: &RunResults) -> Result<(), String> {
+pub(super) fn same_build(base: &RunResults, new: &RunResults) -> Result<(), String> {
     let this = crate::measure::headers::build_id();
     let of = |r: &RunResults| r.run.as_ref().and_then(|h| h.build.clone());
     match (of(base), of(new), this) {

@@ -62,8 +62,8 @@ pub fn render(r: &GateReport) -> String {
     if let Some(text) = machine_moves(r) {
         para(&mut s, "machine", &text);
     }
-    if let Some(text) = super::next::next_step(r) {
-        para(&mut s, "next step", &text);
+    if let Some(text) = &r.next_step {
+        para(&mut s, "next step", text);
     }
     if let Some((b, n)) = &r.allocators_differ {
         let said = |a: &Option<String>| a.clone().unwrap_or_else(|| "not recorded (a run made before framecost recorded it)".into());

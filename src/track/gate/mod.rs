@@ -258,6 +258,10 @@ pub struct GateReport {
     /// The allocator tunings (baseline, new) when they differ (`RunHeader::allocators_apart`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub allocators_differ: Option<(Option<String>, Option<String>)>,
+    /// A gate of two sweeps judged alone (no history, recheck or pair): what to do before
+    /// acting on it, set by the command (`cli::gate::next`), shown as its `next step`.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub next_step: Option<String>,
 }
 
 /// How far the machine itself moved between the two runs, as its probes saw it: the
