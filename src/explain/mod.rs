@@ -114,9 +114,9 @@ fn step_notes(w: &WorkloadResults) -> Vec<(String, String)> {
 /// named as the cause, not the designs.
 fn machine_finding(w: &WorkloadResults) -> Option<Finding> {
     let measured: Vec<&Measured> = w.points.iter().filter_map(|p| p.measured.as_ref()).collect();
-    let busy: Vec<&Measured> = measured.iter().copied().filter(|m| m.is_contaminated()).collect();
+    let busy: Vec<&Measured> = measured.iter().copied().filter(|m| m.is_busy()).collect();
     if busy.is_empty() {
-        return None;
+        return slow_machine_finding(&measured);
     }
     let shares: Vec<f64> = busy.iter().filter_map(|m| m.disturbance.as_ref()?.probe_cpu_share).collect();
     let loads: Vec<f64> = busy.iter().filter_map(|m| m.disturbance.as_ref()?.load_per_core).collect();
@@ -128,6 +128,23 @@ fn machine_finding(w: &WorkloadResults) -> Option<Finding> {
         measured: format!("{} of {} points were measured while the machine was busy{}{}", busy.len(), measured.len(), share.unwrap_or_default(), load.unwrap_or_default()),
         implies: "other work competed for the cores: those times say more about the machine than about the designs, so they are left out of growth classes and the verdict".into(),
         action: "measure again on a quiet machine before acting on small differences".into(),
+    })
+}
+
+/// The workload-level finding when the machine itself ran slower at some sizes (the drift
+/// probe, `Disturbance::machine_slow`) though nothing else was busy.
+fn slow_machine_finding(measured: &[&Measured]) -> Option<Finding> {
+    let ratios: Vec<f64> = measured.iter().filter_map(|m| m.disturbance.as_ref()?.machine_slow).collect();
+    if ratios.is_empty() {
+        return None;
+    }
+    let top = ratios.iter().copied().fold(f64::NAN, f64::max);
+    Some(Finding {
+        design: None,
+        kind: "machine".into(),
+        measured: format!("{} of {} points were measured while the machine ran slower: the drift probe, a fixed computation timed beside the designs, took up to ×{top:.2} its median time over the workload's sizes", ratios.len(), measured.len()),
+        implies: "the machine, not the designs, changed speed at those sizes (a neighbour on the same host, a slower clock): their times are left out of growth classes and the verdict".into(),
+        action: "measure again before acting on small differences at those sizes".into(),
     })
 }
 

@@ -159,6 +159,7 @@ pub fn assess(probe: &[(f64, f64)], switches_per_s: Option<f64>, others: Option<
         memory_probe_ns: None,
         busy: !reasons.is_empty(),
         reasons,
+        machine_slow: None,
     }
 }
 

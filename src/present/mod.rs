@@ -11,3 +11,23 @@ pub mod terminal;
 pub mod units;
 
 pub use error::DrawError;
+
+/// The run-level warning when points were left out as disturbed: other work took the
+/// machine (`Disturbance::busy`), or the machine itself ran slower at some sizes
+/// (`Disturbance::machine_slow`). None when every point is clean.
+pub fn disturbed_words(measured: &[&crate::results::Measured]) -> Option<String> {
+    let busy = measured.iter().filter(|m| m.is_busy()).count();
+    let slow = measured.iter().filter(|m| m.is_contaminated() && !m.is_busy()).count();
+    let mut parts = Vec::new();
+    if busy > 0 {
+        parts.push(format!("The machine was busy: {busy} of {} points were measured while other work competed for the cores.", measured.len()));
+    }
+    if slow > 0 {
+        parts.push(format!(
+            "The machine ran slower at some sizes: {slow} of {} points were measured while the drift probe took ×{} or more its usual time, though no other process took the cores (a neighbour on the same host, a slower clock).",
+            measured.len(),
+            crate::results::reader::SLOW_PROBE
+        ));
+    }
+    (!parts.is_empty()).then(|| format!("{} They are marked and left out of growth classes and verdicts.", parts.join(" ")))
+}

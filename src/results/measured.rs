@@ -114,8 +114,26 @@ impl Measured {
         }
     }
 
-    /// Measured while the machine was busy: such a point never decides a class or a verdict.
+    /// Measured while the machine was busy, or while it ran markedly slower than over the
+    /// workload's other sizes (`Disturbance::machine_slow`): such a point never decides a
+    /// class or a verdict.
     pub fn is_contaminated(&self) -> bool {
+        self.disturbance.as_ref().is_some_and(|d| d.busy || d.machine_slow.is_some())
+    }
+
+    /// Why a contaminated point is left out, for reports: other work on the machine, or the
+    /// machine itself running slower (with the drift probe's ratio); None for a clean point.
+    pub fn disturbed_because(&self) -> Option<String> {
+        let d = self.disturbance.as_ref()?;
+        if d.busy {
+            return Some("measured while the machine was busy".into());
+        }
+        d.machine_slow.map(|r| format!("measured while the machine ran slower (the drift probe took ×{r:.2} its usual time at this size)"))
+    }
+
+    /// Measured while other work took the machine (`Disturbance::busy`) — not the slower
+    /// machine seen by the drift probe alone, which the gate corrects for between runs.
+    pub fn is_busy(&self) -> bool {
         self.disturbance.as_ref().is_some_and(|d| d.busy)
     }
 }
@@ -143,4 +161,10 @@ pub struct Disturbance {
     /// processes used more than 35% of the machine ("other-processes").
     pub busy: bool,
     pub reasons: Vec<String>,
+    /// The drift probe's time at this size over its median over the workload's sizes, when
+    /// at least `results::reader::SLOW_PROBE`: the machine itself ran slower while this size
+    /// was measured (a neighbour on the same host, a slower clock), though no process of
+    /// this machine took the cores. Set when the run is read, not stored.
+    #[serde(skip)]
+    pub machine_slow: Option<f64>,
 }

@@ -151,6 +151,9 @@ impl RunResults {
                 if h.schema == "framecost.results/1" {
                     upgrade_percentiles(&mut out);
                 }
+                for w in &mut out.workloads {
+                    mark_slow_sizes(w, slow_probe());
+                }
                 Ok(out)
             }
         }
@@ -159,6 +162,47 @@ impl RunResults {
     /// True when the run ended normally.
     pub fn complete(&self) -> bool {
         self.end.is_some()
+    }
+}
+
+/// How much slower than its median over a workload's sizes the drift probe must run at one
+/// size for that size's points to count as measured on a slower machine
+/// (`Disturbance::machine_slow`).
+pub const SLOW_PROBE: f64 = 1.4;
+
+fn slow_probe() -> f64 {
+    std::env::var("FRAMECOST_SLOW_PROBE").ok().and_then(|v| v.parse().ok()).unwrap_or(SLOW_PROBE)
+}
+
+/// The sizes whose drift probe ran at least `limit` times slower than the probe's median over
+/// the workload's sizes, with that ratio (three sizes or more with a probe; none otherwise).
+///
+/// Why: the probe is a fixed computation timed in the same rounds as the designs, so its
+/// time moves only with the machine. Over three back-to-back catalog sweeps here (297 sizes),
+/// a design's median at a size correlated with the probe there (r = 0.70 between their
+/// log-deviations from the three runs' medians); where the probe ran ×1.25 or more its
+/// usual time, the designs ran a median ×1.19 theirs. Within one run ×1.4 over the
+/// workload's median marked 8 of the 297 sizes; with them left out, row-wise named the
+/// same verdict in all three runs (a tie at ×1.15 had become a "winner" at ×1.44 in the
+/// run whose largest size met a probe at ×1.42).
+pub fn slow_sizes(probes: &[(u64, f64)], limit: f64) -> Vec<(u64, f64)> {
+    let probes: Vec<(u64, f64)> = probes.iter().copied().filter(|p| p.1 > 0.0 && p.1.is_finite()).collect();
+    if probes.len() < 3 {
+        return vec![];
+    }
+    let median = crate::measure::stats::median(&probes.iter().map(|p| p.1).collect::<Vec<_>>());
+    probes.iter().map(|&(rows, p)| (rows, p / median)).filter(|x| x.1 >= limit).collect()
+}
+
+/// Mark the points of every size [`slow_sizes`] names (`Disturbance::machine_slow`).
+pub fn mark_slow_sizes(w: &mut WorkloadResults, limit: f64) {
+    let probes: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.probe_ns.map(|p| (c.rows, p))).collect();
+    for (rows, ratio) in slow_sizes(&probes, limit) {
+        for m in w.points.iter_mut().filter(|x| x.rows == rows).filter_map(|x| x.measured.as_mut()) {
+            if let Some(d) = m.disturbance.as_mut() {
+                d.machine_slow = Some(ratio);
+            }
+        }
     }
 }
 
@@ -172,5 +216,35 @@ fn upgrade_percentiles(r: &mut RunResults) {
                 }
             }
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Probe medians of one workload's sizes from a real sweep (row-wise, the third of three
+    /// back-to-back catalog sweeps, µs): only the largest size, at ×1.42 the median, is slow.
+    #[test]
+    fn a_size_whose_probe_ran_slower_is_named_with_its_ratio() {
+        let probes = [(4_000, 274.206), (16_000, 277.156), (64_000, 280.492), (256_000, 269.23), (1_024_000, 394.595)];
+        let slow = slow_sizes(&probes, SLOW_PROBE);
+        assert_eq!(slow.len(), 1, "{slow:?}");
+        assert_eq!(slow[0].0, 1_024_000);
+        // Median of the five: 277.156; 394.595 / 277.156 = 1.4237 (by hand).
+        assert!((slow[0].1 - 1.4237).abs() < 1e-4, "{slow:?}");
+        // Under the limit, or with too few sizes to know the usual time: nothing.
+        assert!(slow_sizes(&probes, 1.5).is_empty());
+        assert!(slow_sizes(&probes[3..], 1.0).is_empty());
+    }
+
+    #[test]
+    fn a_point_on_a_slower_machine_is_left_out_but_not_called_busy() {
+        let mut m = Measured::fixture(1e6);
+        m.disturbance = Some(Disturbance { machine_slow: Some(1.42), ..Default::default() });
+        assert!(m.is_contaminated() && !m.is_busy());
+        assert!(m.disturbed_because().is_some_and(|w| w.contains("×1.42")));
+        m.disturbance = Some(Disturbance::default());
+        assert!(!m.is_contaminated() && m.disturbed_because().is_none());
     }
 }

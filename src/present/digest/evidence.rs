@@ -51,13 +51,22 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
         tags.push("outputs differ".to_string());
     }
     let measured: Vec<_> = w.points.iter().filter_map(|p| p.measured.as_ref()).collect();
-    let busy = measured.iter().filter(|m| m.is_contaminated()).count();
+    let busy = measured.iter().filter(|m| m.is_busy()).count();
     if busy > 0 {
         long.push(format!(
             "{busy} of {} points were measured while the machine was busy; they are left out of growth classes and the verdict.",
             measured.len()
         ));
         tags.push(format!("busy machine ({busy} point{})", if busy == 1 { "" } else { "s" }));
+    }
+    let slow = measured.iter().filter(|m| m.is_contaminated() && !m.is_busy()).count();
+    if slow > 0 {
+        long.push(format!(
+            "{slow} of {} points were measured while the machine ran slower (the drift probe took ×{} or more its usual time at their sizes); they are left out of growth classes and the verdict.",
+            measured.len(),
+            crate::results::reader::SLOW_PROBE
+        ));
+        tags.push(format!("slower machine ({slow} point{})", if slow == 1 { "" } else { "s" }));
     }
     for d in &w.header.designs {
         let pts = w.design_points(&d.name);

@@ -111,13 +111,8 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
         let _ = writeln!(s, "<p class=\"alarm\">This run did not finish: what follows is what was measured before it stopped.</p>");
     }
     let measured: Vec<_> = r.workloads.iter().flat_map(|w| &w.points).filter_map(|p| p.measured.as_ref()).collect();
-    let busy = measured.iter().filter(|m| m.is_contaminated()).count();
-    if busy > 0 {
-        let _ = writeln!(
-            s,
-            "<p class=\"alarm\">The machine was busy: {busy} of {} points were measured while other work competed for the cores. They are marked and left out of growth classes and verdicts.</p>",
-            measured.len()
-        );
+    if let Some(text) = crate::present::disturbed_words(&measured) {
+        let _ = writeln!(s, "<p class=\"alarm\">{}</p>", esc(&text));
     }
 
     // At a glance.

@@ -182,7 +182,7 @@ fn time_cell(w: &WorkloadResults, design: &str, n: u64) -> (String, String, usiz
                 (Some(a), Some(b)) => format!("95% interval {} to {}; ", time_ns(a), time_ns(b)),
                 _ => String::new(),
             };
-            let busy = if m.is_contaminated() { "; measured while the machine was busy" } else { "" };
+            let busy = m.disturbed_because().map(|w| format!("; {w}")).unwrap_or_default();
             let tip = format!("{ci}{} samples; sampling ended: {}{busy}", m.samples_ns.len(), m.stop.label());
             (time_ns(m.median_ns), second, shade, tip)
         }

@@ -130,12 +130,7 @@ pub fn render_with(an: &Analysed, style: Style, o: Options) -> String {
     // A busy machine is named first: its points are marked and left out of classes and
     // verdicts, and the reader should know before reading any number.
     let measured: Vec<&crate::results::Measured> = r.workloads.iter().flat_map(|w| &w.points).filter_map(|p| p.measured.as_ref()).collect();
-    let busy = measured.iter().filter(|m| m.is_contaminated()).count();
-    if busy > 0 {
-        let text = format!(
-            "The machine was busy: {busy} of {} points were measured while other work competed for the cores; they are marked and left out of growth classes and verdicts.",
-            measured.len()
-        );
+    if let Some(text) = crate::present::disturbed_words(&measured) {
         for l in wrap(&text, width, "", "") {
             let _ = writeln!(s, "{}", style.alarm(&l));
         }

@@ -164,7 +164,7 @@ pub(super) fn common_move(designs: &[&str], moved: &[f64]) -> f64 {
 /// The log median of a clean point.
 pub(super) fn clean(w: &WorkloadResults, design: &str, rows: u64) -> Option<f64> {
     let m = w.point(design, rows)?.measured.as_ref()?;
-    (!m.is_contaminated() && !m.bimodal && m.median_ns > 0.0).then(|| m.median_ns.ln())
+    (!m.is_busy() && !m.bimodal && m.median_ns > 0.0).then(|| m.median_ns.ln())
 }
 
 /// Judge every workload of `report` that has enough history runs as well (module doc), and

@@ -78,7 +78,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
         // sampled in alternating rounds and saw the same contention (the 15% slowdown above,
         // swept beside another sweep: ×1.11 to ×1.16 at four sizes of five; the same step
         // twice: ×0.97 to ×1.08). The flag is kept and shown.
-        let busy = b.is_contaminated() || m.is_contaminated();
+        let busy = b.is_busy() || m.is_busy();
         // Samples in two groups: the median is unstable however they were sampled.
         let split = b.bimodal || m.bimodal;
         let call = match judge(ratio, &[], p, threshold, opts.alpha) {

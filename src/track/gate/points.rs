@@ -73,7 +73,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
     // A point measured on a busy machine in either run is never called: contention moves
     // one run's medians by more than a change of the code would (measured: a catalog run
     // beside other work failed the gate on 9 points of two workloads).
-    let busy = b.is_contaminated() || m.is_contaminated();
+    let busy = b.is_busy() || m.is_busy();
     // Samples in two separate groups put the median in one group or the other from run to
     // run (measured: cross-column's `horizontal-arithmetic` at 32k rows, a median of 1.77 ms
     // between groups around 0.5 and 2 ms, ×4.27 the baseline's 0.41 ms: a "regression" of
