@@ -93,17 +93,6 @@ pub enum Call {
     Unclear,
 }
 
-impl Call {
-    pub fn mark(self) -> &'static str {
-        match self {
-            Call::Regression => "▲",
-            Call::Improvement => "▼",
-            Call::Same => "·",
-            Call::Unclear => "?",
-        }
-    }
-}
-
 #[derive(Debug, Clone, Serialize, Deserialize)]
 pub struct PointGate {
     pub design: String,
@@ -258,8 +247,7 @@ pub struct GateReport {
     /// The allocator tunings (baseline, new) when they differ (`RunHeader::allocators_apart`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub allocators_differ: Option<(Option<String>, Option<String>)>,
-    /// A gate of two sweeps judged alone (no history, recheck or pair): what to do before
-    /// acting on it, set by the command (`cli::gate::next`), shown as its `next step`.
+    /// What to do before acting on a gate judged alone (`cli::gate::next`, its `next step`).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub next_step: Option<String>,
 }
