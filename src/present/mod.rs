@@ -16,8 +16,7 @@ pub use error::DrawError;
 /// machine (`Disturbance::busy`), or the machine itself ran slower at some sizes
 /// (`Disturbance::machine_slow`). None when every point is clean.
 pub fn disturbed_words(measured: &[&crate::results::Measured]) -> Option<String> {
-    let busy = measured.iter().filter(|m| m.is_busy()).count();
-    let slow = measured.iter().filter(|m| m.is_contaminated() && !m.is_busy()).count();
+    let (busy, slow) = disturbed_counts(measured);
     let mut parts = Vec::new();
     if busy > 0 {
         parts.push(format!("The machine was busy: {busy} of {} points were measured while other work competed for the cores.", measured.len()));
@@ -30,4 +29,12 @@ pub fn disturbed_words(measured: &[&crate::results::Measured]) -> Option<String>
         ));
     }
     (!parts.is_empty()).then(|| format!("{} They are marked and left out of growth classes and verdicts.", parts.join(" ")))
+}
+
+/// Points measured while the machine was busy, and those measured while it ran slower with
+/// nothing else busy (`Measured::is_busy`, `Disturbance::machine_slow`).
+pub fn disturbed_counts(measured: &[&crate::results::Measured]) -> (usize, usize) {
+    let busy = measured.iter().filter(|m| m.is_busy()).count();
+    let slow = measured.iter().filter(|m| m.is_contaminated() && !m.is_busy()).count();
+    (busy, slow)
 }

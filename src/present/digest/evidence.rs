@@ -51,7 +51,7 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
         tags.push("outputs differ".to_string());
     }
     let measured: Vec<_> = w.points.iter().filter_map(|p| p.measured.as_ref()).collect();
-    let busy = measured.iter().filter(|m| m.is_busy()).count();
+    let (busy, slow) = crate::present::disturbed_counts(&measured);
     if busy > 0 {
         long.push(format!(
             "{busy} of {} points were measured while the machine was busy; they are left out of growth classes and the verdict.",
@@ -59,7 +59,6 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
         ));
         tags.push(format!("busy machine ({busy} point{})", if busy == 1 { "" } else { "s" }));
     }
-    let slow = measured.iter().filter(|m| m.is_contaminated() && !m.is_busy()).count();
     if slow > 0 {
         long.push(format!(
             "{slow} of {} points were measured while the machine ran slower (the drift probe took ×{} or more its usual time at their sizes); they are left out of growth classes and the verdict.",
