@@ -331,6 +331,7 @@ fn with_probe(mut r: RunResults, probe_ns: f64) -> RunResults {
             ratios: vec![],
             equivalence: Equivalence { status: EquivalenceStatus::NotChecked, groups: vec![], note: String::new() },
             probe_ns: Some(probe_ns),
+            remeasured_after: None,
         });
     }
     r

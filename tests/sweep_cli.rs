@@ -217,3 +217,36 @@ fn the_designs_of_a_size_stop_in_the_same_round() {
         assert!(counts.iter().all(|c| c.1 == counts[0].1 && c.1 >= 3), "at {n} rows: {counts:?}");
     }
 }
+
+/// A size whose drift probe ran slower than the sizes before it is measured a second time,
+/// and its first attempt leaves no record behind. The machine's speed cannot be set from a
+/// test, so the slow limit is lowered to ×0.5 (`FRAMECOST_SLOW_PROBE`, the knob for
+/// re-judging saved runs): then every size from the third on meets it as soon as it is
+/// measured, deterministically, and must be measured again exactly once.
+#[test]
+fn a_size_measured_on_a_slower_machine_is_measured_again_once() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let run = dir.path().join("run");
+    let out = Command::cargo_bin("framecost")
+        .expect("binary")
+        .env("FRAMECOST_SLOW_PROBE", "0.5")
+        .args(["sweep", "tests/data/tiny.yaml", "--sizes", "1k,2k,4k,8k", "--point-budget", "100ms", "--out", run.to_str().expect("utf8")])
+        .output()
+        .expect("runs");
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{stdout}\n{}", String::from_utf8_lossy(&out.stderr));
+    let r = RunResults::read(&run).expect("readable");
+    assert_eq!(r.damaged_lines, 0);
+    let w = &r.workloads[0];
+    // One record of each kind per size and design: the first attempts were cut.
+    assert_eq!(w.points.len(), 4 * w.header.designs.len(), "{:?}", w.points.iter().map(|p| (&p.design, p.rows)).collect::<Vec<_>>());
+    assert_eq!(w.tables.len(), 4);
+    let again: Vec<(u64, Option<f64>)> = w.comparisons.iter().map(|c| (c.rows, c.remeasured_after)).collect();
+    assert_eq!(again.iter().map(|a| a.0).collect::<Vec<_>>(), [1_000, 2_000, 4_000, 8_000]);
+    // Two sizes cannot say what is usual; from the third on every size is "slow" at ×0.5.
+    assert!(again[0].1.is_none() && again[1].1.is_none(), "{again:?}");
+    assert!(again[2].1.is_some_and(|x| x >= 0.475) && again[3].1.is_some_and(|x| x >= 0.475), "{again:?}");
+    // The header of the terminal summary says so (its lines are wrapped).
+    let words = stdout.split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(words.contains("2 sizes were measured a second time"), "{stdout}");
+}

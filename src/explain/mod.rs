@@ -69,9 +69,7 @@ pub fn explain(w: &WorkloadResults, a: &WorkloadAnalysis) -> Explanation {
     let mut findings: Vec<Finding> =
         w.header.designs.iter().zip(&a.designs).flat_map(|(dh, da)| design::findings(w, dh, da, better)).collect();
     findings.extend(payback::findings(w));
-    if let Some(m) = machine_finding(w) {
-        findings.push(m);
-    }
+    findings.extend(machine_findings(w));
     findings.extend(mismatch_findings(w));
     let step_notes = step_notes(w);
     Explanation { workload: w.header.workload.clone(), verdict, findings, step_notes }
@@ -110,13 +108,19 @@ fn step_notes(w: &WorkloadResults) -> Vec<(String, String)> {
     step_notes
 }
 
-/// A workload-level finding when points were measured on a busy machine: the machine is
-/// named as the cause, not the designs.
-fn machine_finding(w: &WorkloadResults) -> Option<Finding> {
+/// Workload-level findings about the machine, not the designs: points measured while it
+/// was busy, points measured while it ran slower with nothing else busy, and sizes measured
+/// a second time because it ran slower during the first.
+fn machine_findings(w: &WorkloadResults) -> Vec<Finding> {
     let measured: Vec<&Measured> = w.points.iter().filter_map(|p| p.measured.as_ref()).collect();
+    [busy_finding(&measured), slow_machine_finding(&measured), remeasured_finding(w)].into_iter().flatten().collect()
+}
+
+/// Points measured on a busy machine: the machine is named as the cause, not the designs.
+fn busy_finding(measured: &[&Measured]) -> Option<Finding> {
     let busy: Vec<&Measured> = measured.iter().copied().filter(|m| m.is_busy()).collect();
     if busy.is_empty() {
-        return slow_machine_finding(&measured);
+        return None;
     }
     let shares: Vec<f64> = busy.iter().filter_map(|m| m.disturbance.as_ref()?.probe_cpu_share).collect();
     let loads: Vec<f64> = busy.iter().filter_map(|m| m.disturbance.as_ref()?.load_per_core).collect();
@@ -131,10 +135,10 @@ fn machine_finding(w: &WorkloadResults) -> Option<Finding> {
     })
 }
 
-/// The workload-level finding when the machine itself ran slower at some sizes (the drift
-/// probe, `Disturbance::machine_slow`) though nothing else was busy.
+/// Points measured while the machine itself ran slower (the drift probe,
+/// `Disturbance::machine_slow`) and nothing else was busy.
 fn slow_machine_finding(measured: &[&Measured]) -> Option<Finding> {
-    let ratios: Vec<f64> = measured.iter().filter_map(|m| m.disturbance.as_ref()?.machine_slow).collect();
+    let ratios: Vec<f64> = measured.iter().filter(|m| !m.is_busy()).filter_map(|m| m.disturbance.as_ref()?.machine_slow).collect();
     if ratios.is_empty() {
         return None;
     }
@@ -145,6 +149,22 @@ fn slow_machine_finding(measured: &[&Measured]) -> Option<Finding> {
         measured: format!("{} of {} points were measured while the machine ran slower: the drift probe, a fixed computation timed beside the designs, took up to ×{top:.2} its median time over the workload's sizes", ratios.len(), measured.len()),
         implies: "the machine, not the designs, changed speed at those sizes (a neighbour on the same host, a slower clock): their times are left out of growth classes and the verdict".into(),
         action: "measure again before acting on small differences at those sizes".into(),
+    })
+}
+
+/// Sizes the sweep measured a second time (`ComparisonRecord::remeasured_after`).
+fn remeasured_finding(w: &WorkloadResults) -> Option<Finding> {
+    let again: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.remeasured_after.map(|r| (c.rows, r))).collect();
+    if again.is_empty() {
+        return None;
+    }
+    let sizes: Vec<String> = again.iter().map(|(rows, r)| format!("{} (probe ×{r:.2})", w.header.axis().point(*rows))).collect();
+    Some(Finding {
+        design: None,
+        kind: "machine".into(),
+        measured: format!("measured a second time: {}", sizes.join(", ")),
+        implies: "the machine ran slower during the first attempt at those sizes (the drift probe took that many times its usual time); the second attempt replaced it".into(),
+        action: String::new(),
     })
 }
 

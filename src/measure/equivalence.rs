@@ -86,5 +86,6 @@ pub fn compare(plan: &Plan, rows: u64, measured: &[(String, Vec<f64>, f64, Optio
         ratios,
         equivalence: Equivalence { status, groups: groups.into_iter().map(|g| g.1).collect(), note },
         probe_ns: None,
+        remeasured_after: None,
     }
 }

@@ -34,7 +34,7 @@ pub fn next_size(plan: &Plan) -> Option<u64> {
 
 /// Why a design's time class is not settled over its measured points, if it is not: its
 /// label ("n or n log n") or "unclear". Needs the design measured at the largest planned
-/// size and at three sizes or more, none of them on a busy machine.
+/// size and at three sizes or more, none of them on a busy or slower machine.
 fn unsettled(w: &WorkloadResults, plan: &Plan, design: &str) -> Option<String> {
     let largest = *plan.sizes.last()?;
     let pts = w.design_points(design);
@@ -61,7 +61,10 @@ fn unsettled(w: &WorkloadResults, plan: &Plan, design: &str) -> Option<String> {
 /// verdict cannot (it is decided where every design was measured), and a table showing a
 /// second design faster there than the verdict's would contradict it.
 pub fn chosen(results: &RunResults, plan: &Plan) -> Option<(usize, String)> {
-    let w = results.workloads.iter().rev().find(|w| w.header.workload == plan.name)?;
+    // Sizes the machine ran slower at count as they will when the run is read back.
+    let mut w = results.workloads.iter().rev().find(|w| w.header.workload == plan.name)?.clone();
+    crate::results::reader::mark_slow_sizes(&mut w, crate::results::reader::slow_probe());
+    let w = &w;
     let largest = plan.sizes.last().copied().unwrap_or(0);
     let median_at_largest = |i: usize| w.point(&plan.designs[i].name, largest).and_then(|p| p.measured.as_ref()).map_or(f64::INFINITY, |m| m.median_ns);
     plan.designs

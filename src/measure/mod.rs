@@ -1,6 +1,7 @@
 //! Measurement: the clock, the allocation counter, order statistics, machine facts, and
 //! the runner that sweeps designs over sizes.
 
+pub mod again;
 pub mod alloc;
 pub mod clock;
 pub mod admit;

@@ -83,6 +83,8 @@ struct SizeRun<'p, 'o> {
     probe: super::machine::DriftProbe,
     /// At the extra size (`extra.rs`): the one design measured there; the others get no point.
     only: Option<usize>,
+    /// While a size is measured again (`again.rs`): the first attempt's probe ratio.
+    again: Option<f64>,
 }
 
 /// Sweep one plan, writing every record as it is made.
@@ -134,6 +136,7 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         min_sample_ns: if opts.warm_caches { clock.min_sample_ns() } else { clock.cold_min_sample_ns() },
         probe: super::machine::DriftProbe::new(),
         only: None,
+        again: None,
     };
     // The lap builds the first size's tables (a table with fixed rows at its full size), so
     // it runs only when the memory guard lets some design run at that size: a related table
@@ -154,7 +157,8 @@ pub fn sweep(plan: &Plan, opts: &SweepOptions, clock: &ClockInfo, out: &mut RunW
         if let Some(r) = resume.as_ref().filter(|r| r.from == k) {
             run.failed_before(rows, &r.failed)?;
         }
-        if run.one_size(rows)? {
+        let before = super::again::Before { mark: run.out.mark()?, states: run.states.clone(), outcome: run.outcome.clone() };
+        if run.one_size(rows)? || run.measure_again(rows, before)? {
             run.outcome.interrupted = true;
             break;
         }
@@ -223,9 +227,31 @@ impl<'p> SizeRun<'p, '_> {
             min_sample_ns: self.min_sample_ns,
             probe: super::machine::DriftProbe::new(),
             only: Some(design),
+            again: None,
         };
         let stopped = sub.one_size(rows);
         (self.outcome, self.states, self.programs) = (sub.outcome, sub.states, sub.programs);
+        stopped
+    }
+
+    /// Measure `rows` once more when its drift probe ran slower than the workload's sizes
+    /// before it (`again.rs`): cut its records, forget what the designs learned there, and
+    /// measure it as if for the first time, without charging the run budget. True when a
+    /// stop was asked for.
+    fn measure_again(&mut self, rows: u64, before: super::again::Before) -> Result<bool, RunError> {
+        let name = &self.plan.name;
+        let Some(ratio) = super::again::slow_now(&self.out.results, name, rows) else { return Ok(false) };
+        if super::again::spent_at(&self.out.results, name, rows) > self.plan.budget.whole_run_s * super::again::AGAIN_SHARE {
+            return Ok(false);
+        }
+        self.out.cut_back(before.mark)?;
+        self.progress.rewound(super::again::points_of(&self.out.results, name));
+        (self.states, self.outcome) = (before.states, before.outcome);
+        let t0 = Instant::now();
+        self.again = Some(ratio);
+        let stopped = self.one_size(rows);
+        self.again = None;
+        self.started += t0.elapsed();
         stopped
     }
 
@@ -305,6 +331,7 @@ impl<'p> SizeRun<'p, '_> {
             let walls: Vec<f64> = probe_runs.iter().map(|p| p.0).collect();
             cmp.probe_ns = Some(crate::measure::stats::median(&walls));
         }
+        cmp.remeasured_after = self.again;
         if cmp.equivalence.status == EquivalenceStatus::Mismatch {
             self.outcome.mismatches += 1;
         }

@@ -273,6 +273,7 @@ fn relay(plan: &Plan, ev: Event, seen: &mut Watched, progress: &dyn Progress) {
             progress.point(&plan.name, size, design, name, samples);
         }
         Event::Done => progress.point_done(),
+        Event::Rewound(kept) => progress.rewound(kept),
     }
 }
 

@@ -141,6 +141,9 @@ impl Progress for PipeProgress {
     fn point_done(&self) {
         say(format_args!("D\n"));
     }
+    fn rewound(&self, kept: usize) {
+        say(format_args!("R {kept}\n"));
+    }
 }
 
 /// One line the parent read, parsed.
@@ -151,6 +154,8 @@ pub enum Event {
     Disarmed,
     Point { design: usize, size: u64, samples: usize },
     Done,
+    /// A size is measured again (`again.rs`): the workload keeps `kept` points.
+    Rewound(usize),
 }
 
 /// Parse one line of the protocol; `None` for anything else.
@@ -168,6 +173,7 @@ pub fn parse(line: &str) -> Option<Event> {
         "a" => Some(Event::Disarmed),
         "P" => Some(Event::Point { design: num()? as usize, size: num()?, samples: num()? as usize }),
         "D" => Some(Event::Done),
+        "R" => Some(Event::Rewound(num()? as usize)),
         _ => None,
     }
 }
@@ -183,6 +189,7 @@ mod tests {
         assert_eq!(parse("a"), Some(Event::Disarmed));
         assert_eq!(parse("P 1 64 12"), Some(Event::Point { design: 1, size: 64, samples: 12 }));
         assert_eq!(parse("D"), Some(Event::Done));
+        assert_eq!(parse("R 17"), Some(Event::Rewound(17)));
         assert_eq!(parse("A 1 x 5 y"), None);
         assert_eq!(parse(""), None);
     }

@@ -14,9 +14,12 @@ pub use error::DrawError;
 
 /// The run-level warning when points were left out as disturbed: other work took the
 /// machine (`Disturbance::busy`), or the machine itself ran slower at some sizes
-/// (`Disturbance::machine_slow`). None when every point is clean.
-pub fn disturbed_words(measured: &[&crate::results::Measured]) -> Option<String> {
-    let (busy, slow) = disturbed_counts(measured);
+/// (`Disturbance::machine_slow`); and the sizes measured a second time because the machine
+/// ran slower during the first (`ComparisonRecord::remeasured_after`). None when there is
+/// nothing to say.
+pub fn disturbed_words(r: &crate::results::reader::RunResults) -> Option<String> {
+    let measured: Vec<&crate::results::Measured> = r.workloads.iter().flat_map(|w| &w.points).filter_map(|p| p.measured.as_ref()).collect();
+    let (busy, slow) = disturbed_counts(&measured);
     let mut parts = Vec::new();
     if busy > 0 {
         parts.push(format!("The machine was busy: {busy} of {} points were measured while other work competed for the cores.", measured.len()));
@@ -25,10 +28,19 @@ pub fn disturbed_words(measured: &[&crate::results::Measured]) -> Option<String>
         parts.push(format!(
             "The machine ran slower at some sizes: {slow} of {} points were measured while the drift probe took ×{} or more its usual time, though no other process took the cores (a neighbour on the same host, a slower clock).",
             measured.len(),
-            crate::results::reader::SLOW_PROBE
+            crate::results::reader::slow_probe()
         ));
     }
-    (!parts.is_empty()).then(|| format!("{} They are marked and left out of growth classes and verdicts.", parts.join(" ")))
+    if !parts.is_empty() {
+        parts.push("They are marked and left out of growth classes and verdicts.".into());
+    }
+    let again: Vec<f64> = r.workloads.iter().flat_map(|w| &w.comparisons).filter_map(|c| c.remeasured_after).collect();
+    if !again.is_empty() {
+        let top = again.iter().copied().fold(f64::NAN, f64::max);
+        let sizes = if again.len() == 1 { "1 size was".to_string() } else { format!("{} sizes were", again.len()) };
+        parts.push(format!("{sizes} measured a second time because the machine ran slower during the first (the drift probe at up to ×{top:.2} its usual time); the second measurement is the one kept."));
+    }
+    (!parts.is_empty()).then(|| parts.join(" "))
 }
 
 /// Points measured while the machine was busy, and those measured while it ran slower with

@@ -342,6 +342,11 @@ pub struct ComparisonRecord {
     /// this size): how fast the machine itself was while this size was measured.
     #[serde(default)]
     pub probe_ns: Option<f64>,
+    /// Set when this size was measured a second time because the drift probe of the first
+    /// attempt ran this many times its usual time (`measure::runner`, "a size measured
+    /// again"): the records of that first attempt were replaced by these.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub remeasured_after: Option<f64>,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]

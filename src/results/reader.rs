@@ -170,7 +170,9 @@ impl RunResults {
 /// (`Disturbance::machine_slow`).
 pub const SLOW_PROBE: f64 = 1.4;
 
-fn slow_probe() -> f64 {
+/// The slow limit in use: [`SLOW_PROBE`], or `FRAMECOST_SLOW_PROBE` when set (to re-judge
+/// saved runs at another limit).
+pub fn slow_probe() -> f64 {
     std::env::var("FRAMECOST_SLOW_PROBE").ok().and_then(|v| v.parse().ok()).unwrap_or(SLOW_PROBE)
 }
 

@@ -67,6 +67,21 @@ impl RunWriter {
         &self.dir
     }
 
+    /// How long `points.jsonl` is now: a place [`RunWriter::cut_back`] can return to.
+    pub fn mark(&self) -> Result<u64, WriteError> {
+        let path = self.dir.join("points.jsonl");
+        Ok(self.points.metadata().map_err(io(&path))?.len())
+    }
+
+    /// Drop every record written after `mark` (from [`RunWriter::mark`]) from the file and
+    /// from what is kept in memory; the next record is appended where the file now ends.
+    pub fn cut_back(&mut self, mark: u64) -> Result<(), WriteError> {
+        let path = self.dir.join("points.jsonl");
+        self.points.set_len(mark).map_err(io(&path))?;
+        self.points.sync_all().map_err(io(&path))?;
+        self.reload()
+    }
+
     /// Append one record and make it durable before returning.
     pub fn write(&mut self, mut rec: Record) -> Result<(), WriteError> {
         if let Record::Point(p) = &mut rec {

@@ -63,7 +63,7 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
         long.push(format!(
             "{slow} of {} points were measured while the machine ran slower (the drift probe took ×{} or more its usual time at their sizes); they are left out of growth classes and the verdict.",
             measured.len(),
-            crate::results::reader::SLOW_PROBE
+            crate::results::reader::slow_probe()
         ));
         tags.push(format!("slower machine ({slow} point{})", if slow == 1 { "" } else { "s" }));
     }

@@ -110,8 +110,7 @@ pub fn html(r: &RunResults, parts: &[Part], machine: &[(String, String)], reprod
     if !r.complete() {
         let _ = writeln!(s, "<p class=\"alarm\">This run did not finish: what follows is what was measured before it stopped.</p>");
     }
-    let measured: Vec<_> = r.workloads.iter().flat_map(|w| &w.points).filter_map(|p| p.measured.as_ref()).collect();
-    if let Some(text) = crate::present::disturbed_words(&measured) {
+    if let Some(text) = crate::present::disturbed_words(r) {
         let _ = writeln!(s, "<p class=\"alarm\">{}</p>", esc(&text));
     }
 

@@ -127,10 +127,9 @@ pub fn render_with(an: &Analysed, style: Style, o: Options) -> String {
             let _ = writeln!(s, "{l}");
         }
     }
-    // A busy machine is named first: its points are marked and left out of classes and
-    // verdicts, and the reader should know before reading any number.
-    let measured: Vec<&crate::results::Measured> = r.workloads.iter().flat_map(|w| &w.points).filter_map(|p| p.measured.as_ref()).collect();
-    if let Some(text) = crate::present::disturbed_words(&measured) {
+    // A busy or slower machine is named first: its points are marked and left out of
+    // classes and verdicts, and the reader should know before reading any number.
+    if let Some(text) = crate::present::disturbed_words(r) {
         for l in wrap(&text, width, "", "") {
             let _ = writeln!(s, "{}", style.alarm(&l));
         }

@@ -1,0 +1,102 @@
+//! A size measured again when the machine ran slower while it was measured.
+//!
+//! The drift probe (a fixed computation timed once per sampling round, beside the designs)
+//! gives each size the machine's own speed. When a size's probe median is ×1.4 or more the
+//! median over the workload's sizes, the designs' times there say more about the machine than
+//! about them: read back, such points are marked and left out of classes and verdicts
+//! (`results::reader::mark_slow_sizes`). Left out, they shrink the measured range, and the
+//! class of a design measured over fewer sizes can change; so the sweep measures such a size
+//! once more, at once, when its probe ran [`AGAIN_MARGIN`] of that limit or more (×1.33)
+//! against the median of the sizes measured so far (three or more): its records are cut from `points.jsonl`, what the designs had learned
+//! there is forgotten, and the size is measured as if for the first time. Its comparison
+//! record keeps the first attempt's probe ratio (`remeasured_after`). If the second attempt
+//! is slow too, it is kept and marked when read, as any other.
+//!
+//! The second attempt is not charged to the workload's run budget (it would take the time
+//! of the sizes after it, and shrink the range it is meant to keep), so it is made only when
+//! the first took at most [`AGAIN_SHARE`] of that budget. Over five quiet catalog sweeps
+//! here, that cost 0–16 s per sweep.
+
+use super::admit::DesignState;
+use super::runner::Outcome;
+use crate::results::reader::RunResults;
+
+/// A size is measured again from this share of the slow limit on: a little under it,
+/// because the median the sweep sees while measuring moves as later sizes come in. In quiet
+/// sweep U1 of 2026-12-05, row-growth's 16k rows stood at ×1.398 when it was measured and
+/// at ×1.400 once every size was in, marked when read; the limit itself would have let it
+/// pass. Over five quiet catalog sweeps, ×1.33 met 13 sizes (as a sweep sees them), whose
+/// first attempts took 0–16 s per sweep.
+pub const AGAIN_MARGIN: f64 = 0.95;
+
+/// A size is measured again only when its first attempt took at most this share of the
+/// workload's run budget (its points' `spent_s`).
+pub const AGAIN_SHARE: f64 = 1.0 / 3.0;
+
+/// What the sweep knew before a size: where `points.jsonl` ended and what the designs had
+/// learned, to return to when the size is measured again.
+pub struct Before {
+    pub mark: u64,
+    pub states: Vec<DesignState>,
+    pub outcome: Outcome,
+}
+
+/// The ratio of `rows`' probe median to the median over the workload's sizes measured so
+/// far, when it is at least [`AGAIN_MARGIN`] of the slow limit (three sizes or more with a
+/// probe); None otherwise.
+pub fn slow_now(results: &RunResults, workload: &str, rows: u64) -> Option<f64> {
+    let w = results.workloads.iter().rev().find(|w| w.header.workload == workload)?;
+    let probes: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.probe_ns.map(|p| (c.rows, p))).collect();
+    crate::results::reader::slow_sizes(&probes, crate::results::reader::slow_probe() * AGAIN_MARGIN).into_iter().find(|s| s.0 == rows).map(|s| s.1)
+}
+
+/// Seconds the designs spent at `rows` (their points' `spent_s`).
+pub fn spent_at(results: &RunResults, workload: &str, rows: u64) -> f64 {
+    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == workload) else { return 0.0 };
+    w.points.iter().filter(|p| p.rows == rows).filter_map(|p| p.measured.as_ref()).map(|m| m.spent_s).sum()
+}
+
+/// The workload's points kept in `results` (the progress count after a cut).
+pub fn points_of(results: &RunResults, workload: &str) -> usize {
+    results.workloads.iter().rev().find(|w| w.header.workload == workload).map_or(0, |w| w.points.len())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::results::*;
+
+    fn with_probes(probes: &[(u64, f64)]) -> RunResults {
+        let plan = crate::spec::load_str("tiny.yaml", include_str!("../../tests/data/tiny.yaml")).expect("the test spec loads");
+        let mut r = RunResults::default();
+        r.push(crate::measure::headers::workload_header(&plan, &[]));
+        for &(rows, p) in probes {
+            r.push(Record::Comparison(ComparisonRecord {
+                workload: plan.name.clone(),
+                rows,
+                fastest: None,
+                ratios: vec![],
+                equivalence: Equivalence { status: EquivalenceStatus::NotChecked, groups: vec![], note: String::new() },
+                probe_ns: Some(p),
+                remeasured_after: None,
+            }));
+        }
+        r
+    }
+
+    #[test]
+    fn a_size_is_slow_against_the_sizes_measured_before_it() {
+        // Row-growth in quiet sweep U1 of 2026-12-05: probe medians (µs) of its first six
+        // sizes, the sixth (16k rows) at 371.07 against their median 265.40 (its own
+        // included): ×1.398 (by hand), over ×1.33 though under the ×1.4 a reader marks.
+        let probes = [(500, 265_048.5), (1_000, 265_742.0), (2_000, 264_459.5), (4_000, 263_907.5), (8_000, 268_574.5), (16_000, 371_067.5)];
+        let r = with_probes(&probes);
+        let w = r.workloads[0].header.workload.clone();
+        let ratio = slow_now(&r, &w, 16_000).expect("16k ran slower");
+        assert!((ratio - 1.3982).abs() < 1e-3, "{ratio}");
+        assert!(slow_now(&r, &w, 8_000).is_none(), "8k ran at the usual speed");
+        // Two sizes cannot say what is usual.
+        let r = with_probes(&probes[4..]);
+        assert!(slow_now(&r, &w, 16_000).is_none());
+    }
+}
