@@ -7,15 +7,19 @@
 //! (`results::reader::mark_slow_sizes`). Left out, they shrink the measured range, and the
 //! class of a design measured over fewer sizes can change; so the sweep measures such a size
 //! once more, at once, when its probe ran [`AGAIN_MARGIN`] of that limit or more (×1.33)
-//! against the median of the sizes measured so far (three or more): its records are cut from `points.jsonl`, what the designs had learned
-//! there is forgotten, and the size is measured as if for the first time. Its comparison
+//! against the median of the sizes measured so far (three or more): its records are cut
+//! from `points.jsonl`, what the designs had learned there is forgotten, and the size is
+//! measured as if for the first time. Its comparison
 //! record keeps the first attempt's probe ratio (`remeasured_after`). If the second attempt
 //! is slow too, it is kept and marked when read, as any other.
 //!
 //! The second attempt is not charged to the workload's run budget (it would take the time
-//! of the sizes after it, and shrink the range it is meant to keep), so it is made only when
+//! of the sizes after it, and shrink the range it is meant to keep); it is made only when
 //! the first took at most [`AGAIN_SHARE`] of that budget. Over five quiet catalog sweeps
 //! here, that cost 0–16 s per sweep.
+//!
+//! Below that ratio a size is kept, but the time a design took there is not read as its own
+//! when admission predicts the next size: [`steadied`] divides it by the probe's ratio.
 
 use super::admit::DesignState;
 use super::runner::Outcome;
@@ -61,6 +65,35 @@ pub fn points_of(results: &RunResults, workload: &str) -> usize {
     results.workloads.iter().rev().find(|w| w.header.workload == workload).map_or(0, |w| w.points.len())
 }
 
+/// The designs' histories with each size's median divided by how much slower or faster than
+/// usual the machine ran there: the probe's median at that size over its median across the
+/// workload's sizes measured so far (three or more; the histories unchanged otherwise).
+/// Admission predicts the next size from them (`admit::predict_ns`), so that a machine that
+/// ran slower at one size does not keep a design out of the next. Why: in quiet sweep U3 of
+/// 2026-12-05, row-growth's `extend-in-place` took 228.5 ms a run at 16k rows while the
+/// probe there ran ×1.28 its usual time; predicted from it, a run at 32k would take 545 ms,
+/// four runs 2.18 s over the 2 s point budget, and the design was not measured at 32k, as it
+/// was in three other sweeps (336 ms a run there). Its class and its prediction at the
+/// target changed with the range. This is the gate's correction (a size's ratio divided by
+/// the probe's), applied before measuring.
+pub fn steadied(states: &[DesignState], results: &RunResults, workload: &str) -> Vec<DesignState> {
+    let mut out = states.to_vec();
+    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == workload) else { return out };
+    let probes: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.probe_ns.filter(|p| *p > 0.0 && p.is_finite()).map(|p| (c.rows, p))).collect();
+    if probes.len() < 3 {
+        return out;
+    }
+    let usual = super::stats::median(&probes.iter().map(|p| p.1).collect::<Vec<_>>());
+    for s in &mut out {
+        for (rows, t) in &mut s.history {
+            if let Some(p) = probes.iter().rev().find(|p| p.0 == *rows) {
+                *t /= p.1 / usual;
+            }
+        }
+    }
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -98,5 +131,27 @@ mod tests {
         // Two sizes cannot say what is usual.
         let r = with_probes(&probes[4..]);
         assert!(slow_now(&r, &w, 16_000).is_none());
+    }
+
+    #[test]
+    fn a_size_the_machine_ran_slower_at_does_not_keep_a_design_out_of_the_next() {
+        // Row-growth in quiet sweep U3 of 2026-12-05: the probe medians (ns) of its first six
+        // sizes, and `extend-in-place`'s medians at 4k, 8k and 16k rows (ms).
+        let probes = [(500, 293_505.5), (1_000, 360_797.0), (2_000, 277_206.0), (4_000, 270_376.0), (8_000, 270_549.0), (16_000, 365_402.5)];
+        let r = with_probes(&probes);
+        let w = r.workloads[0].header.workload.clone();
+        let state = DesignState { history: vec![(4_000, 40.18e6), (8_000, 83.91e6), (16_000, 228.5e6)], ..Default::default() };
+        let raw = super::super::admit::predict_ns(&state.history, 32_000).expect("a prediction");
+        assert!((raw / 1e6 - 544.9).abs() < 1.0, "{raw}");
+        // By hand: usual = (277206 + 293505.5) / 2 = 285355.75; the three sizes ran ×0.9475,
+        // ×0.9481 and ×1.2805; steadied 42.41, 88.50 and 178.45 ms; slope ln(178.45 / 42.41)
+        // / ln 4 = 1.0365; at 32k 178.45 × 2^1.0365 = 366.1 ms (the other sweeps measured
+        // 336 ms there): four runs fit the 2 s point budget.
+        let st = steadied(std::slice::from_ref(&state), &r, &w);
+        let fair = super::super::admit::predict_ns(&st[0].history, 32_000).expect("a prediction");
+        assert!((fair / 1e6 - 366.1).abs() < 1.0, "{fair}");
+        // Too few sizes to know the usual speed: unchanged.
+        let r = with_probes(&probes[..2]);
+        assert_eq!(steadied(std::slice::from_ref(&state), &r, &w)[0].history, state.history);
     }
 }

@@ -261,7 +261,8 @@ impl<'p> SizeRun<'p, '_> {
         // Read once: admission judges by them and the table record states them.
         let peaks: Vec<Vec<(u64, f64)>> = self.states.iter().map(|s| s.peaks.clone()).collect();
         let limit = super::memory::memory_limit();
-        let decisions = super::admit::admit(plan, rows, &self.states, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit, self.only);
+        let steadied = super::again::steadied(&self.states, &self.out.results, &plan.name);
+        let decisions = super::admit::admit(plan, rows, &steadied, self.opts, self.started.elapsed().as_secs_f64(), &peaks, &limit, self.only);
         let mut runnable = Vec::new();
         let mut trials = Vec::new();
         let mut shares = Vec::new();
