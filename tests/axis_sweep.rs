@@ -303,7 +303,7 @@ fn allocation_counts_are_fitted_over_busy_sizes_too() {
     let a = framecost::analyse::analyse(&r, &framecost::analyse::AnalyseOptions::default());
     let d = |name: &str| a.workloads[0].designs.iter().find(|d| d.design == name).expect("design");
     let between = d("reads-between");
-    assert!(between.notes.iter().any(|n| n.contains("3 size(s) measured on a busy machine were left out")), "{:?}", between.notes);
+    assert!(between.notes.iter().any(|n| n.contains("3 size(s) measured on a busy or slower machine were left out")), "{:?}", between.notes);
     assert_eq!(between.time.as_ref().map(|t| t.sizes), Some(3));
     assert_eq!(between.bytes.as_ref().map(|b| (b.class.as_str(), b.sizes)), Some(("n²", 6)));
     let after = d("all-at-once-read-after");

@@ -146,15 +146,15 @@ fn choose_points<'a>(pts: &'a [&'a PointRecord], limit: u64, top: Option<usize>)
     // Memory is counted, not timed: a busy machine does not change it, so its fits keep
     // every size.
     let mut for_memory = used.clone();
-    // Points measured on a busy machine never decide a class, as long as enough clean
-    // sizes remain to fit one.
+    // Points measured on a busy or slower machine (`Measured::is_contaminated`) never decide
+    // a class, as long as enough clean sizes remain to fit one.
     let busy = used.iter().filter(|p| p.measured.as_ref().is_some_and(|m| m.is_contaminated())).count();
     if busy > 0 {
         if used.len() - busy >= MIN_SIZES {
             used.retain(|p| !p.measured.as_ref().is_some_and(|m| m.is_contaminated()));
-            notes.push(format!("{busy} size(s) measured on a busy machine were left out of the time fits"));
+            notes.push(format!("{busy} size(s) measured on a busy or slower machine were left out of the time fits"));
         } else {
-            notes.push(format!("{busy} size(s) were measured on a busy machine and too few clean ones remain: the fits include them"));
+            notes.push(format!("{busy} size(s) were measured on a busy or slower machine and too few clean ones remain: the fits include them"));
         }
     }
     // A split point (samples in two separate groups) has a median that lands in either

@@ -69,7 +69,7 @@ fn undecided(text: String) -> Verdict {
 }
 
 /// Every comparison with two or more designs measured, by size, and those of them where
-/// no point was marked as measured on a busy machine.
+/// no point was marked as measured on a busy or slower machine.
 fn usable<'a>(w: &'a WorkloadResults) -> (Vec<&'a ComparisonRecord>, Vec<&'a ComparisonRecord>) {
     let mut all: Vec<&ComparisonRecord> = w.comparisons.iter().filter(|c| c.ratios.len() >= 2).collect();
     all.sort_by_key(|c| c.rows);
@@ -189,7 +189,11 @@ pub fn verdict(w: &WorkloadResults, a: &WorkloadAnalysis) -> Verdict {
         _ => String::new(),
     };
     let at = ax.point(last.rows);
-    let busy_note = if cmps.len() < total { format!(" ({} sizes measured on a busy machine were left out)", total - cmps.len()) } else { String::new() };
+    let busy_note = match total - cmps.len() {
+        0 => String::new(),
+        1 => " (1 size measured on a busy or slower machine was left out)".to_string(),
+        n => format!(" ({n} sizes measured on a busy or slower machine were left out)"),
+    };
     // Clearly behind (the interval stays above ×1.05) though less than TIE_RATIO.
     let close = runner.low.is_some_and(|lo| lo > 1.05);
     if within_noise(runner) {
@@ -396,14 +400,14 @@ fn busy_verdict(all: &[&ComparisonRecord], ax: crate::results::Axis) -> Verdict 
                 kind: VerdictKind::Winner,
                 design: Some(a.clone()),
                 text: format!(
-                    "use `{a}`: fastest at the two largest sizes compared, ×{ra:.1} ahead at {} — every size was measured on a busy machine, but a margin this wide is beyond what contention explains (designs are sampled in interleaved rounds); measure again on a quiet machine for the exact figures",
+                    "use `{a}`: fastest at the two largest sizes compared, ×{ra:.1} ahead at {} — every size was measured on a busy or slower machine, but a margin this wide is beyond what contention explains (designs are sampled in interleaved rounds); measure again on a quiet machine for the exact figures",
                     ax.point(last.rows)
                 ),
                 decided_at: Some(last.rows),
             }
         }
         _ => undecided(format!(
-            "no verdict: all {total} sizes where two designs were measured were measured on a busy machine, and no design led by ×{BUSY_MARGIN} at the two largest; measure again on a quiet one"
+            "no verdict: all {total} sizes where two designs were measured were measured on a busy or slower machine, and no design led by ×{BUSY_MARGIN} at the two largest; measure again on a quiet one"
         )),
     }
 }
