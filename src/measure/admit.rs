@@ -233,7 +233,7 @@ fn share_run_budget(decisions: &mut [Option<Result<Admission, SkipInfo>>], waiti
 /// What a resumed sweep knows of each design from the points already written.
 pub(super) fn resumed_states(plan: &Plan, results: &crate::results::reader::RunResults, from: usize) -> Vec<DesignState> {
     let mut states: Vec<DesignState> = plan.designs.iter().map(|_| DesignState::default()).collect();
-    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == plan.name) else {
+    let Some(w) = results.workload(&plan.name) else {
         return states;
     };
     for p in &w.points {

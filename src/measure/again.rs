@@ -49,20 +49,19 @@ pub struct Before {
 /// far, when it is at least [`AGAIN_MARGIN`] of the slow limit (three sizes or more with a
 /// probe); None otherwise.
 pub fn slow_now(results: &RunResults, workload: &str, rows: u64) -> Option<f64> {
-    let w = results.workloads.iter().rev().find(|w| w.header.workload == workload)?;
-    let probes: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.probe_ns.map(|p| (c.rows, p))).collect();
+    let probes = results.workload(workload)?.probes();
     crate::results::reader::slow_sizes(&probes, crate::results::reader::slow_probe() * AGAIN_MARGIN).into_iter().find(|s| s.0 == rows).map(|s| s.1)
 }
 
 /// Seconds the designs spent at `rows` (their points' `spent_s`).
 pub fn spent_at(results: &RunResults, workload: &str, rows: u64) -> f64 {
-    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == workload) else { return 0.0 };
+    let Some(w) = results.workload(workload) else { return 0.0 };
     w.points.iter().filter(|p| p.rows == rows).filter_map(|p| p.measured.as_ref()).map(|m| m.spent_s).sum()
 }
 
 /// The workload's points kept in `results` (the progress count after a cut).
 pub fn points_of(results: &RunResults, workload: &str) -> usize {
-    results.workloads.iter().rev().find(|w| w.header.workload == workload).map_or(0, |w| w.points.len())
+    results.workload(workload).map_or(0, |w| w.points.len())
 }
 
 /// The designs' histories with each size's median divided by how much slower than usual the
@@ -81,8 +80,8 @@ pub fn points_of(results: &RunResults, workload: &str) -> usize {
 /// stops the sampling; a wrong "skip" loses the size.
 pub fn steadied(states: &[DesignState], results: &RunResults, workload: &str) -> Vec<DesignState> {
     let mut out = states.to_vec();
-    let Some(w) = results.workloads.iter().rev().find(|w| w.header.workload == workload) else { return out };
-    let probes: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.probe_ns.filter(|p| *p > 0.0 && p.is_finite()).map(|p| (c.rows, p))).collect();
+    let Some(w) = results.workload(workload) else { return out };
+    let probes = w.probes();
     if probes.len() < 3 {
         return out;
     }

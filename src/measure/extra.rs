@@ -62,7 +62,7 @@ fn unsettled(w: &WorkloadResults, plan: &Plan, design: &str) -> Option<String> {
 /// second design faster there than the verdict's would contradict it.
 pub fn chosen(results: &RunResults, plan: &Plan) -> Option<(usize, String)> {
     // Sizes the machine ran slower at count as they will when the run is read back.
-    let mut w = results.workloads.iter().rev().find(|w| w.header.workload == plan.name)?.clone();
+    let mut w = results.workload(&plan.name)?.clone();
     crate::results::reader::mark_slow_sizes(&mut w, crate::results::reader::slow_probe());
     let w = &w;
     let largest = plan.sizes.last().copied().unwrap_or(0);

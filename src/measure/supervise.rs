@@ -152,7 +152,7 @@ fn io_error(path: &Path, source: std::io::Error) -> WriteError {
 /// The counts of a workload's sweep, from its records as written.
 fn outcome_of(out: &RunWriter, plan: &Plan, interrupted: bool) -> Outcome {
     let mut o = Outcome { interrupted, ..Outcome::default() };
-    if let Some(w) = out.results.workloads.iter().rev().find(|w| w.header.workload == plan.name) {
+    if let Some(w) = out.results.workload(&plan.name) {
         for p in &w.points {
             match (&p.measured, &p.skipped) {
                 (Some(_), _) => o.measured += 1,

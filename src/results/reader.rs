@@ -28,6 +28,11 @@ pub struct WorkloadResults {
 }
 
 impl WorkloadResults {
+    /// (size, drift-probe median) of every comparison that has a probe time.
+    pub fn probes(&self) -> Vec<(u64, f64)> {
+        self.comparisons.iter().filter_map(|c| c.probe_ns.filter(|p| *p > 0.0 && p.is_finite()).map(|p| (c.rows, p))).collect()
+    }
+
     /// The estimated in-memory size of the table at swept value `rows` (its `table` record).
     pub fn table_bytes(&self, rows: u64) -> Option<f64> {
         self.tables.iter().find(|t| t.rows == rows).map(|t| t.table_bytes_estimate)
@@ -104,6 +109,11 @@ impl RunResults {
             }
             Record::End(e) => self.end = Some(e),
         }
+    }
+
+    /// The workload named `name` (the last one of that name, as records are added to it).
+    pub fn workload(&self, name: &str) -> Option<&WorkloadResults> {
+        self.workloads.iter().rev().find(|w| w.header.workload == name)
     }
 
     fn workload_mut(&mut self, name: &str) -> Option<&mut WorkloadResults> {
@@ -198,8 +208,7 @@ pub fn slow_sizes(probes: &[(u64, f64)], limit: f64) -> Vec<(u64, f64)> {
 
 /// Mark the points of every size [`slow_sizes`] names (`Disturbance::machine_slow`).
 pub fn mark_slow_sizes(w: &mut WorkloadResults, limit: f64) {
-    let probes: Vec<(u64, f64)> = w.comparisons.iter().filter_map(|c| c.probe_ns.map(|p| (c.rows, p))).collect();
-    for (rows, ratio) in slow_sizes(&probes, limit) {
+    for (rows, ratio) in slow_sizes(&w.probes(), limit) {
         for m in w.points.iter_mut().filter(|x| x.rows == rows).filter_map(|x| x.measured.as_mut()) {
             if let Some(d) = m.disturbance.as_mut() {
                 d.machine_slow = Some(ratio);

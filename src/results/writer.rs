@@ -85,7 +85,7 @@ impl RunWriter {
     /// Append one record and make it durable before returning.
     pub fn write(&mut self, mut rec: Record) -> Result<(), WriteError> {
         if let Record::Point(p) = &mut rec {
-            let axis = self.results.workloads.iter().rev().find(|w| w.header.workload == p.workload).and_then(|w| w.header.axis.as_ref());
+            let axis = self.results.workload(&p.workload).and_then(|w| w.header.axis.as_ref());
             super::cause::fill_detail(p, axis);
         }
         let mut line = serde_json::to_string(&rec)?;
