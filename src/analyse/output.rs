@@ -33,6 +33,23 @@ pub struct GrowthOut {
     pub sizes: usize,
     /// Relative residual spread of the fit.
     pub residual_sd: f64,
+    /// Every class the fit tried, simplest first: how far its AICc came from the reported
+    /// class's, or why it was left out. Empty in analyses written before it was recorded.
+    #[serde(default)]
+    pub tried: Vec<ClassTried>,
+}
+
+/// How one growth class fared in a fit ([`GrowthOut::tried`]).
+#[derive(Debug, Clone, Serialize, Deserialize)]
+pub struct ClassTried {
+    pub class: String,
+    /// Its AICc minus the reported class's: positive fits worse; negative fitted better but
+    /// lost to the parsimony rule or a reading of the bytes. None when left out.
+    #[serde(default)]
+    pub aicc_over_reported: Option<f64>,
+    /// Why the class took no part ("slope 0.12 outside its range", say).
+    #[serde(default)]
+    pub left_out: Option<String>,
 }
 
 #[derive(Debug, Clone, Serialize, Deserialize)]
@@ -291,6 +308,7 @@ impl GrowthOut {
             evidence_weight: 0.0,
             sizes,
             residual_sd: 0.0,
+            tried: vec![],
         }
     }
 }
@@ -319,7 +337,27 @@ fn out(f: &GrowthFit) -> GrowthOut {
         evidence_weight: f.evidence_weight,
         sizes: f.n_sizes,
         residual_sd: f.residual_sd(),
+        tried: tried(f),
     }
+}
+
+/// Each class's standing in the fit `f`, against the class `f` reports.
+fn tried(f: &GrowthFit) -> Vec<ClassTried> {
+    use crate::fit::growth::Rejection;
+    let reported = f.candidate(f.best).map_or(f64::NAN, |c| c.aicc);
+    f.candidates
+        .iter()
+        .map(|c| {
+            let left_out = c.rejection.as_ref().map(|r| match r {
+                Rejection::NegativeSlope { .. } => "its leading coefficient cannot be positive".to_string(),
+                Rejection::FitFailed(e) => format!("the fit failed: {e}"),
+                Rejection::SlopeDisagrees { slope } => format!("slope {slope:.2} outside its range"),
+                Rejection::LeadingTermNegligible { share } => format!("its leading term is {:.0}% of the cost at the largest size", share * 100.0),
+            });
+            let aicc_over_reported = (left_out.is_none() && c.aicc.is_finite() && reported.is_finite()).then(|| c.aicc - reported);
+            ClassTried { class: c.class.label().to_string(), aicc_over_reported, left_out }
+        })
+        .collect()
 }
 
 /// How a measured growth meets an expected class ([`GrowthOut::meets`]).
