@@ -8,6 +8,7 @@ use super::copying::{copy_model, CopyModel};
 use super::trend::{trend, Trend};
 use super::fits::{allow_for_extrapolation, bounded_by_bytes, fit_time, predict_with_alternative};
 use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
+use super::shift::{factor_at, SizeShift};
 use super::AnalyseOptions;
 use crate::fit::growth::{doubling_ratios, fit_growth, loglog_slope, GrowthClass, GrowthFit, MIN_SIZES};
 use crate::fit::FitError;
@@ -36,7 +37,9 @@ struct Chosen<'a> {
 }
 
 /// Analyse one design of `w` and keep its time fit for the crossovers.
-pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOptions, predict_at: Option<u64>) -> (DesignAnalysis, Fitted) {
+/// `shifts`: each size's shared shift (`shift.rs`), taken out of the time before it is
+/// fitted; empty on the first pass.
+pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOptions, predict_at: Option<u64>, shifts: &[SizeShift]) -> (DesignAnalysis, Fitted) {
     let limit = opts.fit_up_to.unwrap_or(u64::MAX);
     let pts: Vec<_> = w.design_points(name).into_iter().filter(|p| p.measured.is_some()).collect();
     let Chosen { used, for_memory, mut notes } = choose_points(&pts, limit, opts.top_sizes);
@@ -47,9 +50,14 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
             crate::units::rows_label(p.rows)
         ));
     }
-    let measured: Vec<(u64, &Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
+    let as_measured: Vec<(u64, &Measured)> = used.iter().filter_map(|p| p.measured.as_ref().map(|m| (p.rows, m))).collect();
     let seed = xxhash_rust::xxh3::xxh3_64(name.as_bytes());
-    let (time_fit, time_exponent) = fit_time(&measured, seed);
+    // The exponent describes the medians as measured; the class and the predictions are
+    // fitted with each size's shared shift taken out.
+    let (_, time_exponent) = fit_time(&as_measured, seed);
+    let unshifted: Vec<(u64, Measured)> = as_measured.iter().map(|(rows, m)| (*rows, without_shift(m, factor_at(shifts, *rows)))).collect();
+    let measured: Vec<(u64, &Measured)> = unshifted.iter().map(|(rows, m)| (*rows, m)).collect();
+    let (time_fit, _) = fit_time(&measured, seed);
     let doubling = doubling_of(&used);
     let (bytes_res, bytes_exponent) = memory_fit(&for_memory, &|m| m.alloc.bytes as f64);
     let (peak_res, peak_exponent) = memory_fit(&for_memory, &|m| m.peak_bytes() as f64);
@@ -136,6 +144,20 @@ fn with_copying_alternative(mut time: GrowthFit, bytes_class: GrowthClass) -> Gr
         time.alternative = Some(bytes_class);
     }
     time
+}
+
+/// A point's timings divided by its size's shared shift `factor` (a copy; counts unchanged).
+fn without_shift(m: &Measured, factor: f64) -> Measured {
+    let mut m = m.clone();
+    if factor != 1.0 && factor.is_finite() && factor > 0.0 {
+        m.samples_ns.iter_mut().for_each(|v| *v /= factor);
+        for v in [&mut m.median_ns, &mut m.mean_ns, &mut m.p50_ns, &mut m.p90_ns, &mut m.p99_ns, &mut m.max_ns] {
+            *v /= factor;
+        }
+        m.ci_low_ns = m.ci_low_ns.map(|v| v / factor);
+        m.ci_high_ns = m.ci_high_ns.map(|v| v / factor);
+    }
+    m
 }
 
 /// The points the fits use: sizes up to `limit`; busy sizes out of the time fits when

@@ -19,6 +19,8 @@ mod design;
 pub use design::{cores, cores_changed, CORES_CHANGE};
 mod fits;
 mod output;
+mod shift;
+pub use shift::{SizeShift, SHIFT_DESIGNS_MIN};
 
 pub use fits::{bounded_by_bytes, fit_time, predict_with_alternative, MEMORY_HIERARCHY_SLOPE};
 pub use output::{class_of, pair_of, CopyingOut, CrossoverOut, DesignAnalysis, ExponentOut, GrowthOut, HoldoutCheck, Meets, PredictionOut};
@@ -26,6 +28,7 @@ pub use output::{class_of, pair_of, CopyingOut, CrossoverOut, DesignAnalysis, Ex
 use crate::fit::predict::{crossover, Which};
 use crate::results::reader::{RunResults, WorkloadResults};
 use design::{analyse_design, Fitted};
+use shift::shared_shifts;
 use serde::{Deserialize, Serialize};
 
 /// Settings of an analysis.
@@ -55,6 +58,10 @@ pub struct WorkloadAnalysis {
     pub predict_at: Option<u64>,
     pub designs: Vec<DesignAnalysis>,
     pub crossovers: Vec<CrossoverOut>,
+    /// Each size's shared shift, taken out of the time fits (`shift.rs`); empty when fewer
+    /// than three designs measured every size, and in analyses written before it.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub shifts: Vec<SizeShift>,
 }
 
 /// Analyse every workload of a run.
@@ -65,10 +72,16 @@ pub fn analyse(r: &RunResults, opts: &AnalyseOptions) -> Analysis {
 /// Analyse one workload: every design, then where their time curves cross.
 pub fn analyse_workload(w: &WorkloadResults, opts: &AnalyseOptions) -> WorkloadAnalysis {
     let predict_at = opts.at.or(w.header.target);
-    let (designs, fitted): (Vec<DesignAnalysis>, Vec<Fitted>) =
-        w.header.designs.iter().map(|d| analyse_design(w, &d.name, opts, predict_at)).unzip();
+    let each = |shifts: &[SizeShift]| -> (Vec<DesignAnalysis>, Vec<Fitted>) {
+        w.header.designs.iter().map(|d| analyse_design(w, &d.name, opts, predict_at, shifts)).unzip()
+    };
+    let (designs, fitted) = each(&[]);
+    // Sizes at which the designs ran slower or faster together are taken out of the time
+    // fits, and every design is fitted again (`shift.rs`).
+    let shifts = shared_shifts(w, &fitted);
+    let (designs, fitted) = if shifts.is_empty() { (designs, fitted) } else { each(&shifts) };
     let crossovers = crossovers(&fitted, predict_at);
-    WorkloadAnalysis { workload: w.header.workload.clone(), axis: w.header.axis.clone(), predict_at, designs, crossovers }
+    WorkloadAnalysis { workload: w.header.workload.clone(), axis: w.header.axis.clone(), predict_at, designs, crossovers, shifts }
 }
 
 /// Every pair of designs whose fitted time curves cross, over the sizes both measured and
