@@ -105,7 +105,17 @@ pub fn describe(kind: &str, w: &WorkloadResults, a: &WorkloadAnalysis) -> String
         "ratios" => "Each design's time as a multiple of the fastest design's at each size".to_string(),
         _ => "A picture of the workload's measurements".to_string(),
     };
-    format!("{lead}. {}.", per.join("; "))
+    let moved = if kind == "scaling" { shared_moves(w, a).map(|m| format!(" {m}.")).unwrap_or_default() } else { String::new() };
+    format!("{lead}. {}.{moved}", per.join("; "))
+}
+
+/// The sizes at which every design moved together by 3% or more, which the fitted curves
+/// leave out (`analyse::SizeShift`), in words; None when there are none.
+fn shared_moves(w: &WorkloadResults, a: &WorkloadAnalysis) -> Option<String> {
+    let ax = w.header.axis();
+    let moved: Vec<String> =
+        a.shifts.iter().filter(|s| (s.factor - 1.0).abs() >= 0.03).map(|s| format!("{} {} {:.2}×", ax.value(s.rows), ax.name(), s.factor)).collect();
+    (!moved.is_empty()).then(|| format!("Curves fitted with the move every design made together taken out at {}", moved.join(", ")))
 }
 
 /// The percentile picture in words, at the size `plot::draw_all` draws it (the largest size
@@ -138,6 +148,11 @@ pub fn pictures(drawn: Vec<(String, PathBuf)>, w: &WorkloadResults, a: &Workload
             let stem = svg.file_stem().and_then(|s| s.to_str()).unwrap_or("");
             let kind = ["scaling", "memory", "distribution", "ratios"].iter().find(|k| stem.ends_with(&format!("-{k}"))).copied().unwrap_or("picture").to_string();
             let alt = describe(&kind, w, a);
+            // The scaling picture's caption says where its curves leave a shared move out.
+            let title = match shared_moves(w, a) {
+                Some(m) if kind == "scaling" => format!("{title}. {m}"),
+                _ => title,
+            };
             Picture { kind, title, svg, alt }
         })
         .collect()
