@@ -6,7 +6,7 @@
 
 use super::copying::{copy_model, CopyModel};
 use super::trend::{trend, Trend};
-use super::fits::{allow_for_extrapolation, bounded_by_bytes, fit_time, predict_with_alternative};
+use super::fits::{allow_for_extrapolation, bounded_by_bytes, fit_time_class, predict_with_alternative, time_exponent};
 use super::output::{growth_out, DesignAnalysis, GrowthOut, HoldoutCheck};
 use super::shift::{factor_at, SizeShift};
 use super::AnalyseOptions;
@@ -54,10 +54,10 @@ pub(super) fn analyse_design(w: &WorkloadResults, name: &str, opts: &AnalyseOpti
     let seed = xxhash_rust::xxh3::xxh3_64(name.as_bytes());
     // The exponent describes the medians as measured; the class and the predictions are
     // fitted with each size's shared shift taken out.
-    let (_, time_exponent) = fit_time(&as_measured, seed);
+    let time_exponent = time_exponent(&as_measured, seed);
     let unshifted: Vec<(u64, Measured)> = as_measured.iter().map(|(rows, m)| (*rows, without_shift(m, factor_at(shifts, *rows)))).collect();
     let measured: Vec<(u64, &Measured)> = unshifted.iter().map(|(rows, m)| (*rows, m)).collect();
-    let (time_fit, _) = fit_time(&measured, seed);
+    let time_fit = fit_time_class(&measured);
     let doubling = doubling_of(&used);
     let (bytes_res, bytes_exponent) = memory_fit(&for_memory, &|m| m.alloc.bytes as f64);
     let (peak_res, peak_exponent) = memory_fit(&for_memory, &|m| m.peak_bytes() as f64);

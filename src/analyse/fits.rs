@@ -11,15 +11,28 @@ use crate::fit::predict::{extrapolation_allowance, is_rough, predict, widen_for_
 /// size's quartiles (`fit::growth::fit_timed`), and the log-log exponent of medians over
 /// the top four sizes with a 95% bootstrap interval (deterministic from `seed`).
 pub fn fit_time(measured: &[(u64, &crate::results::Measured)], seed: u64) -> (Result<GrowthFit, crate::fit::FitError>, Option<ExponentOut>) {
-    let per_size: Vec<(f64, Vec<f64>)> = measured
+    (fit_time_class(measured), time_exponent(measured, seed))
+}
+
+/// The growth class of [`fit_time`] alone.
+pub fn fit_time_class(measured: &[(u64, &crate::results::Measured)]) -> Result<GrowthFit, crate::fit::FitError> {
+    fit_timed(&per_size(measured))
+}
+
+/// The bootstrap exponent of [`fit_time`] alone.
+pub fn time_exponent(measured: &[(u64, &crate::results::Measured)], seed: u64) -> Option<ExponentOut> {
+    exponent_with_ci(&per_size(measured), 4, 1000, seed)
+        .ok()
+        .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used })
+}
+
+/// Each size's positive samples.
+fn per_size(measured: &[(u64, &crate::results::Measured)]) -> Vec<(f64, Vec<f64>)> {
+    measured
         .iter()
         .map(|(rows, m)| (*rows as f64, m.samples_ns.iter().copied().filter(|v| *v > 0.0).collect::<Vec<_>>()))
         .filter(|(_, s)| !s.is_empty())
-        .collect();
-    let exponent = exponent_with_ci(&per_size, 4, 1000, seed)
-        .ok()
-        .map(|e| ExponentOut { slope: e.slope, low: e.lo, high: e.hi, sizes_used: e.sizes_used });
-    (fit_timed(&per_size), exponent)
+        .collect()
 }
 
 /// The prediction of a fit at `rows`: its own class's interval, widened to cover the
