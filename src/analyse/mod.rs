@@ -58,8 +58,9 @@ pub struct WorkloadAnalysis {
     pub predict_at: Option<u64>,
     pub designs: Vec<DesignAnalysis>,
     pub crossovers: Vec<CrossoverOut>,
-    /// Each size's shared shift, taken out of the time fits (`shift.rs`); empty when fewer
-    /// than three designs measured every size, and in analyses written before it.
+    /// Each size's shared shift, taken out of the time fits (`shift.rs`); empty when no size
+    /// had three designs to estimate one from (or every move was beyond ×1.3), and in
+    /// analyses written before it.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub shifts: Vec<SizeShift>,
 }
