@@ -83,11 +83,9 @@ pub(super) fn shared_shifts(w: &WorkloadResults, fitted: &[Fitted]) -> Vec<SizeS
     per_size
         .into_iter()
         .filter(|(_, v)| v.len() >= SHIFT_DESIGNS_MIN)
-        .map(|(rows, mut v)| {
-            v.sort_by(f64::total_cmp);
-            let mid = v.len() / 2;
-            let median = if v.len() % 2 == 1 { v[mid] } else { (v[mid - 1] + v[mid]) / 2.0 };
-            SizeShift { rows, factor: median.exp(), designs: v.len() }
+        .filter_map(|(rows, v)| {
+            let median = crate::fit::sample::median(&v).ok()?;
+            Some(SizeShift { rows, factor: median.exp(), designs: v.len() })
         })
         .filter(|s| (1.0 / SHIFT_MAX..=SHIFT_MAX).contains(&s.factor))
         .collect()
