@@ -542,6 +542,36 @@ fn slower_memory_explains_a_slowdown_away_but_never_makes_one() {
     assert!(g.workloads[0].points.iter().all(|p| p.call == Call::Same && p.memory_ratio == Some(0.75)));
 }
 
+/// `r` with every point's files probe (small files written and read back before its
+/// samples) at `ns`.
+fn with_files(r: RunResults, ns: &dyn Fn(u64) -> f64) -> RunResults {
+    with_disturbance(r, &|rows| Disturbance { files_probe_ns: Some(ns(rows)), ..Default::default() })
+}
+
+#[test]
+fn a_slowdown_with_a_slower_file_system_is_shown_unjudged_and_never_made() {
+    // Twice as slow at every size, as storage's one-file-per-parcel design measured between
+    // two sweeps of unchanged code when the file system slowed (5 December: x1.64 to x2.04).
+    // With the files probe twice as slow at those points, neither a point nor the design as
+    // a whole is called (shown, not judged); with the probe unchanged the slowdown fails the
+    // gate; a faster file system never turns equal medians into an improvement.
+    let base = with_files(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 1e6);
+    let twice = |n: u64| 2.0 * linear(n);
+    let g = compare(&base, &with_files(run("b", 2, "cpu", 1e8, &twice, &lin_bytes, &[]), &|_| 2e6), &GateOptions::default());
+    for p in &g.workloads[0].points {
+        assert_eq!(p.files_ratio, Some(2.0));
+        assert_eq!((p.call, p.files_moved), (Call::Unclear, true), "at {} rows: {p:?}", p.rows);
+    }
+    assert!(g.workloads[0].moves.iter().all(|m| m.call != Call::Regression && m.files_ratio.is_some()), "{:?}", g.workloads[0].moves);
+    assert!(!g.failed());
+    let g = compare(&base, &with_files(run("b", 2, "cpu", 1e8, &twice, &lin_bytes, &[]), &|_| 1e6), &GateOptions::default());
+    assert!(g.regressions >= 2, "the same slowdown with an unchanged file system is caught: {:?}", g.workloads[0].points);
+    assert!(g.failed());
+    let g = compare(&base, &with_files(run("a", 1, "cpu", 1e8, &linear, &lin_bytes, &[]), &|_| 0.5e6), &GateOptions::default());
+    assert!(g.workloads[0].points.iter().all(|p| p.call == Call::Same), "{:?}", g.workloads[0].points);
+    assert!(!g.failed());
+}
+
 /// `r` with its run header saying the caches were swept with a `bytes` buffer on `threads`.
 fn swept(mut r: RunResults, bytes: u64, threads: Option<u32>) -> RunResults {
     let h = r.run.as_mut().expect("a run header");

@@ -157,6 +157,7 @@ pub fn assess(probe: &[(f64, f64)], switches_per_s: Option<f64>, others: Option<
         others_share: others,
         load_per_core: load_per_core(),
         memory_probe_ns: None,
+        files_probe_ns: None,
         busy: !reasons.is_empty(),
         reasons,
         machine_slow: None,

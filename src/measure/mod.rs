@@ -9,6 +9,7 @@ pub mod equivalence;
 pub mod execute;
 pub mod query_sizes;
 pub mod extra;
+pub mod files_probe;
 pub mod headers;
 pub mod hygiene;
 pub mod inputs;

@@ -61,6 +61,11 @@ pub struct Active<'a> {
     pub cpu_at_start: Option<super::hygiene::CpuSnapshot>,
     /// How long each cache sweep before one of its samples took (ns): the memory probe.
     pub memory: Vec<f64>,
+    /// It writes files (a step with a disk factor, or a program): each sample is preceded
+    /// by a files probe (`files_probe`).
+    pub touches_files: bool,
+    /// How long each files probe before one of its samples took (ns).
+    pub files: Vec<f64>,
     /// Admitted for a trial (`admit::Admission::Trial`): its first run is stopped after
     /// this many seconds, and then it is skipped with this record.
     pub trial: Option<(f64, SkipInfo)>,
@@ -92,6 +97,8 @@ impl<'a> Active<'a> {
             switches: (0, 0.0),
             cpu_at_start: None,
             memory: Vec::new(),
+            touches_files: design.disk_factor() > 0.0,
+            files: Vec::new(),
             trial: None,
             overrun: None,
             share_s: None,
@@ -301,6 +308,10 @@ pub fn interleave<'a>(
                 break;
             }
             any = true;
+            // The file system's speed, before the sweep that leaves the caches cold.
+            if a.touches_files {
+                a.files.extend(super::files_probe::time(&a.ctx.temp_base()));
+            }
             // The same (cold) caches before every sample, whoever ran before it (scrub.rs).
             let swept = Instant::now();
             if super::scrub::caches_timed() {
@@ -406,6 +417,7 @@ pub fn summarize(a: &Active, probe_runs: &[(f64, f64)], programs: &[Option<Progr
         spent_s: a.spent_s,
         disturbance: Some(crate::results::Disturbance {
             memory_probe_ns: crate::fit::sample::median(&a.memory).ok(),
+            files_probe_ns: crate::fit::sample::median(&a.files).ok(),
             ..super::hygiene::assess(probe_runs, (a.switches.1 > 0.0).then(|| a.switches.0 as f64 / a.switches.1), others_share(a))
         }),
         bimodal: super::hygiene::bimodal(&a.samples),

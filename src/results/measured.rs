@@ -157,6 +157,11 @@ pub struct Disturbance {
     /// `--warm-caches` and in runs before it was measured.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub memory_probe_ns: Option<f64>,
+    /// Median time of the files probe before this design's samples (ns): the file system's
+    /// speed at this point (`measure::files_probe`), for designs that write files only.
+    /// Absent for the others and in runs before it was measured.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub files_probe_ns: Option<f64>,
     /// True when the probe got less than 0.85 of a core ("probe-share" in `reasons`) or other
     /// processes used more than 35% of the machine ("other-processes").
     pub busy: bool,

@@ -27,7 +27,7 @@ pub fn next_step(r: &GateReport, both_sides: bool) -> Option<String> {
     let steady: Vec<String> = r
         .workloads
         .iter()
-        .flat_map(|w| crate::track::gate::wide_suspect_moves(w).map(move |m| format!("{} `{}` ×{:.3} [×{:.3}–×{:.3}]", w.workload, m.design, m.ratio, m.ratio_low, m.ratio_high)))
+        .flat_map(|w| crate::track::gate::wide_suspect_moves(w).map(move |m| format!("{} `{}` ×{:.3} [×{:.3}–×{:.3}]{}", w.workload, m.design, m.ratio, m.ratio_low, m.ratio_high, with_files(m))))
         .collect();
     (!steady.is_empty()).then(|| {
         format!(
@@ -35,6 +35,16 @@ pub fn next_step(r: &GateReport, both_sides: bool) -> Option<String> {
             steady.join(", ")
         )
     })
+}
+
+/// What the files probe says of a steady move: the file system moved the same way by
+/// `FILES_MOVE` or more, so a second sweep may see it move again.
+fn with_files(m: &crate::track::gate::DesignMove) -> String {
+    use crate::track::gate::FILES_MOVE;
+    match m.files_ratio {
+        Some(f) if (m.ratio >= 1.0 && f >= FILES_MOVE) || (m.ratio < 1.0 && f <= 1.0 / FILES_MOVE) => format!(" (the file system moved with it: its probe ×{f:.2})"),
+        _ => String::new(),
+    }
 }
 
 #[cfg(test)]
@@ -53,7 +63,7 @@ mod tests {
         // A steady move under the threshold with its interval past it (measured: row-growth's
         // `build-once` slowed 15%, ×1.098 [×1.051–×1.147] at 8 of 8 sizes), on a gate that passed.
         let mut r = report();
-        r.workloads[0].moves = vec![DesignMove { design: "d".into(), sizes: 8, same_way: 8, ratio: 1.098, ratio_low: 1.051, ratio_high: 1.147, raw_ratio: 1.085, call: Call::Same }];
+        r.workloads[0].moves = vec![DesignMove { design: "d".into(), sizes: 8, same_way: 8, ratio: 1.098, ratio_low: 1.051, ratio_high: 1.147, raw_ratio: 1.085, files_ratio: None, call: Call::Same }];
         let text = next_step(&r, true).expect("a steady move is named");
         assert!(text.contains("w `d` ×1.098 [×1.051–×1.147]") && text.contains("--recheck 5"), "{text}");
         // Failed: the failing workloads are named with the recheck that would sweep them.

@@ -43,6 +43,9 @@ pub fn render(r: &GateReport) -> String {
     if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.memory_ratio.is_some()) {
         para(&mut s, "memory", "a change must also pass the threshold divided by the memory probe's ratio at its point (the cache sweeps before the design's samples): memory that got slower explains a slowdown away, never makes one; the probe's ratios are in --json");
     }
+    if r.workloads.iter().flat_map(|w| &w.points).any(|p| p.files_ratio.is_some()) {
+        para(&mut s, "files", "the designs that write files are probed before each sample (small files written, read back and removed); where that probe moved by a quarter or more the same way as a design's change, the change is shown but not judged: how much of the design's time is the file system's, the probe cannot say; its ratios are in --json");
+    }
     if let Some(k) = r.history_runs {
         let judged = r.workloads.iter().filter(|w| w.history.is_some()).count();
         let text = if judged == 0 {
@@ -246,12 +249,13 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
     let split = pts.iter().filter(|p| p.call == Call::Unclear && p.split && !p.busy).count();
+    let files: Vec<f64> = pts.iter().filter(|p| p.call == Call::Unclear && p.files_moved && !p.split && !p.busy).filter_map(|p| p.files_ratio).collect();
     let held_in = |h: Option<&crate::track::gate::History>, p: &crate::track::gate::PointGate| h.is_some_and(|h| h.held.iter().any(|(hd, n)| hd == d && *n == p.rows));
     let held_by_history = |p: &crate::track::gate::PointGate| held_in(hist, p);
     let held_by_recheck = |p: &crate::track::gate::PointGate| held_in(again, p) && !held_in(hist, p);
     let within_history = pts.iter().filter(|p| p.call == Call::Unclear && held_by_history(p)).count();
     let within_recheck = pts.iter().filter(|p| p.call == Call::Unclear && held_by_recheck(p)).count();
-    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split && !held_by_history(p) && !held_by_recheck(p)).count();
+    let unclear = pts.iter().filter(|p| p.call == Call::Unclear && !p.busy && !p.split && !p.files_moved && !held_by_history(p) && !held_by_recheck(p)).count();
     let held: Vec<f64> = pts.iter().filter(|p| p.call == Call::Same).map(|p| judged(p)).collect();
     if said.is_empty() {
         let lo = held.iter().copied().fold(f64::INFINITY, f64::min);
@@ -276,6 +280,12 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
     }
     if busy > 0 {
         said.push(format!("{busy} size(s) beyond the threshold but measured on a busy machine, not judged"));
+    }
+    if !files.is_empty() {
+        let lo = files.iter().copied().fold(f64::INFINITY, f64::min);
+        let hi = files.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let range = if (hi / lo - 1.0).abs() < 0.005 { format!("×{lo:.2}") } else { format!("×{lo:.2} to ×{hi:.2}") };
+        said.push(format!("{} size(s) beyond the threshold but the file system moved the same way (its probe {range} the baseline's time), not judged", files.len()));
     }
     if split > 0 {
         said.push(format!("{split} size(s) beyond the threshold but with samples in two separate groups (a median that can land in either), not judged"));
@@ -336,7 +346,8 @@ fn workload_notes(s: &mut String, w: &crate::track::gate::WorkloadGate, width: u
 }
 
 /// How far the machine itself moved between the two runs, as its probes saw it: the
-/// yardstick (once per run), the drift probe and the memory probe (at every compared point),
+/// yardstick (once per run), the drift probe and the memory probe (at every compared point)
+/// and the files probe (at the points of designs that write files),
 /// each as the range holding the middle 80% of the points. When the range reaches past the
 /// threshold either way, a one-point change of that size cannot be told from the machine's
 /// own, and the text says so: between back-to-back catalog sweeps of unchanged code on a
@@ -347,7 +358,7 @@ fn machine_moves(r: &GateReport) -> Option<String> {
     if let Some(y) = m.yardstick {
         said.push(format!("the yardstick took {y:.2}× the baseline's time"));
     }
-    let probes: Vec<String> = [("drift probe", m.drift), ("memory probe", m.memory)]
+    let probes: Vec<String> = [("drift probe", m.drift), ("memory probe", m.memory), ("files probe", m.files)]
         .into_iter()
         .filter_map(|(name, range)| range.map(|(lo, hi)| format!("the {name} {lo:.2}× to {hi:.2}×")))
         .collect();
@@ -387,6 +398,8 @@ mod tests {
                 normalised_ratio: Some(1.0),
                 normalised_by: Some("drift probe".into()),
                 memory_ratio: Some(memory),
+                files_ratio: None,
+            files_moved: false,
                 p_value: None,
                 q_value: None,
                 call: Call::Same,

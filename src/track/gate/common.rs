@@ -120,6 +120,8 @@ mod tests {
             normalised_ratio: None,
             normalised_by: None,
             memory_ratio: None,
+            files_ratio: None,
+            files_moved: false,
             p_value: Some(1e-6),
             q_value: None,
             call: if ratio > 1.1 { Call::Regression } else { Call::Same },

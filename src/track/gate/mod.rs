@@ -44,7 +44,10 @@ mod growth;
 mod both;
 mod history;
 mod pair;
+mod machine;
 mod points;
+pub use machine::MachineMove;
+pub use points::FILES_MOVE;
 mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};
@@ -120,6 +123,16 @@ pub struct PointGate {
     /// called; absent when either run has no memory probe.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub memory_ratio: Option<f64>,
+    /// new / base of the files probe at this point (`measure::files_probe`, before each
+    /// sample of a design that writes files); absent when either run has no files probe
+    /// there.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub files_ratio: Option<f64>,
+    /// The files probe moved by `points::FILES_MOVE` or more the way the change went: the
+    /// change is left unjudged (the file system moved, by how much of this design's time
+    /// the probe cannot say).
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub files_moved: bool,
     pub p_value: Option<f64>,
     /// The rank test's p-value adjusted over all the workload's points compared (the design's
     /// points with `--pair`): Benjamini–Hochberg (`stats::fdr`). A change is called only
@@ -252,46 +265,7 @@ pub struct GateReport {
     pub next_step: Option<String>,
 }
 
-/// How far the machine itself moved between the two runs, as its probes saw it: the
-/// yardstick (once per run), and the drift probe and the memory probe (at every compared
-/// point) as the range holding the middle 80% of the points.
-#[derive(Debug, Clone, Copy, PartialEq)]
-pub struct MachineMove {
-    pub yardstick: Option<f64>,
-    pub drift: Option<(f64, f64)>,
-    pub memory: Option<(f64, f64)>,
-}
-
-impl MachineMove {
-    /// The largest move either way, as a factor (≥ 1): 1.5 for ×0.67 or ×1.5.
-    pub fn widest(&self) -> f64 {
-        let ends = self.yardstick.into_iter().chain(self.drift.into_iter().chain(self.memory).flat_map(|(lo, hi)| [lo, hi]));
-        ends.map(|x| x.ln().abs()).fold(0.0, f64::max).exp()
-    }
-}
-
 impl GateReport {
-    /// How far the machine moved between the runs (none when they ran on different
-    /// machines, or nothing was compared).
-    pub fn machine_move(&self) -> Option<MachineMove> {
-        if self.machines_differ {
-            return None;
-        }
-        let points = self.workloads.iter().flat_map(|w| &w.points);
-        let drift: Vec<f64> = points.clone().filter(|p| p.normalised_by.as_deref() == Some("drift probe")).filter_map(|p| p.normalised_ratio.map(|n| p.ratio / n)).collect();
-        let memory: Vec<f64> = points.filter_map(|p| p.memory_ratio).collect();
-        let range = |v: &[f64]| -> Option<(f64, f64)> {
-            let mut v: Vec<f64> = v.iter().copied().filter(|x| x.is_finite() && *x > 0.0).collect();
-            if v.is_empty() {
-                return None;
-            }
-            v.sort_by(f64::total_cmp);
-            Some((crate::fit::sample::quantile_sorted(&v, 0.1), crate::fit::sample::quantile_sorted(&v, 0.9)))
-        };
-        let m = MachineMove { yardstick: self.yardstick_ratio, drift: range(&drift), memory: range(&memory) };
-        (m.yardstick.is_some() || m.drift.is_some() || m.memory.is_some()).then_some(m)
-    }
-
     /// True when anything got worse.
     pub fn failed(&self) -> bool {
         self.regressions > 0 || self.growth_regressions > 0 || self.design_regressions > 0
@@ -423,20 +397,5 @@ fn compare_design(wg: &mut WorkloadGate, bw: &WorkloadResults, nw: &WorkloadResu
     }
     if let Some(g) = growth::memory_growth(design, &common) {
         wg.growth.push(g);
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::MachineMove;
-
-    /// The widest move is the largest factor either way over every probe's ends.
-    #[test]
-    fn the_widest_machine_move_counts_both_directions() {
-        let m = MachineMove { yardstick: Some(1.11), drift: Some((0.82, 1.44)), memory: Some((0.6, 1.3)) };
-        assert!((m.widest() - 1.0 / 0.6).abs() < 1e-9, "{}", m.widest());
-        let m = MachineMove { yardstick: Some(1.05), drift: None, memory: None };
-        assert!((m.widest() - 1.05).abs() < 1e-9);
-        assert_eq!(MachineMove { yardstick: None, drift: None, memory: None }.widest(), 1.0);
     }
 }

@@ -97,6 +97,8 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
             normalised_ratio: None,
             normalised_by: None,
             memory_ratio: None,
+            files_ratio: None,
+            files_moved: false,
             p_value: p,
             q_value: None,
             call,

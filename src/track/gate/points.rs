@@ -91,6 +91,11 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         (Some(ob), Some(om)) => om - ob,
         _ => 0.0,
     };
+    // The file system's own speed, for designs that write files (`measure::files_probe`).
+    let files = match (files_of(b), files_of(m)) {
+        (Some(pb), Some(pn)) => Some(pn / pb),
+        _ => None,
+    };
     let call = judge(ratio, &[normalised, memory.map(|x| ratio / x)], p, threshold, alpha);
     let busier = match call {
         Call::Regression => others_rise >= OTHERS_SHARE_MOVE,
@@ -98,8 +103,9 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         _ => false,
     };
     let busy = busy || busier;
+    let files_moved = files.is_some_and(|f| moved_with(call, f));
     let call = match call {
-        Call::Regression | Call::Improvement if busy || split => Call::Unclear,
+        Call::Regression | Call::Improvement if busy || split || files_moved => Call::Unclear,
         c => c,
     };
     PointGate {
@@ -114,6 +120,8 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         normalised_ratio: normalised,
         normalised_by: by,
         memory_ratio: memory,
+        files_ratio: files,
+        files_moved,
         p_value: p,
         q_value: None,
         call,
@@ -222,6 +230,32 @@ fn probe_of(m: &Measured) -> Option<f64> {
     m.disturbance.as_ref().and_then(|d| d.memory_probe_ns).filter(|x| *x > 0.0 && x.is_finite())
 }
 
+/// How far the files probe (`measure::files_probe`) must move between the runs at a point,
+/// in the direction of a change, for a change of a design that writes files not to be
+/// called. The probe cannot say how much of a design's time is the file system's: between
+/// four quiet sweeps of storage here (5 December) it moved ×0.14 to ×7.2 at the same size
+/// between two of them, alike for every design of a size, while the one-file-per-parcel
+/// designs moved ×0.32 to ×3.1 with it and the one-file designs ×0.70 to ×1.43. Dividing by it would hide a real change of
+/// a design the file system barely touches; so a probe move of a quarter or more, the same
+/// way as the change, leaves the change shown and unjudged, as a busy point is. A quarter:
+/// about 7% of `ipc-per-parcel`'s time at 2k rows in those sweeps, where it is most exposed
+/// (about 6 ms more per ms of probe, over 15 ms of work).
+pub const FILES_MOVE: f64 = 1.25;
+
+/// The files probe moved by [`FILES_MOVE`] or more the way `call` goes (ratio `files`).
+pub(super) fn moved_with(call: Call, files: f64) -> bool {
+    match call {
+        Call::Regression => files >= FILES_MOVE,
+        Call::Improvement => files <= 1.0 / FILES_MOVE,
+        _ => false,
+    }
+}
+
+/// The files probe of a measured point, when its run recorded one.
+pub(super) fn files_of(m: &Measured) -> Option<f64> {
+    m.disturbance.as_ref().and_then(|d| d.files_probe_ns).filter(|x| *x > 0.0 && x.is_finite())
+}
+
 /// The call on one point. `raw` is new/base as measured, `corrected` the same after each
 /// machine-speed correction there is (the drift probe's, the memory probe's). A change is
 /// called only when the raw ratio and every corrected one pass the threshold in the same
@@ -258,6 +292,8 @@ mod tests {
             normalised_ratio: None,
             normalised_by: None,
             memory_ratio: None,
+            files_ratio: None,
+            files_moved: false,
             p_value: Some(p),
             q_value: None,
             call,

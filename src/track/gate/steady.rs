@@ -92,6 +92,11 @@ pub struct DesignMove {
     pub ratio_high: f64,
     /// Geometric mean of the raw ratios of medians (no correction).
     pub raw_ratio: f64,
+    /// Geometric mean of the files probe's ratios over the pooled sizes (designs that write
+    /// files, when both runs probed every one of them). When it moved by
+    /// `points::FILES_MOVE` or more the way the design did, the design is not called.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub files_ratio: Option<f64>,
     pub call: Call,
 }
 
@@ -113,9 +118,24 @@ pub fn design_moves(wg: &WorkloadGate, busy_ok: bool) -> Vec<DesignMove> {
         if judged.len() < MIN_SIZES || raw.len() != judged.len() {
             continue;
         }
-        out.push(judge(name, &judged, &raw, threshold, spread));
+        let files: Option<Vec<f64>> = pts.iter().map(|p| p.files_ratio.map(f64::ln)).collect();
+        out.push(with_files(judge(name, &judged, &raw, threshold, spread), files.as_deref()));
     }
     out
+}
+
+/// A change of a design that writes files is left unjudged when the files probe (`files`,
+/// log-ratios over the pooled sizes) moved by `points::FILES_MOVE` or more the same way on
+/// average: the file system moved, and by how much of the design's time cannot be told
+/// (`points::FILES_MOVE`).
+fn with_files(mut m: DesignMove, files: Option<&[f64]>) -> DesignMove {
+    let Some(files) = files.filter(|f| !f.is_empty()) else { return m };
+    let mean = (files.iter().sum::<f64>() / files.len() as f64).exp();
+    m.files_ratio = Some(mean);
+    if super::points::moved_with(m.call, mean) {
+        m.call = Call::Unclear;
+    }
+    m
 }
 
 /// The rule of the module doc on one design's log-ratios (judged, relative to the common
@@ -149,6 +169,7 @@ fn judge(design: &str, judged: &[f64], raw: &[f64], threshold: f64, spread: f64)
         ratio_low: (mean - half).exp(),
         ratio_high: (mean + half).exp(),
         raw_ratio: raw_mean.exp(),
+        files_ratio: None,
         call,
     }
 }
@@ -202,6 +223,27 @@ mod tests {
         let judged = [1.16, 1.15, 1.17, 1.14, 1.16, 1.15];
         let raw = [1.01, 0.99, 1.02, 1.0, 1.01, 0.98];
         assert_eq!(judge("d", &logs(&judged), &logs(&raw), 0.10, 0.0).call, Call::Unclear);
+    }
+
+    /// ipc-per-parcel between two sweeps of 5 December: raw ×1.64–×2.04 at its four sizes.
+    /// With the files probe ×1.9 slower at those points the move is left unjudged; with the
+    /// probe ×1.1 (less than `FILES_MOVE`) or moved the other way the call stands; a file
+    /// system that moved never makes a change of equal medians.
+    #[test]
+    fn a_design_that_moved_with_the_file_system_is_not_called() {
+        let raw = [2.02, 1.96, 2.04, 1.64];
+        let m = judge("ipc-per-parcel", &logs(&raw), &logs(&raw), 0.10, 0.0);
+        assert_eq!(m.call, Call::Regression);
+        let probe = |q: f64| logs(&[q; 4]);
+        let slower_files = with_files(m.clone(), Some(&probe(1.9)));
+        assert_eq!(slower_files.call, Call::Unclear, "{slower_files:?}");
+        assert!((slower_files.files_ratio.expect("a files ratio") - 1.9).abs() < 1e-9, "{slower_files:?}");
+        assert_eq!(with_files(m.clone(), Some(&probe(1.1))).call, Call::Regression);
+        assert_eq!(with_files(m.clone(), Some(&probe(0.5))).call, Call::Regression);
+        assert_eq!(with_files(m.clone(), None).call, Call::Regression);
+        let same = [1.01, 0.99, 1.0, 1.02];
+        let m = judge("d", &logs(&same), &logs(&same), 0.10, 0.0);
+        assert_eq!(with_files(m, Some(&probe(0.5))).call, Call::Same);
     }
 
     #[test]
