@@ -33,8 +33,9 @@ pub struct DesignState {
     pub blocked: Option<SkipInfo>,
     /// The size whose point is already written (a resumed sweep's failure).
     pub written_at: Option<u64>,
-    /// Time spent around each sample outside it (the cache sweep before it), per sample, at
-    /// the last measured size: what the run budget pays beyond the samples themselves.
+    /// Time spent around each sample outside it (the cache sweep before it, and the files
+    /// probe for a design that writes files), per sample, at the last measured size: what
+    /// the run budget pays beyond the samples themselves.
     pub overhead_ns: f64,
 }
 
@@ -43,7 +44,8 @@ impl DesignState {
     pub fn learn_measured(&mut self, plan: &Plan, rows: u64, m: &Measured) {
         let b = plan.budget;
         self.history.push((rows, m.median_ns));
-        self.overhead_ns = m.disturbance.as_ref().and_then(|d| d.memory_probe_ns).filter(|x| x.is_finite() && *x > 0.0).unwrap_or(0.0);
+        let probe = |x: Option<f64>| x.filter(|x| x.is_finite() && *x > 0.0).unwrap_or(0.0);
+        self.overhead_ns = m.disturbance.as_ref().map_or(0.0, |d| probe(d.memory_probe_ns) + probe(d.files_probe_ns));
         self.peaks.push((rows, m.program.map(|p| p.peak_resident_bytes as f64).unwrap_or(m.alloc.peak_live as f64)));
         if m.stop == StopReason::PointBudget && (m.samples_ns.len() as u64) < b.min_samples {
             let cause = SkipCause::TooFewSamples { at: rows, budget_ns: b.per_point_s * 1e9, samples: m.samples_ns.len() as u64, needed: b.min_samples, run_ns: m.median_ns };
