@@ -804,10 +804,12 @@ fn a_leftover_of_the_machine_move_is_not_called_a_change_of_the_design() {
         let m = moves.iter().find(|m| m["design"] == design).expect("the design's move");
         let (left, raw) = (m["ratio"].as_f64().expect("ratio"), m["raw_ratio"].as_f64().expect("raw"));
         // The recorded situation: past the 10% threshold after the corrections, with the
-        // interval above ×1, and the raw medians moved far more.
+        // interval above ×1, and the raw medians moved far more. Not called: `unclear` by the
+        // machine-share rule, or `same` where the bar of three spreads of the workload's
+        // points around their sizes' moves is higher still (type-drift: ×1.22).
         assert!(left > 1.10 && m["ratio_low"].as_f64().expect("low") > 1.0, "{m}");
         assert!(left.ln() < (raw / left).ln(), "{m}");
-        assert_eq!(m["call"], "unclear", "{m}");
+        assert!(m["call"] == "unclear" || m["call"] == "same", "{m}");
         assert_eq!(g["design_regressions"], 0, "{g}");
     }
 }

@@ -244,7 +244,7 @@ fn design_lines(s: &mut String, w: &crate::track::gate::WorkloadGate, d: &str, n
         }
         if !small.is_empty() {
             let tail = if whole.is_some() { "reported" } else { "reported, not failing" };
-            said.push(format!("{word} at {} ({}), but not at its two largest sizes: {tail}", sizes(&small), times(&small)));
+            said.push(format!("{word} at {} ({}), but not at its largest size: {tail}", sizes(&small), times(&small)));
         }
     }
     let busy = pts.iter().filter(|p| p.call == Call::Unclear && p.busy).count();
@@ -400,6 +400,7 @@ mod tests {
                 memory_ratio: Some(memory),
                 files_ratio: None,
             files_moved: false,
+            size_move: None,
                 p_value: None,
                 q_value: None,
                 call: Call::Same,

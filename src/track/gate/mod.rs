@@ -133,6 +133,10 @@ pub struct PointGate {
     /// the probe cannot say).
     #[serde(default, skip_serializing_if = "std::ops::Not::not")]
     pub files_moved: bool,
+    /// The other designs' move at this size (median of their judged ratios, with two or
+    /// more of them compared there): what the point is judged against (`common::size_moves`).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub size_move: Option<f64>,
     pub p_value: Option<f64>,
     /// The rank test's p-value adjusted over all the workload's points compared (the design's
     /// points with `--pair`): Benjamini–Hochberg (`stats::fdr`). A change is called only
@@ -144,8 +148,8 @@ pub struct PointGate {
     /// the design was compared at one size only). Only confirmed changes fail the gate.
     #[serde(default)]
     pub confirmed: bool,
-    /// A change seen at neighbouring sizes, but only below the design's two largest compared
-    /// sizes (four or more compared): reported, not failing (see `points::confirm`).
+    /// A change seen at neighbouring sizes, but not at the design's largest size that could
+    /// be judged (four or more compared): reported, not failing (see `points::confirm`).
     #[serde(default)]
     pub small_only: bool,
     /// Either run measured this point on a busy machine, or the others' share of the machine
@@ -222,7 +226,9 @@ pub struct WorkloadGate {
 pub struct CommonMode {
     /// Median of the judged ratios over every point of every design.
     pub ratio: f64,
-    /// Robust spread of the points' log-ratios around it (1.4826 × median absolute deviation).
+    /// Robust spread of the points' log-ratios around their sizes' common moves (around the
+    /// median above where a size had too few other designs): 1.4826 × median absolute
+    /// deviation.
     pub spread: f64,
 }
 

@@ -13,7 +13,7 @@
 //! ratio of medians NEW/OLD, its Hodges–Lehmann interval and the rank test; a change beyond
 //! the threshold and significant is a regression (or an improvement); busy points are
 //! judged too (both designs saw the same contention); a change counts when a neighbouring size agrees and, with four sizes or more,
-//! it reaches one of the two largest or holds at most sizes; growth compared as between
+//! it reaches the largest size or holds at most sizes; growth compared as between
 //! runs. No probe correction (both designs saw the same machine) and no common move (there
 //! is one pair).
 
@@ -99,6 +99,7 @@ fn compare_in(w: &WorkloadResults, old: &str, new: &str, opts: &GateOptions) -> 
             memory_ratio: None,
             files_ratio: None,
             files_moved: false,
+            size_move: None,
             p_value: p,
             q_value: None,
             call,

@@ -6,7 +6,8 @@
 //! passes the threshold at some sizes and not at others and is rarely confirmed by a
 //! neighbour (5 of 12 rehearsal pairings caught). Taken together, ten sizes that all moved
 //! ×1.05–×1.2 are strong evidence even where no single one is. So each design's judged
-//! log-ratios, divided by the workload's common move, are also pooled:
+//! log-ratios, each divided by its size's common move (`common::size_moves`; the
+//! workload's where a size had fewer than two other designs), are also pooled:
 //!
 //! - their mean, with a 95% Student-t interval over the sizes, must pass the threshold (and
 //!   [`super::COMMON_MODE_SPREADS`] spreads of the workload's common move, as a point must)
@@ -85,7 +86,8 @@ pub struct DesignMove {
     pub sizes: usize,
     /// Sizes that moved the same way as the pooled mean.
     pub same_way: usize,
-    /// Geometric mean of the judged ratios divided by the workload's common move.
+    /// Geometric mean of the judged ratios, each divided by its size's common move (the
+    /// workload's where the size had too few other designs).
     pub ratio: f64,
     /// 95% Student-t interval of that mean over the sizes.
     pub ratio_low: f64,
@@ -113,7 +115,7 @@ pub fn design_moves(wg: &WorkloadGate, busy_ok: bool) -> Vec<DesignMove> {
             continue;
         }
         let pts: Vec<_> = wg.points.iter().filter(|p| p.design == name && !p.split && (busy_ok || !p.busy)).collect();
-        let judged: Vec<f64> = pts.iter().map(|p| p.normalised_ratio.unwrap_or(p.ratio).ln() - common).filter(|x| x.is_finite()).collect();
+        let judged: Vec<f64> = pts.iter().map(|p| p.normalised_ratio.unwrap_or(p.ratio).ln() - p.size_move.map_or(common, f64::ln)).filter(|x| x.is_finite()).collect();
         let raw: Vec<f64> = pts.iter().map(|p| p.ratio.ln()).filter(|x| x.is_finite()).collect();
         if judged.len() < MIN_SIZES || raw.len() != judged.len() {
             continue;
