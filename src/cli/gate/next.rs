@@ -40,9 +40,9 @@ pub fn next_step(r: &GateReport, both_sides: bool) -> Option<String> {
 /// What the files probe says of a steady move: the file system moved the same way by
 /// `FILES_MOVE` or more, so a second sweep may see it move again.
 fn with_files(m: &crate::track::gate::DesignMove) -> String {
-    use crate::track::gate::FILES_MOVE;
+    let way = if m.ratio >= 1.0 { crate::track::gate::Call::Regression } else { crate::track::gate::Call::Improvement };
     match m.files_ratio {
-        Some(f) if (m.ratio >= 1.0 && f >= FILES_MOVE) || (m.ratio < 1.0 && f <= 1.0 / FILES_MOVE) => format!(" (the file system moved with it: its probe ×{f:.2})"),
+        Some(f) if crate::track::gate::files_moved_with(way, f) => format!(" (the file system moved with it: its probe ×{f:.2})"),
         _ => String::new(),
     }
 }

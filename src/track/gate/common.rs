@@ -90,12 +90,8 @@ fn size_moves(wg: &WorkloadGate, judged: &dyn Fn(&PointGate) -> f64) -> Vec<Opti
     wg.points
         .iter()
         .map(|p| {
-            let mut others: Vec<f64> = wg.points.iter().filter(|q| q.rows == p.rows && q.design != p.design).map(judged).filter(|x| x.is_finite()).collect();
-            if others.len() < SIZE_OTHERS_MIN {
-                return None;
-            }
-            others.sort_by(f64::total_cmp);
-            Some(crate::fit::sample::quantile_sorted(&others, 0.5))
+            let others: Vec<f64> = wg.points.iter().filter(|q| q.rows == p.rows && q.design != p.design).map(judged).filter(|x| x.is_finite()).collect();
+            (others.len() >= SIZE_OTHERS_MIN).then(|| crate::fit::sample::median(&others).ok()).flatten()
         })
         .collect()
 }

@@ -47,7 +47,7 @@ mod pair;
 mod machine;
 mod points;
 pub use machine::MachineMove;
-pub use points::FILES_MOVE;
+pub use points::{moved_with as files_moved_with, FILES_MOVE};
 mod steady;
 
 pub use common::{common_mode, COMMON_MODE_SPREADS};

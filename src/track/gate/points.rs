@@ -4,7 +4,7 @@
 
 use super::{Call, MissingPoint, PointGate, WorkloadGate};
 use crate::results::reader::WorkloadResults;
-use crate::results::Measured;
+use crate::results::{Disturbance, Measured};
 use crate::track::stats::{hodges_lehmann_ratio_ci, mann_whitney, Method};
 
 /// How the machine's own speed differed between the runs, for runs without drift probes.
@@ -62,10 +62,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
     // change away (see `judge`).
     // Runs that swept differently (another buffer size, one thread or two) time different
     // sweeps: their ratio says nothing about the memory.
-    let memory = match (probe_of(b), probe_of(m)) {
-        (Some(pb), Some(pn)) if machines.same_sweep => Some(pn / pb),
-        _ => None,
-    };
+    let memory = probe_ratio(b, m, |d| d.memory_probe_ns).filter(|_| machines.same_sweep);
     // The rank test compares the samples after the same correction.
     let scale = normalised.map(|x| x / ratio).unwrap_or(1.0);
     let adjusted: Vec<f64> = m.samples_ns.iter().map(|v| v * scale).collect();
@@ -92,10 +89,7 @@ pub(super) fn point_gate(design: &str, (n, b, m): Pair, bw: &WorkloadResults, nw
         _ => 0.0,
     };
     // The file system's own speed, for designs that write files (`measure::files_probe`).
-    let files = match (files_of(b), files_of(m)) {
-        (Some(pb), Some(pn)) => Some(pn / pb),
-        _ => None,
-    };
+    let files = probe_ratio(b, m, |d| d.files_probe_ns);
     let call = judge(ratio, &[normalised, memory.map(|x| ratio / x)], p, threshold, alpha);
     let busier = match call {
         Call::Regression => others_rise >= OTHERS_SHARE_MOVE,
@@ -236,9 +230,11 @@ pub(super) fn status(w: &WorkloadResults, design: &str, rows: u64) -> String {
     }
 }
 
-/// The memory probe of a measured point, when its run recorded one.
-fn probe_of(m: &Measured) -> Option<f64> {
-    m.disturbance.as_ref().and_then(|d| d.memory_probe_ns).filter(|x| *x > 0.0 && x.is_finite())
+/// new / base of one probe at a point (`pick` reads it from a point's disturbance), when
+/// both runs recorded a usable reading.
+fn probe_ratio(b: &Measured, m: &Measured, pick: fn(&Disturbance) -> Option<f64>) -> Option<f64> {
+    let read = |x: &Measured| x.disturbance.as_ref().and_then(pick).filter(|v| *v > 0.0 && v.is_finite());
+    Some(read(m)? / read(b)?)
 }
 
 /// How far the files probe (`measure::files_probe`) must move between the runs at a point,
@@ -254,17 +250,12 @@ fn probe_of(m: &Measured) -> Option<f64> {
 pub const FILES_MOVE: f64 = 1.25;
 
 /// The files probe moved by [`FILES_MOVE`] or more the way `call` goes (ratio `files`).
-pub(super) fn moved_with(call: Call, files: f64) -> bool {
+pub fn moved_with(call: Call, files: f64) -> bool {
     match call {
         Call::Regression => files >= FILES_MOVE,
         Call::Improvement => files <= 1.0 / FILES_MOVE,
         _ => false,
     }
-}
-
-/// The files probe of a measured point, when its run recorded one.
-pub(super) fn files_of(m: &Measured) -> Option<f64> {
-    m.disturbance.as_ref().and_then(|d| d.files_probe_ns).filter(|x| *x > 0.0 && x.is_finite())
 }
 
 /// The call on one point. `raw` is new/base as measured, `corrected` the same after each
