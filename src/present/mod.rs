@@ -26,7 +26,7 @@ pub fn disturbed_words(r: &crate::results::reader::RunResults) -> Option<String>
     }
     if slow > 0 {
         parts.push(format!(
-            "The machine ran slower at some sizes: {slow} of {} points were measured while the drift probe took ×{} or more its usual time, though no other process took the cores (a neighbour on the same host, a slower clock).",
+            "The machine ran slower at some sizes: {slow} of {} points were measured while the drift probe took {} times its usual time or more, though no other process took the cores (a neighbour on the same host, a slower clock).",
             measured.len(),
             crate::results::reader::slow_probe()
         ));
@@ -38,7 +38,7 @@ pub fn disturbed_words(r: &crate::results::reader::RunResults) -> Option<String>
     if !again.is_empty() {
         let top = again.iter().copied().fold(f64::NAN, f64::max);
         let sizes = if again.len() == 1 { "1 size was".to_string() } else { format!("{} sizes were", again.len()) };
-        parts.push(format!("{sizes} measured a second time because the machine ran slower during the first (the drift probe at up to ×{top:.2} its usual time); the second measurement is the one kept."));
+        parts.push(format!("{sizes} measured a second time because the machine ran slower during the first (the drift probe took up to {top:.2} times its usual time); the second measurement is the one kept."));
     }
     (!parts.is_empty()).then(|| parts.join(" "))
 }
