@@ -117,3 +117,26 @@ fn n_flattened_by_a_fixed_cost_is_paired_with_log_n() {
     assert!(fit.top_slope >= 0.3 && fit.best == GrowthClass::Linear, "{} {:?}", fit.top_slope, fit.best);
     assert_ne!(fit.alternative, Some(GrowthClass::Log));
 }
+
+#[test]
+fn a_small_quadratic_term_in_counted_bytes_is_found_before_it_dominates() {
+    // Bytes allocated by row-growth's `extend-in-place`, 500 to 16k rows, as a catalog sweep
+    // recorded them (identical in every sweep: allocation counts, not times). 11.5 kB a row
+    // plus a term in n² that carries 10% of the bytes at 16k rows.
+    let sizes = [500.0, 1e3, 2e3, 4e3, 8e3, 16e3];
+    let bytes = [5_779_341.0, 11_601_064.0, 23_261_693.0, 47_510_132.0, 97_573_578.0, 204_749_493.0];
+    let fit = fit_growth(&sizes, &bytes).unwrap();
+    assert_eq!(fit.best, GrowthClass::Quadratic, "{:?} {:?}", fit.label(), fit.candidates);
+    // Held out: the same sweep measured 449,135,157 bytes at 32k rows; the fit extrapolates
+    // to it within 1%.
+    let at_32k = fit.cost_at(32e3);
+    assert!((at_32k / 449_135_157.0 - 1.0).abs() < 0.01, "{at_32k}");
+    // The same bend under a ±2% wobble (what a noisy count would add) is not enough: the
+    // term's 10% share is then under ten residual SDs and n² is not named alone.
+    let wobbled: Vec<f64> = bytes.iter().enumerate().map(|(i, y)| y * if i % 2 == 0 { 1.02 } else { 0.98 }).collect();
+    let fit = fit_growth(&sizes, &wobbled).unwrap();
+    assert_ne!((fit.best, fit.alternative), (GrowthClass::Quadratic, None), "{}", fit.label());
+    // Timed values (a noise floor) keep the 15% share.
+    let fit = fit_growth_with(&sizes, &bytes, TIME_REPRODUCIBILITY).unwrap();
+    assert_ne!(fit.best, GrowthClass::Quadratic, "{}", fit.label());
+}
