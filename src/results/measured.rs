@@ -128,7 +128,7 @@ impl Measured {
         if d.busy {
             return Some("measured while the machine was busy".into());
         }
-        d.machine_slow.map(|r| format!("measured while the machine ran slower (the drift probe took ×{r:.2} its usual time at this size)"))
+        d.machine_slow.map(|r| format!("measured while the machine ran slower (the drift probe took {r:.2} times its usual time at this size)"))
     }
 
     /// Measured while other work took the machine (`Disturbance::busy`) — not the slower

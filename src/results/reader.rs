@@ -254,7 +254,7 @@ mod tests {
         let mut m = Measured::fixture(1e6);
         m.disturbance = Some(Disturbance { machine_slow: Some(1.42), ..Default::default() });
         assert!(m.is_contaminated() && !m.is_busy());
-        assert!(m.disturbed_because().is_some_and(|w| w.contains("×1.42")));
+        assert!(m.disturbed_because().is_some_and(|w| w.contains("1.42 times its usual time")));
         m.disturbance = Some(Disturbance::default());
         assert!(!m.is_contaminated() && m.disturbed_because().is_none());
     }

@@ -61,7 +61,7 @@ pub(super) fn warnings(w: &WorkloadResults, a: &WorkloadAnalysis) -> (Vec<String
     }
     if slow > 0 {
         long.push(format!(
-            "{slow} of {} points were measured while the machine ran slower (the drift probe took ×{} or more its usual time at their sizes); they are left out of growth classes and the verdict.",
+            "{slow} of {} points were measured while the machine ran slower (the drift probe took {} times its usual time or more at their sizes); they are left out of growth classes and the verdict.",
             measured.len(),
             crate::results::reader::slow_probe()
         ));
