@@ -58,6 +58,9 @@ pub struct DesignPlan {
     pub query_plans: Vec<String>,
     /// Set when the design is a program of the user's (then `steps` and `setup` are empty).
     pub program: Option<ProgramPlan>,
+    /// Share of each run's own time spun after its steps (`slowdown:`, for rehearsing the
+    /// gate); 0 for none.
+    pub slowdown: f64,
 }
 
 /// A program design, resolved: paths made absolute against the workload's folder.

@@ -55,6 +55,9 @@ const CASES: &[(&str, &str, &[&str])] = &[
     ("44-column-of-another-table.yaml", "17:28", &["no column `district` in table `deliveries`", "`district` is in table `members`"]),
     // A step's constructor refuses, located at the parameter it names.
     ("45-same-column-twice.yaml", "10:42", &["step `group_shares` cannot be built", "`value` is the group column `grams` again"]),
+    // The rehearsal knob: steps only, and within its range.
+    ("46-slowdown-on-program.yaml", "9:15", &["`slowdown:` slows a design's steps", "in the program itself"]),
+    ("47-slowdown-too-large.yaml", "10:15", &["expected a slowdown from 0% to 1000%", "20"]),
 ];
 
 #[test]
@@ -78,6 +81,22 @@ fn every_broken_spec_is_located_and_specific() {
 fn the_builtin_catalog_lints_clean() {
     let out = Command::cargo_bin("framecost").expect("binary").args(["lint", "workloads"]).output().expect("runs");
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+}
+
+#[test]
+fn a_design_slowed_on_purpose_is_named_by_lint() {
+    // The rehearsal knob is a design key; lint accepts it and says it is there, so a
+    // rehearsal left in a workload does not slow a CI baseline unseen.
+    let text = std::fs::read_to_string("workloads/row-growth.yaml").expect("workload");
+    let slowed = text.replacen("    steps:\n      - build_from_records\n", "    steps:\n      - build_from_records\n    slowdown: 15%\n", 1);
+    assert_ne!(slowed, text, "the build-once design was found");
+    let dir = tempfile::tempdir().expect("tempdir");
+    let p = dir.path().join("slowed.yaml");
+    std::fs::write(&p, slowed).expect("write");
+    let out = Command::cargo_bin("framecost").expect("binary").arg("lint").arg(&p).output().expect("runs");
+    let said = String::from_utf8_lossy(&out.stdout);
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    assert!(said.contains("slowed on purpose") && said.contains("`build-once` by 15%"), "{said}");
 }
 
 #[test]

@@ -33,11 +33,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
             Ok(plan) => {
                 let programs = super::sweep::program_commands(std::slice::from_ref(&plan));
                 let caches = cache_note(&plan, &machine_caches);
+                let slowed = slowed_note(&plan);
                 if args.json {
                     docs.push(serde_json::json!({
                         "file": f.display().to_string(), "ok": true, "workload": plan.name,
                         "designs": plan.designs.len(), "sizes": plan.sizes, "problems": [],
-                        "programs": programs, "caches": caches,
+                        "programs": programs, "caches": caches, "slowed": slowed,
                     }));
                 } else {
                     let over = match &plan.axis {
@@ -50,6 +51,9 @@ pub fn run(args: Args) -> Result<(), Failure> {
                         println!("  runs a program (needs sweep --allow-programs): {c}");
                     }
                     if let Some(note) = &caches {
+                        println!("  note: {note}");
+                    }
+                    if let Some(note) = &slowed {
                         println!("  note: {note}");
                     }
                 }
@@ -83,6 +87,12 @@ pub fn run(args: Args) -> Result<(), Failure> {
 
 /// Advice, not a problem: the table at the largest size fits in a cache of this machine
 /// that the table at the target does not (`analyse::caches` for why it matters).
+/// The designs slowed on purpose (`slowdown:`), so a rehearsal left in a workload is seen.
+fn slowed_note(plan: &crate::plan::Plan) -> Option<String> {
+    let slowed: Vec<String> = plan.designs.iter().filter(|d| d.slowdown > 0.0).map(|d| format!("`{}` by {:.0}%", d.name, d.slowdown * 100.0)).collect();
+    (!slowed.is_empty()).then(|| format!("slowed on purpose with `slowdown:` (a rehearsal of the gate; remove it when done): {}", slowed.join(", ")))
+}
+
 fn cache_note(plan: &crate::plan::Plan, caches: &[crate::results::CacheLevel]) -> Option<String> {
     let (target, largest) = (plan.target?, *plan.sizes.last()?);
     if plan.axis.is_some() {

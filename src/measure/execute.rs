@@ -17,13 +17,28 @@ pub fn run_design(design: &DesignPlan, input: Value) -> Result<Value, SkipCause>
 /// panics (a capacity overflow on an absurd parameter, say) becomes an error of this run,
 /// so the sweep goes on.
 pub fn run_design_in(design: &DesignPlan, input: Value, ctx: &RunContext) -> Result<Value, SkipCause> {
-    caught(|| {
+    let t0 = std::time::Instant::now();
+    let out = caught(|| {
         let mut v = input;
         for s in &design.steps {
             v = s.runner.run(v, ctx).map_err(|e| e.to_string())?;
         }
         Ok(v)
-    })
+    });
+    spin_after(t0, design.slowdown);
+    out
+}
+
+/// Keep the core busy until `share` more of the time since `t0` has passed (the design's
+/// `slowdown:`): a slowdown by that fraction that allocates nothing and touches no memory,
+/// so the gate can be rehearsed on any design with a realistic 10–20% regression.
+pub fn spin_after(t0: std::time::Instant, share: f64) {
+    if share > 0.0 {
+        let until = t0.elapsed().mul_f64(1.0 + share);
+        while t0.elapsed() < until {
+            std::hint::spin_loop();
+        }
+    }
 }
 
 /// Run one (set-up) step, a panic becoming an error.
@@ -49,5 +64,24 @@ pub fn make_input(feed: &Value, private: bool) -> Value {
     match (feed, private) {
         (Value::Frame(df), true) => Value::Frame(crate::table::deep_copy(df)),
         (v, _) => v.clone(),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_slowdown_spins_for_at_least_its_share_of_the_run() {
+        // The spin waits on the clock, so the bound below holds on any machine, busy or not.
+        let t0 = std::time::Instant::now();
+        let mut x = 0u64;
+        for i in 0..2_000_000u64 {
+            x = x.wrapping_add(std::hint::black_box(i));
+        }
+        std::hint::black_box(x);
+        let work = t0.elapsed();
+        spin_after(t0, 0.5);
+        assert!(t0.elapsed() >= work.mul_f64(1.5), "{:?} after {:?} of work", t0.elapsed(), work);
     }
 }

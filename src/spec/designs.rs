@@ -15,6 +15,9 @@ use crate::patterns::ValueKind;
 use crate::plan::{ColumnPlan, DesignPlan, StepPlan};
 use std::collections::HashSet;
 
+/// The largest `slowdown:` a design may ask for (ten times its own time).
+pub const MAX_SLOWDOWN: f64 = 10.0;
+
 /// Check the designs; `first` is the table a design's first step receives (the workload's
 /// first table, at its widest point).
 pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &YamlPath, columns: &[ColumnPlan], first: &SeenTable, largest: u64) -> Vec<DesignPlan> {
@@ -104,6 +107,12 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
                 c.at(&p.key("expect").key("dtypes").key(col), format!("no column `{col}` in the table"), hint);
             }
         }
+        let slowdown = d.slowdown.map_or(0.0, |s| s.0);
+        if !(0.0..=MAX_SLOWDOWN).contains(&slowdown) {
+            c.at(&p.key("slowdown"), format!("expected a slowdown from 0% to {:.0}%, found {}", MAX_SLOWDOWN * 100.0, slowdown), None);
+        } else if slowdown > 0.0 && d.program.is_some() {
+            c.at(&p.key("slowdown"), "`slowdown:` slows a design's steps; a program is slowed in the program itself", None);
+        }
         out.push(DesignPlan {
             name: d.name.clone(),
             about: d.about.clone(),
@@ -116,6 +125,7 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
             expect_dtypes,
             query_plans: Vec::new(),
             program: None,
+            slowdown: slowdown.clamp(0.0, MAX_SLOWDOWN),
         });
     }
     out

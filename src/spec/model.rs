@@ -325,6 +325,11 @@ pub struct DesignSpec {
     /// What the trade expects of this design, for teaching.
     #[serde(default)]
     pub expect: Option<ExpectSpec>,
+    /// A deliberate slowdown for rehearsing the gate: after every run of the steps, keep the
+    /// core busy for this share of the run's own time (`15%` or 0.15; up to 1000%). Step
+    /// designs only (a program is slowed in the program).
+    #[serde(default)]
+    pub slowdown: Option<Share>,
 }
 
 /// A design that is a program: `{command: [python3, x.py], mode: worker, input: csv}`.
