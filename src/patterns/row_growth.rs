@@ -171,12 +171,7 @@ impl Step for BuildFromRecords {
             std::hint::black_box(build(&recs)?);
         }
         let out = build(&recs).map(Value::Frame);
-        if self.slowdown > 0.0 {
-            let until = t0.elapsed().mul_f64(1.0 + self.slowdown);
-            while t0.elapsed() < until {
-                std::hint::spin_loop();
-            }
-        }
+        crate::measure::execute::spin_after(t0, self.slowdown);
         out
     }
 }
