@@ -85,14 +85,14 @@ pub fn run(args: Args) -> Result<(), Failure> {
     Ok(())
 }
 
-/// Advice, not a problem: the table at the largest size fits in a cache of this machine
-/// that the table at the target does not (`analyse::caches` for why it matters).
 /// The designs slowed on purpose (`slowdown:`), so a rehearsal left in a workload is seen.
 fn slowed_note(plan: &crate::plan::Plan) -> Option<String> {
     let slowed: Vec<String> = plan.designs.iter().filter(|d| d.slowdown > 0.0).map(|d| format!("`{}` by {:.0}%", d.name, d.slowdown * 100.0)).collect();
     (!slowed.is_empty()).then(|| format!("slowed on purpose with `slowdown:` (a rehearsal of the gate; remove it when done): {}", slowed.join(", ")))
 }
 
+/// Advice, not a problem: the table at the largest size fits in a cache of this machine
+/// that the table at the target does not (`analyse::caches` for why it matters).
 fn cache_note(plan: &crate::plan::Plan, caches: &[crate::results::CacheLevel]) -> Option<String> {
     let (target, largest) = (plan.target?, *plan.sizes.last()?);
     if plan.axis.is_some() {

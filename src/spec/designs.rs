@@ -109,7 +109,7 @@ pub(super) fn check_designs(c: &mut Checker, designs: &[DesignSpec], path: &Yaml
         }
         let slowdown = d.slowdown.map_or(0.0, |s| s.0);
         if !(0.0..=MAX_SLOWDOWN).contains(&slowdown) {
-            c.at(&p.key("slowdown"), format!("expected a slowdown from 0% to {:.0}%, found {}", MAX_SLOWDOWN * 100.0, slowdown), None);
+            c.at(&p.key("slowdown"), format!("expected a slowdown from 0% to {:.0}%, found {}%", MAX_SLOWDOWN * 100.0, slowdown * 100.0), None);
         } else if slowdown > 0.0 && d.program.is_some() {
             c.at(&p.key("slowdown"), "`slowdown:` slows a design's steps; a program is slowed in the program itself", None);
         }
