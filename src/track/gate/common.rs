@@ -64,20 +64,25 @@ pub fn common_mode(wg: &mut WorkloadGate, designs: usize, threshold: f64) {
         // designs, the point's own among them. Narrower, it caught 16 of the 20 rehearsed
         // slowdowns instead of 13, but failed 6 of the 52 saved pairings of unchanged code
         // and 4 of 30 fresh ones, against none and one.
-        let centre = |p: &PointGate| p.size_move.map_or(med, f64::ln);
-        let mut dev: Vec<f64> = wg.points.iter().map(|p| (judged(p) - centre(p)).abs()).filter(|x| x.is_finite()).collect();
+        let mut dev: Vec<f64> = wg.points.iter().map(|p| (judged(p) - centre(p, med)).abs()).filter(|x| x.is_finite()).collect();
         dev.sort_by(f64::total_cmp);
         (med, 1.4826 * crate::fit::sample::quantile_sorted(&dev, 0.5))
     };
     wg.common_mode = Some(CommonMode { ratio: med.exp(), spread });
     let bar = (1.0 + threshold).ln().max(COMMON_MODE_SPREADS * spread);
     for p in wg.points.iter_mut() {
-        let stands_out = (judged(p) - p.size_move.map_or(med, f64::ln)).abs() > bar;
+        let stands_out = (judged(p) - centre(p, med)).abs() > bar;
         if matches!(p.call, Call::Regression | Call::Improvement) && !stands_out {
             p.call = Call::Unclear;
         }
     }
     reconfirm(wg);
+}
+
+/// The move (log) a point is judged against: its size's ([`PointGate::size_move`]), else the
+/// workload's `common` (log).
+pub(super) fn centre(p: &PointGate, common: f64) -> f64 {
+    p.size_move.map_or(common, f64::ln)
 }
 
 /// Fewest other designs compared at a point's size for that size's own common move.

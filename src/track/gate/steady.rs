@@ -115,7 +115,7 @@ pub fn design_moves(wg: &WorkloadGate, busy_ok: bool) -> Vec<DesignMove> {
             continue;
         }
         let pts: Vec<_> = wg.points.iter().filter(|p| p.design == name && !p.split && (busy_ok || !p.busy)).collect();
-        let judged: Vec<f64> = pts.iter().map(|p| p.normalised_ratio.unwrap_or(p.ratio).ln() - p.size_move.map_or(common, f64::ln)).filter(|x| x.is_finite()).collect();
+        let judged: Vec<f64> = pts.iter().map(|p| p.normalised_ratio.unwrap_or(p.ratio).ln() - super::common::centre(p, common)).filter(|x| x.is_finite()).collect();
         let raw: Vec<f64> = pts.iter().map(|p| p.ratio.ln()).filter(|x| x.is_finite()).collect();
         if judged.len() < MIN_SIZES || raw.len() != judged.len() {
             continue;
